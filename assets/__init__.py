@@ -1,0 +1,24 @@
+"""Bundled data: example documents (``examples/*.json``) and icons.
+
+The demo document is :data:`DEMO`; :func:`example_path` finds any bundled example by stem.
+"""
+
+from importlib.resources import files
+from pathlib import Path
+
+__all__ = ["DEMO", "example_names", "example_path"]
+
+_EXAMPLES = files(__name__) / "examples"
+
+DEMO = "strain_gauge_bridge"
+
+
+def example_names() -> list[str]:
+    """Stems of every bundled example, sorted."""
+    stems = (p.name.removesuffix(".json") for p in _EXAMPLES.iterdir() if p.name.endswith(".json"))
+    return sorted(stems)
+
+
+def example_path(name: str = DEMO) -> Path:
+    """Path of the bundled example ``name`` (a stem such as ``"rc_antialias"``)."""
+    return Path(str(_EXAMPLES / f"{name}.json"))

@@ -1,0 +1,32 @@
+"""The one exception hierarchy of the engine: every error a user can see is a CircuitError.
+
+Each message names what is at fault (the part, the net, the field) and, where it can, how to fix it.
+"""
+
+__all__ = [
+    "CircuitError",
+    "CutError",
+    "DocumentError",
+    "SingularCircuitError",
+    "ValueParseError",
+]
+
+
+class CircuitError(ValueError):
+    """Base of every error the engine raises on bad input or an unsolvable circuit."""
+
+
+class ValueParseError(CircuitError):
+    """A component value or frequency could not be read; the message quotes the text."""
+
+
+class CutError(CircuitError):
+    """The region is not a valid two-terminal cut; the message names the nets or parts at fault."""
+
+
+class SingularCircuitError(CircuitError):
+    """The circuit has no unique solution; the message names the parts or nets involved."""
+
+
+class DocumentError(CircuitError):
+    """A schematic document or file is malformed; the message names the field path."""

@@ -1,0 +1,265 @@
+"""The schematic document: the one source of truth that every view reads and every edit changes.
+
+All mutations go through :meth:`Document.add`, :meth:`Document.remove`, :meth:`Document.replace`,
+:meth:`Document.set_analysis` and :meth:`Document.set_title`; the undo layer calls exactly these.
+Each mutation (or each outermost :meth:`Document.batch`) notifies the subscribers once with a
+:class:`Change`.
+"""
+
+from __future__ import annotations
+
+import itertools
+import re
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass, field, replace
+from typing import TypeVar
+
+from ..errors import DocumentError
+from .model import (
+    ANALYSIS_FORMS,
+    ROTATIONS,
+    Analysis,
+    Block,
+    Element,
+    Junction,
+    NetLabel,
+    PlacedPart,
+    Region,
+    Wire,
+)
+
+__all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
+
+#: Reference designator prefix per part kind (DS for the four dependent sources).
+DESIGNATOR_PREFIX: dict[str, str] = {
+    "resistor": "R", "capacitor": "C", "inductor": "L", "impedance": "Z",
+    "voltage_source": "V", "current_source": "I", "vcvs": "DS", "vccs": "DS", "ccvs": "DS",
+    "cccs": "DS", "opamp": "U", "coupling": "K", "block": "EQ",
+}
+T = TypeVar("T")
+_ID_PREFIX = {PlacedPart: "p", Wire: "w", Junction: "j", NetLabel: "n", Region: "r", Block: "b"}
+
+
+@dataclass(frozen=True)
+class Change:
+    """What one notification covers: element ids added, removed and replaced, and whether the
+    analysis settings or the title changed."""
+
+    added: frozenset[str] = frozenset()
+    removed: frozenset[str] = frozenset()
+    updated: frozenset[str] = frozenset()
+    analysis: bool = False
+    title: bool = False
+
+    def merged(self, other: Change) -> Change:
+        return Change(self.added | other.added, self.removed | other.removed,
+                      self.updated | other.updated, self.analysis or other.analysis,
+                      self.title or other.title)
+
+
+@dataclass
+class _Pending:
+    depth: int = 0
+    change: Change = field(default_factory=Change)
+
+
+Listener = Callable[[Change], None]
+
+
+class Document:
+    """Elements by id, analysis settings and a title; observers are told of every change."""
+
+    def __init__(self, title: str = "Untitled") -> None:
+        self._elements: dict[str, Element] = {}
+        self._analysis = Analysis()
+        self._title = title
+        self._listeners: list[Listener] = []
+        self._pending = _Pending()
+        self._counter = itertools.count(1)
+
+    # -- reading ------------------------------------------------------------------------------
+    @property
+    def title(self) -> str:
+        return self._title
+
+    @property
+    def analysis(self) -> Analysis:
+        return self._analysis
+
+    def __iter__(self) -> Iterator[Element]:
+        return iter(self._elements.values())
+
+    def __len__(self) -> int:
+        return len(self._elements)
+
+    def __contains__(self, element_id: object) -> bool:
+        return element_id in self._elements
+
+    def __getitem__(self, element_id: str) -> Element:
+        try:
+            return self._elements[element_id]
+        except KeyError:
+            raise DocumentError(f"no element with id {element_id!r} in the document") from None
+
+    def __eq__(self, other: object) -> bool:
+        return (isinstance(other, Document) and self._elements == other._elements
+                and self._analysis == other._analysis and self._title == other._title)
+
+    __hash__ = None  # mutable
+
+    def of_type(self, cls: type[T]) -> list[T]:
+        return [e for e in self._elements.values() if isinstance(e, cls)]
+
+    def parts(self) -> list[PlacedPart]:
+        return self.of_type(PlacedPart)
+
+    def wires(self) -> list[Wire]:
+        return self.of_type(Wire)
+
+    def junctions(self) -> list[Junction]:
+        return self.of_type(Junction)
+
+    def labels(self) -> list[NetLabel]:
+        return self.of_type(NetLabel)
+
+    def regions(self) -> list[Region]:
+        return self.of_type(Region)
+
+    def blocks(self) -> list[Block]:
+        return self.of_type(Block)
+
+    def by_designator(self, designator: str) -> PlacedPart | Block | None:
+        for e in self._elements.values():
+            if isinstance(e, PlacedPart | Block) and e.designator == designator:
+                return e
+        return None
+
+    # -- naming -------------------------------------------------------------------------------
+    def new_id(self, cls: type) -> str:
+        """A fresh element id for an element of type ``cls`` (e.g. ``"p12"``)."""
+        prefix = _ID_PREFIX[cls]
+        while True:
+            candidate = f"{prefix}{next(self._counter)}"
+            if candidate not in self._elements:
+                return candidate
+
+    def next_designator(self, kind: str) -> str:
+        """The lowest free designator for ``kind``: R1, R2, ... (DS for dependent sources)."""
+        prefix = DESIGNATOR_PREFIX[kind]
+        taken = {e.designator for e in self._elements.values()
+                 if isinstance(e, PlacedPart | Block)}
+        return next(f"{prefix}{n}" for n in itertools.count(1) if f"{prefix}{n}" not in taken)
+
+    # -- observing ----------------------------------------------------------------------------
+    def subscribe(self, listener: Listener) -> Callable[[], None]:
+        """Call ``listener(change)`` after every change; returns a function that unsubscribes."""
+        self._listeners.append(listener)
+        return lambda: self._listeners.remove(listener) if listener in self._listeners else None
+
+    @contextmanager
+    def batch(self) -> Iterator[None]:
+        """Group mutations into one notification (nesting allowed)."""
+        self._pending.depth += 1
+        try:
+            yield
+        finally:
+            self._pending.depth -= 1
+            if self._pending.depth == 0:
+                change, self._pending.change = self._pending.change, Change()
+                if change != Change():
+                    self._emit(change)
+
+    def _notify(self, change: Change) -> None:
+        if self._pending.depth:
+            self._pending.change = self._pending.change.merged(change)
+        else:
+            self._emit(change)
+
+    def _emit(self, change: Change) -> None:
+        for listener in list(self._listeners):
+            listener(change)
+
+    # -- mutating (the undo layer calls only these) -------------------------------------------
+    def add(self, element: Element) -> None:
+        """Add an element; its id must be new and its designator (if any) unused."""
+        if element.id in self._elements:
+            raise DocumentError(f"an element with id {element.id!r} is already in the document")
+        self._check(element)
+        self._elements[element.id] = element
+        self._notify(Change(added=frozenset({element.id})))
+
+    def remove(self, element_id: str) -> Element:
+        """Remove and return an element."""
+        element = self[element_id]
+        del self._elements[element_id]
+        self._notify(Change(removed=frozenset({element_id})))
+        return element
+
+    def replace(self, element: Element) -> Element:
+        """Put a new version of an existing element (same id, same type); returns the old one."""
+        old = self[element.id]
+        if type(old) is not type(element):
+            raise DocumentError(f"{element.id}: cannot replace a {type(old).__name__} "
+                                f"with a {type(element).__name__}")
+        self._check(element, replacing=old)
+        self._elements[element.id] = element
+        self._notify(Change(updated=frozenset({element.id})))
+        return old
+
+    def set_analysis(self, analysis: Analysis) -> Analysis:
+        """Set the analysis settings; returns the old ones."""
+        if analysis.form not in ANALYSIS_FORMS:
+            raise DocumentError(f"analysis.form: expected one of {ANALYSIS_FORMS}, "
+                                f"got {analysis.form!r}")
+        if analysis.basis not in ("peak", "rms"):
+            raise DocumentError(f"analysis.basis: expected 'peak' or 'rms', got {analysis.basis!r}")
+        old, self._analysis = self._analysis, analysis
+        self._notify(Change(analysis=True))
+        return old
+
+    def set_title(self, title: str) -> str:
+        old, self._title = self._title, str(title)
+        self._notify(Change(title=True))
+        return old
+
+    def clear(self) -> None:
+        """Remove every element (one notification)."""
+        with self.batch():
+            for element_id in list(self._elements):
+                self.remove(element_id)
+
+    # -- checks -------------------------------------------------------------------------------
+    def _check(self, element: Element, replacing: Element | None = None) -> None:
+        where = f"{type(element).__name__} {element.id}"
+        if isinstance(element, PlacedPart | Block):
+            if not re.fullmatch(r"[A-Za-z][A-Za-z0-9_]*", element.designator or ""):
+                raise DocumentError(f"{where}: designator {element.designator!r} must start "
+                                    "with a letter and hold only letters, digits and _")
+            other = self.by_designator(element.designator)
+            if other is not None and other.id != element.id:
+                raise DocumentError(f"{where}: designator {element.designator!r} is already "
+                                    f"used by {other.id}")
+            if element.rotation not in ROTATIONS:
+                raise DocumentError(f"{where}: rotation must be one of {ROTATIONS}, "
+                                    f"got {element.rotation!r}")
+        if isinstance(element, Wire):
+            _check_wire(element, where)
+        if isinstance(element, Region):
+            unknown = sorted(m for m in element.members if m not in self._elements)
+            if unknown:
+                raise DocumentError(f"{where}: members {', '.join(unknown)} are not in the "
+                                    "document")
+
+    def replace_fields(self, element_id: str, **changes: object) -> Element:
+        """Shorthand for ``replace(dataclasses.replace(doc[element_id], **changes))``."""
+        return self.replace(replace(self[element_id], **changes))
+
+
+def _check_wire(wire: Wire, where: str) -> None:
+    if len(wire.points) < 2:
+        raise DocumentError(f"{where}: a wire needs at least two points")
+    for (x0, y0), (x1, y1) in itertools.pairwise(wire.points):
+        if x0 != x1 and y0 != y1:
+            raise DocumentError(f"{where}: segment ({x0}, {y0})-({x1}, {y1}) is not horizontal "
+                                "or vertical")

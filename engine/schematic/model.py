@@ -1,0 +1,147 @@
+"""The elements of a schematic document: small frozen records, each with a document-unique ``id``.
+
+Positions are integer grid units (x right, y down). Values are kept as the text the user typed
+(``"4k7"``) so that a file round-trips exactly; they are parsed when a Circuit is built.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ..symbols import Point
+
+__all__ = [
+    "ANALYSIS_FORMS",
+    "PART_KINDS",
+    "Analysis",
+    "Block",
+    "Contents",
+    "Element",
+    "Junction",
+    "NetLabel",
+    "PlacedPart",
+    "Region",
+    "Wire",
+]
+
+#: Kinds a PlacedPart may have (engine.circuit.KINDS); ground and net names are NetLabels.
+PART_KINDS: tuple[str, ...] = (
+    "resistor", "capacitor", "inductor", "impedance", "voltage_source", "current_source",
+    "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling",
+)
+ANALYSIS_FORMS = ("thevenin", "norton")
+ROTATIONS = (0, 90, 180, 270)
+
+
+@dataclass(frozen=True, slots=True)
+class PlacedPart:
+    """A part on the sheet.
+
+    ``value``: resistance, capacitance, inductance, impedance, source magnitude, or gain, as
+    text. ``phase_deg``: source phase in degrees (text, "" for 0). ``control``: the designator
+    whose current controls a CCVS/CCCS. ``couples``: the two inductor designators of a coupling.
+    """
+
+    id: str
+    kind: str
+    designator: str
+    at: Point
+    rotation: int = 0
+    mirror: bool = False
+    value: str = ""
+    phase_deg: str = ""
+    control: str = ""
+    couples: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Wire:
+    """An orthogonal polyline through ``points`` (at least two, each segment horizontal or
+    vertical). A pin or wire end on any point of a segment joins it; crossings do not."""
+
+    id: str
+    points: tuple[Point, ...]
+
+
+@dataclass(frozen=True, slots=True)
+class Junction:
+    """An explicit join: every wire passing through ``at`` is connected there (drawn as a dot)."""
+
+    id: str
+    at: Point
+
+
+@dataclass(frozen=True, slots=True)
+class NetLabel:
+    """A named net marker with one pin at ``at``: equal names join anywhere on the sheet.
+
+    ``style`` is ``"label"`` or ``"ground"``; a ground marker always names net ``"0"``.
+    """
+
+    id: str
+    name: str
+    at: Point
+    rotation: int = 0
+    style: str = "label"
+
+
+@dataclass(frozen=True, slots=True)
+class Region:
+    """A named set of parts (by element id) and the outline the user drew around them.
+
+    ``outline`` is a closed polygon in grid units (floats allowed, not snapped). ``swap`` exchanges
+    the plus and minus port nets that the cut check chose.
+    """
+
+    id: str
+    name: str
+    members: frozenset[str]
+    outline: tuple[tuple[float, float], ...] = ()
+    swap: bool = False
+
+
+@dataclass(frozen=True, slots=True)
+class Contents:
+    """Everything a collapse took off the sheet, kept to be put back exactly on expand."""
+
+    parts: tuple[PlacedPart, ...] = ()
+    wires: tuple[Wire, ...] = ()
+    junctions: tuple[Junction, ...] = ()
+    labels: tuple[NetLabel, ...] = ()
+    blocks: tuple[Block, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Block:
+    """A collapsed region drawn as its equivalent (pins: plus, minus; engine.symbols.PINS).
+
+    ``contents`` are the removed elements; ``port`` the two points inside ``contents`` (plus,
+    minus) where the region met the port nets; ``stubs`` the ids of the wires the collapse added
+    from the block's pins to the sheet, removed again on expand. Its values are recomputed from
+    ``contents`` at the document's analysis frequency, so they follow frequency changes.
+    """
+
+    id: str
+    designator: str
+    form: str
+    at: Point
+    region: Region
+    contents: Contents
+    port: tuple[Point, Point]
+    rotation: int = 0
+    mirror: bool = False
+    stubs: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Analysis:
+    """Document-wide analysis settings: frequency text ("DC" or SI value in Hz), the equivalent
+    form drawn for collapses, and whether phasors are peak (amplitude) or rms."""
+
+    freq: str = "DC"
+    form: str = "thevenin"
+    basis: str = "peak"
+
+
+Element = PlacedPart | Wire | Junction | NetLabel | Region | Block
+
