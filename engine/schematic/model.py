@@ -115,10 +115,12 @@ class Contents:
 class Block:
     """A collapsed region drawn as its equivalent (pins: plus, minus; engine.symbols.PINS).
 
-    ``contents`` are the removed elements; ``port`` the two points inside ``contents`` (plus,
-    minus) where the region met the port nets; ``stubs`` the ids of the wires the collapse added
-    from the block's pins to the sheet, removed again on expand. Its values are recomputed from
-    ``contents`` at the document's analysis frequency, so they follow frequency changes.
+    ``contents`` are the removed elements; ``port`` holds, for the plus and then the minus net,
+    every pin position inside ``contents`` that lay on that net (the port nets' wires stay on the
+    sheet, so these points are what joins the contents to the port); ``stubs`` the ids of the
+    elements the collapse added to wire the block's pins to the sheet, removed again on expand.
+    Its values are recomputed from ``contents`` at the document's analysis frequency, so they
+    follow frequency changes.
     """
 
     id: str
@@ -127,7 +129,7 @@ class Block:
     at: Point
     region: Region
     contents: Contents
-    port: tuple[Point, Point]
+    port: tuple[tuple[Point, ...], tuple[Point, ...]]
     rotation: int = 0
     mirror: bool = False
     stubs: tuple[str, ...] = ()
