@@ -1,0 +1,112 @@
+"""Imports run one way, app -> engine: engine never imports Qt, the plotting library or the app.
+
+Three independent checks: import-linter's contract from pyproject.toml, a scan of every import
+statement under engine/, and a fresh interpreter that imports every engine module. Each is also
+run against a deliberately bad tree, so a contract that could never fail is caught too.
+"""
+
+from __future__ import annotations
+
+import ast
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+FORBIDDEN = frozenset({"PySide6", "shiboken6", "pyqtgraph", "app"})
+
+_LINT = (
+    "import sys\n"
+    "from importlinter.cli import lint_imports\n"
+    "sys.exit(lint_imports(config_filename='pyproject.toml', no_cache=True, no_logo=True))\n"
+)
+_IMPORT_ALL = (
+    "import importlib, pkgutil, sys\n"
+    "import engine\n"
+    "for info in pkgutil.walk_packages(engine.__path__, 'engine.'):\n"
+    "    importlib.import_module(info.name)\n"
+    f"print(sorted(m for m in sys.modules if m.split('.')[0] in {sorted(FORBIDDEN)!r}))\n"
+)
+
+
+def _run(code: str, cwd: Path) -> subprocess.CompletedProcess[str]:
+    # A fresh interpreter with cwd first on sys.path, so ``engine`` is the tree under test.
+    return subprocess.run([sys.executable, "-c", code], cwd=cwd, capture_output=True, text=True,
+                          timeout=120, check=False)
+
+
+def forbidden_imports(package_dir: Path) -> list[str]:
+    """``"file:line module"`` for every import under ``package_dir`` that names a forbidden root.
+
+    Relative imports stay inside the package (Python refuses to climb above a top-level package),
+    so only absolute ones can reach a forbidden module.
+    """
+    found = []
+    base = package_dir.parent
+    for path in sorted(package_dir.rglob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"), str(path))):
+            if isinstance(node, ast.Import):
+                modules = [alias.name for alias in node.names]
+            elif isinstance(node, ast.ImportFrom) and node.level == 0:
+                modules = [node.module or ""]
+            else:
+                continue
+            found += [f"{path.relative_to(base)}:{node.lineno} {module}" for module in modules
+                      if module.split(".")[0] in FORBIDDEN]
+    return found
+
+
+@pytest.fixture
+def bad_tree(tmp_path: Path) -> Path:
+    """A copy of the project's contract with a tiny engine that breaks it (engine -> app)."""
+    shutil.copy(ROOT / "pyproject.toml", tmp_path / "pyproject.toml")
+    (tmp_path / "engine" / "sub").mkdir(parents=True)
+    (tmp_path / "engine" / "__init__.py").write_text("")
+    (tmp_path / "engine" / "sub" / "__init__.py").write_text("")
+    (tmp_path / "engine" / "sub" / "view.py").write_text("from app import window\n")
+    (tmp_path / "app").mkdir()
+    (tmp_path / "app" / "__init__.py").write_text("")
+    (tmp_path / "app" / "window.py").write_text("")
+    return tmp_path
+
+
+def test_import_linter_contract_is_kept() -> None:
+    result = _run(_LINT, ROOT)
+    assert result.returncode == 0, result.stdout + result.stderr
+    assert "engine is independent of Qt and of the app KEPT" in result.stdout
+
+
+def test_import_linter_contract_catches_an_engine_to_app_import(bad_tree: Path) -> None:
+    result = _run(_LINT, bad_tree)
+    assert result.returncode != 0
+    assert "BROKEN" in result.stdout
+
+
+def test_no_engine_file_imports_qt_plotting_or_app() -> None:
+    assert forbidden_imports(ROOT / "engine") == []
+
+
+def test_scan_finds_every_forbidden_import(bad_tree: Path) -> None:
+    (bad_tree / "engine" / "plot.py").write_text("import os\nfrom . import sub\n"
+                                                 "import numpy, pyqtgraph as pg\n"
+                                                 "from PySide6.QtCore import QObject\n")
+    assert forbidden_imports(bad_tree / "engine") == [
+        "engine/plot.py:3 pyqtgraph",
+        "engine/plot.py:4 PySide6.QtCore",
+        "engine/sub/view.py:1 app",
+    ]
+
+
+def test_importing_every_engine_module_loads_no_qt() -> None:
+    result = _run(_IMPORT_ALL, ROOT)
+    assert result.returncode == 0, result.stderr
+    assert result.stdout.strip() == "[]"
+
+
+def test_import_check_sees_a_module_that_pulls_in_the_app(bad_tree: Path) -> None:
+    result = _run(_IMPORT_ALL, bad_tree)
+    assert result.returncode == 0, result.stderr
+    assert "'app'" in result.stdout
