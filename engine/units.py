@@ -143,8 +143,8 @@ def format_eng(value: float, unit: str = "", digits: int = 3) -> str:
     if abs(scaled) >= 1000 and scale < 1e24:  # rounding carried into the next prefix
         return format_eng(math.copysign(abs(scaled) * scale, value), unit, digits)
     text = f"{scaled:.{digits}g}"
-    if "e" in text:
-        text = f"{scaled:.{digits}f}".rstrip("0").rstrip(".")
+    if "e" in text:  # beyond the prefix table: positional digits, none lost (1e-30 -> 0.000001 y)
+        text = format(Decimal(text), "f")
     return f"{text} {prefix}{unit}".rstrip()
 
 
