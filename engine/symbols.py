@@ -31,9 +31,14 @@ from functools import cache
 __all__ = [
     "ALIGNS",
     "BLOCK_FORMS",
+    "COUPLING_DOT_RADIUS",
+    "FONT_SIZE",
+    "JUNCTION_RADIUS",
+    "MARK_FONT_SIZE",
     "MARK_TEXT",
     "PINS",
     "ROLES",
+    "STROKE_WIDTH",
     "STYLES",
     "Arc",
     "Bounds",
@@ -80,6 +85,13 @@ PINS: dict[str, tuple[Point, ...]] = {
 }
 
 STYLES = ("iec", "ieee")
+
+#: Drawing weights in grid units, shared by every renderer.
+STROKE_WIDTH = 0.12        # symbol strokes and wires
+JUNCTION_RADIUS = 0.25     # the dot where three or more connections meet
+COUPLING_DOT_RADIUS = 0.16  # the dot at a coupled inductor's first node
+FONT_SIZE = 1.1            # designators, values, net names
+MARK_FONT_SIZE = 0.9       # + and − polarity marks
 BLOCK_FORMS = ("thevenin", "norton")
 
 #: Text anchor roles. "designator" and "value" appear at most once per symbol ("value" may hold
@@ -367,7 +379,7 @@ def _inductor(style: str) -> Body:
         humps = tuple(Arc((-0.75 + 0.5 * i, 0.0), 0.25, 180.0, -180.0) for i in range(4))
         return (*_leads(1.0), *humps), (*_labels_two(), dot)
     # looped coil: a prolate trochoid of four turns from x = -1.2 to 1.2
-    turns, half, height, loop = 4, 1.2, 0.8, 0.22
+    turns, half, height, loop = 4, 1.2, 0.8, 0.3
     pitch = 2 * half / (2 * math.pi * turns)
     steps = 24 * turns
     coil = []

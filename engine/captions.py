@@ -1,0 +1,88 @@
+"""The texts drawn beside symbols: part values with SI prefixes and units, and block equivalents.
+
+One place for the wording, so the canvas, the SVG writer and the command line agree: 4.7 kΩ,
+100 nF, 10 mH, 5 V, 3.33 V ∠ 30° (µ is U+00B5, from engine.units). At a frequency above DC a
+source or equivalent value prints as a phasor, magnitude ∠ degrees; at DC as a signed real.
+"""
+
+from __future__ import annotations
+
+import cmath
+import math
+from typing import Protocol
+
+from .errors import CircuitError
+from .schematic.model import PlacedPart
+from .units import format_complex, format_eng, format_phasor, parse_value
+
+__all__ = ["UNITS", "block_caption", "drawn_form", "frequency_caption", "value_caption"]
+
+#: Unit symbol of each kind's value (gains of voltage- and current-controlled sources are ratios).
+UNITS: dict[str, str] = {
+    "resistor": "Ω", "capacitor": "F", "inductor": "H", "impedance": "Ω",
+    "voltage_source": "V", "current_source": "A", "vcvs": "V/V", "vccs": "S", "ccvs": "Ω",
+    "cccs": "A/A",
+}
+
+
+class Equivalent(Protocol):
+    """What a caption reads from engine.equivalent's result."""
+
+    voc: complex
+    isc: complex
+    z: complex
+    has_thevenin: bool
+    has_norton: bool
+
+
+def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
+    """The value of ``part`` as drawn beside it: ``"4.7 kΩ"``, ``"5 V ∠ 30°"``, ``"k = 0.9"``,
+    ``"100 Ω · I(R1)"``. ``ac``: the analysis is above DC, so sources print as phasors.
+
+    Text that cannot be read is shown as typed (building the circuit reports it); an ideal
+    op-amp has no value and gives ``""``.
+    """
+    if part.kind == "opamp" or not part.value.strip():
+        return ""
+    try:
+        value = parse_value(part.value, what=f"{part.designator} value")
+        phase = float(parse_value(part.phase_deg)) if part.phase_deg.strip() else None
+    except CircuitError:
+        return part.value.strip()
+    if part.kind == "coupling":
+        return f"k = {value:.4g}"
+    unit = UNITS[part.kind]
+    if part.kind in ("voltage_source", "current_source") and (ac or phase is not None):
+        phasor = value if phase is None else cmath.rect(value, math.radians(phase))
+        text = format_phasor(phasor, unit)
+    else:
+        text = format_complex(value, unit)
+    if part.kind in ("ccvs", "cccs") and part.control:
+        text = f"{text} · I({part.control})"
+    return text
+
+
+def drawn_form(eq: Equivalent, form: str) -> str:
+    """The form to draw: ``form`` where it exists, otherwise the other one (an ideal current
+    source at the port has no Thevenin form, a short has no Norton form)."""
+    if form == "thevenin" and not eq.has_thevenin:
+        return "norton"
+    if form == "norton" and not eq.has_norton:
+        return "thevenin"
+    return form
+
+
+def frequency_caption(freq: float) -> str:
+    """``"DC"`` or the frequency with its prefix: ``"1 kHz"``."""
+    return "DC" if freq == 0 else format_eng(freq, "Hz")
+
+
+def block_caption(eq: Equivalent, form: str, freq: float) -> tuple[str, ...]:
+    """Lines shown beside a collapsed block: the source value of the drawn form, its impedance,
+    and the frequency they hold at, e.g. ``("Voc = 3.33 V ∠ 0°", "Z = 1.2 kΩ", "at 1 kHz")``."""
+    show = format_phasor if freq > 0 else format_complex
+    if drawn_form(eq, form) == "thevenin":
+        source = f"Voc = {show(eq.voc, 'V')}"
+    else:
+        source = f"Isc = {show(eq.isc, 'A')}"
+    return (source, f"Z = {format_complex(eq.z, 'Ω')}", f"at {frequency_caption(freq)}")
