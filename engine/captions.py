@@ -36,8 +36,9 @@ class Equivalent(Protocol):
 
 
 def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
-    """The value of ``part`` as drawn beside it: ``"4.7 kΩ"``, ``"5 V ∠ 30°"``, ``"k = 0.9"``,
-    ``"100 Ω · I(R1)"``. ``ac``: the analysis is above DC, so sources print as phasors.
+    """The value of ``part`` as drawn beside it: ``"4.7 kΩ"``, ``"5 V ∠ 30°"``,
+    ``"100 Ω · I(R1)"``, ``"k = 0.9 (L1, L2)"``. ``ac``: the analysis is above DC, so
+    sources print as phasors.
 
     Text that cannot be read is shown as typed (building the circuit reports it); an ideal
     op-amp has no value and gives ``""``.
@@ -50,7 +51,8 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
     except CircuitError:
         return part.value.strip()
     if part.kind == "coupling":
-        return f"k = {value:.4g}"
+        named = f" ({', '.join(part.couples)})" if part.couples else ""
+        return f"k = {value:.4g}{named}"
     unit = UNITS[part.kind]
     if part.kind in ("voltage_source", "current_source") and (ac or phase is not None):
         phasor = value if phase is None else cmath.rect(value, math.radians(phase))

@@ -430,7 +430,7 @@ def _controlled_four(voltage: bool) -> Body:
         _line((-2, -2), (-2, -0.9)), Circle((-2.0, -0.75), 0.15),
         _line((-2, 2), (-2, 0.9)), Circle((-2.0, 0.75), 0.15),
     )
-    anchors = (TextAnchor("designator", (3.3, 0), "e"), TextAnchor("value", (0.7, 0), "w"),
+    anchors = (TextAnchor("designator", (0, -2.4), "n"), TextAnchor("value", (0, 2.4), "s"),
                *_marks((-2.6, -0.75), (-2.6, 0.75)))
     if voltage:
         return shapes, (*anchors, *_marks((1.45, -1.5), (1.45, 1.5)))
