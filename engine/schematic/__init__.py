@@ -1,5 +1,15 @@
 """The schematic document (placed parts, wires, labels, regions, collapsed blocks) and its views."""
 
+from .connectivity import (
+    BLOCK_ROLES,
+    Connectivity,
+    ConnectivityWarning,
+    block_equivalent,
+    build_circuit,
+    contents_document,
+    extract,
+    net_at,
+)
 from .document import DESIGNATOR_PREFIX, Change, Document
 from .model import (
     ANALYSIS_FORMS,
@@ -17,11 +27,14 @@ from .model import (
 
 __all__ = [
     "ANALYSIS_FORMS",
+    "BLOCK_ROLES",
     "DESIGNATOR_PREFIX",
     "PART_KINDS",
     "Analysis",
     "Block",
     "Change",
+    "Connectivity",
+    "ConnectivityWarning",
     "Contents",
     "Document",
     "Element",
@@ -30,4 +43,9 @@ __all__ = [
     "PlacedPart",
     "Region",
     "Wire",
+    "block_equivalent",
+    "build_circuit",
+    "contents_document",
+    "extract",
+    "net_at",
 ]

@@ -1,0 +1,631 @@
+"""From drawing to netlist: which pins, wires and labels form each net, and the Circuit they make.
+
+Joining rules (grid points are exact integers, so every test is an equality):
+
+* a pin joins every wire that passes through its point, at an end, a bend or mid-segment;
+* a wire end joins every wire through its point (a T), and pins at the same point join each other;
+* two wires that merely cross (neither ends there) stay apart unless a Junction sits on the point;
+* a Junction joins everything through its point;
+* net labels join by name anywhere on the sheet; a ground marker, or a label named ``"0"``, is
+  the ground net ``"0"``.
+
+Net names. A net with labels takes the label's name; ground wins over any other name, and between
+two user names the one first in natural order (R2 before R10) wins, with a warning. An unlabelled
+net is named after its lowest pin, ``"<designator>.<role>"`` in natural designator order and then
+pin order (``"R1.b"``, ``"U1.out"``, ``"EQ1.plus"``); a net with no part pins is named after its
+lowest wire or junction id, ``"<id>.net"``. Designators hold no ``.``, so automatic names never
+collide with one another, and one that equals a user label gets ``'`` appended until it is free.
+An automatic name changes only when its own net gains or loses its lowest pin.
+
+Cost: linear in the number of elements plus a sort of the joining points per grid row and
+column; no pairwise comparison of elements.
+"""
+
+from __future__ import annotations
+
+import cmath
+import re
+from collections import defaultdict
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from functools import cache, cached_property, lru_cache
+from itertools import accumulate, pairwise
+
+import numpy as np
+from scipy.sparse import csr_array
+from scipy.sparse.csgraph import connected_components
+
+from ..circuit import GROUND, KINDS, Circuit
+from ..errors import CircuitError
+from ..symbols import Point, pin_positions
+from ..units import parse_value
+from .document import Document
+from .model import Block, Contents, Junction, NetLabel, PlacedPart, Wire
+
+__all__ = [
+    "BLOCK_ROLES",
+    "Connectivity",
+    "ConnectivityWarning",
+    "block_equivalent",
+    "build_circuit",
+    "contents_document",
+    "extract",
+    "net_at",
+]
+
+#: Pin roles of a collapsed block, in pin order.
+BLOCK_ROLES = ("plus", "minus")
+_CONTROLLED_BY_CURRENT = frozenset({"ccvs", "cccs"})
+_SOURCES = frozenset({"voltage_source", "current_source"})
+_REFERENCING = _CONTROLLED_BY_CURRENT | {"coupling"}
+#: What each kind's value means, with an example, for the message when it is missing.
+_QUANTITY: dict[str, tuple[str, str]] = {
+    "resistor": ("resistance", "4k7"), "capacitor": ("capacitance", "100n"),
+    "inductor": ("inductance", "10m"), "impedance": ("impedance in ohms", "50"),
+    "voltage_source": ("voltage", "5"), "current_source": ("current", "1m"),
+    "vcvs": ("voltage gain", "10"), "vccs": ("transconductance in siemens", "40m"),
+    "ccvs": ("transresistance in ohms", "100"), "cccs": ("current gain", "100"),
+    "coupling": ("coupling coefficient", "0.9"),
+}
+
+
+@dataclass(frozen=True, slots=True)
+class ConnectivityWarning:
+    """Something drawn that will not connect or compute as the user probably meant.
+
+    ``element_id`` is the element to select; ``at`` the grid point to show, where there is one.
+    """
+
+    message: str
+    element_id: str
+    at: Point | None = None
+
+
+@dataclass(frozen=True)
+class Connectivity:
+    """The nets of a document.
+
+    ``net_of_pin[(element_id, pin_index)]`` for every pin of a part, block or net marker
+    (pin order of engine.symbols.PINS); ``net_of_wire[wire_id]``; ``warnings`` in a stable order;
+    ``nets[name]`` the grid points of each net (its pins, wire vertices and junctions).
+    """
+
+    net_of_pin: dict[tuple[str, int], str]
+    net_of_wire: dict[str, str]
+    warnings: tuple[ConnectivityWarning, ...]
+    _grouped_points: Callable[[], dict[str, frozenset[Point]]] = field(repr=False,
+                                                                        compare=False)
+
+    @cached_property
+    def nets(self) -> dict[str, frozenset[Point]]:
+        """Net name -> grid points; gathered on first use, since live re-extraction rarely
+        needs it."""
+        return self._grouped_points()
+
+
+def _natural_key(text: str) -> tuple[object, ...]:
+    """Sort key in which digit runs compare as numbers: R2 < R10 < RA."""
+    return tuple(int(chunk) if i % 2 else chunk for i, chunk in enumerate(re.split(r"(\d+)", text)))
+
+
+_natural_key = lru_cache(maxsize=1 << 16)(_natural_key)
+
+
+@cache
+def _offsets(kind: str, rotation: int, mirror: bool) -> tuple[Point, ...]:
+    return pin_positions(kind, (0, 0), rotation, mirror)
+
+
+def _label_net(label: NetLabel) -> str:
+    """The net name a marker gives: ``"0"`` for ground, else its name stripped ("" if none)."""
+    return GROUND if label.style == "ground" else label.name.strip()
+
+
+@dataclass(frozen=True, slots=True)
+class _Pin:
+    """One pin, for messages and naming."""
+
+    element_id: str
+    index: int
+    at: Point
+    designator: str  # "" for a net marker
+    role: str
+
+
+class _Sheet:
+    """One document flattened for extraction. Graph nodes are numbered pins first (in the order
+    of ``pins``), then wires, then junctions."""
+
+    def __init__(self, doc: Document) -> None:
+        by_type: dict[type, list] = defaultdict(list)
+        for e in doc:
+            by_type[type(e)].append(e)
+        self.parts: list[PlacedPart] = by_type[PlacedPart]
+        self.blocks: list[Block] = by_type[Block]
+        self.labels: list[NetLabel] = by_type[NetLabel]
+        self.wires: list[Wire] = by_type[Wire]
+        self.junctions: list[Junction] = by_type[Junction]
+        # pin-bearing elements: designated ones first, in natural designator order
+        self.owners: list[PlacedPart | Block | NetLabel] = sorted(
+            [*self.parts, *self.blocks], key=lambda e: _natural_key(e.designator))
+        self.designated = len(self.owners)
+        offsets = [_offsets(e.kind if type(e) is PlacedPart else "block", e.rotation, e.mirror)
+                   for e in self.owners]
+        offsets += [_offsets("ground" if e.style == "ground" else "label", e.rotation, False)
+                    for e in self.labels]
+        self.owners += self.labels
+        counts = [len(o) for o in offsets]
+        self.first_pin: list[int] = [0, *accumulate(counts)]
+        self.pin_owner: list[int] = np.repeat(np.arange(len(counts)), counts).tolist()
+        self.pin_count = self.first_pin[-1]
+        at = np.array([e.at for e in self.owners], dtype=np.int64).reshape(-1, 2)
+        flat = np.array([c for o in offsets for point in o for c in point], dtype=np.int64)
+        pins = np.repeat(at, counts, axis=0) + flat.reshape(-1, 2)
+        self.pin_x, self.pin_y = pins[:, 0], pins[:, 1]
+        self.designated_pins = self.first_pin[self.designated]
+
+    def pin(self, k: int) -> _Pin:
+        e = self.owners[self.pin_owner[k]]
+        index = k - self.first_pin[self.pin_owner[k]]
+        at = (int(self.pin_x[k]), int(self.pin_y[k]))
+        if type(e) is NetLabel:
+            return _Pin(e.id, index, at, "", "net")
+        roles = KINDS[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
+        return _Pin(e.id, index, at, e.designator, roles[index])
+
+    def pin_keys(self) -> list[tuple[str, int]]:
+        """``(element_id, pin_index)`` of every pin, in node order."""
+        ids = [e.id for e in self.owners]
+        index = np.arange(self.pin_count) - np.repeat(self.first_pin[:-1], np.diff(self.first_pin))
+        return list(zip([ids[i] for i in self.pin_owner], index.tolist(), strict=True))
+
+
+def extract(doc: Document) -> Connectivity:
+    """Derive the nets of ``doc`` (rules and naming in the module docstring); never raises on
+    a drawing problem, which comes back in ``warnings`` instead.
+
+    Grid coordinates must fit in 64-bit integers.
+    """
+    sheet = _Sheet(doc)
+    n_pins, n_wires = sheet.pin_count, len(sheet.wires)
+    n_nodes = n_pins + n_wires + len(sheet.junctions)
+    warnings: list[ConnectivityWarning] = []
+
+    counts = [len(w.points) for w in sheet.wires]
+    flat = [c for w in sheet.wires for point in w.points for c in point]
+    vertices = np.array(flat, dtype=np.int64).reshape(-1, 2)
+    vertex_wire = np.repeat(np.arange(n_wires), counts)
+    last = np.cumsum(counts) - 1
+    ends = np.concatenate([last - np.array(counts) + 1, last]).astype(np.int64)
+    junction_xy = np.array([j.at for j in sheet.junctions], dtype=np.int64).reshape(-1, 2)
+    # every thing that joins whatever passes through its point: pins, wire ends, junctions
+    joint_x = np.concatenate([sheet.pin_x, vertices[ends, 0], junction_xy[:, 0]])
+    joint_y = np.concatenate([sheet.pin_y, vertices[ends, 1], junction_xy[:, 1]])
+    joint_node = np.concatenate([np.arange(n_pins), n_pins + vertex_wire[ends],
+                                 n_pins + n_wires + np.arange(len(sheet.junctions))])
+    grid = _Grid(np.concatenate([joint_x, vertices[:, 0]]),
+                 np.concatenate([joint_y, vertices[:, 1]]))
+    edges = [*grid.join_points(joint_x, joint_y, joint_node),
+             *grid.join_segments(vertices, vertex_wire, n_pins)]
+    label_edges, label_names = _label_edges(sheet, warnings)
+    edges.append(label_edges)
+    pairs = np.concatenate(edges, axis=1) if edges else np.zeros((2, 0), dtype=np.int64)
+    graph = csr_array((np.ones(pairs.shape[1], dtype=np.int8), (pairs[0], pairs[1])),
+                      shape=(n_nodes, n_nodes))
+    n_nets, net = connected_components(graph, directed=False)
+
+    names = _net_names(sheet, net, n_nets, label_names, warnings)
+    net_list = net.tolist()
+    net_of_pin = dict(zip(sheet.pin_keys(), map(names.__getitem__, net_list[:n_pins]),
+                          strict=True))
+    net_of_wire = {w.id: names[k] for w, k in
+                   zip(sheet.wires, net_list[n_pins:n_pins + n_wires], strict=True)}
+    warnings += _pin_warnings(sheet, net, names)
+    warnings += _wire_warnings(sheet, vertices, vertex_wire)
+    warnings += _part_warnings(sheet)
+
+    def grouped_points() -> dict[str, frozenset[Point]]:
+        points_net = np.concatenate([net[:n_pins], net[n_pins + vertex_wire],
+                                     net[n_pins + n_wires:]])
+        points = [*zip(sheet.pin_x.tolist(), sheet.pin_y.tolist(), strict=True),
+                  *(p for w in sheet.wires for p in w.points), *(j.at for j in sheet.junctions)]
+        return _grouped(points, points_net, names)
+
+    return Connectivity(net_of_pin, net_of_wire, tuple(warnings), grouped_points)
+
+
+class _Axis:
+    """Maps coordinates on one axis to small indices that keep their order and equality."""
+
+    def __init__(self, values: np.ndarray, rank: bool) -> None:
+        self.table = np.unique(values) if rank else None
+        self.low = int(values.min()) if values.size else 0
+        if self.table is not None:
+            self.size = len(self.table)
+        else:
+            self.size = int(values.max()) - self.low + 1 if values.size else 1
+
+    def index(self, values: np.ndarray) -> np.ndarray:
+        if self.table is None:
+            return values - self.low
+        return np.searchsorted(self.table, values)
+
+
+class _Grid:
+    """Integer grid points encoded as one int64 key, row by row or column by column, so that a
+    horizontal or vertical segment covers one contiguous run of keys."""
+
+    def __init__(self, xs: np.ndarray, ys: np.ndarray) -> None:
+        span = [int(v.max()) - int(v.min()) + 1 if v.size else 1 for v in (xs, ys)]
+        # far-apart coordinates would overflow the key: rank them instead
+        rank = span[0] * span[1] >= 2**62
+        self.x, self.y = _Axis(xs, rank), _Axis(ys, rank)
+
+    def row_key(self, xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
+        return self.y.index(ys) * self.x.size + self.x.index(xs)
+
+    def col_key(self, xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
+        return self.x.index(xs) * self.y.size + self.y.index(ys)
+
+    def join_points(self, xs: np.ndarray, ys: np.ndarray,
+                    nodes: np.ndarray) -> list[np.ndarray]:
+        """Edges joining every node to the first node at its point; keeps the joint points."""
+        keys = self.row_key(xs, ys)
+        order = np.argsort(keys, kind="stable")
+        keys, nodes = keys[order], nodes[order]
+        first = np.ones(keys.size, dtype=bool)
+        first[1:] = keys[1:] != keys[:-1]
+        self.row_keys, self.row_nodes = keys[first], nodes[first]
+        group = np.cumsum(first) - 1
+        ux, uy = xs[order][first], ys[order][first]
+        col = self.col_key(ux, uy)
+        by_col = np.argsort(col, kind="stable")
+        self.col_keys, self.col_nodes = col[by_col], self.row_nodes[by_col]
+        return [np.stack([nodes, self.row_nodes[group]])]
+
+    def join_segments(self, vertices: np.ndarray, vertex_wire: np.ndarray,
+                      base: int) -> list[np.ndarray]:
+        """Edges joining each wire (node ``base + index``) to every joint point on its segments."""
+        same = vertex_wire[1:] == vertex_wire[:-1]
+        a, b = vertices[:-1][same], vertices[1:][same]
+        wire = base + vertex_wire[:-1][same]
+        horizontal = a[:, 1] == b[:, 1]
+        vertical = (a[:, 0] == b[:, 0]) & ~horizontal
+        out = []
+        for mask, key, keys, nodes in ((horizontal, self.row_key, self.row_keys, self.row_nodes),
+                                       (vertical, self.col_key, self.col_keys, self.col_nodes)):
+            lo, hi = np.minimum(a[mask], b[mask]), np.maximum(a[mask], b[mask])
+            start = np.searchsorted(keys, key(lo[:, 0], lo[:, 1]), side="left")
+            stop = np.searchsorted(keys, key(hi[:, 0], hi[:, 1]), side="right")
+            hits = stop - start
+            total = int(hits.sum())
+            offset = np.arange(total) - np.repeat(np.cumsum(hits) - hits, hits)
+            out.append(np.stack([np.repeat(wire[mask], hits),
+                                 nodes[np.repeat(start, hits) + offset]]))
+        return out
+
+
+def _label_edges(sheet: _Sheet,
+                 warnings: list[ConnectivityWarning]) -> tuple[np.ndarray, dict[int, str]]:
+    """Edges joining markers of equal name; returns them with each marker pin's net name."""
+    first_of: dict[str, int] = {}
+    names: dict[int, str] = {}
+    a, b = [], []
+    for i in range(sheet.designated, len(sheet.owners)):
+        label = sheet.owners[i]
+        k = sheet.first_pin[i]
+        name = _label_net(label)
+        if not name:
+            warnings.append(ConnectivityWarning(
+                f"net label at {_fmt(label.at)} has no name, so it joins only what touches it",
+                label.id, label.at))
+            continue
+        names[k] = name
+        a.append(k)
+        b.append(first_of.setdefault(name, k))
+    return np.array([a, b], dtype=np.int64).reshape(2, -1), names
+
+
+def _net_names(sheet: _Sheet, net: np.ndarray, n_nets: int, label_names: dict[int, str],
+               warnings: list[ConnectivityWarning]) -> list[str]:
+    names: list[str | None] = [None] * n_nets
+    on_net: dict[int, dict[str, int]] = defaultdict(dict)
+    for k, name in label_names.items():
+        on_net[int(net[k])].setdefault(name, k)
+    for n, found in on_net.items():
+        names[n] = _chosen_name(found, sheet, warnings)
+    taken = set(label_names.values())
+    # designated pins are numbered in natural designator order, so a net's lowest pin comes first
+    designated = net[:sheet.designated_pins]
+    nets_seen, first = np.unique(designated, return_index=True)
+    owners, pin_owner, first_pin = sheet.owners, sheet.pin_owner, sheet.first_pin
+    for n, k in zip(nets_seen.tolist(), first.tolist(), strict=True):
+        if names[n] is None:
+            i = pin_owner[k]
+            e = owners[i]
+            roles = KINDS[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
+            names[n] = _fresh(f"{e.designator}.{roles[k - first_pin[i]]}", taken)
+    if None not in names:
+        return names
+    unnamed: dict[int, list[str]] = defaultdict(list)
+    others = [*sheet.wires, *sheet.junctions, *sheet.labels]
+    other_nodes = [*range(sheet.pin_count, sheet.pin_count + len(sheet.wires)
+                          + len(sheet.junctions)),
+                   *sheet.first_pin[sheet.designated:-1]]
+    for element, n in zip(others, net[other_nodes].tolist(), strict=True):
+        if names[n] is None:
+            unnamed[n].append(element.id)
+    for n, ids in unnamed.items():
+        names[n] = _fresh(f"{min(ids, key=_natural_key)}.net", taken)
+    return names
+
+
+def _grouped(points: list[Point], point_net: np.ndarray,
+             names: list[str]) -> dict[str, frozenset[Point]]:
+    if not points:
+        return {}
+    order = np.argsort(point_net, kind="stable")
+    ordered = point_net[order]
+    bounds = np.flatnonzero(np.diff(ordered)) + 1
+    ordered_points = [points[i] for i in order.tolist()]
+    starts = [0, *bounds.tolist()]
+    stops = [*starts[1:], len(order)]
+    return {names[n]: frozenset(ordered_points[a:b])
+            for n, a, b in zip(ordered[starts].tolist(), starts, stops, strict=True) if b > a}
+
+
+def _chosen_name(found: dict[str, int], sheet: _Sheet,
+                 warnings: list[ConnectivityWarning]) -> str:
+    """Ground first, then natural order; a warning for each name that loses."""
+    ordered = sorted(found, key=lambda n: (n != GROUND, _natural_key(n)))
+    chosen = ordered[0]
+    shown = "ground (0)" if chosen == GROUND else repr(chosen)
+    for other in ordered[1:]:
+        marker = sheet.pin(found[other])
+        warnings.append(ConnectivityWarning(
+            f"one net carries two names, {shown} and {other!r}; it is called {shown}. "
+            "Remove one label or separate the nets", marker.element_id, marker.at))
+    return chosen
+
+
+def _fresh(name: str, taken: set[str]) -> str:
+    while name in taken:
+        name += "'"
+    taken.add(name)
+    return name
+
+
+def _fmt(at: Point) -> str:
+    return f"({at[0]}, {at[1]})"
+
+
+def _pin_warnings(sheet: _Sheet, net: np.ndarray, names: list[str]) -> list[ConnectivityWarning]:
+    """Pins alone on their net, and two-pin parts with both pins on one net."""
+    out = []
+    pin_net = net[:sheet.pin_count]
+    alone = np.bincount(pin_net, minlength=len(names))[pin_net[:sheet.designated_pins]] == 1
+    for k in np.flatnonzero(alone).tolist():
+        pin = sheet.pin(k)
+        out.append(ConnectivityWarning(
+            f"{pin.designator} pin {pin.role} at {_fmt(pin.at)} is not connected",
+            pin.element_id, pin.at))
+    first = np.array(sheet.first_pin[:sheet.designated + 1], dtype=np.int64)
+    two = first[:-1][np.diff(first) == 2]
+    for k in two[pin_net[two] == pin_net[two + 1]].tolist():
+        pin = sheet.pin(k)
+        out.append(ConnectivityWarning(
+            f"{pin.designator} has both pins on net {names[pin_net[k]]}, so it is shorted out",
+            pin.element_id, pin.at))
+    return out
+
+
+def _wire_warnings(sheet: _Sheet, vertices: np.ndarray,
+                   vertex_wire: np.ndarray) -> list[ConnectivityWarning]:
+    same = vertex_wire[1:] == vertex_wire[:-1]
+    zero = same & (vertices[1:] == vertices[:-1]).all(axis=1)
+    n = len(sheet.wires)
+    all_zero = np.bincount(vertex_wire[:-1][zero], minlength=n) == np.bincount(
+        vertex_wire[:-1][same], minlength=n)
+    out = []
+    for k in np.flatnonzero(zero).tolist():
+        wire = sheet.wires[vertex_wire[k]]
+        at = (int(vertices[k, 0]), int(vertices[k, 1]))
+        if not all_zero[vertex_wire[k]]:
+            out.append(ConnectivityWarning(
+                f"wire {wire.id} has a zero-length segment at {_fmt(at)}", wire.id, at))
+        elif k == 0 or vertex_wire[k - 1] != vertex_wire[k]:  # once per wire
+            out.append(ConnectivityWarning(
+                f"wire {wire.id} at {_fmt(at)} has zero length; delete it or drag an end",
+                wire.id, at))
+    return out
+
+
+def _part_warnings(sheet: _Sheet) -> list[ConnectivityWarning]:
+    """Parts stacked on one another, and couplings or controlled sources naming bad parts."""
+    out = []
+    by_designator = {p.designator: p for p in sheet.parts}
+    placed = sheet.owners[:sheet.designated]
+    keys = [(e.kind if type(e) is PlacedPart else "block", e.at) for e in placed]
+    if len(set(keys)) < len(keys):
+        seen: dict[tuple[str, Point], str] = {}
+        for e, key in zip(placed, keys, strict=True):
+            if key in seen:
+                out.append(ConnectivityWarning(
+                    f"{seen[key]} and {e.designator} lie on top of each other at "
+                    f"{_fmt(e.at)}; move one of them", e.id, e.at))
+            else:
+                seen[key] = e.designator
+    for part in sheet.parts:
+        if part.kind in _REFERENCING:
+            message = _reference_problem(part, by_designator)
+            if message:
+                out.append(ConnectivityWarning(message, part.id, part.at))
+    return out
+
+
+def _reference_problem(part: PlacedPart, parts: dict[str, PlacedPart]) -> str:
+    """Why a coupling's inductors or a current-controlled source's controller is unusable."""
+    if part.kind == "coupling":
+        if len(part.couples) != 2 or part.couples[0] == part.couples[1]:
+            return f"{part.designator} must name two different inductors to couple"
+        for ref in part.couples:
+            if ref not in parts:
+                return f"{part.designator} couples {ref}, which is not on the sheet"
+            if parts[ref].kind != "inductor":
+                return (f"{part.designator} couples {ref}, which is a "
+                        f"{parts[ref].kind.replace('_', ' ')}, not an inductor")
+    if part.kind in _CONTROLLED_BY_CURRENT:
+        if not part.control:
+            return f"{part.designator} names no part whose current controls it"
+        if part.control not in parts:
+            return (f"{part.designator} is controlled by the current of {part.control}, "
+                    "which is not on the sheet")
+        if part.control == part.designator or parts[part.control].kind in {"opamp", "coupling"}:
+            return (f"{part.designator} cannot be controlled by {part.control}, which has no "
+                    "single branch current")
+    return ""
+
+
+def net_at(doc: Document, conn: Connectivity, at: Point) -> str | None:
+    """The net at grid point ``at``: a pin's net first, else a wire through the point."""
+    sheet = _Sheet(doc)
+    hits = np.flatnonzero((sheet.pin_x == at[0]) & (sheet.pin_y == at[1]))
+    if hits.size:
+        return conn.net_of_pin[sheet.pin_keys()[int(hits[0])]]
+    for wire in sheet.wires:
+        if any(_on_segment(at, a, b) for a, b in pairwise(wire.points)):
+            return conn.net_of_wire[wire.id]
+    return None
+
+
+def _on_segment(p: Point, a: Point, b: Point) -> bool:
+    return (min(a[0], b[0]) <= p[0] <= max(a[0], b[0])
+            and min(a[1], b[1]) <= p[1] <= max(a[1], b[1]) and (a[0] == b[0] or a[1] == b[1]))
+
+
+# -- building the Circuit ------------------------------------------------------------------------
+
+def build_circuit(doc: Document, conn: Connectivity | None = None, freq: float = 0.0) -> Circuit:
+    """The engine Circuit of ``doc``: each part named by its designator, on the nets of ``conn``
+    (extracted when not given).
+
+    A Block stands in for its contents by their equivalent at ``freq`` hertz (see
+    :func:`block_equivalent`), so rebuild when the frequency changes. Raises CircuitError naming
+    the designator and field of a missing or unreadable value or a broken reference.
+    """
+    return _build(doc, conn or extract(doc), freq, {})
+
+
+def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str]) -> Circuit:
+    def nets(element_id: str, count: int) -> list[str]:
+        return [rename.get(n, n) for n in (conn.net_of_pin[element_id, i] for i in range(count))]
+
+    circuit = Circuit()
+    parts = doc.parts()
+    by_designator = {p.designator: p for p in parts}
+    # couplings last: the circuit checks that their inductors are already there
+    for part in sorted(parts, key=lambda p: p.kind == "coupling"):
+        problem = _reference_problem(part, by_designator)
+        if problem:
+            raise CircuitError(problem)
+        _add_part(circuit, part, nets(part.id, len(KINDS[part.kind])))
+    taken = set(conn.nets) | set(rename.values())
+    for block in doc.blocks():
+        plus, minus = nets(block.id, 2)
+        _add_block(circuit, block, plus, minus, block_equivalent(block, freq), taken)
+    return circuit
+
+
+def _add_part(circuit: Circuit, part: PlacedPart, nodes: list[str]) -> None:
+    name, kind = part.designator, part.kind
+    if kind == "opamp":
+        circuit.opamp(name, *nodes)
+        return
+    if not part.value.strip():
+        quantity, example = _QUANTITY[kind]
+        raise CircuitError(f"{name} value: none given; enter the {quantity}, e.g. {example}")
+    value = parse_value(part.value, what=f"{name} value")
+    phase = _phase(part)
+    if kind == "coupling":
+        circuit.coupling(name, *part.couples, value)
+    elif kind in _CONTROLLED_BY_CURRENT:
+        getattr(circuit, kind)(name, *nodes, part.control, value)
+    elif kind in _SOURCES:
+        getattr(circuit, kind)(name, *nodes, value, phase_deg=phase)
+    else:
+        getattr(circuit, kind)(name, *nodes, value)
+
+
+def _phase(part: PlacedPart) -> float | None:
+    if not part.phase_deg.strip():
+        return None
+    if part.kind not in _SOURCES:
+        raise CircuitError(f"{part.designator} phase: only independent sources take a phase; "
+                           "clear the field")
+    return float(parse_value(part.phase_deg, what=f"{part.designator} phase"))
+
+
+def contents_document(contents: Contents) -> Document:
+    """A scratch Document holding a block's contents (for extraction and building)."""
+    doc = Document()
+    for group in (contents.parts, contents.wires, contents.junctions, contents.labels,
+                  contents.blocks):
+        for element in group:
+            doc.add(element)
+    return doc
+
+
+def block_equivalent(block: Block, freq: float = 0.0):  # -> engine.equivalent's result
+    """The equivalent of ``block``'s contents seen between its port points at ``freq`` hertz.
+
+    Every contents pin listed in ``block.port[0]`` is on the plus net and every one in
+    ``block.port[1]`` on the minus net (the wires that joined them stayed on the sheet).
+    Errors come back as the same CircuitError subclass, prefixed with the block's designator.
+    """
+    from ..equivalent import equivalent
+
+    sub = contents_document(block.contents)
+    conn = extract(sub)
+    rename: dict[str, str] = {}
+    ends = []
+    for side, points in zip(BLOCK_ROLES, block.port, strict=True):
+        found = {net_at(sub, conn, at) for at in points}
+        if None in found or not found:
+            raise CircuitError(f"{block.designator}: its {side} port point touches nothing in "
+                               "its contents; expand and collapse the region again")
+        target = min(found, key=_natural_key)
+        for net in found:
+            if net in rename:
+                raise CircuitError(f"{block.designator}: its contents join the plus and minus "
+                                   "port nets, so it has no equivalent")
+            rename[net] = target
+        ends.append(target)
+    plus, minus = ends
+    try:
+        circuit = _build(sub, conn, freq, rename)
+        return equivalent(circuit, region=set(circuit.names), port=(plus, minus), freq=freq)
+    except CircuitError as e:
+        raise type(e)(f"{block.designator} (collapsed region): {e}") from None
+
+
+def _add_block(circuit: Circuit, block: Block, plus: str, minus: str, eq: object,
+               taken: set[str]) -> None:
+    """Source ``<designator>.src`` and impedance ``<designator>.z`` between the block's nets.
+
+    Thevenin: the voltage source sets V(mid) - V(minus) = voc and the impedance joins mid to plus.
+    Norton: the current source drives isc from minus into plus, the impedance across plus-minus.
+    The drawn form is used where it exists, the other form otherwise.
+    """
+    d = block.designator
+    z = complex(eq.z)
+    thevenin = eq.has_thevenin and (block.form == "thevenin" or not eq.has_norton)
+    if thevenin and z == 0:
+        circuit.voltage_source(f"{d}.src", plus, minus, eq.voc)
+    elif thevenin:
+        mid = _fresh(f"{d}.mid", taken)
+        circuit.voltage_source(f"{d}.src", mid, minus, eq.voc)
+        circuit.impedance(f"{d}.z", plus, mid, z)
+    else:
+        circuit.current_source(f"{d}.src", minus, plus, eq.isc)
+        if cmath.isfinite(z):
+            circuit.impedance(f"{d}.z", plus, minus, z)
