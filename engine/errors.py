@@ -3,6 +3,8 @@
 Each message names what is at fault (the part, the net, the field) and, where it can, how to fix it.
 """
 
+from collections.abc import Iterable
+
 __all__ = [
     "CircuitError",
     "CutError",
@@ -21,7 +23,16 @@ class ValueParseError(CircuitError):
 
 
 class CutError(CircuitError):
-    """The region is not a valid two-terminal cut; the message names the nets or parts at fault."""
+    """The region is not a valid two-terminal cut; the message names the nets or parts at fault.
+
+    ``nets`` and ``parts`` carry the same names for views that highlight them.
+    """
+
+    def __init__(self, message: str, *, nets: Iterable[str] = (),
+                 parts: Iterable[str] = ()) -> None:
+        super().__init__(message)
+        self.nets: tuple[str, ...] = tuple(nets)
+        self.parts: tuple[str, ...] = tuple(parts)
 
 
 class SingularCircuitError(CircuitError):
