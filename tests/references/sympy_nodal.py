@@ -55,11 +55,18 @@ class ReferencePart(Protocol):
 
 @dataclass(frozen=True)
 class PortReference:
-    """Exact port quantities; ``voc``/``isc`` are None where that form does not exist."""
+    """Exact port quantities; ``voc``/``isc`` are None where that form does not exist.
+
+    ``voltage_scale`` is the largest node voltage magnitude with the port open and
+    ``current_scale`` the largest branch current magnitude with it shorted (0 where that form
+    does not exist): the size of the solution a floating-point solver's error is relative to.
+    """
 
     voc: sympy.Expr | None
     isc: sympy.Expr | None
     z: sympy.Expr  # sympy.oo where there is no Thevenin form, 0 where there is no Norton form
+    voltage_scale: float = 0.0
+    current_scale: float = 0.0
 
     @property
     def has_thevenin(self) -> bool:
@@ -102,16 +109,28 @@ class _Branch:
     b: str
 
 
+@dataclass(frozen=True)
+class _Solution:
+    volt: dict[str, sympy.Expr]  # by node
+    amp: dict[str, sympy.Expr]  # by branch
+
+    def across(self, port: tuple[str, str]) -> sympy.Expr:
+        return self.volt[port[0]] - self.volt[port[1]]
+
+
+def _largest(values: Iterable[sympy.Expr]) -> float:
+    return max((abs(_complex(v)) for v in values), default=0.0)
+
+
 def port_reference(parts: Iterable[ReferencePart], port: tuple[str, str],
                    freq: object = 0) -> PortReference:
     """voc, isc and z of the region made of ``parts`` at ``port`` (plus, minus), ``freq`` in Hz."""
     parts = list(parts)
     s = sympy.I * 2 * sympy.pi * exact(freq)  # sympy folds 2 pi (w / (2 pi)) into w exactly
-    plus, minus = port
     opened = _solve(parts, s, port, extra=None, sources=True)
     shorted = _solve(parts, s, port, extra="short", sources=True)
-    voc = None if opened is None else opened[plus] - opened[minus]
-    isc = None if shorted is None else shorted[_PORT]
+    voc = None if opened is None else opened.across(port)
+    isc = None if shorted is None else shorted.amp[_PORT]
     if opened is None and shorted is None:
         raise ValueError("the region has no unique solution with the port open or shorted")
     if opened is None:
@@ -121,8 +140,10 @@ def port_reference(parts: Iterable[ReferencePart], port: tuple[str, str],
     else:
         driven = _solve(parts, s, port, extra="drive", sources=False)
         assert driven is not None  # same matrix as the open port plus one decoupled unknown
-        z = driven[plus] - driven[minus]
-    return PortReference(voc, isc, z)
+        z = driven.across(port)
+    return PortReference(voc, isc, z,
+                         voltage_scale=0.0 if opened is None else _largest(opened.volt.values()),
+                         current_scale=0.0 if shorted is None else _largest(shorted.amp.values()))
 
 
 def _branches(parts: Sequence[ReferencePart], port: tuple[str, str],
@@ -169,7 +190,7 @@ def _references(nodes: list[str], branches: list[_Branch],
 
 
 def _solve(parts: Sequence[ReferencePart], s: sympy.Expr, port: tuple[str, str],
-           extra: str | None, sources: bool) -> dict[str, sympy.Expr] | None:
+           extra: str | None, sources: bool) -> _Solution | None:
     """Node voltages and branch currents by name, or None where there is no unique solution."""
     branches = _branches(parts, port, extra)
     nodes = sorted({n for p in parts for n in p.nodes} | {GROUND} | set(port))
@@ -195,9 +216,8 @@ def _solve(parts: Sequence[ReferencePart], s: sympy.Expr, port: tuple[str, str],
     if a.domain.is_zero(a.det()):
         return None
     solution = dict(zip(unknowns, a.lu_solve(b).to_Matrix(), strict=True))
-    values = {n: solution.get(v, v) for n, v in volt.items()}
-    values |= {name: solution[i] for name, i in amp.items()}
-    return values
+    return _Solution({n: solution.get(v, v) for n, v in volt.items()},
+                     {name: solution[i] for name, i in amp.items()})
 
 
 def _kcl(node: str, branches: list[_Branch], amp: dict[str, sympy.Symbol]) -> sympy.Expr:
