@@ -285,7 +285,7 @@ def floating_region_between_two_nets() -> Case:
 
 @case
 def port_given_minus_first() -> Case:
-    # port = ("0", "a"): the plus net is ground, so voc and isc change sign, z does not.
+    # port = ("0", "out"): the plus net is ground, so voc and isc change sign, z does not.
     c, region, _, freq = rc_ladder_with_phase()
     return c, region, ("0", "out"), freq
 
