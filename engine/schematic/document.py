@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import itertools
 import re
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterable, Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass, field, replace
 from typing import TypeVar
@@ -144,11 +144,14 @@ class Document:
             if candidate not in self._elements:
                 return candidate
 
-    def next_designator(self, kind: str) -> str:
-        """The lowest free designator for ``kind``: R1, R2, ... (DS for dependent sources)."""
+    def next_designator(self, kind: str, reserved: Iterable[str] = ()) -> str:
+        """The lowest free designator for ``kind``: R1, R2, ... (DS for dependent sources).
+
+        ``reserved`` designators count as taken (names handed out but not yet added).
+        """
         prefix = DESIGNATOR_PREFIX[kind]
         taken = {e.designator for e in self._elements.values()
-                 if isinstance(e, PlacedPart | Block)}
+                 if isinstance(e, PlacedPart | Block)} | set(reserved)
         return next(f"{prefix}{n}" for n in itertools.count(1) if f"{prefix}{n}" not in taken)
 
     # -- observing ----------------------------------------------------------------------------
