@@ -1,0 +1,165 @@
+"""Undo commands: every edit of the document is one of these on the window's QUndoStack.
+
+Commands call Document methods only (add, remove, replace, set_title), never canvas items. Each
+command and all its children run inside one ``doc.batch()``, so the views see one Change per
+undo step. Compositions are parent commands with children (redone in order, undone in reverse).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+from PySide6.QtGui import QUndoCommand
+
+from engine.schematic import Document, Element, Region
+
+from .editing import Deletion
+
+__all__ = [
+    "AddElements",
+    "DocumentCommand",
+    "MoveElements",
+    "RemoveElements",
+    "ReplaceElements",
+    "SetTitle",
+    "delete_command",
+]
+
+#: QUndoCommand.id() of a move; moves of the same elements in a row merge into one step.
+MOVE_ID = 1
+
+
+def _add_order(elements: Iterable[Element]) -> list[Element]:
+    """Regions name their members, so they go in after everything else."""
+    return sorted(elements, key=lambda e: isinstance(e, Region))
+
+
+class DocumentCommand(QUndoCommand):
+    """A command on a document: its own step (``_apply``/``_revert``) and then its children's,
+    all inside one batch; undo runs the children in reverse first. A command with only children
+    is a composition. Children are kept on the Python side (``children``) rather than as Qt
+    child commands, whose ownership PySide does not hand over to the parent."""
+
+    def __init__(self, doc: Document, text: str, parent: DocumentCommand | None = None) -> None:
+        super().__init__(text)
+        self.doc = doc
+        self.children: list[DocumentCommand] = []
+        if parent is not None:
+            parent.children.append(self)
+
+    def redo(self) -> None:
+        with self.doc.batch():
+            self._apply()
+            for child in self.children:
+                child.redo()
+
+    def undo(self) -> None:
+        with self.doc.batch():
+            for child in reversed(self.children):
+                child.undo()
+            self._revert()
+
+    def _apply(self) -> None:
+        """This command's own change (none for a pure composition)."""
+
+    def _revert(self) -> None:
+        """Undo :meth:`_apply`."""
+
+
+class AddElements(DocumentCommand):
+    """Add new elements."""
+
+    def __init__(self, doc: Document, elements: Iterable[Element], text: str,
+                 parent: DocumentCommand | None = None) -> None:
+        super().__init__(doc, text, parent)
+        self.elements = tuple(_add_order(elements))
+
+    def _apply(self) -> None:
+        for e in self.elements:
+            self.doc.add(e)
+
+    def _revert(self) -> None:
+        for e in reversed(self.elements):
+            self.doc.remove(e.id)
+
+
+class RemoveElements(DocumentCommand):
+    """Remove elements by id; undo puts the same elements back."""
+
+    def __init__(self, doc: Document, ids: Iterable[str], text: str,
+                 parent: DocumentCommand | None = None) -> None:
+        super().__init__(doc, text, parent)
+        self.elements = tuple(_add_order(doc[i] for i in dict.fromkeys(ids)))
+
+    def _apply(self) -> None:
+        for e in reversed(self.elements):
+            self.doc.remove(e.id)
+
+    def _revert(self) -> None:
+        for e in self.elements:
+            self.doc.add(e)
+
+
+class ReplaceElements(DocumentCommand):
+    """Put new versions of existing elements; undo restores the versions seen at creation."""
+
+    def __init__(self, doc: Document, elements: Iterable[Element], text: str,
+                 parent: DocumentCommand | None = None) -> None:
+        super().__init__(doc, text, parent)
+        self.after = {e.id: e for e in elements}
+        self.before = {i: doc[i] for i in self.after}
+
+    def _apply(self) -> None:
+        for e in self.after.values():
+            self.doc.replace(e)
+
+    def _revert(self) -> None:
+        for e in self.before.values():
+            self.doc.replace(e)
+
+
+class MoveElements(ReplaceElements):
+    """A move, rotation or mirror of ``key`` (the ids the user chose) and of the wires that
+    followed; the next such command on the same ids merges into this one."""
+
+    def __init__(self, doc: Document, key: Iterable[str], elements: Iterable[Element],
+                 text: str) -> None:
+        super().__init__(doc, elements, text)
+        self.key = frozenset(key)
+
+    def id(self) -> int:
+        return MOVE_ID
+
+    def mergeWith(self, other: QUndoCommand) -> bool:
+        if not isinstance(other, MoveElements) or other.key != self.key:
+            return False
+        for element_id, old in other.before.items():
+            self.before.setdefault(element_id, old)
+        self.after.update(other.after)
+        return True
+
+
+class SetTitle(DocumentCommand):
+    """Change the sheet title."""
+
+    def __init__(self, doc: Document, title: str) -> None:
+        super().__init__(doc, f"Set title to “{title}”")
+        self.title, self.old = title, doc.title
+
+    def _apply(self) -> None:
+        self.doc.set_title(self.title)
+
+    def _revert(self) -> None:
+        self.doc.set_title(self.old)
+
+
+def delete_command(doc: Document, plan: Deletion, text: str) -> DocumentCommand:
+    """One undo step for a delete: a parent whose children shrink the regions, remove the
+    chosen elements and remove the wires that were left dangling."""
+    parent = DocumentCommand(doc, text)
+    if plan.regions:
+        ReplaceElements(doc, plan.regions, "Update regions", parent)
+    RemoveElements(doc, plan.removed, "Remove elements", parent)
+    if plan.dangling:
+        RemoveElements(doc, plan.dangling, "Remove dangling wires", parent)
+    return parent
