@@ -1,0 +1,257 @@
+"""The scene: the document drawn, one item per element, following every Change.
+
+Only the items named in a Change are touched; the sheet index (app/sheet.py) and the computed
+junction dots are updated around the points those elements touch, so an edit of one part costs
+the same on a sheet of ten parts or of thousands.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
+from PySide6.QtGui import QPainter, QPen
+from PySide6.QtWidgets import QGraphicsScene
+
+from engine.errors import CircuitError
+from engine.schematic import Change, Document, Element, PlacedPart
+from engine.symbols import Point
+from engine.units import parse_frequency
+
+from ..sheet import SheetIndex
+from ..theme import qcolor
+from .grid import UNIT
+from .items import DotItem, ElementItem, Look, PartItem, item_for
+
+__all__ = ["SchematicScene"]
+
+#: Room around the drawing, grid units, so the view can always scroll past the edges.
+_MARGIN = 60.0
+_EMPTY_SHEET = QRectF(-30 * UNIT, -20 * UNIT, 60 * UNIT, 40 * UNIT)
+#: Grid lines closer than this on screen (device pixels) are thinned out.
+_MIN_GRID_PX = 7.0
+
+
+def _frequency(doc: Document) -> float:
+    try:
+        return parse_frequency(doc.analysis.freq)
+    except CircuitError:
+        return 0.0
+
+
+class SchematicScene(QGraphicsScene):
+    """Items for every element of ``doc``; ``look`` is shared with every item."""
+
+    def __init__(self, doc: Document, look: Look | None = None, parent=None) -> None:
+        super().__init__(parent)
+        self.look = look or Look()
+        self.grid_step = 1
+        self.doc = doc
+        self.index = SheetIndex()
+        self._items: dict[str, ElementItem] = {}
+        self._dots: dict[Point, DotItem] = {}
+        self._couplings: dict[str, tuple[str, ...]] = {}
+        self._previewed: set[str] = set()
+        self._extent = QRectF(_EMPTY_SHEET)
+        self._unsubscribe = lambda: None
+        self.set_document(doc)
+
+    # -- the document -------------------------------------------------------------------------
+    def set_document(self, doc: Document) -> None:
+        """Show another document (a file opened, a new sheet)."""
+        self._unsubscribe()
+        self.clear()
+        self._items.clear()
+        self._dots.clear()
+        self._previewed.clear()
+        self.doc = doc
+        self.index = SheetIndex(doc)
+        self._couplings = {p.id: p.couples for p in doc.parts() if p.kind == "coupling"}
+        self.look.coupled = self._coupled()
+        self.look.freq = _frequency(doc)
+        for element in doc:
+            self._add_item(element)
+        self._update_dots(self.index.points_of_interest())
+        self._extent = QRectF(_EMPTY_SHEET)
+        for item in self._items.values():
+            self._extent |= item.sceneBoundingRect()
+        self._apply_extent()
+        self._unsubscribe = doc.subscribe(self._on_change)
+
+    def detach(self) -> None:
+        """Stop following the document (the scene is being thrown away)."""
+        self._unsubscribe()
+        self._unsubscribe = lambda: None
+
+    def _add_item(self, element: Element) -> ElementItem:
+        item = item_for(element, self.look)
+        self._items[element.id] = item
+        self.addItem(item)
+        return item
+
+    def _on_change(self, change: Change) -> None:
+        self.end_preview()
+        touched: set[Point] = set()
+        couplings_before = dict(self._couplings)
+        renamed_inductor = False
+        for eid in change.removed:
+            old = self.index.remove(eid)
+            touched |= self.index.touch_points(old)
+            self._couplings.pop(eid, None)
+            self.removeItem(self._items.pop(eid))
+        for eid in change.updated:
+            old = self.index.remove(eid)
+            new = self.doc[eid]
+            touched |= self.index.touch_points(old)
+            self.index.add(new)
+            touched |= self.index.touch_points(new)
+            renamed_inductor |= _renamed_inductor(old, new)
+            self._track_coupling(new)
+            self._items[eid].sync(new)
+            self._extent |= self._items[eid].sceneBoundingRect()
+        for eid in change.added:
+            new = self.doc[eid]
+            self.index.add(new)
+            touched |= self.index.touch_points(new)
+            self._track_coupling(new)
+            self._extent |= self._add_item(new).sceneBoundingRect()
+        self._update_dots(touched)
+        if self._couplings != couplings_before or renamed_inductor:
+            self._refresh_coupled()
+        if change.analysis:
+            self.look.freq = _frequency(self.doc)
+            self.relayout()
+        self._apply_extent()
+
+    def _track_coupling(self, element: Element) -> None:
+        if isinstance(element, PlacedPart) and element.kind == "coupling":
+            self._couplings[element.id] = element.couples
+
+    def _coupled(self) -> frozenset[str]:
+        return frozenset(name for names in self._couplings.values() for name in names)
+
+    def _refresh_coupled(self) -> None:
+        self.look.coupled = self._coupled()
+        for item in self._items.values():
+            if isinstance(item, PartItem) and item.element.kind == "inductor":
+                item.sync(item.element)
+
+    def _update_dots(self, points: Iterable[Point]) -> None:
+        for p in points:
+            wanted = self.index.is_dot(p)
+            if wanted and p not in self._dots:
+                dot = DotItem(p, self.look)
+                self._dots[p] = dot
+                self.addItem(dot)
+            elif not wanted and p in self._dots:
+                self.removeItem(self._dots.pop(p))
+
+    def _apply_extent(self) -> None:
+        m = _MARGIN * UNIT
+        self.setSceneRect(self._extent.adjusted(-m, -m, m, m))
+
+    # -- looks --------------------------------------------------------------------------------
+    def relayout(self) -> None:
+        """Redraw every item after a change of theme, symbol style or frequency."""
+        for item in self._items.values():
+            item.sync(item.element)
+        self.update()
+
+    # -- reading ------------------------------------------------------------------------------
+    def item(self, element_id: str) -> ElementItem | None:
+        return self._items.get(element_id)
+
+    def element_items(self) -> list[ElementItem]:
+        return list(self._items.values())
+
+    def dot_points(self) -> set[Point]:
+        """Where computed junction dots are drawn."""
+        return set(self._dots)
+
+    def drawing_rect(self) -> QRectF:
+        """The scene rectangle of everything drawn (for fit to sheet)."""
+        rect = QRectF()
+        for item in self._items.values():
+            rect |= item.sceneBoundingRect()
+        return rect
+
+    def element_at(self, pos: QPointF, tolerance: float) -> ElementItem | None:
+        """The topmost selectable element item within ``tolerance`` scene units of ``pos``."""
+        box = QRectF(pos.x() - tolerance, pos.y() - tolerance, 2 * tolerance, 2 * tolerance)
+        for item in self.items(box, Qt.ItemSelectionMode.IntersectsItemShape,
+                               Qt.SortOrder.DescendingOrder):
+            if isinstance(item, ElementItem) and not item.preview and (
+                    item.flags() & item.GraphicsItemFlag.ItemIsSelectable):
+                return item
+        return None
+
+    # -- selection ----------------------------------------------------------------------------
+    def selected_ids(self) -> list[str]:
+        """Ids of the selected elements, in document order."""
+        chosen = {i.element_id for i in self.selectedItems() if isinstance(i, ElementItem)}
+        return [e.id for e in self.doc if e.id in chosen]
+
+    def select_ids(self, ids: Iterable[str], add: bool = False) -> None:
+        """Select these elements (and, unless ``add``, only these), with one notification."""
+        ids = set(ids)
+        self.blockSignals(True)
+        try:
+            if not add:
+                self.clearSelection()
+            for eid in ids:
+                item = self._items.get(eid)
+                if item is not None and item.flags() & item.GraphicsItemFlag.ItemIsSelectable:
+                    item.setSelected(True)
+        finally:
+            self.blockSignals(False)
+        self.selectionChanged.emit()
+
+    # -- gesture previews ---------------------------------------------------------------------
+    def show_preview(self, elements: Iterable[Element]) -> None:
+        """Draw new versions of existing elements without changing the document (a move being
+        dragged); :meth:`end_preview` puts the document's versions back."""
+        for e in elements:
+            item = self._items.get(e.id)
+            if item is not None:
+                item.sync(e)
+                self._previewed.add(e.id)
+
+    def end_preview(self) -> None:
+        for eid in self._previewed:
+            item = self._items.get(eid)
+            if item is not None and eid in self.doc:
+                item.sync(self.doc[eid])
+        self._previewed.clear()
+
+    # -- background ---------------------------------------------------------------------------
+    def drawBackground(self, painter: QPainter, rect: QRectF) -> None:
+        theme = self.look.theme
+        painter.fillRect(rect, qcolor(theme.sheet))
+        scale = painter.worldTransform().m11() or 1.0
+        step = self.grid_step * UNIT
+        while step * scale < _MIN_GRID_PX:
+            step *= 5
+        major = step * 5
+        minor_lines: list[QLineF] = []
+        major_lines: list[QLineF] = []
+        x = (rect.left() // step) * step
+        while x <= rect.right():
+            line = QLineF(x, rect.top(), x, rect.bottom())
+            (major_lines if abs(x / major - round(x / major)) < 1e-6 else minor_lines).append(line)
+            x += step
+        y = (rect.top() // step) * step
+        while y <= rect.bottom():
+            line = QLineF(rect.left(), y, rect.right(), y)
+            (major_lines if abs(y / major - round(y / major)) < 1e-6 else minor_lines).append(line)
+            y += step
+        pen = QPen(qcolor(theme.grid), 0)  # cosmetic: one device pixel at any zoom
+        painter.setPen(pen)
+        painter.drawLines(minor_lines)
+        pen.setColor(qcolor(theme.grid_major))
+        painter.setPen(pen)
+        painter.drawLines(major_lines)
+
+
+def _renamed_inductor(old: Element, new: Element) -> bool:
+    return (isinstance(new, PlacedPart) and new.kind == "inductor"
+            and getattr(old, "designator", None) != new.designator)

@@ -1,0 +1,226 @@
+"""Selecting and moving: click, Shift/Ctrl-click, rubber band, drag to move (wires follow), drag
+from a pin to draw a wire; arrows nudge the selection, Tab steps through elements.
+
+A rubber band dragged to the right selects what lies wholly inside it; dragged to the left, what
+it touches (common practice in drawing tools). A move shows a preview while dragging and becomes
+one undo step on release.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from PySide6.QtCore import QRectF, Qt
+from PySide6.QtGui import QBrush, QColor, QKeyEvent, QPen
+from PySide6.QtWidgets import QApplication, QGraphicsRectItem
+
+from ...theme import qcolor
+from ..grid import snap
+from ..items import Z_PREVIEW
+from .base import CanvasEvent, Tool
+from .wire import WireDraft
+
+if TYPE_CHECKING:
+    from ..canvas import Canvas
+
+__all__ = ["SelectTool"]
+
+_ARROWS = {Qt.Key.Key_Left: (-1, 0), Qt.Key.Key_Right: (1, 0), Qt.Key.Key_Up: (0, -1),
+           Qt.Key.Key_Down: (0, 1)}
+
+
+class SelectTool(Tool):
+    """The default tool."""
+
+    name = "select"
+
+    def __init__(self, canvas: Canvas) -> None:
+        super().__init__(canvas)
+        self._mode = ""          # "", "pending", "move", "band", "pin", "wire"
+        self._origin: CanvasEvent | None = None
+        self._offset = (0, 0)
+        self._band: QGraphicsRectItem | None = None
+        self._draft: WireDraft | None = None
+        self._pin = (0, 0)
+
+    @property
+    def status(self) -> str:
+        if self._mode == "band":
+            return "Select: drag right for what lies inside, left for what the box touches"
+        if self._mode == "wire":
+            return "Wire: release on a pin or a wire to join it"
+        if self._mode == "move":
+            return "Move: release to drop · Esc puts it back"
+        if self.canvas.scene.selected_ids():
+            return ("Drag to move · arrows nudge · R rotates · M mirrors · Delete removes · "
+                    "double-click or F2 edits the value · Esc clears the selection")
+        return ("Click or box-select · drag from a pin to draw a wire · Tab steps through "
+                "elements · Enter at the cursor clicks")
+
+    # -- pointer ------------------------------------------------------------------------------
+    def press(self, ev: CanvasEvent) -> None:
+        if ev.button != Qt.MouseButton.LeftButton:
+            return
+        self._origin = ev
+        scene = self.canvas.scene
+        pin = None if ev.keyboard else self.canvas.pin_at(ev.scene_pos)
+        if pin is not None:
+            self._mode, self._pin = "pin", pin
+            return
+        item = scene.element_at(ev.scene_pos, self.canvas.pick_tolerance())
+        if item is None:
+            if not ev.adds:
+                scene.select_ids([])
+            self._mode = "band"
+            self._start_band(ev)
+        else:
+            if ev.adds:
+                item.setSelected(not item.isSelected())
+            elif not item.isSelected():
+                scene.select_ids([item.element_id])
+            self._mode = "pending" if item.isSelected() else ""
+        self.announce()
+
+    def move(self, ev: CanvasEvent) -> None:
+        if self._origin is None:
+            return
+        if self._mode in ("pending", "pin") and self._dragged(ev):
+            if self._mode == "pin":
+                self._mode = "wire"
+                self._draft = WireDraft(self.canvas, self._pin)
+            else:
+                self._mode = "move"
+            self.announce()
+        if self._mode == "move":
+            self._preview_move(ev)
+        elif self._mode == "wire":
+            self._draft.update(ev.snapped)
+        elif self._mode == "band":
+            self._band.setRect(self._band_rect(ev))
+
+    def release(self, ev: CanvasEvent) -> None:
+        mode, self._mode = self._mode, ""
+        if mode == "move":
+            if self._offset != (0, 0):
+                self.canvas.move_selection(self._offset)
+            else:
+                self.canvas.scene.end_preview()
+        elif mode == "wire":
+            draft, self._draft = self._draft, None
+            if not draft.add(ev.snapped):
+                draft.finish()
+        elif mode == "band":
+            self._finish_band(ev)
+        elif mode == "pin":
+            item = self.canvas.scene.element_at(ev.scene_pos, self.canvas.pick_tolerance())
+            self.canvas.scene.select_ids([item.element_id] if item else [], add=ev.adds)
+        self._origin = None
+        self._offset = (0, 0)
+        self.announce()
+
+    def double_click(self, ev: CanvasEvent) -> None:
+        item = self.canvas.scene.element_at(ev.scene_pos, self.canvas.pick_tolerance())
+        if item is not None:
+            self.canvas.scene.select_ids([item.element_id])
+            self.canvas.request_edit(item.element_id)
+
+    def click(self, ev: CanvasEvent) -> None:
+        """Enter: select what is under the cursor; on empty sheet, Enter starts a box that the
+        arrows stretch and the next Enter closes."""
+        if self._mode == "band":
+            self.release(ev)
+            return
+        item = self.canvas.scene.element_at(ev.scene_pos, self.canvas.pick_tolerance())
+        self.press(ev)
+        if item is not None:
+            self.release(ev)
+
+    def _dragged(self, ev: CanvasEvent) -> bool:
+        if ev.keyboard:
+            return True
+        d = self.canvas.view.mapFromScene(ev.scene_pos) - self.canvas.view.mapFromScene(
+            self._origin.scene_pos)
+        return d.manhattanLength() >= QApplication.startDragDistance()
+
+    def _preview_move(self, ev: CanvasEvent) -> None:
+        step = self.canvas.scene.grid_step
+        start, now = self._origin.at, ev.at
+        self._offset = snap((now[0] - start[0], now[1] - start[1]), step)
+        plan = self.canvas.plan_move(self._offset)
+        self.canvas.scene.end_preview()
+        self.canvas.scene.show_preview(plan)
+
+    # -- rubber band --------------------------------------------------------------------------
+    def _start_band(self, ev: CanvasEvent) -> None:
+        theme = self.canvas.scene.look.theme
+        band = QGraphicsRectItem(QRectF(ev.scene_pos, ev.scene_pos))
+        colour = qcolor(theme.selection)
+        pen = QPen(colour, 0)
+        pen.setStyle(Qt.PenStyle.DashLine)
+        band.setPen(pen)
+        fill = QColor(colour)
+        fill.setAlpha(28)
+        band.setBrush(QBrush(fill))
+        band.setZValue(Z_PREVIEW)
+        self.canvas.scene.addItem(band)
+        self._band = band
+
+    def _band_rect(self, ev: CanvasEvent) -> QRectF:
+        return QRectF(self._origin.scene_pos, ev.scene_pos).normalized()
+
+    def _finish_band(self, ev: CanvasEvent) -> None:
+        rect = self._band_rect(ev)
+        self._drop_band()
+        if rect.width() == 0 and rect.height() == 0:
+            return
+        inside = ev.scene_pos.x() >= self._origin.scene_pos.x()
+        mode = (Qt.ItemSelectionMode.ContainsItemShape if inside
+                else Qt.ItemSelectionMode.IntersectsItemShape)
+        scene = self.canvas.scene
+        ids = [i.element_id for i in scene.items(rect, mode) if hasattr(i, "element_id")
+               and not i.preview]
+        scene.select_ids(ids, add=ev.adds)
+
+    def _drop_band(self) -> None:
+        if self._band is not None:
+            self.canvas.scene.removeItem(self._band)
+            self._band = None
+
+    # -- keys ---------------------------------------------------------------------------------
+    def key(self, event: QKeyEvent) -> bool:
+        if event.key() in (Qt.Key.Key_Tab, Qt.Key.Key_Backtab):
+            backwards = (event.key() == Qt.Key.Key_Backtab
+                         or bool(event.modifiers() & Qt.KeyboardModifier.ShiftModifier))
+            self.canvas.step_selection(-1 if backwards else 1)
+            self.announce()
+            return True
+        arrow = _ARROWS.get(event.key())
+        if (arrow and not self._mode and self.canvas.scene.selected_ids()
+                and not event.modifiers() & Qt.KeyboardModifier.ControlModifier):
+            big = bool(event.modifiers() & Qt.KeyboardModifier.ShiftModifier)
+            n = self.canvas.scene.grid_step * (5 if big else 1)
+            self.canvas.move_selection((arrow[0] * n, arrow[1] * n))
+            return True
+        return False
+
+    def cancel(self) -> bool:
+        mode, self._mode = self._mode, ""
+        self._origin = None
+        if mode == "move":
+            self.canvas.scene.end_preview()
+        elif mode == "band":
+            self._drop_band()
+        elif mode == "wire":
+            self._draft.cancel()
+            self._draft = None
+        elif self.canvas.scene.selected_ids():
+            self.canvas.scene.select_ids([])
+        else:
+            return False
+        self.announce()
+        return True
+
+    def finish(self) -> None:
+        if self._mode:
+            self.cancel()
+
