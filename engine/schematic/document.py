@@ -254,6 +254,12 @@ class Document:
                 raise DocumentError(f"{where}: members {', '.join(unknown)} are not in the "
                                     "document")
 
+    def check(self, element: Element) -> None:
+        """Raise DocumentError (naming the field) if ``element`` could not be added, or could
+        not replace the element with its id; changes nothing. Editors validate with this
+        before they push an undo command."""
+        self._check(element, replacing=self._elements.get(element.id))
+
     def replace_fields(self, element_id: str, **changes: object) -> Element:
         """Shorthand for ``replace(dataclasses.replace(doc[element_id], **changes))``."""
         return self.replace(replace(self[element_id], **changes))
