@@ -11,6 +11,7 @@ from .connectivity import (
     net_at,
 )
 from .document import DESIGNATOR_PREFIX, Change, Document
+from .fileformat import FORMAT, VERSION, dumps, load, loads, save
 from .model import (
     ANALYSIS_FORMS,
     PART_KINDS,
@@ -29,7 +30,9 @@ __all__ = [
     "ANALYSIS_FORMS",
     "BLOCK_ROLES",
     "DESIGNATOR_PREFIX",
+    "FORMAT",
     "PART_KINDS",
+    "VERSION",
     "Analysis",
     "Block",
     "Change",
@@ -46,6 +49,10 @@ __all__ = [
     "block_equivalent",
     "build_circuit",
     "contents_document",
+    "dumps",
     "extract",
+    "load",
+    "loads",
     "net_at",
+    "save",
 ]

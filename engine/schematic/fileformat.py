@@ -1,0 +1,492 @@
+"""The Portcut schematic file: versioned JSON, validated field by field on load and before save.
+
+Described field by field in docs/file-format.md. :func:`loads` and :func:`load` return a new
+:class:`Document` or raise :class:`DocumentError` whose message starts with the JSON path of the
+offending field (``parts[3].rotation: expected one of 0, 90, 180, 270, got 45``); they change
+nothing else. :func:`dumps` checks the document by the same rules, so every file written reads
+back. :func:`save` is atomic: the text goes to a temporary file beside the target, is flushed and
+synced to disk, and replaces the target in one rename; on any failure the old file is untouched.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import secrets
+import shutil
+from collections.abc import Callable, Iterator
+from contextlib import suppress
+from pathlib import Path
+from typing import Any
+
+from ..errors import DocumentError, ValueParseError
+from ..units import parse_frequency, parse_value
+from .document import Document
+from .model import (
+    ANALYSIS_FORMS,
+    PART_KINDS,
+    ROTATIONS,
+    Analysis,
+    Block,
+    Contents,
+    Element,
+    Junction,
+    NetLabel,
+    PlacedPart,
+    Region,
+    Wire,
+)
+
+__all__ = [
+    "COORD_LIMIT",
+    "FORMAT",
+    "MAX_BLOCK_NESTING",
+    "MAX_FILE_BYTES",
+    "VERSION",
+    "dumps",
+    "load",
+    "loads",
+    "save",
+]
+
+FORMAT = "portcut-schematic"
+#: The newest file version this program writes and reads.
+VERSION = 1
+#: Largest grid coordinate (in either direction) a file may hold.
+COORD_LIMIT = 1_000_000
+#: Deepest nesting of collapsed blocks inside collapsed blocks.
+MAX_BLOCK_NESTING = 32
+MAX_FILE_BYTES = 64 * 1024 * 1024
+_LABEL_STYLES = ("label", "ground")
+_BASES = ("peak", "rms")
+_WIDTH = 100
+# Optional fields and the values they take when absent; the writer leaves out defaults.
+_PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
+                  "couples": []}
+_LABEL_DEFAULTS = {"rotation": 0, "style": "label"}
+_REGION_DEFAULTS = {"outline": [], "swap": False}
+_BLOCK_DEFAULTS = {"rotation": 0, "mirror": False, "stubs": []}
+_ANALYSIS_DEFAULTS = {"frequency": "DC", "form": "thevenin", "basis": "peak"}
+
+Data = dict[str, Any]
+
+
+# -- writing ------------------------------------------------------------------------------------
+def dumps(doc: Document) -> str:
+    """The file text of ``doc``. Raises DocumentError (with the field path) for anything
+    :func:`loads` would refuse, such as a value that cannot be read."""
+    data = _document_data(doc)
+    _read_document(data)
+    return _pretty(data) + "\n"
+
+
+def save(doc: Document, path: str | os.PathLike[str]) -> None:
+    """Write ``doc`` to ``path`` atomically; the old file survives any failure unchanged."""
+    text = dumps(doc).encode("utf-8")
+    target = Path(os.path.realpath(path))  # through a symlink, replace what it points at
+    temporary = target.with_name(f".{target.name}.{secrets.token_hex(6)}.tmp")
+    try:
+        fd = os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_BINARY", 0),
+                     0o666)
+        try:
+            with os.fdopen(fd, "wb") as f:
+                f.write(text)
+                f.flush()
+                os.fsync(f.fileno())
+            if target.exists():
+                shutil.copymode(target, temporary)
+            os.replace(temporary, target)
+        finally:
+            with suppress(OSError):
+                os.unlink(temporary)
+    except OSError as e:
+        raise DocumentError(f"cannot save {os.fspath(path)}: {e.strerror or e}; "
+                            "the file on disk is unchanged") from None
+    with suppress(OSError):  # the new file is in place; this only hastens the rename to disk
+        _sync_folder(target.parent)
+
+
+def _sync_folder(folder: Path) -> None:
+    """Make the rename itself durable (POSIX; other systems have no directory handles)."""
+    if hasattr(os, "O_DIRECTORY"):
+        fd = os.open(folder, os.O_RDONLY | os.O_DIRECTORY)
+        try:
+            os.fsync(fd)
+        finally:
+            os.close(fd)
+
+
+def _document_data(doc: Document) -> Data:
+    contents = _contents_data(doc.parts(), doc.wires(), doc.junctions(), doc.labels(),
+                              doc.blocks())
+    a = doc.analysis
+    return {"format": FORMAT, "version": VERSION, "title": doc.title,
+            "analysis": _trimmed({"frequency": a.freq, "form": a.form, "basis": a.basis},
+                                 _ANALYSIS_DEFAULTS),
+            **contents, "regions": [_region_data(r) for r in doc.regions()]}
+
+
+def _trimmed(data: Data, defaults: Data) -> Data:
+    return {k: v for k, v in data.items() if k not in defaults or v != defaults[k]}
+
+
+def _points(points) -> list[list[float]]:
+    return [list(p) for p in points]
+
+
+def _contents_data(parts, wires, junctions, labels, blocks) -> Data:
+    return {
+        "parts": [_trimmed({"id": p.id, "kind": p.kind, "designator": p.designator,
+                            "at": list(p.at), "rotation": p.rotation, "mirror": p.mirror,
+                            "value": p.value, "phase_deg": p.phase_deg, "control": p.control,
+                            "couples": list(p.couples)}, _PART_DEFAULTS) for p in parts],
+        "wires": [{"id": w.id, "points": _points(w.points)} for w in wires],
+        "junctions": [{"id": j.id, "at": list(j.at)} for j in junctions],
+        "labels": [_trimmed({"id": n.id, "name": n.name, "at": list(n.at),
+                             "rotation": n.rotation, "style": n.style}, _LABEL_DEFAULTS)
+                   for n in labels],
+        "blocks": [_block_data(b) for b in blocks],
+    }
+
+
+def _region_data(r: Region) -> Data:
+    return _trimmed({"id": r.id, "name": r.name, "members": sorted(r.members),
+                     "outline": _points(r.outline), "swap": r.swap}, _REGION_DEFAULTS)
+
+
+def _block_data(b: Block) -> Data:
+    c = b.contents
+    plus, minus = b.port
+    return _trimmed({"id": b.id, "designator": b.designator, "form": b.form, "at": list(b.at),
+                     "rotation": b.rotation, "mirror": b.mirror, "region": _region_data(b.region),
+                     "contents": _contents_data(c.parts, c.wires, c.junctions, c.labels,
+                                                c.blocks),
+                     "port": {"plus": _points(plus), "minus": _points(minus)},
+                     "stubs": list(b.stubs)}, _BLOCK_DEFAULTS)
+
+
+def _pretty(value: Any, indent: int = 0, lead: int = 0) -> str:
+    """JSON with anything that fits on its line kept on one line (points, short records);
+    ``lead`` is how many characters precede the value on its line."""
+    flat = json.dumps(value, ensure_ascii=False)
+    if (indent and lead + len(flat) <= _WIDTH) or not isinstance(value, dict | list) or not value:
+        return flat
+    inner = " " * (indent + 2)
+    if isinstance(value, dict):
+        items = []
+        for k, v in value.items():
+            key = f"{inner}{json.dumps(k, ensure_ascii=False)}: "
+            items.append(key + _pretty(v, indent + 2, len(key)))
+        return "{\n" + ",\n".join(items) + "\n" + " " * indent + "}"
+    items = [inner + _pretty(v, indent + 2, len(inner) + 1) for v in value]
+    return "[\n" + ",\n".join(items) + "\n" + " " * indent + "]"
+
+
+# -- reading ------------------------------------------------------------------------------------
+def load(path: str | os.PathLike[str]) -> Document:
+    """Read a schematic file; DocumentError names the file and the field at fault."""
+    name = os.fspath(path)
+    try:
+        with open(path, "rb") as f:
+            raw = f.read(MAX_FILE_BYTES + 1)
+    except OSError as e:
+        raise DocumentError(f"cannot open {name}: {e.strerror or e}") from None
+    if len(raw) > MAX_FILE_BYTES:
+        raise DocumentError(f"{name}: larger than the {MAX_FILE_BYTES}-byte limit of a "
+                            "schematic file")
+    try:
+        return loads(raw)
+    except DocumentError as e:
+        raise DocumentError(f"{name}: {e}") from None
+
+
+def loads(text: str | bytes) -> Document:
+    """Read schematic file text (``bytes`` are decoded as UTF-8) into a new Document."""
+    if isinstance(text, bytes | bytearray):
+        try:
+            text = bytes(text).decode("utf-8-sig")
+        except UnicodeDecodeError as e:
+            raise DocumentError(f"not UTF-8 text (byte {e.object[e.start]:#04x} at offset "
+                                f"{e.start}); this is not a Portcut schematic") from None
+    try:
+        data = json.loads(text, parse_constant=_refuse_constant, object_pairs_hook=_no_repeats)
+    except DocumentError:
+        raise
+    except RecursionError:
+        raise DocumentError("not a Portcut schematic: the JSON is nested too deeply") from None
+    except json.JSONDecodeError as e:
+        raise DocumentError(f"not valid JSON (line {e.lineno}, column {e.colno}: {e.msg}); "
+                            "this is not a Portcut schematic") from None
+    except ValueError:  # the one other refusal of the decoder: an integer of 4,300+ digits
+        raise DocumentError("not a Portcut schematic: it holds a number too long to read") \
+            from None
+    return _read_document(data)
+
+
+def _refuse_constant(name: str) -> None:
+    raise DocumentError(f"not valid JSON: {name} is not a number a schematic can hold")
+
+
+def _no_repeats(pairs: list[tuple[str, Any]]) -> Data:
+    out: Data = {}
+    for key, value in pairs:
+        if key in out:
+            raise DocumentError(f"the field {key!r} appears twice in one JSON object")
+        out[key] = value
+    return out
+
+
+def _read_document(data: Any) -> Document:
+    if not isinstance(data, dict):
+        raise DocumentError(f"the file holds a JSON {_json_type(data)}, not a Portcut schematic")
+    for key in ("format", "version"):
+        if key not in data:
+            raise DocumentError(f"{key}: missing; this is not a Portcut schematic")
+    if data["format"] != FORMAT:
+        raise DocumentError(f"format: expected {FORMAT!r}, got {_shown(data['format'])}; "
+                            "this is not a Portcut schematic")
+    version = data["version"]
+    if type(version) is not int or version < 1:
+        raise DocumentError(f"version: expected a whole number from 1 to {VERSION}, "
+                            f"got {_shown(version)}")
+    if version > VERSION:
+        raise DocumentError(f"written by a newer Portcut (version {version}); this program "
+                            f"reads up to version {VERSION}")
+    _fields(data, "", required=("format", "version"),
+            optional=("title", "analysis", "parts", "wires", "junctions", "labels", "blocks",
+                      "regions"))
+    scope = _Scope(Document(_text(data.get("title", "Untitled"), "title")))
+    for path, element in _elements(data, "", 0):
+        scope.add(path, element)
+    for path, region in _each(data, "regions", _region):
+        scope.add(path, region)
+    scope.doc.set_analysis(_analysis(data.get("analysis", {}), "analysis"))
+    return scope.doc
+
+
+class _Scope:
+    """The elements of one level (the sheet, or one block's contents): ids and designators are
+    unique within it, and its Document checks the rest (wires, region members)."""
+
+    def __init__(self, doc: Document) -> None:
+        self.doc = doc
+        self.ids: dict[str, str] = {}
+        self.designators: dict[str, str] = {}
+
+    def add(self, path: str, element: Element) -> None:
+        if element.id in self.ids:
+            raise DocumentError(f"{path}.id: {element.id!r} is already the id of "
+                                f"{self.ids[element.id]}")
+        designator = getattr(element, "designator", None)
+        if designator in self.designators:
+            raise DocumentError(f"{path}.designator: {designator!r} is already the designator "
+                                f"of {self.designators[designator]}")
+        try:
+            self.doc.add(element)
+        except DocumentError as e:
+            raise DocumentError(f"{path}: {e}") from None
+        self.ids[element.id] = path
+        if designator is not None:
+            self.designators[designator] = path
+
+
+def _elements(data: Data, base: str, depth: int) -> Iterator[tuple[str, Element]]:
+    yield from _each(data, "parts", _part, base)
+    yield from _each(data, "wires", _wire, base)
+    yield from _each(data, "junctions", _junction, base)
+    yield from _each(data, "labels", _label, base)
+    yield from _each(data, "blocks", lambda d, p: _block(d, p, depth + 1), base)
+
+
+def _each(data: Data, key: str, read: Callable[[Any, str], Element],
+          base: str = "") -> Iterator[tuple[str, Element]]:
+    path = f"{base}{key}"
+    items = data.get(key, [])
+    if not isinstance(items, list):
+        raise DocumentError(f"{path}: expected a list, got {_shown(items)}")
+    for i, item in enumerate(items):
+        yield f"{path}[{i}]", read(item, f"{path}[{i}]")
+
+
+def _part(data: Any, path: str) -> PlacedPart:
+    d = _fields(data, path, required=("id", "kind", "designator", "at"), defaults=_PART_DEFAULTS)
+    kind = _choice(d["kind"], f"{path}.kind", PART_KINDS)
+    designator = _text(d["designator"], f"{path}.designator")
+    value = _text(d["value"], f"{path}.value")
+    phase = _text(d["phase_deg"], f"{path}.phase_deg")
+    _readable(value, f"{path}.value", f"{designator} value")
+    _readable(phase, f"{path}.phase_deg", f"{designator} phase")
+    couples = _list(d["couples"], f"{path}.couples")
+    return PlacedPart(
+        _text(d["id"], f"{path}.id"), kind, designator, _point(d["at"], f"{path}.at"),
+        _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
+        _bool(d["mirror"], f"{path}.mirror"), value, phase, _text(d["control"], f"{path}.control"),
+        tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)))
+
+
+def _readable(text: str, path: str, what: str) -> None:
+    """Refuse value text the engine cannot read ("" means not given yet, which is allowed)."""
+    if text.strip():
+        try:
+            parse_value(text, what=what)
+        except ValueParseError as e:
+            raise DocumentError(f"{path}: {e}") from None
+
+
+def _wire(data: Any, path: str) -> Wire:
+    d = _fields(data, path, required=("id", "points"))
+    points = _list(d["points"], f"{path}.points")
+    if len(points) < 2:
+        raise DocumentError(f"{path}.points: expected at least two points, got {len(points)}")
+    return Wire(_text(d["id"], f"{path}.id"),
+                tuple(_point(p, f"{path}.points[{i}]") for i, p in enumerate(points)))
+
+
+def _junction(data: Any, path: str) -> Junction:
+    d = _fields(data, path, required=("id", "at"))
+    return Junction(_text(d["id"], f"{path}.id"), _point(d["at"], f"{path}.at"))
+
+
+def _label(data: Any, path: str) -> NetLabel:
+    d = _fields(data, path, required=("id", "name", "at"), defaults=_LABEL_DEFAULTS)
+    return NetLabel(_text(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
+                    _point(d["at"], f"{path}.at"),
+                    _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
+                    _choice(d["style"], f"{path}.style", _LABEL_STYLES))
+
+
+def _region(data: Any, path: str) -> Region:
+    d = _fields(data, path, required=("id", "name", "members"), defaults=_REGION_DEFAULTS)
+    members = _list(d["members"], f"{path}.members")
+    outline = _list(d["outline"], f"{path}.outline")
+    return Region(_text(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
+                  frozenset(_text(m, f"{path}.members[{i}]") for i, m in enumerate(members)),
+                  tuple(_outline_point(p, f"{path}.outline[{i}]") for i, p in enumerate(outline)),
+                  _bool(d["swap"], f"{path}.swap"))
+
+
+def _block(data: Any, path: str, depth: int) -> Block:
+    if depth > MAX_BLOCK_NESTING:
+        raise DocumentError(f"{path}: collapsed blocks nest more than {MAX_BLOCK_NESTING} deep")
+    d = _fields(data, path, required=("id", "designator", "form", "at", "region", "contents",
+                                      "port"), defaults=_BLOCK_DEFAULTS)
+    contents = _contents(d["contents"], f"{path}.contents.", depth)
+    region = _region(d["region"], f"{path}.region")
+    inside = {e.id for group in (contents.parts, contents.wires, contents.junctions,
+                                 contents.labels, contents.blocks) for e in group}
+    missing = sorted(region.members - inside)
+    if missing:
+        raise DocumentError(f"{path}.region.members: {', '.join(map(repr, missing))} "
+                            "not in the block's contents")
+    port = _fields(d["port"], f"{path}.port", required=("plus", "minus"))
+    sides = tuple(tuple(_point(p, f"{path}.port.{side}[{i}]")
+                        for i, p in enumerate(_list(port[side], f"{path}.port.{side}")))
+                  for side in ("plus", "minus"))
+    stubs = _list(d["stubs"], f"{path}.stubs")
+    return Block(_text(d["id"], f"{path}.id"), _text(d["designator"], f"{path}.designator"),
+                 _choice(d["form"], f"{path}.form", ANALYSIS_FORMS), _point(d["at"], f"{path}.at"),
+                 region, contents, sides,
+                 _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
+                 _bool(d["mirror"], f"{path}.mirror"),
+                 tuple(_text(s, f"{path}.stubs[{i}]") for i, s in enumerate(stubs)))
+
+
+def _contents(data: Any, base: str, depth: int) -> Contents:
+    _fields(data, base.rstrip("."), optional=("parts", "wires", "junctions", "labels", "blocks"))
+    scope = _Scope(Document())
+    groups: dict[type, list[Element]] = {PlacedPart: [], Wire: [], Junction: [], NetLabel: [],
+                                         Block: []}
+    for path, element in _elements(data, base, depth):
+        scope.add(path, element)
+        groups[type(element)].append(element)
+    return Contents(*(tuple(groups[t]) for t in (PlacedPart, Wire, Junction, NetLabel, Block)))
+
+
+def _analysis(data: Any, path: str) -> Analysis:
+    d = _fields(data, path, defaults=_ANALYSIS_DEFAULTS)
+    freq = _text(d["frequency"], f"{path}.frequency")
+    try:
+        parse_frequency(freq)
+    except ValueParseError as e:
+        raise DocumentError(f"{path}.frequency: {e}") from None
+    return Analysis(freq, _choice(d["form"], f"{path}.form", ANALYSIS_FORMS),
+                    _choice(d["basis"], f"{path}.basis", _BASES))
+
+
+# -- field readers: each checks one JSON value and names its path -------------------------------
+def _fields(data: Any, path: str, required: tuple[str, ...] = (),
+            defaults: Data | None = None, optional: tuple[str, ...] = ()) -> Data:
+    """The object ``data`` with its absent optional fields set to ``defaults``; refuses a
+    missing required field and an unknown one."""
+    where = path or "the file"
+    if not isinstance(data, dict):
+        raise DocumentError(f"{where}: expected an object, got {_shown(data)}")
+    for key in required:
+        if key not in data:
+            raise DocumentError(f"{where}: the field {key!r} is missing")
+    known = (*required, *(defaults or {}), *optional)
+    for key in data:
+        if key not in known:
+            raise DocumentError(f"{where}: unknown field {key!r}; expected "
+                                f"{', '.join(map(repr, known))}")
+    return {**(defaults or {}), **data}
+
+
+def _text(value: Any, path: str) -> str:
+    if not isinstance(value, str):
+        raise DocumentError(f"{path}: expected text, got {_shown(value)}")
+    return value
+
+
+def _bool(value: Any, path: str) -> bool:
+    if not isinstance(value, bool):
+        raise DocumentError(f"{path}: expected true or false, got {_shown(value)}")
+    return value
+
+
+def _list(value: Any, path: str) -> list[Any]:
+    if not isinstance(value, list):
+        raise DocumentError(f"{path}: expected a list, got {_shown(value)}")
+    return value
+
+
+def _choice(value: Any, path: str, options: tuple[Any, ...]) -> Any:
+    # type-exact, so that true is not taken for 1 nor 90.0 for 90
+    if not any(type(value) is type(o) and value == o for o in options):
+        raise DocumentError(f"{path}: expected one of {', '.join(map(_shown, options))}, "
+                            f"got {_shown(value)}")
+    return value
+
+
+def _point(value: Any, path: str) -> tuple[int, int]:
+    pair = _list(value, path)
+    if len(pair) != 2 or not all(type(c) is int and abs(c) <= COORD_LIMIT for c in pair):
+        raise DocumentError(f"{path}: expected a grid point [x, y] of whole numbers from "
+                            f"-{COORD_LIMIT} to {COORD_LIMIT}, got {_shown(value)}")
+    return (pair[0], pair[1])
+
+
+def _outline_point(value: Any, path: str) -> tuple[float, float]:
+    pair = _list(value, path)
+    if len(pair) != 2 or not all(type(c) in (int, float) and math.isfinite(c)
+                                 and abs(c) <= COORD_LIMIT for c in pair):
+        raise DocumentError(f"{path}: expected a point [x, y] of numbers from -{COORD_LIMIT} "
+                            f"to {COORD_LIMIT}, got {_shown(value)}")
+    return (pair[0], pair[1])
+
+
+def _json_type(value: Any) -> str:
+    return {dict: "object", list: "list", str: "text", bool: "boolean", int: "number",
+            float: "number", type(None): "null"}.get(type(value), type(value).__name__)
+
+
+def _shown(value: Any) -> str:
+    """A short JSON rendering of a value for a message."""
+    if isinstance(value, int) and not isinstance(value, bool) and abs(value) >= 10**15:
+        return f"a {len(str(abs(value)))}-digit number"
+    try:
+        text = json.dumps(value, ensure_ascii=False)
+    except (TypeError, ValueError):
+        text = repr(value)
+    return text if len(text) <= 40 else text[:37] + "..."
