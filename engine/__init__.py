@@ -4,11 +4,26 @@ No Qt here. Public names:
 
 * :class:`Circuit`, :class:`Part`, :data:`GROUND` — the netlist;
 * :func:`parse_value`, :func:`format_eng` — SI / IEC 60062 values;
+* :func:`equivalent`, :func:`sweep`, :func:`collapse`, :func:`check_equivalence` and their
+  results (:class:`Equivalent`, :class:`Sweep`, :class:`EquivalenceReport`); :func:`check_cut`;
 * errors: :class:`CircuitError` and its subclasses.
 """
 
 from .circuit import GROUND, KINDS, Circuit, Part
+from .equivalent import (
+    EquivalenceReport,
+    Equivalent,
+    Forms,
+    PowerTransfer,
+    Realisation,
+    Sweep,
+    check_equivalence,
+    collapse,
+    equivalent,
+    sweep,
+)
 from .errors import CircuitError, CutError, DocumentError, SingularCircuitError, ValueParseError
+from .topology import check_cut
 from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
 
 __all__ = [
@@ -18,12 +33,23 @@ __all__ = [
     "CircuitError",
     "CutError",
     "DocumentError",
+    "EquivalenceReport",
+    "Equivalent",
+    "Forms",
     "Part",
+    "PowerTransfer",
+    "Realisation",
     "SingularCircuitError",
+    "Sweep",
     "ValueParseError",
+    "check_cut",
+    "check_equivalence",
+    "collapse",
+    "equivalent",
     "format_complex",
     "format_eng",
     "format_phasor",
     "parse_frequency",
     "parse_value",
+    "sweep",
 ]

@@ -1,0 +1,643 @@
+"""Thevenin and Norton equivalents of a two-terminal region: one frequency, sweeps, collapse, and
+the check that a collapsed circuit behaves as the original.
+
+Conventions (shared/design.md, engine/circuit.py): ``voc = V(plus) - V(minus)`` with the port
+open; ``isc`` flows out of plus, through an outside short, into minus; ``z`` is the voltage across
+the port for 1 A driven into plus with the independent sources zeroed (dependent sources kept),
+so ``voc = z * isc`` whenever both forms exist. ``z`` is 0 where there is no Norton form and
+infinite where there is no Thevenin form; a quantity that does not exist is ``nan`` (0/0) or
+infinite. Source phasors are amplitudes (peak values) unless the caller means rms throughout;
+:meth:`Equivalent.max_power` takes the basis. The method is in docs/method.md.
+"""
+
+from __future__ import annotations
+
+import cmath
+import math
+from collections.abc import Collection, Iterable, Sequence
+from dataclasses import dataclass, replace
+from itertools import count
+
+import numpy as np
+
+from . import mna, topology
+from .circuit import GROUND, Circuit, Part
+from .errors import CircuitError, SingularCircuitError
+from .mna import describe_freq
+from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
+
+__all__ = [
+    "DENSE_SWEEP_LIMIT",
+    "EquivalenceReport",
+    "Equivalent",
+    "Forms",
+    "PowerTransfer",
+    "Realisation",
+    "Sweep",
+    "check_equivalence",
+    "collapse",
+    "equivalent",
+    "sweep",
+]
+
+#: Systems of at most this many unknowns are swept as one dense stack solved batched by NumPy;
+#: larger ones are factorized per frequency with SuperLU (crossover measured, docs/method.md).
+DENSE_SWEEP_LIMIT = 90
+#: Bytes of dense matrices per batched solve: small enough to stay in cache (docs/method.md).
+_CHUNK_BYTES = 1 << 20
+_INF = complex(math.inf, 0.0)
+_NAN = complex(math.nan, math.nan)
+
+
+# -- results ------------------------------------------------------------------------------------
+@dataclass(frozen=True, slots=True)
+class Forms:
+    """Formatted text of the three port quantities."""
+
+    voc: str
+    isc: str
+    z: str
+
+
+@dataclass(frozen=True, slots=True)
+class Realisation:
+    """The series circuit with impedance z at ``freq``: ``resistance`` (Ω, may be negative) plus
+    an ``"inductor"`` of ``value`` henries, a ``"capacitor"`` of ``value`` farads, or nothing
+    (``kind`` None, ``value`` None)."""
+
+    resistance: float
+    kind: str | None
+    value: float | None
+    freq: float
+
+
+@dataclass(frozen=True, slots=True)
+class PowerTransfer:
+    """Maximum power transfer into a load across the port.
+
+    ``load``: the conjugate-matched load (Ω) and ``power`` the average power it takes (W);
+    ``resistive_load`` = |z| is the best purely resistive load and ``resistive_power`` its power.
+    All four are None where no finite maximum exists (Re z <= 0 or no Thevenin form), and
+    ``reason`` says why. ``basis``: "peak" (source phasors are amplitudes) or "rms".
+    """
+
+    basis: str
+    load: complex | None
+    power: float | None
+    resistive_load: float | None
+    resistive_power: float | None
+    reason: str | None
+
+
+@dataclass(frozen=True, slots=True)
+class Equivalent:
+    """Thevenin and Norton equivalents of a region at one frequency.
+
+    ``port`` (plus, minus); ``freq`` in Hz (0 = DC); ``voc`` V, ``isc`` A, ``z`` Ω (complex).
+    ``z == 0`` without a Norton form, ``z`` infinite without a Thevenin form; ``voc``/``isc``
+    are infinite or nan where their form does not exist. Phasors are peak values.
+    """
+
+    port: tuple[str, str]
+    freq: float
+    voc: complex
+    isc: complex
+    z: complex
+    has_thevenin: bool
+    has_norton: bool
+
+    def rectangular(self, digits: int = 4) -> Forms:
+        """``voc``, ``isc``, ``z`` as ``a + j b`` with SI prefixes (``"1 kΩ + j 2 kΩ"``)."""
+        return self._forms(format_complex, digits)
+
+    def polar(self, digits: int = 4) -> Forms:
+        """``voc``, ``isc``, ``z`` as magnitude ∠ degrees (``"3.33 V ∠ 0°"``)."""
+        return self._forms(format_phasor, digits)
+
+    def _forms(self, fmt, digits: int) -> Forms:
+        def text(value: complex, unit: str) -> str:
+            return "undefined" if cmath.isnan(value) else fmt(value, unit, digits)
+        return Forms(text(self.voc, "V"), text(self.isc, "A"), text(self.z, "Ω"))
+
+    def summary(self) -> str:
+        """A few lines for a report: port, frequency, both forms (or why one is missing)."""
+        plus, minus = self.port
+        rect, pol = self.rectangular(), self.polar()
+        lines = [f"port {plus} (+) / {minus} (-) at {describe_freq(self.freq)}"]
+        if self.has_thevenin:
+            lines.append(f"Thevenin: voc = {pol.voc}, z = {rect.z}")
+        else:
+            lines.append("Thevenin: none (the impedance is infinite)")
+        if self.has_norton:
+            lines.append(f"Norton: isc = {pol.isc}, z = {rect.z}")
+        else:
+            lines.append("Norton: none (the impedance is zero)")
+        return "\n".join(lines)
+
+    def realisation(self) -> Realisation:
+        """The series R + L or R + C (or pure R) whose impedance is ``z`` at ``freq``.
+
+        Raises CircuitError where z is infinite, or reactive at DC (a fixed complex impedance
+        part), which no R, L or C realises.
+        """
+        if not self.has_thevenin:
+            raise CircuitError("the region has no Thevenin form (infinite impedance), so no "
+                               "series R + L or R + C realises it")
+        r, x = self.z.real, self.z.imag
+        if x == 0:
+            return Realisation(r, None, None, self.freq)
+        if self.freq == 0:
+            raise CircuitError(f"z = {format_complex(self.z, 'Ω')} is reactive at DC (a fixed "
+                               "impedance part), which no inductor or capacitor realises")
+        w = 2 * math.pi * self.freq
+        if x > 0:
+            return Realisation(r, "inductor", x / w, self.freq)
+        return Realisation(r, "capacitor", -1 / (w * x), self.freq)
+
+    def max_power(self, basis: str = "peak") -> PowerTransfer:
+        """Power into a conjugate-matched load: |voc|^2 / (8 Re z) for peak phasors, / (4 Re z)
+        for rms ones; and into the best resistive load |z|."""
+        if basis not in ("peak", "rms"):
+            raise CircuitError(f"basis must be 'peak' or 'rms', not {basis!r}")
+        reason = _no_maximum(self)
+        if reason:
+            return PowerTransfer(basis, None, None, None, None, reason)
+        share = 0.5 if basis == "peak" else 1.0
+        v2 = abs(self.voc) ** 2
+        r_best = abs(self.z)
+        return PowerTransfer(basis, self.z.conjugate(), share * v2 / (4 * self.z.real), r_best,
+                             share * v2 * r_best / abs(self.z + r_best) ** 2, None)
+
+
+def _no_maximum(eq: Equivalent) -> str | None:
+    if not eq.has_thevenin:
+        return ("no finite maximum: the region has no Thevenin form (infinite impedance), so a "
+                "larger load always takes more power")
+    if eq.z == 0:
+        return ("no finite maximum: the impedance is zero (an ideal voltage source), so a "
+                "smaller load always takes more power")
+    if eq.z.real < 0:
+        return (f"no finite maximum: Re z = {format_eng(eq.z.real, 'Ω')} is negative, the region "
+                "is active and can deliver unbounded power")
+    if eq.z.real == 0:
+        return ("no finite maximum: z is purely reactive, so the conjugate load cancels it and "
+                "the current is unbounded")
+    return None
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class Sweep:
+    """Equivalents over frequency: read-only arrays, one entry per point of ``freqs`` (Hz)."""
+
+    port: tuple[str, str]
+    freqs: np.ndarray
+    voc: np.ndarray
+    isc: np.ndarray
+    z: np.ndarray
+    has_thevenin: np.ndarray
+    has_norton: np.ndarray
+
+    def __len__(self) -> int:
+        return len(self.freqs)
+
+    def __getitem__(self, i: int) -> Equivalent:
+        return Equivalent(self.port, float(self.freqs[i]), complex(self.voc[i]),
+                          complex(self.isc[i]), complex(self.z[i]), bool(self.has_thevenin[i]),
+                          bool(self.has_norton[i]))
+
+
+@dataclass(frozen=True, slots=True)
+class EquivalenceReport:
+    """Largest deviation between an original and a reduced circuit, over the loads tried.
+
+    ``voltage_abs`` (V): the largest |ΔV| of a net outside the region, ``worst_net`` that net;
+    ``current_abs`` (A): the largest |ΔI| of the port current (into the region at plus).
+    The relative figures divide by the largest magnitude of the same quantity in either circuit
+    over all cases (0 when everything is exactly 0). ``cases`` describes the loads tried,
+    ``worst_case`` the one with the largest relative deviation.
+    """
+
+    port: tuple[str, str]
+    freq: float
+    cases: tuple[str, ...]
+    voltage_abs: float
+    voltage_rel: float
+    current_abs: float
+    current_rel: float
+    worst_net: str | None
+    worst_case: str
+
+    def within(self, rtol: float) -> bool:
+        """True when both relative deviations are at most ``rtol``."""
+        return self.voltage_rel <= rtol and self.current_rel <= rtol
+
+
+# -- the port problem ---------------------------------------------------------------------------
+class _Values:
+    """Port quantities at F frequencies, filled in as they are decided."""
+
+    def __init__(self, size: int) -> None:
+        self.voc = np.full(size, _NAN)
+        self.isc = np.full(size, _NAN)
+        self.z = np.full(size, _NAN)
+        self.thevenin = np.zeros(size, dtype=bool)
+        self.norton = np.zeros(size, dtype=bool)
+
+    def put(self, where: np.ndarray, voc: np.ndarray, isc: np.ndarray, z: np.ndarray,
+            thevenin: bool, norton: bool) -> None:
+        self.voc[where], self.isc[where], self.z[where] = voc, isc, z
+        self.thevenin[where], self.norton[where] = thevenin, norton
+
+    def take(self, where: np.ndarray, other: _Values) -> None:
+        for name in ("voc", "isc", "z", "thevenin", "norton"):
+            getattr(self, name)[where] = getattr(other, name)
+
+
+def _undefined_ratio(numerator: np.ndarray) -> np.ndarray:
+    """What ``numerator / 0`` means for a port quantity: infinite, or nan where 0/0."""
+    return np.where(numerator == 0, _NAN, _INF)
+
+
+class _Port:
+    """One region's port problem at one frequency class (DC, or any non-zero frequency).
+
+    The open-port system (the region alone, port minus as reference) is assembled once; the
+    shorted-port system only when the open one cannot decide.
+    """
+
+    def __init__(self, netlist: mna.Netlist, port: tuple[str, str], dc: bool) -> None:
+        self.netlist, self.port, self.dc = netlist, port, dc
+        plus, minus = port
+        found = topology.islands(netlist, dc, (minus,))
+        found.raise_problems(skip=found.island(plus))
+        topology.check_voltage_loops(netlist, dc)
+        self.open = mna.assemble(netlist, found.pinned) if found.joined(plus) else None
+        self._shorted: mna.System | None = None
+
+    def shorted(self) -> mna.System:
+        if self._shorted is None:
+            ids = (self.netlist.index[self.port[0]], self.netlist.index[self.port[1]])
+            found = topology.islands(self.netlist, self.dc, (self.port[1],), short=ids)
+            found.raise_problems()
+            topology.check_voltage_loops(self.netlist, self.dc, short=ids)
+            self._shorted = mna.assemble(self.netlist, found.pinned, short=ids)
+        return self._shorted
+
+    def values(self, freqs: np.ndarray) -> _Values:
+        """Decide voc, isc, z at every frequency (all zero or all non-zero)."""
+        out = _Values(freqs.size)
+        z_lo, z_hi = self.netlist.impedance_range(freqs)
+        todo = np.ones(freqs.size, dtype=bool)
+        failure: SingularCircuitError | None = None
+        if self.open is not None:
+            k = int(self.open.unknown_of_net[self.netlist.index[self.port[0]]])
+            rhs = self.open.rhs(self.port[0])
+            solved = _solve(self.open, freqs, rhs, k)
+            failure = solved.failure
+            voc, z = solved.x[:, 0], solved.x[:, 1]
+            resolved = solved.ok & (np.abs(z) > solved.bound)
+            # z unresolved from 0 while the bound is within the parts' impedances: z = 0
+            zero = solved.ok & ~resolved & (solved.bound <= z_hi)
+            with np.errstate(all="ignore"):
+                out.put(resolved, voc[resolved], voc[resolved] / z[resolved], z[resolved],
+                        True, True)
+            out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False)
+            todo = ~(resolved | zero)
+        if todo.any():
+            self._from_short(freqs, todo, z_lo, out, failure)
+        return out
+
+    def _from_short(self, freqs: np.ndarray, todo: np.ndarray, z_lo: np.ndarray, out: _Values,
+                    failure: SingularCircuitError | None) -> None:
+        try:
+            system = self.shorted()
+            solved = _solve(system, freqs[todo], system.rhs(None), system.short)
+        except SingularCircuitError as exc:
+            raise self._neither(failure, exc) from None
+        if not solved.ok.all():
+            raise self._neither(failure, solved.failure)
+        isc, y = solved.x[:, 0], -solved.x[:, 1]
+        with np.errstate(divide="ignore"):
+            y_hi = 1 / z_lo[todo]
+        resolved = np.abs(y) > solved.bound
+        open_port = ~resolved & (solved.bound <= y_hi)
+        if not (resolved | open_port).all():
+            f = freqs[todo][~(resolved | open_port)][0]
+            raise SingularCircuitError(
+                f"the port impedance cannot be resolved at {describe_freq(f)}: both the "
+                "open-port and the shorted-port equations are numerically singular (part values "
+                "spanning more than the precision of double arithmetic)")
+        index = np.flatnonzero(todo)
+        with np.errstate(all="ignore"):
+            z = 1 / y[resolved]
+            out.put(index[resolved], isc[resolved] * z, isc[resolved], z, True, True)
+        out.put(index[open_port], _undefined_ratio(isc[open_port]), isc[open_port], _INF,
+                False, True)
+
+    def _neither(self, failure: SingularCircuitError | None,
+                 short_failure: SingularCircuitError | None) -> SingularCircuitError:
+        plus, minus = self.port
+        detail = failure or short_failure
+        return SingularCircuitError(
+            f"the region has neither a Thevenin nor a Norton form at port ({plus}, {minus}): "
+            f"{detail}" if detail else "the region's equations are singular")
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class _Solved:
+    """Two solutions at F frequencies, read at one unknown: ``x[:, 0]`` for the sources,
+    ``x[:, 1]`` for the unit excitation; ``bound`` is the error bound on ``x[:, 1]``."""
+
+    x: np.ndarray
+    bound: np.ndarray
+    ok: np.ndarray
+    failure: SingularCircuitError | None
+
+
+def _solve(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int) -> _Solved:
+    if freqs.size > 1 and system.size <= DENSE_SWEEP_LIMIT and freqs[0] != 0:
+        return _solve_dense(system, freqs, rhs, k)
+    return _solve_sparse(system, freqs, rhs, k)
+
+
+def _solve_sparse(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int) -> _Solved:
+    """One SuperLU factorization per frequency, solving both right-hand sides."""
+    x = np.full((freqs.size, 2), _NAN)
+    bound = np.full(freqs.size, math.inf)
+    ok = np.zeros(freqs.size, dtype=bool)
+    failure = None
+    both = np.column_stack((system.b, rhs))
+    for i, f in enumerate(freqs.tolist()):
+        try:
+            factor = mna.Factor(system, f)
+            sol = factor.solve(both)
+            adjoint = sol[:, 1] if system.symmetric else factor.solve(rhs, transposed=True)
+        except SingularCircuitError as exc:
+            failure = exc
+            continue
+        x[i] = sol[k]
+        bound[i] = factor.error_bound(sol[:, 1], rhs, adjoint)
+        ok[i] = True
+    return _Solved(x, bound, ok, failure)
+
+
+def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int) -> _Solved:
+    """All frequencies as dense stacks solved batched by NumPy, a cache-sized chunk per call."""
+    n = system.size
+    g, m = system.parts()
+    m = m.tocoo()
+    dense_g = g.toarray()
+    both = np.column_stack((system.b, rhs)).astype(complex)
+    s = 2j * np.pi * freqs
+    x = np.empty((freqs.size, n, 2), dtype=complex)
+    adjoint = None if system.symmetric else np.empty((freqs.size, n), dtype=complex)
+    ok = np.ones(freqs.size, dtype=bool)
+    step = max(1, _CHUNK_BYTES // (16 * n * n))
+    for start in range(0, freqs.size, step):
+        part = slice(start, start + step)
+        stack = np.empty((s[part].size, n, n), dtype=complex)
+        stack[:] = dense_g
+        stack[:, m.row, m.col] += s[part, None] * m.data
+        try:
+            with np.errstate(all="ignore"):
+                x[part] = np.linalg.solve(stack, both)
+                if adjoint is not None:
+                    adjoint[part] = np.linalg.solve(stack.transpose(0, 2, 1), rhs)
+        except np.linalg.LinAlgError:
+            ok[part] = False
+    ok &= np.isfinite(x).all(axis=(1, 2))
+    if adjoint is not None:
+        ok &= np.isfinite(adjoint).all(axis=1)
+    unit = x[:, :, 1]
+    with np.errstate(all="ignore"):
+        gx, mx = (g @ unit.T).T, (m @ unit.T).T
+        residual = rhs - gx - s[:, None] * mx
+        abs_ax = (abs(g) @ np.abs(unit).T).T + np.abs(s)[:, None] * (abs(m) @ np.abs(unit).T).T
+    gamma = mna.rounding((g + m).tocsc())
+    bound = mna.bound(unit if adjoint is None else adjoint, residual, abs_ax, rhs, gamma)
+    solved = _Solved(x[:, k, :], np.where(ok, bound, math.inf), ok, None)
+    if ok.all():
+        return solved
+    # A chunk with a singular matrix: those frequencies again, one factorization each
+    redo = _solve_sparse(system, freqs[~ok], rhs, k)
+    solved.x[~ok], solved.bound[~ok], solved.ok[~ok] = redo.x, redo.bound, redo.ok
+    return _Solved(solved.x, solved.bound, solved.ok, redo.failure)
+
+
+# -- public functions ---------------------------------------------------------------------------
+def equivalent(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = None,
+               freq: float | str = 0.0) -> Equivalent:
+    """Thevenin and Norton equivalents of ``region`` seen at ``port`` (plus, minus) at ``freq`` Hz.
+
+    ``region``: names of the parts inside the boundary; ``port`` may be omitted where the
+    region meets the rest at exactly two nets (see :func:`engine.topology.check_cut`).
+    ``freq``: hertz, 0 for DC (capacitors open, inductors shorts); text such as "1k" is read.
+    Source phasors are peak values. Raises CutError for an invalid cut, SingularCircuitError
+    where the region has no unique solution, CircuitError for other bad input.
+    """
+    f = parse_frequency(freq)
+    cut = topology.cut(circuit, region, port)
+    return _equivalent_of(cut, f)
+
+
+def _equivalent_of(cut: topology.Cut, f: float) -> Equivalent:
+    values = _Port(cut.netlist, cut.port, f == 0).values(np.array([f]))
+    return Equivalent(cut.port, f, complex(values.voc[0]), complex(values.isc[0]),
+                      complex(values.z[0]), bool(values.thevenin[0]), bool(values.norton[0]))
+
+
+def sweep(circuit: Circuit, region: Collection[str], freqs: Iterable[float],
+          port: Sequence[str] | None = None) -> Sweep:
+    """Equivalents of ``region`` at every frequency of ``freqs`` (Hz, each >= 0).
+
+    The region is checked and assembled once (DC points separately, since capacitors and
+    inductors change role there). Small systems are solved as one batched dense stack, large
+    ones with one sparse factorization per frequency; see docs/method.md.
+    """
+    f = _frequencies(freqs)
+    cut = topology.cut(circuit, region, port)
+    out = _Values(f.size)
+    for dc in (True, False):
+        where = (f == 0) if dc else (f > 0)
+        if where.any():
+            out.take(where, _Port(cut.netlist, cut.port, dc).values(f[where]))
+    arrays = (f, out.voc, out.isc, out.z, out.thevenin, out.norton)
+    for a in arrays:
+        a.flags.writeable = False
+    return Sweep(cut.port, *arrays)
+
+
+def _frequencies(freqs: Iterable[float]) -> np.ndarray:
+    try:
+        raw = np.asarray(list(freqs) if not isinstance(freqs, np.ndarray) else freqs)
+    except TypeError:
+        raise CircuitError(f"freqs must be a sequence of frequencies in Hz, not {freqs!r}") \
+            from None
+    if raw.ndim != 1 or raw.size == 0:
+        raise CircuitError("freqs must be a non-empty one-dimensional sequence of frequencies "
+                           "in Hz")
+    if raw.dtype.kind in "iuf":
+        f = raw.astype(float)
+        bad = ~np.isfinite(f) | (f < 0)
+        if bad.any():
+            raise CircuitError(f"frequency {f[bad][0]!r} Hz must be finite and 0 or more")
+        return f.copy()
+    return np.array([parse_frequency(v) for v in raw.tolist()], dtype=float)
+
+
+def collapse(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = None,
+             freq: float | str = 0.0, form: str = "thevenin") -> Circuit:
+    """A new circuit with the region replaced by its equivalent at ``freq``.
+
+    ``form="thevenin"``: a voltage source ``<P>_V`` (plus to net ``<P>_n``, value voc) in series
+    with the impedance ``<P>_Z`` (``<P>_n`` to minus), or the source alone where z = 0.
+    ``form="norton"``: a current source ``<P>_I`` pushing isc into plus, with ``<P>_Z`` across
+    the port (omitted where z is infinite). ``<P>_Z`` is a resistor where z is real, else an
+    impedance part of complex value z (valid at ``freq`` only). ``<P>`` is ``EQ``, or ``EQ2``,
+    ``EQ3``... : the first prefix with which no part or net name of the circuit begins.
+    Raises CircuitError where the requested form does not exist, suggesting the other.
+    """
+    if form not in ("thevenin", "norton"):
+        raise CircuitError(f"form must be 'thevenin' or 'norton', not {form!r}")
+    f = parse_frequency(freq)
+    cut = topology.cut(circuit, region, port)
+    eq = _equivalent_of(cut, f)
+    plus, minus = eq.port
+    if form == "thevenin" and not eq.has_thevenin:
+        raise CircuitError(f"the region has no Thevenin form at {describe_freq(f)}: its impedance "
+                           "is infinite (e.g. an ideal current source at the port); use "
+                           "form='norton'")
+    if form == "norton" and not eq.has_norton:
+        raise CircuitError(f"the region has no Norton form at {describe_freq(f)}: its impedance "
+                           "is zero (e.g. an ideal voltage source across the port); use "
+                           "form='thevenin'")
+    inside = {p.name for p in cut.parts}
+    reduced = Circuit(p for p in circuit if p.name not in inside)
+    stem = _free_prefix(circuit)
+    if form == "thevenin":
+        if eq.z == 0:
+            reduced.voltage_source(f"{stem}V", plus, minus, eq.voc)
+        else:
+            reduced.voltage_source(f"{stem}V", plus, f"{stem}n", eq.voc)
+            _add_impedance(reduced, f"{stem}Z", f"{stem}n", minus, eq.z)
+    else:
+        reduced.current_source(f"{stem}I", minus, plus, eq.isc)
+        if not cmath.isinf(eq.z):
+            _add_impedance(reduced, f"{stem}Z", plus, minus, eq.z)
+    return reduced
+
+
+def _free_prefix(circuit: Circuit) -> str:
+    taken = set(circuit.names) | circuit.nets()
+    for i in count(1):
+        stem = "EQ_" if i == 1 else f"EQ{i}_"
+        if not any(name.startswith(stem) for name in taken):
+            return stem
+    raise AssertionError("unreachable")
+
+
+def _add_impedance(c: Circuit, name: str, a: str, b: str, z: complex) -> None:
+    if z.imag == 0:
+        c.resistor(name, a, b, z.real)
+    else:
+        c.impedance(name, a, b, z)
+
+
+def check_equivalence(original: Circuit, reduced: Circuit, region: Collection[str], *,
+                      port: Sequence[str] | None = None, freq: float | str = 0.0,
+                      loads: Iterable[object] = ()) -> EquivalenceReport:
+    """Compare ``reduced`` (the region of ``original`` replaced) with ``original`` from outside.
+
+    ``region`` and ``port`` are those of ``original``; the parts of ``reduced`` that are not
+    unchanged outside parts of ``original`` are taken as the replacement. Both circuits are
+    solved whole at ``freq`` for the outside as drawn and, for each of ``loads`` (ohms: a number,
+    complex, or text such as "4k7"; 0 is a short), with that load added across the port. Every
+    net voltage outside the region (against ground, or for an island without ground against
+    its first port or outside net) and the port current are compared.
+    Raises CircuitError where ``reduced`` lacks or alters an outside part.
+    """
+    f = parse_frequency(freq)
+    cut = topology.cut(original, region, port)
+    inside = {p.name for p in cut.parts}
+    outside = [p for p in original if p.name not in inside]
+    for p in outside:
+        if p.name not in reduced or reduced[p.name] != p:
+            raise CircuitError(f"the reduced circuit {'changes' if p.name in reduced else 'lacks'}"
+                               f" {p.name}, which lies outside the region; keep the outside as "
+                               "it is")
+    kept = {p.name for p in outside}
+    replacement = [p for p in reduced if p.name not in kept]
+    plus, minus = cut.port
+    nets = sorted({n for p in outside for n in p.nets} | {plus, minus})
+    anchors = (GROUND, minus, plus, *nets)
+    taken = original.nets() | reduced.nets() | set(original.names) | set(reduced.names)
+    probe = _Probe(_unused("port probe", taken), _unused("port probe net", taken),
+                   plus if plus != GROUND else minus, 1.0 if plus != GROUND else -1.0)
+    cases: list[tuple[str, list[Part]]] = [("as drawn", [])]
+    for load in loads:
+        value = parse_value(load, what="load")
+        text = format_complex(value, "Ω") if value != 0 else "a short"
+        part = Part(_unused("port load", taken), "impedance" if isinstance(value, complex)
+                    else "resistor", (plus, minus), value)
+        cases.append((f"{text} across the port", [part]))
+    worst_v = worst_i = scale_v = scale_i = 0.0
+    worst_net, worst_case, worst_rel = None, cases[0][0], -1.0
+    for label, extra in cases:
+        (v0, i0), (v1, i1) = (_outside_solution([*outside, *extra], inner, probe, f, anchors, nets)
+                              for inner in (list(cut.parts), replacement))
+        dv, di = np.abs(v0 - v1), abs(i0 - i1)
+        peak_v = max(float(np.abs(v0).max(initial=0)), float(np.abs(v1).max(initial=0)))
+        scale_v, scale_i = max(scale_v, peak_v), max(scale_i, abs(i0), abs(i1))
+        case_rel = max(_ratio(float(dv.max(initial=0)), peak_v),
+                       _ratio(di, max(abs(i0), abs(i1))))
+        if case_rel > worst_rel:
+            worst_rel, worst_case = case_rel, label
+        if dv.size and dv.max() > worst_v:
+            worst_v, worst_net = float(dv.max()), nets[int(dv.argmax())]
+        worst_i = max(worst_i, di)
+    return EquivalenceReport(cut.port, f, tuple(label for label, _ in cases), worst_v,
+                             _ratio(worst_v, scale_v), worst_i, _ratio(worst_i, scale_i),
+                             worst_net, worst_case)
+
+
+def _ratio(deviation: float, scale: float) -> float:
+    if deviation == 0:
+        return 0.0
+    return deviation / scale if scale > 0 else math.inf
+
+
+def _unused(base: str, taken: set[str]) -> str:
+    name = base
+    while name in taken:
+        name += "'"
+    taken.add(name)
+    return name
+
+
+@dataclass(frozen=True, slots=True)
+class _Probe:
+    """A 0 Ω wire from port net ``net`` (outside side) to ``side`` (the region's side), whose
+    current times ``sign`` is the port current into the region at plus."""
+
+    name: str
+    side: str
+    net: str
+    sign: float
+
+
+def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: float,
+                      anchors: Sequence[str], nets: list[str]) -> tuple[np.ndarray, complex]:
+    """Voltages of ``nets`` and the port current, with ``inner`` fed through the probe."""
+    moved = [replace(p, nodes=tuple(probe.side if n == probe.net else n for n in p.nodes))
+             for p in inner]
+    wire = Part(probe.name, "resistor", (probe.net, probe.side), 0.0)
+    netlist = mna.Netlist([*outside, wire, *moved])
+    dc = f == 0
+    found = topology.islands(netlist, dc, anchors)
+    found.raise_problems()
+    topology.check_voltage_loops(netlist, dc)
+    system = mna.assemble(netlist, found.pinned)
+    x = mna.Factor(system, f).solve(system.b)
+    ids = system.unknown_of_net[[netlist.index[n] for n in nets]]
+    volts = np.where(ids >= 0, x[np.maximum(ids, 0)], 0)
+    return volts, probe.sign * complex(x[system.branch_of[probe.name]])

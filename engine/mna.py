@@ -1,0 +1,546 @@
+"""Sparse complex Modified Nodal Analysis: ``A(s) x = b`` with ``s = j 2 pi f``.
+
+The matrix is assembled once as ``A(s) = G + s M`` (SciPy sparse, COO triplets -> CSC), so one
+assembly serves every frequency of a sweep, and factorized once per frequency (SuperLU) to solve
+several right-hand sides.
+
+Unknowns, in this order:
+
+* the voltage of every net except the *pinned* ones (one reference net per galvanically separate
+  island, chosen by the caller from :func:`engine.topology.islands`);
+* one branch current per group-2 part: voltage sources, VCVS, CCVS, inductors, 0 Ω wires
+  (a 0 V branch, so an ideal wire costs no conditioning), the output current of every op-amp
+  (a nullor: its row holds V(inp) - V(inn) = 0, its current is free, injected at ``out`` and
+  returned through ground), an optional port short, and any part whose current controls a CCVS or
+  CCCS (so that I(control) is an unknown whatever the controlling part is).
+
+Sign conventions (those of :mod:`engine.circuit`): a branch current flows from the part's first
+node to its second node inside the part; row *i* of a net states that the currents leaving the net
+through its parts sum to the current injected into it (the right-hand side); a current source
+``(n_from, n_to)`` carries its value from ``n_from`` through itself into ``n_to``. Inductor rows
+read ``V(a) - V(b) - s L I - s M I' = 0`` with ``M = k sqrt(L1 L2)`` for a coupled partner, so at
+DC an inductor is a short; a capacitor stamps ``s C`` and is open at DC.
+
+A matrix that cannot be factorized, or a solution that is not finite, raises :class:`Singular`
+(a :class:`~engine.errors.SingularCircuitError`) naming the likely culprits; no NumPy or SciPy
+exception or warning leaves this module.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from itertools import chain
+from operator import attrgetter
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.csgraph import maximum_bipartite_matching
+from scipy.sparse.linalg import splu
+
+from .circuit import KINDS, Part
+from .errors import SingularCircuitError
+from .units import format_eng
+
+__all__ = [
+    "EPS", "Factor", "Group", "Netlist", "Singular", "System", "assemble", "bound",
+    "describe_freq", "rounding",
+]
+
+EPS = float(np.finfo(float).eps)
+#: Column ordering handed to SuperLU: minimum degree on the pattern of A + A^T suits MNA, whose
+#: pattern is symmetric but for the few controlled-source entries (about half the fill of COLAMD
+#: on an RC mesh; see docs/performance.md).
+ORDERING = "MMD_AT_PLUS_A"
+
+_NODES = attrgetter("nodes")
+_VALUE = attrgetter("value")
+_NAME = attrgetter("name")
+_CONTROLLED = ("ccvs", "cccs")
+#: Parts that become group-2 (branch current unknown) only when they control a CCVS or CCCS.
+_BRANCH_IF_CONTROLLER = ("resistor", "capacitor", "impedance", "current_source", "vccs", "cccs")
+
+
+def describe_freq(freq: float) -> str:
+    """``"DC"`` or the frequency in engineering notation (``"1 kHz"``), for messages."""
+    return "DC" if freq == 0 else format_eng(freq, "Hz")
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class Group:
+    """The parts of one kind: ``nodes[i]`` are part i's net ids (``Part.nets`` order)."""
+
+    names: list[str]
+    nodes: np.ndarray
+    values: np.ndarray
+    refs: list[tuple[str, ...]]
+
+    def __len__(self) -> int:
+        return len(self.names)
+
+
+_EMPTY = Group([], np.zeros((0, 4), dtype=np.intp), np.zeros(0), [])
+
+
+class Netlist:
+    """A set of parts as index arrays, one :class:`Group` per kind.
+
+    ``nets[i]`` is the name of net id ``i`` (numbered in order of first use, kind by kind);
+    ``index`` maps a name back. Couplings are kept with their inductor names in ``refs``.
+    """
+
+    __slots__ = ("controllers", "groups", "index", "nets", "parts")
+
+    def __init__(self, parts: Sequence[Part]) -> None:
+        by_kind: dict[str, list[Part]] = {kind: [] for kind in KINDS}
+        for part in parts:
+            by_kind[part.kind].append(part)
+        flat: dict[str, list[str]] = {}
+        seen: dict[str, None] = {}
+        for kind, members in by_kind.items():
+            if not members or kind == "coupling":
+                continue
+            names = (list(chain.from_iterable(p.nets for p in members)) if kind == "opamp"
+                     else list(chain.from_iterable(map(_NODES, members))))
+            seen.update(dict.fromkeys(names))
+            flat[kind] = names
+        self.parts = parts
+        self.nets: list[str] = list(seen)
+        self.index: dict[str, int] = {name: i for i, name in enumerate(self.nets)}
+        self.groups: dict[str, Group] = {}
+        lookup = self.index.__getitem__
+        for kind, members in by_kind.items():
+            if not members:
+                continue
+            names = flat.get(kind, [])
+            ids = np.fromiter(map(lookup, names), dtype=np.intp, count=len(names))
+            refs = [p.refs for p in members] if kind in (*_CONTROLLED, "coupling") else []
+            self.groups[kind] = Group(list(map(_NAME, members)),
+                                      ids.reshape(len(members), -1),
+                                      np.array(list(map(_VALUE, members))), refs)
+        self.controllers: set[str] = {r[0] for kind in _CONTROLLED for r in self[kind].refs}
+
+    def __getitem__(self, kind: str) -> Group:
+        return self.groups.get(kind, _EMPTY)
+
+    @property
+    def has_dependent(self) -> bool:
+        """True when a controlled source or op-amp makes the system non-reciprocal."""
+        return any(kind in self.groups for kind in ("vcvs", "vccs", "ccvs", "cccs", "opamp"))
+
+    def is_branch(self, kind: str) -> np.ndarray:
+        """Mask of the parts of ``kind`` that carry a branch-current unknown."""
+        group = self[kind]
+        mask = np.zeros(len(group), dtype=bool)
+        if kind == "resistor":
+            mask |= group.values == 0
+        if self.controllers and kind in _BRANCH_IF_CONTROLLER:
+            mask |= np.fromiter((n in self.controllers for n in group.names), bool, len(group))
+        return mask
+
+    def impedance_range(self, freqs: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Smallest and largest non-zero impedance magnitude (ohms) of the parts at each freq.
+
+        Counted: resistors, fixed impedances, capacitors and inductors (not at DC), CCVS
+        transresistances and the inverse of VCCS transconductances; (0, inf) where none.
+        """
+        w = 2 * np.pi * np.asarray(freqs, dtype=float)
+        with np.errstate(divide="ignore"):
+            fixed = _span(np.abs(self["resistor"].values), np.abs(self["impedance"].values),
+                          np.abs(self["ccvs"].values), 1 / np.abs(self["vccs"].values))
+            per_farad = _span(1 / np.abs(self["capacitor"].values))    # times 1/w
+            per_henry = _span(np.abs(self["inductor"].values))         # times w
+            ac = w > 0
+            lo = np.full(w.shape, fixed[0])
+            hi = np.full(w.shape, fixed[1])
+            for (a, b), scale in ((per_farad, 1 / w[ac]), (per_henry, w[ac])):
+                if a <= b:
+                    lo[ac] = np.minimum(lo[ac], a * scale)
+                    hi[ac] = np.maximum(hi[ac], b * scale)
+        lo[~np.isfinite(lo)] = 0.0
+        hi[hi <= 0] = np.inf
+        return lo, hi
+
+
+def _span(*arrays: np.ndarray) -> tuple[float, float]:
+    """(min, max) of the finite non-zero values, or (inf, 0) where there are none."""
+    values = np.concatenate(arrays)
+    values = values[(values > 0) & np.isfinite(values)]
+    if values.size == 0:
+        return math.inf, 0.0
+    return float(values.min()), float(values.max())
+
+
+class _Triplets:
+    """COO entries collected kind by kind, concatenated once."""
+
+    def __init__(self) -> None:
+        self.rows: list[np.ndarray] = []
+        self.cols: list[np.ndarray] = []
+        self.vals: list[np.ndarray] = []
+
+    def add(self, rows: Iterable[np.ndarray], cols: Iterable[np.ndarray],
+            vals: Iterable[np.ndarray | complex]) -> None:
+        rows, cols = list(rows), list(cols)
+        for r, c, v in zip(rows, cols, vals, strict=True):
+            self.rows.append(r)
+            self.cols.append(c)
+            self.vals.append(np.broadcast_to(v, r.shape))
+
+    def admittance(self, a: np.ndarray, b: np.ndarray, y: np.ndarray) -> None:
+        self.add((a, b, a, b), (a, b, b, a), (y, y, -y, -y))
+
+    def incidence(self, k: np.ndarray, a: np.ndarray, b: np.ndarray) -> None:
+        """Branch current k leaves net a and enters net b."""
+        self.add((a, b), (k, k), (1.0, -1.0))
+
+    def voltage_row(self, k: np.ndarray, a: np.ndarray, b: np.ndarray,
+                    scale: np.ndarray | float = 1.0) -> None:
+        """``scale * (V(a) - V(b))`` in row k."""
+        self.add((k, k), (a, b), (scale, -scale))
+
+    def arrays(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        if not self.rows:
+            empty = np.zeros(0, dtype=np.intp)
+            return empty, empty, np.zeros(0)
+        rows, cols = np.concatenate(self.rows), np.concatenate(self.cols)
+        vals = np.concatenate(self.vals)
+        keep = (rows >= 0) & (cols >= 0)  # entries of pinned nets drop out
+        return rows[keep], cols[keep], vals[keep]
+
+
+class System:
+    """The assembled equations of a netlist: ``A(s) = G + s M`` and the sources' ``b``.
+
+    ``unknown_of_net[i]`` is the unknown index of net id i (-1 when pinned); ``branch_of`` maps a
+    group-2 part name to its branch unknown; ``short`` is the port short's branch, if any.
+    ``symmetric`` is True when A is complex symmetric (no controlled source, no op-amp), so
+    transposed solves equal plain ones.
+    """
+
+    def __init__(self, netlist: Netlist, unknown_of_net: np.ndarray, n_nodes: int,
+                 branch_of: dict[str, int], short: int | None,
+                 g: tuple[np.ndarray, np.ndarray, np.ndarray],
+                 m: tuple[np.ndarray, np.ndarray, np.ndarray], b: np.ndarray) -> None:
+        self.netlist = netlist
+        self.unknown_of_net = unknown_of_net
+        self.n_nodes = n_nodes
+        self.branch_of = branch_of
+        self.short = short
+        self.size = b.shape[0]
+        self.b = b
+        self._g, self._m = g, m
+        self._rows = np.concatenate((g[0], m[0]))
+        self._cols = np.concatenate((g[1], m[1]))
+        self.symmetric = not netlist.has_dependent
+
+    def matrix(self, freq: float) -> sp.csc_matrix:
+        """A(j 2 pi freq) in CSC form (real when every entry is real, e.g. at DC)."""
+        n = self.size
+        if freq == 0 or self._m[2].size == 0:
+            rows, cols, vals = self._g
+        else:
+            s = 2j * math.pi * freq
+            rows, cols = self._rows, self._cols
+            vals = np.concatenate((self._g[2], s * self._m[2]))
+        if np.iscomplexobj(vals) or np.iscomplexobj(self.b):
+            vals = vals.astype(complex, copy=False)
+        return sp.csc_matrix((vals, (rows, cols)), shape=(n, n))
+
+    def parts(self) -> tuple[sp.csr_matrix, sp.csr_matrix]:
+        """G and M separately (CSR, duplicates summed), for batched sweeps."""
+        n = self.size
+        g = sp.csr_matrix((self._g[2].astype(complex), self._g[:2]), shape=(n, n))
+        m = sp.csr_matrix((self._m[2].astype(complex), self._m[:2]), shape=(n, n))
+        return g, m
+
+    def rhs(self, net: str | None = None) -> np.ndarray:
+        """A unit current into ``net`` (sources zeroed); ``None``: the port short at 1 V."""
+        e = np.zeros(self.size)
+        if net is None:
+            e[self.short] = 1.0
+        else:
+            k = self.unknown_of_net[self.netlist.index[net]]
+            if k >= 0:
+                e[k] = 1.0
+        return e
+
+    def unknown_names(self) -> list[str]:
+        """Readable names of the unknowns, for messages: ``V(net)`` and ``I(part)``."""
+        names = [""] * self.size
+        for net_id, k in enumerate(self.unknown_of_net):
+            if k >= 0:
+                names[k] = f"V({self.netlist.nets[net_id]})"
+        opamps = set(self.netlist["opamp"].names)
+        for part, k in self.branch_of.items():
+            names[k] = f"the output current of {part}" if part in opamps else f"I({part})"
+        if self.short is not None:
+            names[self.short] = "the port short's current"
+        return names
+
+
+def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | None = None
+             ) -> System:
+    """Assemble the MNA system of ``netlist`` with the net ids in ``pinned`` as references.
+
+    ``short``: net ids (plus, minus) joined by an ideal 0 V branch (the shorted port), whose
+    current (from plus through the short into minus) is the unknown ``System.short``.
+    Raises :class:`~engine.errors.CircuitError` where a CCVS/CCCS names a controller that is not
+    among the parts, or a coupling an inductor that is not.
+    """
+    n_nets = len(netlist.nets)
+    is_node = np.ones(n_nets, dtype=bool)
+    is_node[np.fromiter(pinned, dtype=np.intp)] = False
+    unknown_of_net = np.full(n_nets, -1, dtype=np.intp)
+    n_nodes = int(is_node.sum())
+    unknown_of_net[is_node] = np.arange(n_nodes)
+    u = unknown_of_net
+
+    # Branch unknowns, kind by kind.
+    branch_sets: list[tuple[str, np.ndarray]] = []
+    next_index = n_nodes
+    branch_of: dict[str, int] = {}
+    branch_index: dict[str, np.ndarray] = {}
+    for kind in ("voltage_source", "vcvs", "ccvs", "inductor", "opamp"):
+        mask = np.ones(len(netlist[kind]), dtype=bool)
+        branch_sets.append((kind, mask))
+    for kind in _BRANCH_IF_CONTROLLER:
+        branch_sets.append((kind, netlist.is_branch(kind)))
+    for kind, mask in branch_sets:
+        count = int(mask.sum())
+        index = np.full(mask.size, -1, dtype=np.intp)
+        index[mask] = np.arange(next_index, next_index + count)
+        branch_index[kind] = index
+        if count:
+            names = netlist[kind].names
+            branch_of.update((names[i], int(index[i])) for i in np.flatnonzero(mask))
+        next_index += count
+    short_index = None
+    if short is not None:
+        short_index = next_index
+        next_index += 1
+    size = next_index
+
+    g, m = _Triplets(), _Triplets()
+    b = np.zeros(size, dtype=complex if _sources_complex(netlist) else float)
+
+    def control_index(kind: str) -> np.ndarray:
+        names = [r[0] for r in netlist[kind].refs]
+        try:
+            return np.fromiter((branch_of[n] for n in names), dtype=np.intp, count=len(names))
+        except KeyError as missing:
+            part = netlist[kind].names[names.index(missing.args[0])]
+            raise SingularCircuitError(
+                f"{part} is controlled by the current in {missing.args[0]}, which is not among "
+                "the parts analysed; add it or change the controlling part") from None
+
+    # Two-terminal admittances (not group 2): 1/R and 1/Z in G, C in M.
+    for kind, target in (("resistor", g), ("impedance", g), ("capacitor", m)):
+        group, mask = netlist[kind], ~netlist.is_branch(kind)
+        if mask.any():
+            nodes, values = group.nodes[mask], group.values[mask]
+            target.admittance(u[nodes[:, 0]], u[nodes[:, 1]],
+                              values if kind == "capacitor" else 1 / values)
+
+    # Independent current sources that are not controllers feed the right-hand side.
+    group = netlist["current_source"]
+    plain = ~netlist.is_branch("current_source")
+    if plain.any():
+        nodes, values = group.nodes[plain], group.values[plain]
+        for col, sign in ((0, -1.0), (1, 1.0)):
+            k = u[nodes[:, col]]
+            np.add.at(b, k[k >= 0], sign * values[k >= 0])
+
+    # VCCS and CCCS that are not controllers inject into net rows.
+    group, mask = netlist["vccs"], ~netlist.is_branch("vccs")
+    if mask.any():
+        nd, gm = group.nodes[mask], group.values[mask]
+        f, t, cp, cn = (u[nd[:, i]] for i in range(4))
+        g.add((f, f, t, t), (cp, cn, cp, cn), (gm, -gm, -gm, gm))
+    group, mask = netlist["cccs"], ~netlist.is_branch("cccs")
+    if mask.any():
+        kc = control_index("cccs")[mask]
+        nd, beta = group.nodes[mask], group.values[mask]
+        g.add((u[nd[:, 0]], u[nd[:, 1]]), (kc, kc), (beta, -beta))
+
+    # Group-2 parts: incidence columns, then their rows.
+    for kind, _mask in branch_sets:
+        index = branch_index[kind]
+        sel = index >= 0
+        if not sel.any():
+            continue
+        k = index[sel]
+        group = netlist[kind]
+        nd, val = group.nodes[sel], group.values[sel]
+        a, bb = u[nd[:, 0]], u[nd[:, 1]]
+        if kind == "opamp":
+            out, ground = u[nd[:, 2]], u[nd[:, 3]]
+            g.add((out, ground), (k, k), (-1.0, 1.0))  # the output current enters ``out``
+            g.voltage_row(k, a, bb)                    # V(inp) - V(inn) = 0
+            continue
+        g.incidence(k, a, bb)
+        if kind in ("voltage_source", "vcvs", "ccvs", "inductor", "resistor", "impedance"):
+            g.voltage_row(k, a, bb)
+        if kind == "voltage_source":
+            b[k] = val
+        elif kind == "vcvs":
+            g.add((k, k), (u[nd[:, 2]], u[nd[:, 3]]), (-val, val))
+        elif kind == "ccvs":
+            g.add((k,), (control_index("ccvs")[sel],), (-val,))
+        elif kind == "inductor":
+            m.add((k,), (k,), (-val,))
+        elif kind in ("resistor", "impedance"):
+            g.add((k,), (k,), (-val,))          # V(a) - V(b) - R I = 0 (R = 0: a wire)
+        elif kind == "capacitor":
+            m.voltage_row(k, a, bb, val)        # s C (V(a) - V(b)) - I = 0
+            g.add((k,), (k,), (-1.0,))
+        else:                                   # current-defined rows: I - value (...) = 0
+            g.add((k,), (k,), (1.0,))
+            if kind == "current_source":
+                b[k] = val
+            elif kind == "vccs":
+                g.add((k, k), (u[nd[:, 2]], u[nd[:, 3]]), (-val, val))
+            else:
+                g.add((k,), (control_index("cccs")[sel],), (-val,))
+
+    _stamp_couplings(netlist, branch_of, m)
+    if short is not None:
+        k = np.array([short_index])
+        a, bb = u[np.array([short[0]])], u[np.array([short[1]])]
+        g.incidence(k, a, bb)
+        g.voltage_row(k, a, bb)
+    return System(netlist, unknown_of_net, n_nodes, branch_of, short_index,
+                  g.arrays(), m.arrays(), b)
+
+
+def _sources_complex(netlist: Netlist) -> bool:
+    return any(np.iscomplexobj(netlist[kind].values)
+               for kind in ("voltage_source", "current_source"))
+
+
+def _stamp_couplings(netlist: Netlist, branch_of: dict[str, int], m: _Triplets) -> None:
+    group = netlist["coupling"]
+    if not len(group):
+        return
+    inductors = netlist["inductor"]
+    henries = dict(zip(inductors.names, inductors.values.tolist(), strict=True))
+    rows, cols, vals = [], [], []
+    for name, (l1, l2), k in zip(group.names, group.refs, group.values.tolist(), strict=True):
+        if l1 not in henries or l2 not in henries:
+            missing = l1 if l1 not in henries else l2
+            raise SingularCircuitError(f"{name} couples {missing}, which is not among the parts "
+                                       "analysed")
+        mutual = k * math.sqrt(henries[l1] * henries[l2])
+        k1, k2 = branch_of[l1], branch_of[l2]
+        rows += [k1, k2]
+        cols += [k2, k1]
+        vals += [-mutual, -mutual]
+    m.add((np.array(rows),), (np.array(cols),), (np.array(vals),))
+
+
+class Singular(SingularCircuitError):
+    """The system has no unique solution; the message names the likely culprits."""
+
+    def __init__(self, system: System, freq: float, matrix: sp.spmatrix | None = None) -> None:
+        self.system, self.freq = system, freq
+        super().__init__(f"the circuit equations have no unique solution at {describe_freq(freq)}"
+                         f"{_culprits(system, matrix)}")
+
+
+def _culprits(system: System, matrix: sp.spmatrix | None) -> str:
+    """Undetermined unknowns (from a structural matching) and the parts that usually cause it."""
+    hints = []
+    if matrix is not None and matrix.shape[0]:
+        pattern = sp.csr_matrix((np.ones(matrix.nnz), matrix.nonzero()), shape=matrix.shape)
+        matched = maximum_bipartite_matching(pattern, perm_type="row")
+        loose = np.flatnonzero(matched < 0)
+        if loose.size:
+            names = system.unknown_names()
+            listed = ", ".join(names[i] for i in loose[:5])
+            more = f" and {loose.size - 5} more" if loose.size > 5 else ""
+            hints.append(f"no equation determines {listed}{more}")
+    netlist = system.netlist
+    opamps = netlist["opamp"].names
+    if opamps:
+        hints.append(f"check that op-amp{'s' if len(opamps) > 1 else ''} "
+                     f"{', '.join(opamps[:5])} {'have' if len(opamps) > 1 else 'has'} negative "
+                     "feedback from output to input")
+    controlled = [n for kind in ("vcvs", "vccs", "ccvs", "cccs") for n in netlist[kind].names]
+    if controlled:
+        hints.append(f"check the gains of the controlled sources {', '.join(controlled[:5])} "
+                     "(a loop gain that cancels a part exactly makes the equations singular)")
+    if not hints:
+        hints.append("a part value cancels another exactly (e.g. a resonance or a negative "
+                     "value), so two equations coincide")
+    return ": " + "; ".join(hints)
+
+
+class Factor:
+    """One sparse LU factorization of ``A(j 2 pi freq)``, solving many right-hand sides.
+
+    Raises :class:`Singular` where SuperLU finds the matrix singular (however SciPy signals it)
+    and where a solution is not finite.
+    """
+
+    def __init__(self, system: System, freq: float) -> None:
+        self.system, self.freq = system, freq
+        self.matrix = system.matrix(freq)
+        if self.matrix.shape[0] == 0:
+            self._lu = None
+            return
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("error")
+                self._lu = splu(self.matrix, permc_spec=ORDERING)
+        except (RuntimeError, ValueError, ArithmeticError, np.linalg.LinAlgError, Warning):
+            raise Singular(system, freq, self.matrix) from None
+
+    def solve(self, rhs: np.ndarray, transposed: bool = False) -> np.ndarray:
+        """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k)."""
+        if self._lu is None:
+            return np.zeros(rhs.shape, dtype=complex)
+        data = rhs.astype(self.matrix.dtype if not np.iscomplexobj(rhs) else complex)
+        if np.iscomplexobj(data) and not np.iscomplexobj(self.matrix.data):
+            # SuperLU solves in the factor's own dtype: real factor, complex rhs in two parts
+            return self.solve(data.real, transposed) + 1j * self.solve(data.imag, transposed)
+        try:
+            with warnings.catch_warnings(), np.errstate(all="ignore"):
+                warnings.simplefilter("error")
+                x = self._lu.solve(data, trans="T" if transposed else "N")
+        except (RuntimeError, ValueError, ArithmeticError, Warning):
+            raise Singular(self.system, self.freq, self.matrix) from None
+        if not np.all(np.isfinite(x)):
+            raise Singular(self.system, self.freq, self.matrix)
+        return x
+
+    def error_bound(self, x: np.ndarray, rhs: np.ndarray, adjoint: np.ndarray) -> float:
+        """Bound on ``|c.x_true - c.x|`` for the linear functional c with ``A^T adjoint = c``.
+
+        ``x`` solves ``A x = rhs`` in floating point. The exact solution differs by
+        ``A^{-1} r`` with the residual ``r = rhs - A x``, so ``c.x`` is off by ``adjoint . r``;
+        ``r`` is itself computed with an error below ``gamma (|A||x| + |rhs|)``, with
+        ``gamma = (nz + 1) eps`` and nz the most non-zeros in one row (the same rounding that a
+        perturbation of the part values by one unit in the last place would cause).
+        """
+        if self.matrix.shape[0] == 0:
+            return 0.0
+        with np.errstate(all="ignore"):
+            residual = rhs - self.matrix @ x
+            abs_ax = abs(self.matrix) @ np.abs(x)
+        return float(bound(adjoint, residual, abs_ax, rhs, rounding(self.matrix)))
+
+
+def rounding(matrix: sp.spmatrix) -> float:
+    """``gamma = (nz + 1) eps``, nz the most non-zeros in one row of ``matrix``."""
+    nz = np.bincount(matrix.indices).max(initial=0) if matrix.nnz else 0
+    return float(nz + 1) * EPS
+
+
+def bound(adjoint: np.ndarray, residual: np.ndarray, abs_ax: np.ndarray, rhs: np.ndarray,
+          gamma: float) -> np.ndarray:
+    """``sum |adjoint| (|residual| + gamma (|A||x| + |rhs|))`` over the last axis."""
+    with np.errstate(all="ignore"):
+        weight = np.abs(residual) + gamma * (abs_ax + np.abs(rhs))
+        return np.sum(np.abs(adjoint) * weight, axis=-1)

@@ -1,0 +1,517 @@
+"""Graph views of a circuit: the two-terminal cut check and the diagnosis of singular circuits.
+
+Connectivity on the hot path is counted with SciPy's compiled graph routines on the netlist's
+index arrays; networkx builds the readable views (:func:`circuit_graph`) and finds the loop to
+name in an error message.
+
+Cut rules (:func:`check_cut`), each refused with a :class:`~engine.errors.CutError` that names the
+parts or nets at fault:
+
+* every name in the region is a part of the circuit; a coupling follows its inductors, and one
+  whose inductors lie on different sides is refused;
+* a current-controlled source and its controlling part lie on the same side, and so do a
+  voltage-controlled source (or op-amp) and the nets it senses;
+* the region meets the rest at its port only. A piece of the region that no current path joins to
+  the port and that meets the rest at a single net (a transformer's primary, grounded outside)
+  exchanges no current there, so that net is not a terminal.
+
+Existence rules at the analysis frequency (:func:`islands`, :func:`check_voltage_loops`): see
+docs/method.md.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Collection, Iterable, Sequence
+from dataclasses import dataclass
+from itertools import chain
+from operator import attrgetter
+
+import networkx as nx
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.csgraph import connected_components
+
+from .circuit import GROUND, Circuit, Part
+from .errors import CircuitError, CutError, SingularCircuitError
+from .mna import Netlist
+
+__all__ = ["Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",
+           "islands"]
+
+_NODES = attrgetter("nodes")
+_SENSING = frozenset({"vcvs", "vccs", "opamp"})
+_CONTROLLED = frozenset({"ccvs", "cccs"})
+#: (kind, node columns) of the branches that can carry current, at any frequency.
+_CARRYING = (("resistor", (0, 1)), ("capacitor", (0, 1)), ("inductor", (0, 1)),
+             ("impedance", (0, 1)), ("voltage_source", (0, 1)), ("current_source", (0, 1)),
+             ("ccvs", (0, 1)), ("cccs", (0, 1)), ("vcvs", (0, 1)), ("vccs", (0, 1)),
+             ("opamp", (2, 3)))
+_SENSES = (("vcvs", (2, 3)), ("vccs", (2, 3)), ("opamp", (0, 1)))
+_CURRENT_TYPE = (("current_source", (0, 1)), ("vccs", (0, 1)), ("cccs", (0, 1)))
+SHORT = "the port short"
+
+
+def _listing(items: Sequence[str], limit: int = 6) -> str:
+    shown = ", ".join(items[:limit])
+    return shown if len(items) <= limit else f"{shown} and {len(items) - limit} more"
+
+
+def _plural(count: int, one: str, many: str) -> str:
+    return one if count == 1 else many
+
+
+# -- the cut ------------------------------------------------------------------------------------
+@dataclass(frozen=True, slots=True, eq=False)
+class Cut:
+    """A validated two-terminal cut: ``port`` (plus, minus) and the region's parts.
+
+    ``parts`` are in circuit order, couplings following their inductors; ``netlist`` holds them.
+    """
+
+    port: tuple[str, str]
+    parts: tuple[Part, ...]
+    netlist: Netlist
+
+
+def check_cut(circuit: Circuit, region: Collection[str],
+              port: Sequence[str] | None = None) -> tuple[str, str]:
+    """Validate that ``region`` is a two-terminal cut of ``circuit``; return its port.
+
+    Parameters
+    ----------
+    circuit : the whole circuit.
+    region : names of the parts inside the boundary.
+    port : (plus, minus), or None to take the two nets where the region meets the rest
+        (ground is minus when it is one of them; otherwise plus is the name that sorts first).
+
+    Returns
+    -------
+    (plus, minus)
+
+    Raises
+    ------
+    CutError
+        Unknown part names, a controlled source or coupling across the boundary, a port that
+        is not two distinct nets of the region, or a region meeting the rest at other nets.
+    CircuitError
+        A current-controlled source names a controlling part that is not in the circuit.
+
+    Examples
+    --------
+    >>> c = Circuit()
+    >>> _ = c.voltage_source("V1", "in", "0", 5); _ = c.resistor("R1", "in", "a", 1e3)
+    >>> _ = c.resistor("R2", "a", "0", 1e3)
+    >>> check_cut(c, {"V1", "R1"})
+    ('a', '0')
+
+    Notes
+    -----
+    Linear in the number of parts: set look-ups per part and one connected-components pass.
+    """
+    return cut(circuit, region, port).port
+
+
+def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = None) -> Cut:
+    """:func:`check_cut`, returning the :class:`Cut` with the region's parts and netlist."""
+    names = _region_names(region)
+    unknown = sorted(names.difference(circuit.names))
+    if unknown:
+        raise CutError(f"the region names {_plural(len(unknown), 'a part', 'parts')} that "
+                       f"{_plural(len(unknown), 'is', 'are')} not in the circuit: "
+                       f"{_listing(unknown)}")
+    everything = list(circuit)
+    inside = everything if len(names) == len(everything) else \
+        [p for p in everything if p.name in names]
+    inside, outside = _follow_couplings(everything, inside, names)
+    netlist = Netlist(inside)
+    _check_controls(circuit, netlist, outside, names)
+    side = _Sides(netlist, outside)
+    if port is not None:
+        plus, minus = _given_port(port, netlist)
+    terminals = side.boundary
+    needs_groups = (len(terminals) != 2) if port is None else \
+        not terminals.issubset((plus, minus))
+    if needs_groups:
+        terminals = side.terminals(() if port is None else (plus, minus))
+    if port is None:
+        plus, minus = _port_from(terminals, side)
+    else:
+        extra = sorted(terminals - {plus, minus})
+        if extra:
+            raise CutError(
+                f"the region meets the rest of the circuit at {_plural(len(extra), 'net', 'nets')}"
+                f" {_listing(extra)} besides its port ({plus}, {minus}); a two-terminal cut meets "
+                "the rest only at its port — move the parts on "
+                f"{_plural(len(extra), 'that net', 'those nets')} into or out of the region")
+    return Cut((plus, minus), tuple(inside), netlist)
+
+
+def _region_names(region: Collection[str]) -> set[str]:
+    if isinstance(region, str):
+        raise CutError(f"the region must be a collection of part names, not the single text "
+                       f"{region!r}; write {{{region!r}}}")
+    try:
+        names = set(region)
+    except TypeError:
+        raise CutError(f"the region must be a collection of part names, not {region!r}") from None
+    bad = [n for n in names if not isinstance(n, str)]
+    if bad:
+        raise CutError(f"the region holds {bad[0]!r}, which is not a part name")
+    if not names:
+        raise CutError("the region is empty; name the parts inside the boundary")
+    return names
+
+
+def _follow_couplings(everything: list[Part], inside: list[Part], names: set[str]
+                      ) -> tuple[list[Part], list[Part]]:
+    """Put each coupling on the side of its inductors; refuse one that spans the boundary."""
+    couplings = [p for p in everything if p.kind == "coupling"]
+    flipped: set[str] = set()
+    for k in couplings:
+        l1, l2 = k.refs
+        if (l1 in names) != (l2 in names):
+            a, b = (l1, l2) if l1 in names else (l2, l1)
+            raise CutError(f"{k.name} couples {a} inside the region with {b} outside it; a "
+                           "magnetic coupling cannot cross the boundary — put both inductors "
+                           "on one side")
+        if (l1 in names) != (k.name in names):
+            flipped.add(k.name)
+    if flipped:
+        inside = [p for p in everything if (p.name in names) != (p.name in flipped)]
+    if len(inside) == len(everything):
+        return inside, []
+    chosen = {p.name for p in inside} if flipped else names
+    return inside, [p for p in everything if p.name not in chosen]
+
+
+def _check_controls(circuit: Circuit, netlist: Netlist, outside: list[Part],
+                    names: set[str]) -> None:
+    """A CCVS/CCCS and its controlling part lie on the same side, and the part exists."""
+    pairs = [(name, refs[0], True) for kind in _CONTROLLED
+             for name, refs in zip(netlist[kind].names, netlist[kind].refs, strict=True)]
+    pairs += [(p.name, p.refs[0], False) for p in outside if p.kind in _CONTROLLED]
+    for name, control, inside in pairs:
+        if control not in circuit:
+            raise CircuitError(f"{name} is controlled by the current in {control}, which is "
+                               "not in the circuit; add it or change the controlling part")
+        if (control in names) != inside:
+            where = ("inside", "outside") if inside else ("outside", "inside")
+            raise CutError(f"{name} {where[0]} the region is controlled by the current in "
+                           f"{control} {where[1]} it; a controlled source and its controlling "
+                           "part must lie on the same side of the boundary")
+
+
+class _Sides:
+    """Which nets carry current on each side of the boundary, and the nets the sides share."""
+
+    def __init__(self, netlist: Netlist, outside: list[Part]) -> None:
+        self.netlist, self.outside = netlist, outside
+        n = len(netlist.nets)
+        self.carrying = np.zeros(n, dtype=bool)
+        for kind, cols in _CARRYING:
+            self.carrying[netlist[kind].nodes[:, list(cols)].ravel()] = True
+        plain = [p for p in outside if p.kind not in _SENSING]
+        self.outer = set(chain.from_iterable(map(_NODES, plain)))
+        sensors = [p for p in outside if p.kind in _SENSING]
+        for p in sensors:
+            self.outer.update(p.nodes[2:] if p.kind == "opamp" else p.nodes[:2])
+            if p.kind == "opamp":
+                self.outer.add(GROUND)
+        index = netlist.index
+        self.boundary = {net for net in self.outer
+                         if net in index and self.carrying[index[net]]}
+        self._check_sensing(sensors)
+
+    def _check_sensing(self, sensors: list[Part]) -> None:
+        index, netlist = self.netlist.index, self.netlist
+        for kind, cols in _SENSES:
+            group = netlist[kind]
+            for name, row in zip(group.names, group.nodes[:, list(cols)].tolist(), strict=True):
+                for net_id in row:
+                    net = netlist.nets[net_id]
+                    if not self.carrying[net_id] and net in self.outer:
+                        other = next(p.name for p in self.outside if net in p.nets)
+                        raise CutError(f"{name} inside the region senses net {net}, which lies "
+                                       f"outside it ({other} is connected there); a controlled "
+                                       "source and the nets it senses must lie on the same side")
+        for p in sensors:
+            sensed = p.nodes[:2] if p.kind == "opamp" else p.nodes[2:]
+            for net in sensed:
+                if net in index and self.carrying[index[net]] and net not in self.outer:
+                    other = next(q.name for q in netlist.parts if net in q.nets)
+                    raise CutError(f"{p.name} outside the region senses net {net}, which lies "
+                                   f"inside it ({other} is connected there); a controlled "
+                                   "source and the nets it senses must lie on the same side")
+
+    def terminals(self, port: Sequence[str]) -> set[str]:
+        """Boundary nets through which current can enter or leave the region.
+
+        A piece of the region joined by current paths to no other boundary net (nor to a port
+        net) meets the rest at a single net; KCL for the piece forbids any current there.
+        """
+        netlist = self.netlist
+        a, b = _pairs(netlist, _CARRYING)
+        labels = _components(len(netlist.nets), a, b)
+        pieces: dict[int, set[str]] = {}
+        for net in chain(self.boundary, port):
+            pieces.setdefault(int(labels[netlist.index[net]]), set()).add(net)
+        return {net for nets in pieces.values() if len(nets) > 1 or nets & set(port)
+                for net in nets}
+
+
+def _given_port(port: Sequence[str], netlist: Netlist) -> tuple[str, str]:
+    if isinstance(port, str) or len(port) != 2:
+        raise CutError(f"the port must be two net names (plus, minus), not {port!r}")
+    plus, minus = port
+    for net in (plus, minus):
+        if not isinstance(net, str):
+            raise CutError(f"the port must be two net names (plus, minus), not {port!r}")
+    if plus == minus:
+        raise CutError(f"the port's plus and minus are both net {plus!r}; give two different "
+                       "nets")
+    for net in (plus, minus):
+        if net not in netlist.index:
+            raise CutError(f"port net {net!r} is not a net of any part in the region; the "
+                           f"region's nets are {_listing(sorted(netlist.nets))}")
+    return plus, minus
+
+
+def _port_from(terminals: set[str], side: _Sides) -> tuple[str, str]:
+    if len(terminals) != 2:
+        count = len(terminals)
+        where = f": {_listing(sorted(terminals))}" if terminals else ""
+        hint = ("give the port, or move the parts on one of them into or out of the region"
+                if count > 2 else "give the port (plus, minus) explicitly")
+        raise CutError(f"the region meets the rest of the circuit at {count} "
+                       f"{_plural(count, 'net', 'nets')}{where} — a two-terminal cut needs "
+                       f"exactly 2; {hint}")
+    if GROUND in terminals:
+        (plus,) = terminals - {GROUND}
+        return plus, GROUND
+    plus, minus = sorted(terminals)
+    return plus, minus
+
+
+# -- connectivity on index arrays ---------------------------------------------------------------
+def _pairs(netlist: Netlist, spec: Iterable[tuple[str, tuple[int, int]]],
+           masks: dict[str, np.ndarray] | None = None) -> tuple[np.ndarray, np.ndarray]:
+    a, b = [], []
+    for kind, (i, j) in spec:
+        nodes = netlist[kind].nodes
+        if masks and kind in masks:
+            nodes = nodes[masks[kind]]
+        if len(nodes):
+            a.append(nodes[:, i])
+            b.append(nodes[:, j])
+    if not a:
+        return np.zeros(0, dtype=np.intp), np.zeros(0, dtype=np.intp)
+    return np.concatenate(a), np.concatenate(b)
+
+
+def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Connected-component label of each of n vertices joined by edges (a[i], b[i])."""
+    if n == 0:
+        return np.zeros(0, dtype=np.intp)
+    graph = sp.coo_matrix((np.ones(a.size, dtype=np.int8), (a, b)), shape=(n, n))
+    return connected_components(graph, directed=False)[1]
+
+
+def _conducting(netlist: Netlist, dc: bool) -> tuple[tuple[str, tuple[int, int]], ...]:
+    """Branches that conduct at the analysis frequency (capacitors open at DC)."""
+    kinds = [("resistor", (0, 1)), ("inductor", (0, 1)), ("impedance", (0, 1)),
+             ("voltage_source", (0, 1)), ("ccvs", (0, 1)), ("vcvs", (0, 1)), ("opamp", (2, 3))]
+    if not dc:
+        kinds.append(("capacitor", (0, 1)))
+    return tuple(kinds)
+
+
+class Islands:
+    """The galvanically separate islands of a netlist at one frequency class (DC or not).
+
+    ``labels[net_id]`` is the island of each net; the island holding the first of the given
+    references is the reference island. Every other island is classified:
+
+    * nothing but magnetic coupling links it (no current source crosses to it, nothing senses a
+      voltage between it and another island): it gets its own reference net (``pinned``);
+    * a controlled current source crosses to it and a controlled source senses its potential:
+      the equations fix that potential, so it is solved without a reference (``solved``);
+    * anything else makes the equations singular: :meth:`problem` words why.
+    """
+
+    def __init__(self, netlist: Netlist, dc: bool, references: Sequence[str],
+                 short: tuple[int, int] | None = None) -> None:
+        self.netlist, self.dc = netlist, dc
+        n = len(netlist.nets)
+        a, b = _pairs(netlist, _conducting(netlist, dc))
+        if short is not None:
+            a, b = np.append(a, short[0]), np.append(b, short[1])
+        self.labels = labels = _components(n, a, b)
+        ref_net = next((netlist.index[r] for r in references if r in netlist.index), 0)
+        self.reference = int(labels[ref_net]) if n else 0
+        count = int(labels.max()) + 1 if n else 0
+        self.solved: set[int] = set()
+        self._problems: dict[int, str] = {}
+        if count <= 1:
+            self.pinned = np.array([ref_net] if n else [], dtype=np.intp)
+            return
+        ca, cb = _pairs(netlist, _CURRENT_TYPE)
+        controlled = np.concatenate([np.full(len(netlist[k]), k != "current_source")
+                                     for k, _ in _CURRENT_TYPE])
+        sa, sb = _pairs(netlist, _SENSES)
+        self._crossing = labels[ca] != labels[cb]
+        self._sensing = labels[sa] != labels[sb]
+        crossed = self._touches(labels[ca], labels[cb], self._crossing, count)
+        crossed_by_control = self._touches(labels[ca], labels[cb], self._crossing & controlled,
+                                           count)
+        sensed = self._touches(labels[sa], labels[sb], self._sensing, count)
+        own = ~crossed & ~sensed
+        solved = crossed_by_control & sensed
+        own[self.reference] = solved[self.reference] = False
+        self.solved = set(np.flatnonzero(solved).tolist())
+        for label in np.flatnonzero(~own & ~solved).tolist():
+            if label != self.reference:
+                self._problems[label] = ""
+        first_net = np.unique(labels, return_index=True)[1]
+        chosen = {self.reference: ref_net}
+        for r in references:
+            net = netlist.index.get(r)
+            if net is not None and own[labels[net]] and labels[net] not in chosen:
+                chosen[int(labels[net])] = net
+        for label in np.flatnonzero(own).tolist():
+            chosen.setdefault(label, int(first_net[label]))
+        self.pinned = np.array(sorted(chosen.values()), dtype=np.intp)
+
+    @staticmethod
+    def _touches(la: np.ndarray, lb: np.ndarray, mask: np.ndarray, count: int) -> np.ndarray:
+        return (np.bincount(la[mask], minlength=count)
+                + np.bincount(lb[mask], minlength=count)) > 0
+
+    def island(self, net: str) -> int:
+        return int(self.labels[self.netlist.index[net]])
+
+    def joined(self, net: str) -> bool:
+        """True when the equations fix ``net``'s potential relative to the reference."""
+        label = self.island(net)
+        return label == self.reference or label in self.solved
+
+    def problem(self, label: int) -> str | None:
+        """Why island ``label`` makes the equations singular, or None if it does not."""
+        if label not in self._problems:
+            return None
+        if not self._problems[label]:
+            self._problems[label] = self._word(label)
+        return self._problems[label]
+
+    def raise_problems(self, skip: int | None = None) -> None:
+        """Raise SingularCircuitError for the islands with a problem (but ``skip``)."""
+        found = [self.problem(label) for label in sorted(self._problems) if label != skip]
+        if found:
+            raise SingularCircuitError("; ".join(m for m in found[:3] if m))
+
+    def _word(self, label: int) -> str:
+        netlist, labels = self.netlist, self.labels
+        members = np.flatnonzero(labels == label)
+        nets = _listing([netlist.nets[i] for i in members], 5)
+        ca, cb = _pairs(netlist, _CURRENT_TYPE)
+        current_names = [n for k, _ in _CURRENT_TYPE for n in netlist[k].names]
+        on_edge = self._crossing & ((labels[ca] == label) | (labels[cb] == label))
+        sources = [current_names[i] for i in np.flatnonzero(on_edge)]
+        dc_note = ""
+        if self.dc:
+            caps = netlist["capacitor"]
+            here = np.isin(caps.nodes, members).any(axis=1) if len(caps) else np.zeros(0, bool)
+            if here.any():
+                dc_note = (" (capacitors are open at DC: "
+                           f"{_listing([caps.names[i] for i in np.flatnonzero(here)], 4)})")
+        if sources:
+            return (f"{_plural(len(members), 'net', 'nets')} {nets} "
+                    f"{_plural(len(members), 'connects', 'connect')} to the rest only through "
+                    f"the current {_plural(len(sources), 'source', 'sources')} "
+                    f"{_listing(sources, 4)}{dc_note}: that current has no return path, so the "
+                    "circuit has no solution; add a conducting path (e.g. a resistor) from there "
+                    "to the rest")
+        sa, sb = _pairs(netlist, _SENSES)
+        sense_names = [n for k, _ in _SENSES for n in netlist[k].names]
+        on_edge = self._sensing & ((labels[sa] == label) | (labels[sb] == label))
+        i = int(np.flatnonzero(on_edge)[0])
+        return (f"{sense_names[i]} senses the voltage between nets {netlist.nets[sa[i]]} and "
+                f"{netlist.nets[sb[i]]}, which no conducting path joins{dc_note}, so that "
+                "voltage is undefined; join the two sides (e.g. through a resistor) or sense "
+                "within one side")
+
+
+def islands(netlist: Netlist, dc: bool, references: Sequence[str],
+            short: tuple[int, int] | None = None) -> Islands:
+    """The :class:`Islands` of ``netlist`` (``short``: net ids of a port short to include)."""
+    return Islands(netlist, dc, references, short)
+
+
+# -- loops of voltage-defined branches ----------------------------------------------------------
+def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | None = None
+                        ) -> None:
+    """Refuse a loop of branches that fix a voltage but not their current.
+
+    Voltage sources, VCVS and CCVS outputs, 0 Ω wires, op-amp outputs and (at DC) inductors:
+    around such a loop the current is undetermined and the voltages may contradict. Branches
+    whose current controls a CCVS/CCCS are left out (their current enters another equation).
+    Raises SingularCircuitError naming the loop's parts.
+    """
+    spec = [("voltage_source", (0, 1)), ("vcvs", (0, 1)), ("ccvs", (0, 1)), ("opamp", (2, 3)),
+            ("resistor", (0, 1))]
+    if dc:
+        spec.append(("inductor", (0, 1)))
+    masks = {kind: _free_current(netlist, kind) for kind, _ in spec}
+    a, b = _pairs(netlist, spec, masks)
+    names = [n for kind, _ in spec
+             for n, keep in zip(netlist[kind].names, masks[kind], strict=True) if keep]
+    if short is not None:
+        a, b = np.append(a, short[0]), np.append(b, short[1])
+        names.append(SHORT)
+    if not names:
+        return
+    used, local = np.unique(np.concatenate((a, b)), return_inverse=True)
+    la, lb = local[: a.size], local[a.size:]
+    n_components = int(_components(used.size, la, lb).max()) + 1
+    if a.size <= used.size - n_components:
+        return  # a forest: no loop
+    graph = nx.MultiGraph()
+    graph.add_edges_from(zip(a.tolist(), b.tolist(), names, strict=True))
+    loop = [key for _u, _v, key in nx.find_cycle(graph)]
+    notes = " (inductors are shorts at DC)" if dc and any(
+        n in netlist["inductor"].names for n in loop) else ""
+    raise SingularCircuitError(
+        f"{_listing(loop)} form a loop of voltage-defined branches{notes}: the current around "
+        "it is undetermined and its voltages may contradict; break the loop (e.g. add a series "
+        "resistance)")
+
+
+def _free_current(netlist: Netlist, kind: str) -> np.ndarray:
+    group = netlist[kind]
+    keep = np.ones(len(group), dtype=bool) if kind != "resistor" else group.values == 0
+    if netlist.controllers and len(group):
+        keep &= np.fromiter((n not in netlist.controllers for n in group.names), bool,
+                            len(group))
+    return keep
+
+
+# -- a readable graph ---------------------------------------------------------------------------
+def circuit_graph(circuit: Circuit | Iterable[Part], freq: float = 0.0) -> nx.MultiGraph:
+    """The circuit as a networkx MultiGraph: nets are nodes, each current path an edge.
+
+    Edge keys are part names, with attributes ``kind`` and ``conducting`` (False for current
+    sources, controlled current sources and, at DC, capacitors). A VCVS/VCCS adds its output
+    branch only; an op-amp its output to ground. Couplings add no edge.
+
+    >>> c = Circuit(); _ = c.resistor("R1", "a", "0", 1); _ = c.capacitor("C1", "a", "b", 1)
+    >>> sorted(circuit_graph(c).edges(keys=True, data="conducting"))
+    [('a', '0', 'R1', True), ('a', 'b', 'C1', False)]
+    """
+    graph = nx.MultiGraph()
+    for part in circuit:
+        if part.kind == "coupling":
+            continue
+        a, b = (part.nodes[2], GROUND) if part.kind == "opamp" else part.nodes[:2]
+        conducting = part.kind not in {"current_source", "vccs", "cccs"} and not (
+            part.kind == "capacitor" and freq == 0)
+        graph.add_edge(a, b, key=part.name, kind=part.kind, conducting=conducting)
+    return graph
