@@ -9,16 +9,17 @@ from __future__ import annotations
 
 from collections.abc import Iterable
 
-from PySide6.QtCore import QObject, QPointF, Qt, Signal
+from PySide6.QtCore import QMimeData, QObject, QPointF, Qt, Signal
 from PySide6.QtGui import QUndoCommand
 
 from engine.schematic import Block, Document, Element, NetLabel, PlacedPart, Region
 from engine.symbols import Point
 
+from ..clipboard import copyable, elements_from, mime_for
 from ..commands import AddElements, MoveElements, delete_command
-from ..editing import RigidMap, anchor_points, center_of, plan_delete, plan_placement
+from ..editing import RigidMap, anchor_points, center_of, paste, plan_delete, plan_placement
 from ..workbench import Workbench
-from .grid import UNIT, snap, to_grid
+from .grid import UNIT, snap, to_grid, to_scene
 from .items import Look
 from .scene import SchematicScene
 from .tools import CanvasEvent, PlaceTool, Tool, ToolSpec, builtin_tools
@@ -179,6 +180,30 @@ class Canvas(QObject):
         if elements:
             self.push(AddElements(self.doc, elements, text))
             self.scene.select_ids(e.id for e in elements)
+
+    def copy(self) -> QMimeData | None:
+        """Clipboard data of the selection (None when nothing copyable is selected)."""
+        elements = copyable(self.selected())
+        return mime_for(elements) if elements else None
+
+    def paste(self, data: QMimeData) -> bool:
+        """Paste clipboard data, centred on the keyboard/pointer cursor when it is in view,
+        else in the middle of the view. False when the clipboard holds no elements."""
+        elements = elements_from(data)
+        if not elements:
+            return False
+        target = self.cursor
+        if not self.view.mapToScene(self.view.viewport().rect()).boundingRect().contains(
+                to_scene(target)):
+            target = snap(to_grid(self.view.mapToScene(self.view.viewport().rect().center())))
+        middle = center_of(elements)
+        self.add_elements(paste(self.doc, elements, (target[0] - middle[0],
+                                                     target[1] - middle[1])), "Paste")
+        return True
+
+    def duplicate(self) -> None:
+        """Copies of the selection two grid units down and to the right."""
+        self.add_elements(paste(self.doc, copyable(self.selected()), (2, 2)), "Duplicate")
 
     def select_all(self) -> None:
         self.scene.select_ids(e.id for e in self.doc if not isinstance(e, Region))

@@ -1,0 +1,44 @@
+"""Copy and paste of sheet elements through the system clipboard.
+
+The clipboard holds a small document in Portcut's own file format (engine's fileformat) under
+:data:`MIME`, so a copy pastes into another window or a later session; a paste gets fresh ids
+and designators (app/editing.paste). Regions and collapsed blocks are not copied.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+from PySide6.QtCore import QMimeData
+
+from engine.errors import CircuitError
+from engine.schematic import Block, Document, Element, Region
+from engine.schematic.fileformat import dumps, loads
+
+__all__ = ["MIME", "copyable", "elements_from", "mime_for"]
+
+MIME = "application/x-portcut-elements"
+
+
+def copyable(elements: Iterable[Element]) -> list[Element]:
+    return [e for e in elements if not isinstance(e, Region | Block)]
+
+
+def mime_for(elements: Iterable[Element]) -> QMimeData:
+    """Clipboard data holding ``elements``."""
+    sheet = Document("Clipboard")
+    for e in copyable(elements):
+        sheet.add(e)
+    data = QMimeData()
+    data.setData(MIME, dumps(sheet).encode("utf-8"))
+    return data
+
+
+def elements_from(data: QMimeData) -> list[Element]:
+    """The elements on the clipboard ([] when it holds none of ours or cannot be read)."""
+    if not data.hasFormat(MIME):
+        return []
+    try:
+        return list(loads(bytes(data.data(MIME))))
+    except CircuitError:
+        return []

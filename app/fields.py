@@ -1,0 +1,168 @@
+"""The editable fields of each kind of element, and how text typed into them becomes a new
+version of the element (or a clear refusal). Qt-free; the inspector shows these.
+
+A field's :meth:`Field.write` returns the new elements to put in the document: the edited one
+and any that follow it (renaming a part renames it where a controlled source or a coupling names
+it). A refusal is a CircuitError whose message names the part, the field and what is accepted;
+the document is never touched here.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Callable
+from dataclasses import dataclass, replace
+
+from engine.captions import UNITS
+from engine.errors import DocumentError, ValueParseError
+from engine.schematic import Block, Document, Element, NetLabel, PlacedPart
+from engine.units import parse_value
+
+__all__ = ["QUANTITY", "Field", "fields_for"]
+
+#: What each kind's value is, as the field title.
+QUANTITY: dict[str, str] = {
+    "resistor": "Resistance", "capacitor": "Capacitance", "inductor": "Inductance",
+    "impedance": "Impedance", "voltage_source": "Voltage", "current_source": "Current",
+    "vcvs": "Voltage gain", "vccs": "Transconductance", "ccvs": "Transresistance",
+    "cccs": "Current gain", "coupling": "Coupling k",
+}
+#: Kinds whose current can control a current-controlled source.
+_CARRIES_CURRENT = frozenset({"resistor", "capacitor", "inductor", "impedance",
+                              "voltage_source", "current_source", "vcvs", "vccs", "ccvs",
+                              "cccs"})
+
+Writer = Callable[[Document, Element, str], list[Element]]
+
+
+@dataclass(frozen=True)
+class Field:
+    """One line of the inspector: ``name`` (the element attribute), a title, a tooltip, and how
+    to read it from and write it to an element."""
+
+    name: str
+    title: str
+    tip: str
+    writer: Writer
+    unit: str = ""
+
+    def read(self, element: Element) -> str:
+        value = getattr(element, self.name)
+        return ", ".join(value) if isinstance(value, tuple) else str(value)
+
+    def write(self, doc: Document, element: Element, text: str) -> list[Element]:
+        """The new elements for ``text``; raises CircuitError (ValueParseError or
+        DocumentError) with the reason when the text cannot be taken."""
+        return self.writer(doc, element, text)
+
+
+def _designator(doc: Document, element: Element, text: str) -> list[Element]:
+    new = replace(element, designator=text.strip())
+    doc.check(new)
+    out: list[Element] = [new]
+    old_name = element.designator
+    for p in doc.parts():
+        if p.id == element.id:
+            continue
+        if p.control == old_name or old_name in p.couples:
+            out.append(replace(p, control=new.designator if p.control == old_name else p.control,
+                               couples=tuple(new.designator if c == old_name else c
+                                             for c in p.couples)))
+    return out
+
+
+def _value(doc: Document, part: PlacedPart, text: str) -> list[Element]:
+    what = f"{part.designator} {QUANTITY[part.kind].lower()}"
+    if not text.strip():
+        raise ValueParseError(f"{what}: enter a value, e.g. {_EXAMPLE[part.kind]}")
+    value = parse_value(text, what=what)
+    if part.kind == "coupling" and not abs(value) <= 1:
+        raise ValueParseError(f"{what}: {text.strip()!r} is outside -1 … 1; a coupling "
+                              "coefficient k has |k| ≤ 1")
+    return [replace(part, value=text.strip())]
+
+
+_EXAMPLE = {"resistor": "4k7", "capacitor": "100n", "inductor": "10m", "impedance": "50",
+            "voltage_source": "5", "current_source": "1m", "vcvs": "10", "vccs": "40m",
+            "ccvs": "100", "cccs": "100", "coupling": "0.9"}
+
+
+def _phase(doc: Document, part: PlacedPart, text: str) -> list[Element]:
+    if text.strip():
+        phase = parse_value(text.strip().removesuffix("°"), what=f"{part.designator} phase")
+        if isinstance(phase, complex):
+            raise ValueParseError(f"{part.designator} phase: {text!r} must be a real number of "
+                                  "degrees")
+    return [replace(part, phase_deg=text.strip())]
+
+
+def _control(doc: Document, part: PlacedPart, text: str) -> list[Element]:
+    name = text.strip()
+    where = f"{part.designator} control"
+    target = doc.by_designator(name) if name else None
+    if not name:
+        raise DocumentError(f"{where}: name the part whose current controls "
+                            f"{part.designator}, e.g. R1")
+    if target is None or not isinstance(target, PlacedPart):
+        raise DocumentError(f"{where}: there is no part {name!r} on the sheet")
+    if target.id == part.id:
+        raise DocumentError(f"{where}: {part.designator} cannot be controlled by its own "
+                            "current")
+    if target.kind not in _CARRIES_CURRENT:
+        raise DocumentError(f"{where}: {name} is a {target.kind.replace('_', ' ')}, which has "
+                            "no single current to sense")
+    return [replace(part, control=name)]
+
+
+def _couples(doc: Document, part: PlacedPart, text: str) -> list[Element]:
+    names = tuple(n for n in re.split(r"[\s,;]+", text.strip()) if n)
+    where = f"{part.designator} couples"
+    if len(names) != 2 or names[0] == names[1]:
+        raise DocumentError(f"{where}: name two different inductors, e.g. L1, L2")
+    for name in names:
+        target = doc.by_designator(name)
+        if not (isinstance(target, PlacedPart) and target.kind == "inductor"):
+            raise DocumentError(f"{where}: {name!r} is not an inductor on the sheet")
+    return [replace(part, couples=names)]
+
+
+def _name(doc: Document, label: NetLabel, text: str) -> list[Element]:
+    name = text.strip()
+    if not name:
+        raise DocumentError("net label name: enter a name, e.g. vout")
+    return [replace(label, name=name)]
+
+
+_DESIGNATOR = Field("designator", "Designator", "Reference designator, unique on the sheet: "
+                    "a letter, then letters, digits or _", _designator)
+
+
+def fields_for(element: Element) -> list[Field]:
+    """The editable fields of ``element`` (none for wires and junctions)."""
+    if isinstance(element, Block):
+        return [_DESIGNATOR]
+    if isinstance(element, NetLabel):
+        if element.style == "ground":
+            return []
+        return [Field("name", "Net name", "Labels with the same name join anywhere on the "
+                      "sheet; 0 is ground", _name)]
+    if not isinstance(element, PlacedPart):
+        return []
+    out = [_DESIGNATOR]
+    kind = element.kind
+    if kind in QUANTITY:
+        unit = UNITS.get(kind, "")
+        out.append(Field("value", QUANTITY[kind], f"SI prefixes (4.7k, 100n, 2M; u or µ for "
+                         f"micro) or IEC 60062 codes (4k7, 2R2, R47, 4n7), e.g. "
+                         f"{_EXAMPLE[kind]}", _value, unit))
+    if kind in ("voltage_source", "current_source"):
+        out.append(Field("phase_deg", "Phase", "Phase of the source phasor in degrees; empty "
+                         "for 0", _phase, "°"))
+    if kind in ("ccvs", "cccs"):
+        out.append(Field("control", "Controlled by", "Designator of the part whose current "
+                         "(first pin to second, inside the part) controls this source",
+                         _control))
+    if kind == "coupling":
+        out.append(Field("couples", "Couples", "The two inductors coupled, e.g. L1, L2; their "
+                         "dots mark each one's first pin", _couples))
+    return out

@@ -1,0 +1,272 @@
+"""The inspector: the selected element's fields (app/fields.py), or the sheet's title when
+nothing is selected.
+
+A field writes by pushing an undo command; a refused entry turns the field into an error state
+that shows the reason, and the document keeps its old value (Esc puts the old text back). The
+inspector follows the document (undo, other edits) and the selection, and ignores the echo of
+its own edits.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QKeyEvent, QUndoCommand
+from PySide6.QtWidgets import (
+    QDockWidget,
+    QFormLayout,
+    QLabel,
+    QLineEdit,
+    QVBoxLayout,
+    QWidget,
+)
+
+from engine.errors import CircuitError
+from engine.palette import PALETTE
+from engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
+
+from ..canvas import Canvas
+from ..catalog import entry
+from ..commands import ReplaceElements, SetTitle
+from ..fields import Field, fields_for
+from ..workbench import Workbench
+
+__all__ = ["FieldEditor", "InspectorDock"]
+
+_ERROR_STYLE = (f'QLineEdit[error="true"] {{ border: 1px solid {PALETTE.error}; '
+                f"border-radius: 2px; padding: 1px; }}"
+                f"QLabel#fieldError {{ color: {PALETTE.error}; }}")
+
+
+class _Line(QLineEdit):
+    """A line edit whose Esc reverts instead of closing anything."""
+
+    def __init__(self, revert) -> None:
+        super().__init__()
+        self._revert = revert
+
+    def keyPressEvent(self, event: QKeyEvent) -> None:
+        if event.key() == Qt.Key.Key_Escape:
+            self._revert()
+            return
+        super().keyPressEvent(event)
+
+
+class FieldEditor(QWidget):
+    """One field: the line edit and, under it, the reason an entry was refused."""
+
+    def __init__(self, inspector: InspectorDock, field: Field, element: Element) -> None:
+        super().__init__()
+        self.inspector = inspector
+        self.field = field
+        self.element = element
+        self.edit = _Line(self.revert)
+        self.edit.setToolTip(field.tip)
+        self.edit.setAccessibleName(field.title)
+        self.edit.setPlaceholderText(field.unit)
+        self.error = QLabel()
+        self.error.setObjectName("fieldError")
+        self.error.setWordWrap(True)
+        self.error.hide()
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.setSpacing(2)
+        layout.addWidget(self.edit)
+        layout.addWidget(self.error)
+        self.edit.editingFinished.connect(self.commit)
+        self.show_element(element)
+
+    @property
+    def in_error(self) -> bool:
+        return self.error.isVisible() or bool(self.error.text())
+
+    def show_element(self, element: Element) -> None:
+        """Show the document's version (clears any error)."""
+        self.element = element
+        self.edit.setText(self.field.read(element))
+        self._set_error("")
+
+    def revert(self) -> None:
+        self.show_element(self.element)
+
+    def commit(self) -> None:
+        text = self.edit.text()
+        if text == self.field.read(self.element) and not self.in_error:
+            return
+        doc = self.inspector.workbench.doc
+        try:
+            new = self.field.write(doc, self.element, text)
+        except CircuitError as exc:
+            self._set_error(str(exc))
+            return
+        self._set_error("")
+        if new != [self.element]:
+            self.inspector.push(self.command(doc, new, text.strip()))
+
+    def command(self, doc: Document, new: list, text: str) -> QUndoCommand:
+        """The undo command that puts ``new`` in the document."""
+        label = getattr(self.element, "designator", None) or f"label {self.element.name}"
+        return ReplaceElements(doc, new, f"Set {label} {self.field.title.lower()} to {text}")
+
+    def _set_error(self, message: str) -> None:
+        self.error.setText(message)
+        self.error.setVisible(bool(message))
+        self.edit.setProperty("error", bool(message))
+        self.edit.setAccessibleDescription(message)
+        self.edit.style().unpolish(self.edit)
+        self.edit.style().polish(self.edit)
+
+
+def _describe(element: Element) -> str:
+    if isinstance(element, PlacedPart):
+        return f"{element.designator} · {entry(element.kind).title}"
+    if isinstance(element, Block):
+        return f"{element.designator} · collapsed {element.form.title()} equivalent"
+    if isinstance(element, NetLabel):
+        return "Ground (net 0)" if element.style == "ground" else f"Net label {element.name}"
+    if isinstance(element, Wire):
+        return f"Wire · {len(element.points) - 1} segment(s)"
+    return type(element).__name__
+
+
+class InspectorDock(QDockWidget):
+    """Edits the single selected element, or the sheet when nothing is selected."""
+
+    def __init__(self, workbench: Workbench, canvas: Canvas,
+                 parent: QWidget | None = None) -> None:
+        super().__init__("Inspector", parent)
+        self.setObjectName("inspector")
+        self.workbench = workbench
+        self.canvas = canvas
+        self.editors: dict[str, FieldEditor] = {}
+        self._shown: str | None = None  # id of the element shown, "" for the sheet
+        self._pushing = False
+        body = QWidget()
+        body.setStyleSheet(_ERROR_STYLE)
+        self.heading = QLabel()
+        font = self.heading.font()
+        font.setBold(True)
+        self.heading.setFont(font)
+        self.heading.setWordWrap(True)
+        self.details = QLabel()
+        self.details.setWordWrap(True)
+        self.form = QFormLayout()
+        outer = QVBoxLayout(body)
+        outer.addWidget(self.heading)
+        outer.addLayout(self.form)
+        outer.addWidget(self.details)
+        outer.addStretch(1)
+        self.setWidget(body)
+        self._unsubscribe = workbench.doc.subscribe(self._on_change)
+        workbench.documentReplaced.connect(self._on_document)
+        canvas.selectionChanged.connect(self.show_selection)
+        canvas.editRequested.connect(self.focus_value)
+        self.show_selection([])
+
+    # -- following the document and the selection ---------------------------------------------
+    def _on_document(self, doc: Document) -> None:
+        self._unsubscribe()
+        self._unsubscribe = doc.subscribe(self._on_change)
+        self.show_selection([], force=True)
+
+    def _on_change(self, change: Change) -> None:
+        if self._pushing:
+            return
+        shown = self._shown
+        if shown == "" and change.title:
+            self.editors["title"].show_element(_Sheet(self.workbench.doc.title))
+        elif shown and (shown in change.updated or shown in change.removed):
+            self.show_selection(self.canvas.scene.selected_ids(), force=True)
+
+    def closeEvent(self, event) -> None:
+        self._unsubscribe()
+        super().closeEvent(event)
+
+    def push(self, command) -> None:
+        self._pushing = True
+        try:
+            self.workbench.push(command)
+        finally:
+            self._pushing = False
+        self._refresh_shown()
+
+    def _refresh_shown(self) -> None:
+        doc = self.workbench.doc
+        if self._shown and self._shown in doc:
+            element = doc[self._shown]
+            for editor in self.editors.values():
+                editor.show_element(element)
+
+    def show_selection(self, ids: list[str], force: bool = False) -> None:
+        doc = self.workbench.doc
+        ids = [i for i in ids if i in doc]
+        target = ids[0] if len(ids) == 1 else ("" if not ids else None)
+        if target == self._shown and not force and target is not None:
+            return
+        self._clear()
+        self._shown = target
+        if target is None:
+            self.heading.setText(f"{len(ids)} elements selected")
+            self.details.setText("Select one element to edit it.")
+        elif target == "":
+            self.heading.setText("Sheet")
+            self._add_editor(_TITLE, _Sheet(doc.title))
+            self.details.setText(f"{len(doc.parts())} parts, {len(doc.wires())} wires. "
+                                 "Select an element to edit it.")
+        else:
+            element = doc[target]
+            self.heading.setText(_describe(element))
+            for field in fields_for(element):
+                self._add_editor(field, element)
+            self.details.setText(self._placement(element))
+
+    def _placement(self, element: Element) -> str:
+        at = getattr(element, "at", None)
+        if at is None:
+            return ""
+        turn = getattr(element, "rotation", 0)
+        mirrored = ", mirrored" if getattr(element, "mirror", False) else ""
+        return f"At ({at[0]}, {at[1]}), turned {turn}°{mirrored}. R rotates, M mirrors."
+
+    def _add_editor(self, field: Field, element: object) -> None:
+        editor = (_TitleEditor if field is _TITLE else FieldEditor)(self, field, element)
+        self.editors[field.name] = editor
+        label = QLabel(field.title + (f" ({field.unit})" if field.unit else ""))
+        label.setBuddy(editor.edit)
+        self.form.addRow(label, editor)
+
+    def _clear(self) -> None:
+        while self.form.rowCount():
+            self.form.removeRow(0)
+        self.editors.clear()
+
+    def focus_value(self, element_id: str) -> None:
+        """Show the element and put the cursor in its value (or first) field."""
+        self.show_selection([element_id])
+        self.show()
+        self.raise_()
+        editor = self.editors.get("value") or next(iter(self.editors.values()), None)
+        if editor is not None:
+            editor.edit.setFocus(Qt.FocusReason.OtherFocusReason)
+            editor.edit.selectAll()
+
+
+@dataclass(frozen=True)
+class _Sheet:
+    """The sheet, shown as something with a title field."""
+
+    title: str
+    id: str = ""
+
+
+class _TitleEditor(FieldEditor):
+    def command(self, doc: Document, new: list, text: str) -> QUndoCommand:
+        return SetTitle(doc, new[0].title)
+
+
+def _write_title(doc: Document, sheet: _Sheet, text: str) -> list[_Sheet]:
+    return [_Sheet(text.strip())]
+
+
+_TITLE = Field("title", "Title", "The sheet's title, shown on exports", _write_title)
