@@ -9,13 +9,24 @@ from __future__ import annotations
 
 import cmath
 import math
+from collections.abc import Iterable
 from typing import Protocol
 
 from .errors import CircuitError
+from .mna import describe_freq
 from .schematic.model import PlacedPart
-from .units import format_complex, format_eng, format_phasor, parse_value
+from .units import format_complex, format_phasor, parse_value
 
-__all__ = ["UNITS", "block_caption", "drawn_form", "frequency_caption", "value_caption"]
+__all__ = [
+    "ELV_AC_RMS",
+    "ELV_DC",
+    "SAFETY_CAUTION",
+    "UNITS",
+    "above_extra_low_voltage",
+    "block_caption",
+    "drawn_form",
+    "value_caption",
+]
 
 #: Unit symbol of each kind's value (gains of voltage- and current-controlled sources are ratios).
 UNITS: dict[str, str] = {
@@ -74,11 +85,6 @@ def drawn_form(eq: Equivalent, form: str) -> str:
     return form
 
 
-def frequency_caption(freq: float) -> str:
-    """``"DC"`` or the frequency with its prefix: ``"1 kHz"``."""
-    return "DC" if freq == 0 else format_eng(freq, "Hz")
-
-
 def block_caption(eq: Equivalent, form: str, freq: float) -> tuple[str, ...]:
     """Lines shown beside a collapsed block: the source value of the drawn form, its impedance,
     and the frequency they hold at, e.g. ``("Voc = 3.33 V ∠ 0°", "Z = 1.2 kΩ", "at 1 kHz")``."""
@@ -87,4 +93,29 @@ def block_caption(eq: Equivalent, form: str, freq: float) -> tuple[str, ...]:
         source = f"Voc = {show(eq.voc, 'V')}"
     else:
         source = f"Isc = {show(eq.isc, 'A')}"
-    return (source, f"Z = {format_complex(eq.z, 'Ω')}", f"at {frequency_caption(freq)}")
+    return (source, f"Z = {format_complex(eq.z, 'Ω')}", f"at {describe_freq(freq)}")
+
+
+#: Extra-low voltage limits (common practice, IEC 61140 / IEC 60449 band I): 50 V AC rms and
+#: 120 V ripple-free DC. Above them Portcut shows :data:`SAFETY_CAUTION` once, without blocking.
+ELV_AC_RMS = 50.0
+ELV_DC = 120.0
+SAFETY_CAUTION = ("Caution: this circuit holds voltages above extra-low voltage (50 V AC rms, "
+                  "120 V DC). These results say nothing about electrical safety; local codes "
+                  "and licensed practice govern such work.")
+
+
+def above_extra_low_voltage(volts: Iterable[complex], freq: float, basis: str = "peak") -> bool:
+    """Whether any of the voltage phasors ``volts`` exceeds extra-low voltage at ``freq`` hertz:
+    at DC its magnitude against :data:`ELV_DC`; above DC its rms value (|V| / √2 for peak
+    phasors) against :data:`ELV_AC_RMS`. Non-finite values are skipped."""
+    for v in volts:
+        magnitude = abs(complex(v))
+        if not math.isfinite(magnitude):
+            continue
+        if freq == 0 and magnitude > ELV_DC:
+            return True
+        rms = magnitude / math.sqrt(2) if basis == "peak" else magnitude
+        if freq > 0 and rms > ELV_AC_RMS:
+            return True
+    return False

@@ -21,8 +21,9 @@ from collections import Counter, defaultdict
 from collections.abc import Iterable, Sequence
 from itertools import pairwise
 
-from .captions import block_caption, drawn_form, frequency_caption, value_caption
+from .captions import block_caption, drawn_form, value_caption
 from .errors import CircuitError, ValueParseError
+from .mna import describe_freq
 from .palette import PALETTE, Palette
 from .schematic.connectivity import block_equivalent
 from .schematic.document import Document
@@ -367,7 +368,7 @@ def _heading(sheet: _Sheet, title: str, doc: Document, freq: float) -> None:
     head = ET.SubElement(sheet.root, "g", {"id": "heading", "font-family": FONT_FAMILY})
     baseline = y0 - 1.2
     if doc.blocks():
-        note = f"Equivalents at {frequency_caption(freq)}, {doc.analysis.basis} values"
+        note = f"Equivalents at {describe_freq(freq)}, {doc.analysis.basis} values"
         sheet.text(head, [note], (x0, baseline - CAP_HEIGHT * FONT_SIZE / 2), "e",
                    colour=sheet.palette.muted, cls="subtitle")
         baseline -= LINE_PITCH * FONT_SIZE + 0.4

@@ -430,8 +430,9 @@ def _controlled_four(voltage: bool) -> Body:
         _line((-2, -2), (-2, -0.9)), Circle((-2.0, -0.75), 0.15),
         _line((-2, 2), (-2, 0.9)), Circle((-2.0, 0.75), 0.15),
     )
-    anchors = (TextAnchor("designator", (0, -2.4), "n"), TextAnchor("value", (0, 2.4), "s"),
-               *_marks((-2.6, -0.75), (-2.6, 0.75)))
+    # texts on the two free sides (pins and their wires sit top and bottom), marks between
+    anchors = (TextAnchor("designator", (3.3, 0), "e"), TextAnchor("value", (-2.5, 0), "w"),
+               *_marks((-1.5, -0.75), (-1.5, 0.75)))
     if voltage:
         return shapes, (*anchors, *_marks((1.45, -1.5), (1.45, 1.5)))
     return (*shapes, *_arrow((2, -0.5), (2, 0.5), 0.35, 0.35)), anchors
