@@ -2,8 +2,9 @@
 
 Every symbol comes from engine.symbols and is drawn as one ``<g class="symbol">`` whose
 ``transform`` places it (translate, rotate clockwise, mirror), inside a ``<g>`` for its element
-(``class`` "part", "block", "label" or "ground") that also holds its upright ``<text>``: the
-designator, the value (engine.captions: 4.7 kΩ, 100 nF, 3.33 V ∠ 0°) and any polarity marks.
+(``class`` "part", "block", "label" or "ground") that also holds its upright ``<text>``
+elements, one per line: the designator, the value (engine.captions: 4.7 kΩ, 100 nF,
+3.33 V ∠ 0°) and any polarity marks.
 Wires are ``<polyline class="wire">``; junction dots ``<circle class="junction">`` sit on
 explicit junctions and wherever three or more connections meet; regions are outlined in the
 accent colour with a light fill; a collapsed block shows its equivalent at the analysis
@@ -95,7 +96,8 @@ class _Sheet:
     def text(self, parent: ET.Element, lines: Sequence[str], at: tuple[float, float],
              align: str, *, size: float = FONT_SIZE, colour: str | None = None,
              cls: str = "", bold: bool = False) -> None:
-        """Upright text: one ``<text>``, a ``<tspan>`` per line, set by text_baselines."""
+        """Upright text, one ``<text>`` per line (lines placed by text_baselines; separate
+        elements rather than tspans, which not every SVG renderer positions)."""
         lines = [line for line in lines if line]
         if not lines:
             return
@@ -106,14 +108,8 @@ class _Sheet:
             attrs["class"] = cls
         if bold:
             attrs["font-weight"] = "bold"
-        node = ET.SubElement(parent, "text", {"x": _n(baselines[0][0]),
-                                              "y": _n(baselines[0][1]), **attrs})
-        if len(lines) == 1:
-            node.text = lines[0]
-        else:
-            for line, (x, y) in zip(lines, baselines, strict=True):
-                ET.SubElement(node, "tspan", {"x": _n(x), "y": _n(y)}).text = line
         for line, (x, y) in zip(lines, baselines, strict=True):
+            ET.SubElement(parent, "text", {"x": _n(x), "y": _n(y), **attrs}).text = line
             width = CHAR_WIDTH * size * len(line)
             left = {"start": x, "middle": x - width / 2, "end": x - width}[anchor]
             self.grow((left, y - size, left + width, y + 0.3 * size))
