@@ -72,6 +72,9 @@ class Document:
 
     def __init__(self, title: str = "Untitled") -> None:
         self._elements: dict[str, Element] = {}
+        # indexes kept beside the elements so that checks on add stay O(1) on large sheets
+        self._block_ids: set[str] = set()
+        self._designators: dict[str, str] = {}
         self._analysis = Analysis()
         self._title = title
         self._listeners: list[Listener] = []
@@ -130,10 +133,8 @@ class Document:
         return self.of_type(Block)
 
     def by_designator(self, designator: str) -> PlacedPart | Block | None:
-        for e in self._elements.values():
-            if isinstance(e, PlacedPart | Block) and e.designator == designator:
-                return e
-        return None
+        element_id = self._designators.get(designator)
+        return None if element_id is None else self._elements[element_id]
 
     # -- naming -------------------------------------------------------------------------------
     def new_id(self, cls: type) -> str:
@@ -141,8 +142,22 @@ class Document:
         prefix = _ID_PREFIX[cls]
         while True:
             candidate = f"{prefix}{next(self._counter)}"
-            if candidate not in self._elements:
+            if candidate not in self._elements and candidate not in self._collapsed_ids():
                 return candidate
+
+    def collapsed(self) -> Iterator[Element]:
+        """Every element kept inside a collapsed block (at any depth of nesting); their ids and
+        designators stay reserved so that expanding a block can always put them back."""
+        stack = [self._elements[b].contents for b in self._block_ids]
+        while stack:
+            contents = stack.pop()
+            for group in (contents.parts, contents.wires, contents.junctions, contents.labels,
+                          contents.blocks):
+                yield from group
+            stack.extend(b.contents for b in contents.blocks)
+
+    def _collapsed_ids(self) -> set[str]:
+        return {e.id for e in self.collapsed()} if self._block_ids else set()
 
     def next_designator(self, kind: str, reserved: Iterable[str] = ()) -> str:
         """The lowest free designator for ``kind``: R1, R2, ... (DS for dependent sources).
@@ -150,7 +165,7 @@ class Document:
         ``reserved`` designators count as taken (names handed out but not yet added).
         """
         prefix = DESIGNATOR_PREFIX[kind]
-        taken = {e.designator for e in self._elements.values()
+        taken = {e.designator for e in itertools.chain(self._elements.values(), self.collapsed())
                  if isinstance(e, PlacedPart | Block)} | set(reserved)
         return next(f"{prefix}{n}" for n in itertools.count(1) if f"{prefix}{n}" not in taken)
 
@@ -189,13 +204,16 @@ class Document:
         if element.id in self._elements:
             raise DocumentError(f"an element with id {element.id!r} is already in the document")
         self._check(element)
-        self._elements[element.id] = element
+        self._index(element)
+        if isinstance(element, Block):
+            self._block_ids.add(element.id)
         self._notify(Change(added=frozenset({element.id})))
 
     def remove(self, element_id: str) -> Element:
         """Remove and return an element."""
         element = self[element_id]
-        del self._elements[element_id]
+        self._unindex(element)
+        self._block_ids.discard(element_id)
         self._notify(Change(removed=frozenset({element_id})))
         return element
 
@@ -206,9 +224,21 @@ class Document:
             raise DocumentError(f"{element.id}: cannot replace a {type(old).__name__} "
                                 f"with a {type(element).__name__}")
         self._check(element, replacing=old)
-        self._elements[element.id] = element
+        if isinstance(old, PlacedPart | Block):
+            del self._designators[old.designator]
+        self._index(element)  # same key: the element keeps its place in the document's order
         self._notify(Change(updated=frozenset({element.id})))
         return old
+
+    def _index(self, element: Element) -> None:
+        self._elements[element.id] = element
+        if isinstance(element, PlacedPart | Block):
+            self._designators[element.designator] = element.id
+
+    def _unindex(self, element: Element) -> None:
+        del self._elements[element.id]
+        if isinstance(element, PlacedPart | Block):
+            del self._designators[element.designator]
 
     def set_analysis(self, analysis: Analysis) -> Analysis:
         """Set the analysis settings; returns the old ones."""
@@ -243,6 +273,12 @@ class Document:
             if other is not None and other.id != element.id:
                 raise DocumentError(f"{where}: designator {element.designator!r} is already "
                                     f"used by {other.id}")
+            hidden = next((e for e in self.collapsed() if isinstance(e, PlacedPart | Block)
+                           and e.designator == element.designator), None)
+            if hidden is not None:
+                raise DocumentError(f"{where}: designator {element.designator!r} belongs to a "
+                                    "part inside a collapsed block; choose another or expand "
+                                    "the block")
             if element.rotation not in ROTATIONS:
                 raise DocumentError(f"{where}: rotation must be one of {ROTATIONS}, "
                                     f"got {element.rotation!r}")
