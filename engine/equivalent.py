@@ -440,8 +440,17 @@ def equivalent(circuit: Circuit, region: Collection[str], port: Sequence[str] | 
     return _equivalent_of(cut, f)
 
 
+def _port_of(cut: topology.Cut, dc: bool) -> _Port:
+    """The region's port problem, kept with its (immutable) netlist for the next call."""
+    key = ("port", cut.port, dc)
+    port = cut.netlist.memo.get(key)
+    if port is None:
+        port = cut.netlist.memo[key] = _Port(cut.netlist, cut.port, dc)
+    return port
+
+
 def _equivalent_of(cut: topology.Cut, f: float) -> Equivalent:
-    values = _Port(cut.netlist, cut.port, f == 0).values(np.array([f]))
+    values = _port_of(cut, f == 0).values(np.array([f]))
     return Equivalent(cut.port, f, complex(values.voc[0]), complex(values.isc[0]),
                       complex(values.z[0]), bool(values.thevenin[0]), bool(values.norton[0]))
 
@@ -460,7 +469,7 @@ def sweep(circuit: Circuit, region: Collection[str], freqs: Iterable[float],
     for dc in (True, False):
         where = (f == 0) if dc else (f > 0)
         if where.any():
-            out.take(where, _Port(cut.netlist, cut.port, dc).values(f[where]))
+            out.take(where, _port_of(cut, dc).values(f[where]))
     arrays = (f, out.voc, out.isc, out.z, out.thevenin, out.norton)
     for a in arrays:
         a.flags.writeable = False

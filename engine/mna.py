@@ -30,9 +30,9 @@ from __future__ import annotations
 
 import math
 import warnings
+from collections import defaultdict
 from collections.abc import Iterable, Sequence
-from dataclasses import dataclass
-from itertools import chain
+from itertools import chain, count
 from operator import attrgetter
 
 import numpy as np
@@ -68,20 +68,38 @@ def describe_freq(freq: float) -> str:
     return "DC" if freq == 0 else format_eng(freq, "Hz")
 
 
-@dataclass(frozen=True, slots=True, eq=False)
 class Group:
-    """The parts of one kind: ``nodes[i]`` are part i's net ids (``Part.nets`` order)."""
+    """The parts of one kind: ``nodes[i]`` are part i's net ids (``Part.nets`` order),
+    ``values[i]`` its value; ``names`` and ``refs`` are read from the parts when first asked."""
 
-    names: list[str]
-    nodes: np.ndarray
-    values: np.ndarray
-    refs: list[tuple[str, ...]]
+    __slots__ = ("_names", "members", "nodes", "values")
+
+    def __init__(self, members: list[Part], nodes: np.ndarray, values: np.ndarray) -> None:
+        self.members, self.nodes, self.values = members, nodes, values
+        self._names: list[str] | None = None
 
     def __len__(self) -> int:
-        return len(self.names)
+        return len(self.members)
+
+    @property
+    def names(self) -> list[str]:
+        if self._names is None:
+            self._names = list(map(_NAME, self.members))
+        return self._names
+
+    @property
+    def refs(self) -> list[tuple[str, ...]]:
+        return [p.refs for p in self.members]
 
 
-_EMPTY = Group([], np.zeros((0, 4), dtype=np.intp), np.zeros(0), [])
+_EMPTY = Group([], np.zeros((0, 4), dtype=np.intp), np.zeros(0))
+
+
+def _values(members: list[Part]) -> np.ndarray:
+    try:
+        return np.fromiter(map(_VALUE, members), float, len(members))
+    except TypeError:  # a complex value among them
+        return np.fromiter(map(_VALUE, members), complex, len(members))
 
 
 class Netlist:
@@ -89,38 +107,35 @@ class Netlist:
 
     ``nets[i]`` is the name of net id ``i`` (numbered in order of first use, kind by kind);
     ``index`` maps a name back. Couplings are kept with their inductor names in ``refs``.
+    A netlist never changes after construction (its parts are immutable), so results derived
+    from it alone may be kept in ``memo``.
     """
 
-    __slots__ = ("controllers", "groups", "index", "nets", "parts")
+    __slots__ = ("controllers", "groups", "index", "memo", "nets", "parts")
 
     def __init__(self, parts: Sequence[Part]) -> None:
         by_kind: dict[str, list[Part]] = {kind: [] for kind in KINDS}
         for part in parts:
             by_kind[part.kind].append(part)
-        flat: dict[str, list[str]] = {}
-        seen: dict[str, None] = {}
-        for kind, members in by_kind.items():
-            if not members or kind == "coupling":
-                continue
-            names = (list(chain.from_iterable(p.nets for p in members)) if kind == "opamp"
-                     else list(chain.from_iterable(map(_NODES, members))))
-            seen.update(dict.fromkeys(names))
-            flat[kind] = names
-        self.parts = parts
-        self.nets: list[str] = list(seen)
-        self.index: dict[str, int] = {name: i for i, name in enumerate(self.nets)}
+        # one hash look-up per node: a missing net name takes the next id
+        index: defaultdict[str, int] = defaultdict(count().__next__)
+        lookup = index.__getitem__
         self.groups: dict[str, Group] = {}
-        lookup = self.index.__getitem__
         for kind, members in by_kind.items():
             if not members:
                 continue
-            names = flat.get(kind, [])
-            ids = np.fromiter(map(lookup, names), dtype=np.intp, count=len(names))
-            refs = [p.refs for p in members] if kind in (*_CONTROLLED, "coupling") else []
-            self.groups[kind] = Group(list(map(_NAME, members)),
-                                      ids.reshape(len(members), -1),
-                                      np.array(list(map(_VALUE, members))), refs)
+            width = len(KINDS[kind]) + (kind == "opamp")
+            nets = (chain.from_iterable(p.nets for p in members) if kind == "opamp"
+                    else chain.from_iterable(map(_NODES, members)))
+            ids = np.fromiter(map(lookup, nets), np.intp, width * len(members))
+            self.groups[kind] = Group(members, ids.reshape(len(members), width),
+                                      _values(members))
+        index.default_factory = None
+        self.parts = parts
+        self.index: dict[str, int] = index
+        self.nets: list[str] = list(index)
         self.controllers: set[str] = {r[0] for kind in _CONTROLLED for r in self[kind].refs}
+        self.memo: dict[object, object] = {}
 
     def __getitem__(self, kind: str) -> Group:
         return self.groups.get(kind, _EMPTY)
@@ -453,7 +468,8 @@ def _culprits(system: System, matrix: sp.spmatrix | None) -> str:
     """Undetermined unknowns (from a structural matching) and the parts that usually cause it."""
     hints = []
     if matrix is not None and matrix.shape[0]:
-        pattern = sp.csr_matrix((np.ones(matrix.nnz), matrix.nonzero()), shape=matrix.shape)
+        rows, cols = matrix.nonzero()
+        pattern = sp.csr_matrix((np.ones(rows.size), (rows, cols)), shape=matrix.shape)
         matched = maximum_bipartite_matching(pattern, perm_type="row")
         loose = np.flatnonzero(matched < 0)
         if loose.size:

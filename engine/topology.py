@@ -24,7 +24,7 @@ from __future__ import annotations
 from collections.abc import Collection, Iterable, Sequence
 from dataclasses import dataclass
 from itertools import chain
-from operator import attrgetter
+from operator import attrgetter, is_
 
 import networkx as nx
 import numpy as np
@@ -36,7 +36,7 @@ from .errors import CircuitError, CutError, SingularCircuitError
 from .mna import Netlist
 
 __all__ = ["Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",
-           "islands"]
+           "islands", "netlist_of"]
 
 _NODES = attrgetter("nodes")
 _SENSING = frozenset({"vcvs", "vccs", "opamp"})
@@ -114,16 +114,23 @@ def check_cut(circuit: Circuit, region: Collection[str],
 def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = None) -> Cut:
     """:func:`check_cut`, returning the :class:`Cut` with the region's parts and netlist."""
     names = _region_names(region)
-    unknown = sorted(names.difference(circuit.names))
-    if unknown:
+    everything = list(circuit)
+    whole = len(names) == len(everything) and names.issuperset(circuit.names)
+    inside = everything if whole else [p for p in everything if p.name in names]
+    if len(inside) != len(names):
+        unknown = sorted(map(str, names.difference(circuit.names)))
         raise CutError(f"the region names {_plural(len(unknown), 'a part', 'parts')} that "
                        f"{_plural(len(unknown), 'is', 'are')} not in the circuit: "
                        f"{_listing(unknown)}")
-    everything = list(circuit)
-    inside = everything if len(names) == len(everything) else \
-        [p for p in everything if p.name in names]
-    inside, outside = _follow_couplings(everything, inside, names)
-    netlist = Netlist(inside)
+    outside = [p for p in everything if p.name not in names] if len(inside) < len(everything) \
+        else []
+    netlist = netlist_of(inside)
+    flipped = _coupling_sides(netlist, outside, names)
+    if flipped:
+        names = names.symmetric_difference(flipped)
+        inside = [p for p in everything if p.name in names]
+        outside = [p for p in everything if p.name not in names]
+        netlist = netlist_of(inside)
     _check_controls(circuit, netlist, outside, names)
     side = _Sides(netlist, outside)
     if port is not None:
@@ -146,28 +153,45 @@ def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = 
     return Cut((plus, minus), tuple(inside), netlist)
 
 
+#: The netlists of the last few regions, each with the exact Part objects it was built from.
+_RECENT: list[tuple[list[Part], Netlist]] = []
+_KEEP = 3
+
+
+def netlist_of(parts: list[Part]) -> Netlist:
+    """The :class:`Netlist` of ``parts``, reused while they are the very same Part objects.
+
+    Parts are immutable, so a netlist (and what is derived from it alone) cannot go stale; an
+    edit makes new Part objects and a new netlist. Comparing identities costs one pointer test
+    per part, against some microseconds per part to build.
+    """
+    for i, (key, netlist) in enumerate(_RECENT):
+        if len(key) == len(parts) and all(map(is_, key, parts)):
+            _RECENT.insert(0, _RECENT.pop(i))
+            return netlist
+    netlist = Netlist(parts)
+    _RECENT.insert(0, (parts, netlist))
+    del _RECENT[_KEEP:]
+    return netlist
+
+
 def _region_names(region: Collection[str]) -> set[str]:
     if isinstance(region, str):
         raise CutError(f"the region must be a collection of part names, not the single text "
                        f"{region!r}; write {{{region!r}}}")
     try:
-        names = set(region)
+        names = region if isinstance(region, set | frozenset) else set(region)
     except TypeError:
         raise CutError(f"the region must be a collection of part names, not {region!r}") from None
-    bad = [n for n in names if not isinstance(n, str)]
-    if bad:
-        raise CutError(f"the region holds {bad[0]!r}, which is not a part name")
     if not names:
         raise CutError("the region is empty; name the parts inside the boundary")
     return names
 
 
-def _follow_couplings(everything: list[Part], inside: list[Part], names: set[str]
-                      ) -> tuple[list[Part], list[Part]]:
-    """Put each coupling on the side of its inductors; refuse one that spans the boundary."""
-    couplings = [p for p in everything if p.kind == "coupling"]
+def _coupling_sides(netlist: Netlist, outside: list[Part], names: set[str]) -> set[str]:
+    """Couplings that must change side to follow their inductors; refuse one spanning it."""
     flipped: set[str] = set()
-    for k in couplings:
+    for k in [*netlist["coupling"].members, *(p for p in outside if p.kind == "coupling")]:
         l1, l2 = k.refs
         if (l1 in names) != (l2 in names):
             a, b = (l1, l2) if l1 in names else (l2, l1)
@@ -176,12 +200,7 @@ def _follow_couplings(everything: list[Part], inside: list[Part], names: set[str
                            "on one side")
         if (l1 in names) != (k.name in names):
             flipped.add(k.name)
-    if flipped:
-        inside = [p for p in everything if (p.name in names) != (p.name in flipped)]
-    if len(inside) == len(everything):
-        return inside, []
-    chosen = {p.name for p in inside} if flipped else names
-    return inside, [p for p in everything if p.name not in chosen]
+    return flipped
 
 
 def _check_controls(circuit: Circuit, netlist: Netlist, outside: list[Part],
@@ -462,18 +481,19 @@ def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | Non
         spec.append(("inductor", (0, 1)))
     masks = {kind: _free_current(netlist, kind) for kind, _ in spec}
     a, b = _pairs(netlist, spec, masks)
-    names = [n for kind, _ in spec
-             for n, keep in zip(netlist[kind].names, masks[kind], strict=True) if keep]
     if short is not None:
         a, b = np.append(a, short[0]), np.append(b, short[1])
-        names.append(SHORT)
-    if not names:
+    if not a.size:
         return
     used, local = np.unique(np.concatenate((a, b)), return_inverse=True)
     la, lb = local[: a.size], local[a.size:]
     n_components = int(_components(used.size, la, lb).max()) + 1
     if a.size <= used.size - n_components:
         return  # a forest: no loop
+    names = [n for kind, _ in spec for n, keep in zip(netlist[kind].names, masks[kind].tolist(),
+                                                      strict=True) if keep]
+    if short is not None:
+        names.append(SHORT)
     graph = nx.MultiGraph()
     graph.add_edges_from(zip(a.tolist(), b.tolist(), names, strict=True))
     loop = [key for _u, _v, key in nx.find_cycle(graph)]

@@ -1,0 +1,219 @@
+"""Engine benchmark: each figure is printed as a ratio against a floor measured in the same run.
+
+``python3 -m engine.bench`` (or ``portcut bench``) times, on generated circuits:
+
+* ``equivalent()`` of an RC mesh region of 10,000 and 100,000 nets at 1 kHz, against the floor
+  of SciPy's own work on the same system assembled here directly: one SuperLU factorization
+  (same column ordering as the engine) and the two solves; target at most 1.3x;
+* a 1,000-point ``sweep()`` of a 50-net region, against one batched ``numpy.linalg.solve`` of
+  the same dense stack; target at most 1.5x;
+* ``equivalent()`` of a 200-part circuit of every part kind: median time, target under 2 ms.
+
+Timings are medians of repeated runs (the machines are noisy); figures go to docs/performance.md.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import statistics
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.linalg import splu
+
+from .circuit import GROUND, Circuit
+from .equivalent import equivalent, sweep
+from .mna import ORDERING
+
+__all__ = ["Row", "main", "mesh", "mixed_circuit", "run"]
+
+FREQ = 1e3
+R_MESH, C_MESH, R_SOURCE = 1e3, 1e-9, 50.0
+
+
+def mesh(rows: int, cols: int) -> Circuit:
+    """An RC mesh: rows x cols nets ``m<r>_<c>``, 1 kΩ between neighbours, 1 nF from each net to
+    ground, and a 1 V source behind 50 Ω into the first corner. All of it is the region; the
+    port is the far corner against ground."""
+    c = Circuit()
+    c.voltage_source("V1", "src", GROUND, 1.0)
+    c.resistor("RS", "src", "m0_0", R_SOURCE)
+    for r in range(rows):
+        for k in range(cols):
+            net = f"m{r}_{k}"
+            if k + 1 < cols:
+                c.resistor(f"RH{r}_{k}", net, f"m{r}_{k + 1}", R_MESH)
+            if r + 1 < rows:
+                c.resistor(f"RV{r}_{k}", net, f"m{r + 1}_{k}", R_MESH)
+            c.capacitor(f"C{r}_{k}", net, GROUND, C_MESH)
+    return c
+
+
+def _mesh_floor_system(rows: int, cols: int, freq: float) -> tuple[sp.csc_matrix, np.ndarray]:
+    """The MNA matrix of :func:`mesh` built directly from the grid, and its two right-hand sides.
+
+    Unknowns: the mesh nets in row-major order, the source net, the source's branch current.
+    """
+    n = rows * cols
+    grid = np.arange(n).reshape(rows, cols)
+    a = np.concatenate((grid[:, :-1].ravel(), grid[:-1, :].ravel()))
+    b = np.concatenate((grid[:, 1:].ravel(), grid[1:, :].ravel()))
+    g = np.full(a.size, 1 / R_MESH)
+    src, branch = n, n + 1
+    y_cap = np.full(n, 2j * math.pi * freq * C_MESH)
+    gs = 1 / R_SOURCE
+    rows_ = np.concatenate((a, b, a, b, grid.ravel(), [0, src, 0, src, src, branch]))
+    cols_ = np.concatenate((a, b, b, a, grid.ravel(), [0, src, src, 0, branch, src]))
+    vals = np.concatenate((g, g, -g, -g, y_cap, [gs, gs, -gs, -gs, 1, 1]))
+    matrix = sp.csc_matrix((vals.astype(complex), (rows_, cols_)), shape=(n + 2, n + 2))
+    rhs = np.zeros((n + 2, 2), dtype=complex)
+    rhs[branch, 0] = 1.0
+    rhs[n - 1, 1] = 1.0
+    return matrix, rhs
+
+
+def mixed_circuit(stages: int = 20) -> tuple[Circuit, set[str], tuple[str, str]]:
+    """About ten parts per stage, every part kind: a chain of RLC sections with controlled
+    sources, couplings and op-amp buffers; the region is all but a load at the far end."""
+    c = Circuit()
+    c.voltage_source("V1", "s0", GROUND, 1.0, phase_deg=15)
+    for i in range(stages):
+        a, m, b = f"s{i}", f"m{i}", f"s{i + 1}"
+        c.resistor(f"RA{i}", a, m, 100 + i)
+        c.inductor(f"LA{i}", m, b, 1e-3)
+        c.capacitor(f"CA{i}", b, GROUND, 10e-9)
+        c.resistor(f"RB{i}", b, GROUND, 10e3)
+        c.inductor(f"LB{i}", f"t{i}", GROUND, 1e-3)
+        c.coupling(f"K{i}", f"LA{i}", f"LB{i}", 0.5)
+        c.resistor(f"RT{i}", f"t{i}", GROUND, 1e3)
+        c.vccs(f"DG{i}", GROUND, f"t{i}", b, GROUND, 1e-4)
+        c.impedance(f"Z{i}", m, GROUND, 1e3 + 200j)
+        if i % 4 == 3:
+            c.opamp(f"U{i}", b, f"o{i}", f"o{i}")
+            c.resistor(f"RO{i}", f"o{i}", GROUND, 10e3)
+            c.cccs(f"DF{i}", GROUND, b, f"RO{i}", 0.01)
+        if i % 5 == 4:
+            c.current_source(f"I{i}", GROUND, b, 1e-4)
+            c.vcvs(f"DE{i}", f"e{i}", GROUND, b, GROUND, 0.5)
+            c.ccvs(f"DH{i}", f"h{i}", GROUND, f"RT{i}", 10.0)
+            c.resistor(f"RE{i}", f"e{i}", f"h{i}", 1e3)
+    out = f"s{stages}"
+    region = set(c.names)
+    c.resistor("RLOAD", out, GROUND, 1e3)
+    return c, region, (out, GROUND)
+
+
+def _median(fn: Callable[[], object], repeat: int) -> float:
+    times = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+@dataclass(frozen=True, slots=True)
+class Row:
+    """One benchmark line: engine time and floor time (s), their ratio and the target."""
+
+    case: str
+    engine: float
+    floor: float | None
+    target: float
+    unit: str  # "x" (a ratio to the floor) or "ms" (an absolute median time)
+
+    @property
+    def figure(self) -> float:
+        return self.engine / self.floor if self.floor else self.engine * 1e3
+
+    @property
+    def met(self) -> bool:
+        return self.figure <= self.target if self.unit == "x" else self.figure < self.target
+
+
+def bench_mesh(nets: int, repeat: int) -> Row:
+    side = round(math.sqrt(nets))
+    circuit = mesh(side, side)
+    region = set(circuit.names)
+    port = (f"m{side - 1}_{side - 1}", GROUND)
+    matrix, rhs = _mesh_floor_system(side, side, FREQ)
+
+    def floor() -> None:
+        splu(matrix, permc_spec=ORDERING).solve(rhs)
+
+    def engine() -> None:
+        equivalent(circuit, region, port, FREQ)
+
+    engine()  # warm caches and imports once
+    return Row(f"equivalent(), RC mesh of {side * side:,} nets", _median(engine, repeat),
+               _median(floor, repeat), 1.3, "x")
+
+
+def bench_sweep(points: int, repeat: int) -> Row:
+    circuit = mesh(5, 10)
+    region = set(circuit.names)
+    port = ("m4_9", GROUND)
+    freqs = np.logspace(1, 7, points)
+    matrix, rhs = _mesh_floor_system(5, 10, 1.0)
+    g = _mesh_floor_system(5, 10, 0.0)[0].toarray()
+    per_hertz = matrix.toarray() - g
+    stack = g[None] + freqs[:, None, None] * per_hertz[None]
+
+    def floor() -> None:
+        np.linalg.solve(stack, rhs)
+
+    def engine() -> None:
+        sweep(circuit, region, freqs, port)
+
+    engine()
+    return Row(f"sweep(), {points:,} points of a 50-net region", _median(engine, repeat),
+               _median(floor, repeat), 1.5, "x")
+
+
+def bench_small(repeat: int) -> Row:
+    circuit, region, port = mixed_circuit()
+    engine = lambda: equivalent(circuit, region, port, FREQ)  # noqa: E731
+    engine()
+    return Row(f"equivalent(), {len(circuit)}-part circuit of every kind",
+               _median(engine, repeat), None, 2.0, "ms")
+
+
+def run(quick: bool = False) -> list[Row]:
+    """All the benchmark rows (``quick``: skip the 100,000-net mesh, fewer repeats)."""
+    rows = [bench_mesh(10_000, 5 if quick else 9)]
+    if not quick:
+        rows.append(bench_mesh(100_000, 3))
+    rows.append(bench_sweep(1000, 5 if quick else 9))
+    rows.append(bench_small(51 if quick else 201))
+    return rows
+
+
+def format_table(rows: Sequence[Row]) -> str:
+    lines = [f"{'case':<46} {'engine':>10} {'floor':>10} {'figure':>8} {'target':>8}  met",
+             "-" * 92]
+    for r in rows:
+        floor = f"{r.floor * 1e3:8.2f} ms" if r.floor else f"{'-':>10}"
+        figure = f"{r.figure:7.2f}{r.unit}" if r.unit == "x" else f"{r.figure:6.2f}ms"
+        target = f"<={r.target:.1f}x" if r.unit == "x" else f"<{r.target:.1f}ms"
+        lines.append(f"{r.case:<46} {r.engine * 1e3:8.2f} ms {floor} {figure:>8} {target:>8}  "
+                     f"{'yes' if r.met else 'NO'}")
+    return "\n".join(lines)
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the benchmark and print the table; exit status 0 when every target is met."""
+    parser = argparse.ArgumentParser(prog="portcut bench", description=__doc__.split("\n")[0])
+    parser.add_argument("--quick", action="store_true",
+                        help="skip the 100,000-net mesh and repeat less")
+    args = parser.parse_args(argv)
+    rows = run(quick=args.quick)
+    print(format_table(rows))
+    return 0 if all(r.met for r in rows) else 1
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
