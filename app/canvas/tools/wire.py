@@ -120,7 +120,10 @@ class WireTool(Tool):
         self.announce()
 
     def double_click(self, ev: CanvasEvent) -> None:
-        self.press(ev)
+        # the press before it added the point; this second click ends the wire there (and
+        # starts nothing when that press already ended it)
+        if self.draft is not None:
+            self.press(ev)
 
     def click(self, ev: CanvasEvent) -> None:
         self.press(ev)

@@ -1,0 +1,131 @@
+"""Files from the window: save and reopen to the same document, a corrupt file refused with the
+loader's message while the open sheet stays as it was, the unsaved-changes prompt, recent
+files, autosave recovery after a crash, and the SVG export rendered by Qt's SVG renderer."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QColor, QImage, QPainter
+from PySide6.QtSvg import QSvgRenderer
+
+import assets
+from app import dialogs
+from app.recovery import left_over
+from app.window import MainWindow
+from engine.errors import DocumentError
+from engine.schematic.fileformat import dumps, load, loads
+
+
+def _draw(drive) -> None:
+    drive.place("voltage_source", (0, 0))
+    drive.place("resistor", (8, 0))
+    drive.wire((2, 0), (6, 0))
+
+
+def test_save_and_reopen_give_the_same_document(window, drive, tmp_path: Path):
+    _draw(drive)
+    path = tmp_path / "sheet.json"
+    assert window.files.save_to(path)
+    assert not window.workbench.dirty and window.workbench.path == path
+    drawn = loads(dumps(drive.doc))
+    assert window.files.new()
+    assert len(drive.doc) == 0
+    assert window.files.open_path(path)
+    assert drive.doc == drawn
+    assert window.settings.recent_files[0] == path.resolve()
+    assert window.windowTitle().startswith("sheet.json")
+
+
+def test_corrupt_file_is_refused_and_the_sheet_kept(window, drive, close_error_box,
+                                                   tmp_path: Path):
+    _draw(drive)
+    before = loads(dumps(drive.doc))
+    bad = tmp_path / "bad.json"
+    text = dumps(before)
+    assert '"kind": "voltage_source"' in text
+    bad.write_text(text.replace('"kind": "voltage_source"', '"kind": "flux_source"'),
+                   encoding="utf-8")
+    with pytest.raises(DocumentError, match=r"parts\[\d+\]\.kind") as loader:
+        load(bad)
+    assert not window.files.open_path(bad, confirmed=True)
+    message = close_error_box()
+    assert str(loader.value) in message
+    assert drive.doc == before and window.workbench.path is None
+    truncated = tmp_path / "cut.json"
+    truncated.write_text(dumps(before)[:40], encoding="utf-8")
+    assert not window.files.open_path(truncated, confirmed=True)
+    assert "cut.json" in close_error_box()
+    assert drive.doc == before
+
+
+def test_unsaved_changes_prompt(window, drive, monkeypatch, tmp_path: Path):
+    _draw(drive)
+    asked = []
+    monkeypatch.setattr(dialogs, "ask_save_changes",
+                        lambda parent, name: asked.append(name) or dialogs.SaveChoice.CANCEL)
+    assert not window.files.new()                     # cancelled: nothing changes
+    assert asked and len(drive.doc.parts()) == 2
+    assert not window.close()
+    target = tmp_path / "kept.json"
+    monkeypatch.setattr(dialogs, "ask_save_changes", lambda *a: dialogs.SaveChoice.SAVE)
+    monkeypatch.setattr(window.files, "save_as", lambda: window.files.save_to(target))
+    assert window.files.open_path(assets.example_path(), as_copy=True)
+    assert target.exists() and len(load(target).parts()) == 2
+
+
+def test_autosave_is_offered_back_after_a_crash(qtbot, settings, tmp_path: Path, monkeypatch):
+    folder = tmp_path / "recovery"
+    first = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(first)
+    first.files.open_path(assets.example_path("rc_antialias"), as_copy=True)
+    first.canvas.select_all()
+    first.canvas.move_selection((3, 0))
+    assert first.recovery.autosave()
+    lost = loads(dumps(first.workbench.doc))
+    first.recovery.lock.unlock()      # the process "dies": its lock is gone, its files stay
+    first.recovery = None
+    monkeypatch.setattr(dialogs, "ask_restore", lambda parent, what: "autosaved" in what)
+    second = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(second)
+    assert second.offer_recovery()
+    assert second.workbench.doc == lost and second.workbench.dirty
+    assert left_over(folder) == []    # the recovered copy was taken over
+    assert second.recovery.autosave()   # and the restored work is autosaved again
+    second.files.save_to(tmp_path / "saved.json")     # saved: nothing left to recover
+    assert not second.recovery.document.exists()
+
+
+def test_a_clean_close_leaves_nothing_to_recover(qtbot, settings, tmp_path: Path):
+    folder = tmp_path / "recovery"
+    w = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(w)
+    w.canvas.place("resistor")
+    w.canvas.tool.press(w.canvas.event_at(w.canvas.view.mapToScene(0, 0),
+                                          Qt.MouseButton.LeftButton))
+    assert w.recovery.autosave()
+    w.close()
+    again = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(again)
+    assert not again.offer_recovery()
+
+
+def test_svg_export_renders_with_qt(window, tmp_path: Path):
+    assert window.files.open_path(assets.example_path(), as_copy=True)
+    out = tmp_path / "demo.svg"
+    assert window.files.export_svg_to(out)
+    renderer = QSvgRenderer(str(out))
+    assert renderer.isValid()
+    size = renderer.defaultSize()
+    assert size.width() > 100 and size.height() > 100
+    image = QImage(size, QImage.Format.Format_ARGB32)
+    image.fill(QColor("white"))
+    painter = QPainter(image)
+    renderer.render(painter)
+    painter.end()
+    # count pixels far from the paper colour: strokes and text
+    ink = sum(1 for y in range(0, image.height(), 2) for x in range(0, image.width(), 2)
+              if QColor(image.pixel(x, y)).lightness() < 120)
+    assert ink > 200
