@@ -1,0 +1,473 @@
+"""Regions of a drawn schematic: their live equivalent, and collapsing them into blocks and back.
+
+:func:`analyse_region` answers the product's question for one Region of a Document: is it a true
+two-terminal cut, and if so what are its Thevenin and Norton equivalents at the document's analysis
+frequency. Where the cut is not valid it says why in plain words and names the nets and parts to
+highlight.
+
+:func:`collapse_region` and :func:`expand_block` compute an :class:`Edit` (elements to take off
+the sheet and to put on it) without touching the document; :meth:`Edit.apply` performs it in one
+notification and :meth:`Edit.inverse` undoes it exactly. Collapse keeps every wire of the two port
+nets on the sheet, takes off the region's parts and everything on its internal nets, puts a Block
+where the parts were and wires its pins to the port nets; the result is checked by re-extracting
+connectivity, so a stub never joins a net it should not.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable
+from dataclasses import dataclass, replace
+from itertools import islice, pairwise, product
+
+from ..circuit import GROUND, Circuit
+from ..equivalent import (
+    EquivalenceReport,
+    Equivalent,
+    check_equivalence,
+    collapse,
+    equivalent,
+)
+from ..errors import CircuitError, CutError, DocumentError
+from ..symbols import Point, pin_positions, placed_bounds
+from ..units import parse_frequency
+from .connectivity import Connectivity, build_circuit, extract, net_at
+from .document import Document
+from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Region, Wire
+
+__all__ = [
+    "Edit",
+    "RegionAnalysis",
+    "analyse_region",
+    "collapse_region",
+    "equivalence",
+    "expand_block",
+    "region_part_names",
+    "swapped",
+]
+
+
+@dataclass(frozen=True)
+class RegionAnalysis:
+    """The outcome of analysing one region.
+
+    ``ok`` is True when the cut is valid and the equivalent was computed (``equivalent`` is set,
+    its ``port`` the (plus, minus) nets). Otherwise ``message`` says in plain words what is wrong
+    and how to fix it, and ``bad_nets`` / ``bad_elements`` (element ids: parts, blocks, wires)
+    are what a view should highlight.
+    """
+
+    region_id: str
+    ok: bool
+    message: str = ""
+    equivalent: Equivalent | None = None
+    freq: float = 0.0
+    bad_nets: frozenset[str] = frozenset()
+    bad_elements: frozenset[str] = frozenset()
+    circuit: Circuit | None = None
+    part_names: frozenset[str] = frozenset()
+
+
+@dataclass(frozen=True)
+class Edit:
+    """Elements to remove (by value, so the edit can be undone) and elements to add."""
+
+    removed: tuple[Element, ...] = ()
+    added: tuple[Element, ...] = ()
+
+    def apply(self, doc: Document) -> None:
+        """Perform the edit as one change notification."""
+        with doc.batch():
+            for element in self.removed:
+                doc.remove(element.id)
+            for element in self.added:
+                doc.add(element)
+
+    def inverse(self) -> Edit:
+        return Edit(removed=self.added, added=self.removed)
+
+
+def region_part_names(doc: Document, region: Region, circuit: Circuit) -> frozenset[str]:
+    """Circuit part names standing for the region's members: designators of parts, and the
+    ``<designator>.*`` parts that stand in for a member block."""
+    names: set[str] = set()
+    for element in (doc[m] for m in region.members if m in doc):
+        if isinstance(element, PlacedPart):
+            names.add(element.designator)
+        elif isinstance(element, Block):
+            prefix = f"{element.designator}."
+            names.update(n for n in circuit.names if n.startswith(prefix))
+    return frozenset(names)
+
+
+def analyse_region(doc: Document, region_id: str, *, conn: Connectivity | None = None,
+                   freq: float | None = None) -> RegionAnalysis:
+    """Check the region's cut and compute its equivalent at ``freq`` hertz (default: the
+    document's analysis frequency). Never raises for a bad circuit: the answer says what is
+    wrong."""
+    region = doc[region_id]
+    if not isinstance(region, Region):
+        raise DocumentError(f"{region_id} is a {type(region).__name__}, not a region")
+    try:
+        hz = parse_frequency(doc.analysis.freq) if freq is None else freq
+        conn = conn or extract(doc)
+        circuit = build_circuit(doc, conn, hz)
+    except CircuitError as e:
+        return RegionAnalysis(region_id, False, f"the circuit cannot be built: {e}")
+    names = region_part_names(doc, region, circuit)
+    if not names:
+        return RegionAnalysis(region_id, False, "the region holds no parts: draw the boundary "
+                              "around the parts to reduce", freq=hz, circuit=circuit)
+    try:
+        eq = equivalent(circuit, region=set(names), freq=hz)
+    except CutError as e:
+        return RegionAnalysis(region_id, False, str(e), freq=hz,
+                              bad_nets=frozenset(e.nets),
+                              bad_elements=_elements_of(doc, conn, e.nets, e.parts),
+                              circuit=circuit, part_names=names)
+    except CircuitError as e:
+        return RegionAnalysis(region_id, False, str(e), freq=hz, circuit=circuit,
+                              part_names=names)
+    if region.swap:
+        eq = swapped(eq)
+    return RegionAnalysis(region_id, True, equivalent=eq, freq=hz, circuit=circuit,
+                          part_names=names)
+
+
+def equivalence(analysis: RegionAnalysis, form: str = "thevenin",
+                loads: Iterable[object] = ()) -> EquivalenceReport:
+    """How closely the circuit with the region replaced by its ``form`` equivalent reproduces
+    the original from outside: every outside net voltage and the port current, for the outside
+    as drawn and for each extra load across the port (see engine.check_equivalence)."""
+    if not analysis.ok:
+        raise CircuitError(f"no equivalent to check: {analysis.message}")
+    eq = analysis.equivalent
+    if (form == "thevenin" and not eq.has_thevenin) or (form == "norton" and not eq.has_norton):
+        form = "norton" if form == "thevenin" else "thevenin"
+    region = set(analysis.part_names)
+    reduced = collapse(analysis.circuit, region, port=eq.port, freq=analysis.freq, form=form)
+    return check_equivalence(analysis.circuit, reduced, region, port=eq.port,
+                             freq=analysis.freq, loads=loads)
+
+
+def swapped(eq: Equivalent) -> Equivalent:
+    """The same equivalent seen with plus and minus exchanged: voc and isc change sign."""
+    plus, minus = eq.port
+    return replace(eq, port=(minus, plus), voc=-eq.voc, isc=-eq.isc)
+
+
+def _elements_of(doc: Document, conn: Connectivity, nets: Iterable[str],
+                 designators: Iterable[str]) -> frozenset[str]:
+    nets, designators = set(nets), {d.split(".")[0] for d in designators}
+    found = {wid for wid, net in conn.net_of_wire.items() if net in nets}
+    found.update(e.id for e in doc if isinstance(e, PlacedPart | Block)
+                 and e.designator in designators)
+    return frozenset(found)
+
+
+# -- collapse -------------------------------------------------------------------------------------
+
+def _pins(element: PlacedPart | Block) -> tuple[Point, ...]:
+    kind = "block" if isinstance(element, Block) else element.kind
+    return pin_positions(kind, element.at, element.rotation, element.mirror)
+
+
+def _members(doc: Document, region: Region) -> list[PlacedPart | Block]:
+    """The region's parts and blocks, plus every coupling both of whose inductors are inside."""
+    chosen = [e for e in (doc[m] for m in sorted(region.members) if m in doc)
+              if isinstance(e, PlacedPart | Block)]
+    inside = {e.designator for e in chosen}
+    chosen += [p for p in doc.parts() if p.kind == "coupling" and p.id not in region.members
+               and p.couples and set(p.couples) <= inside]
+    return chosen
+
+
+def collapse_region(doc: Document, region_id: str, form: str | None = None) -> Edit:
+    """The edit that replaces the region by its equivalent block (``form`` defaults to the
+    document's analysis form). Raises CutError / CircuitError saying why when it cannot.
+
+    Everything on the region's internal nets goes into the block. Of the two port nets, the
+    wires, labels and junctions inside the drawn outline go too and wires that cross it are cut
+    back to it, so the block sits in a clear space with stubs running out to the cut ends. Each
+    layout is checked by re-extracting connectivity; where the tidy one would change any net, a
+    plainer one is used (port-net wires kept whole, then all kept).
+    """
+    analysis = analyse_region(doc, region_id)
+    if not analysis.ok:
+        raise CutError(f"cannot collapse: {analysis.message}")
+    eq = analysis.equivalent
+    if not (eq.has_thevenin or eq.has_norton):
+        raise CircuitError("cannot collapse: the region has neither a Thevenin nor a Norton form")
+    region: Region = doc[region_id]
+    conn = extract(doc)
+    members = _members(doc, region)
+    port = eq.port
+    internal = {conn.net_of_pin[m.id, i] for m in members for i in range(len(_pins(m)))}
+    internal -= set(port)
+    drawn = [e for e in doc if isinstance(e, Wire | NetLabel | Junction)]
+    net_of = {e.id: _net_of(doc, conn, e) for e in drawn}
+    inner = [e for e in drawn if net_of[e.id] in internal]
+    port_points = tuple(tuple(sorted({pt for m in members for i, pt in enumerate(_pins(m))
+                                      if conn.net_of_pin[m.id, i] == net})) for net in port)
+    inside = _inside(region.outline)
+    on_port = [e for e in drawn if net_of[e.id] in port]
+    within = [e for e in on_port if all(map(inside, _points_of(e)))]
+    crossing = {w.id: _outside_runs(w, inside) for w in on_port
+                if isinstance(w, Wire) and w not in within and any(map(inside, _grid_walk(w)))}
+    layouts = [(within + [w for w in on_port if w.id in crossing], True), (within, False)]
+    for extra, trim in [*(layouts if within or crossing else []), ([], False)]:
+        taken = (*inner, *extra)
+        pieces = [Wire(doc.new_id(Wire), run) for w in extra if trim and w.id in crossing
+                  for run in crossing[w.id]]
+        contents = Contents(
+            parts=tuple(m for m in members if isinstance(m, PlacedPart)),
+            wires=tuple(e for e in taken if isinstance(e, Wire)),
+            junctions=tuple(e for e in taken if isinstance(e, Junction)),
+            labels=tuple(e for e in taken if isinstance(e, NetLabel)),
+            blocks=tuple(m for m in members if isinstance(m, Block)))
+        removed: tuple[Element, ...] = (*members, *taken, region)
+        block = Block(id=doc.new_id(Block), designator=doc.next_designator("block"),
+                      form=form or doc.analysis.form, at=_centre(members), region=region,
+                      contents=contents, port=port_points)
+        after = _scratch(doc, drop={e.id for e in removed})
+        for piece in pieces:
+            after.add(piece)
+        reach = [_Reach(points, [e for e in extra if net_of[e.id] == net])
+                 for net, points in zip(port, port_points, strict=True)]
+        stubs = _connect(doc, conn, after, block, port, reach, fresh={p.id for p in pieces})
+        if stubs is not None:
+            added = (*pieces, *stubs)
+            block = replace(block, stubs=tuple(s.id for s in added))
+            return Edit(removed=removed, added=(block, *added))
+    raise CircuitError(f"cannot collapse: no clear path for the equivalent block's wires to "
+                       f"the port nets {port[0]} and {port[1]}; move parts away from the "
+                       "region and try again")
+
+
+def _grid_walk(wire: Wire) -> list[Point]:
+    """Every grid point along the wire, in order."""
+    walk: list[Point] = [wire.points[0]]
+    for (x0, y0), (x1, y1) in pairwise(wire.points):
+        steps = max(abs(x1 - x0), abs(y1 - y0))
+        sx, sy = (x1 > x0) - (x1 < x0), (y1 > y0) - (y1 < y0)
+        walk.extend((x0 + sx * i, y0 + sy * i) for i in range(1, steps + 1))
+    return walk
+
+
+def _outside_runs(wire: Wire, inside) -> list[tuple[Point, ...]]:
+    """The stretches of a wire that lie outside the outline, as polylines (of two points or
+    more)."""
+    runs: list[list[Point]] = [[]]
+    for pt in _grid_walk(wire):
+        if inside(pt):
+            if runs[-1]:
+                runs.append([])
+        else:
+            runs[-1].append(pt)
+    return [tuple(_simplified(run)) for run in runs if len(set(run)) >= 2]
+
+
+@dataclass(frozen=True)
+class _Reach:
+    """Where the sheet used to meet the region on one port net: the members' pins there and the
+    port-net elements the collapse takes away."""
+
+    pins: tuple[Point, ...]
+    taken: list[Wire | NetLabel | Junction]
+
+    def touches(self, pt: Point) -> bool:
+        return pt in self.pins or any(
+            pt in _points_of(e) if not isinstance(e, Wire)
+            else any(_on_segment(pt, a, b) for a, b in pairwise(e.points)) for e in self.taken)
+
+
+def _on_segment(p: Point, a: Point, b: Point) -> bool:
+    return (min(a[0], b[0]) <= p[0] <= max(a[0], b[0])
+            and min(a[1], b[1]) <= p[1] <= max(a[1], b[1]))
+
+
+def _points_of(element: Wire | NetLabel | Junction) -> tuple[Point, ...]:
+    return element.points if isinstance(element, Wire) else (element.at,)
+
+
+def _net_of(doc: Document, conn: Connectivity, element: Wire | NetLabel | Junction) -> str | None:
+    if isinstance(element, Wire):
+        return conn.net_of_wire[element.id]
+    if isinstance(element, NetLabel):
+        return conn.net_of_pin[element.id, 0]
+    return net_at(doc, conn, element.at)
+
+
+def _inside(outline: tuple[tuple[float, float], ...]):
+    """Point-in-polygon test for the drawn outline (even-odd rule); nothing is inside an
+    empty outline."""
+    def test(pt: Point) -> bool:
+        x, y = pt
+        hit = False
+        for (x0, y0), (x1, y1) in zip(outline, outline[1:] + outline[:1], strict=True):
+            if (y0 > y) != (y1 > y) and x < x0 + (y - y0) * (x1 - x0) / (y1 - y0):
+                hit = not hit
+        return hit
+    return test
+
+
+def _centre(members: list[PlacedPart | Block]) -> Point:
+    placed = [m for m in members if not (isinstance(m, PlacedPart) and m.kind == "coupling")]
+    xs = [m.at[0] for m in placed or members]
+    ys = [m.at[1] for m in placed or members]
+    return (round(sum(xs) / len(xs)), round(sum(ys) / len(ys)))
+
+
+def _scratch(doc: Document, drop: set[str]) -> Document:
+    copy = Document(doc.title)
+    for element in doc:
+        if element.id not in drop:
+            copy.add(element)
+    return copy
+
+
+def _routes(start: Point, end: Point, keep_out: tuple[float, float, float, float]
+            ) -> list[tuple[Point, ...]]:
+    """Orthogonal routes from a block pin to ``end``, best first: straight, the two L shapes,
+    and a Z that first steps one unit right, away from the block; routes that cross the
+    ``keep_out`` box (the block and its captions) come last."""
+    (x0, y0), (x1, y1) = start, end
+    shapes = [(start, (x1, y0), end), (start, (x0, y1), end),
+              (start, (x0 + 1, y0), (x0 + 1, y1), end)]
+    if x0 == x1 or y0 == y1:
+        shapes.insert(0, (start, end))
+    routes = {tuple(_simplified(r)) for r in shapes}
+    return sorted(routes, key=lambda r: (_crosses(r, keep_out), _length(r), r))
+
+
+def _simplified(route: tuple[Point, ...]) -> list[Point]:
+    out: list[Point] = []
+    for pt in route:
+        if out and pt == out[-1]:
+            continue
+        (ax, ay), (bx, by) = out[-2:] if len(out) >= 2 else ((None, None), (None, None))
+        if ax == bx == pt[0] or ay == by == pt[1]:  # collinear: extend the last segment
+            out[-1] = pt
+        else:
+            out.append(pt)
+    return out
+
+
+def _length(route: tuple[Point, ...]) -> float:
+    return sum(math.dist(a, b) for a, b in pairwise(route))
+
+
+def _crosses(route: tuple[Point, ...], box: tuple[float, float, float, float]) -> bool:
+    """Does any segment of the route pass through the inside of ``box``? A vertical run along
+    its right edge, where the block's pins sit, counts as crossing."""
+    x0, y0, x1, y1 = box
+    for (ax, ay), (bx, by) in pairwise(route):
+        if ax == bx and x0 < ax <= x1 and min(ay, by) < y1 and max(ay, by) > y0:
+            return True
+        if ay == by and y0 < ay < y1 and min(ax, bx) < x1 and max(ax, bx) > x0:
+            return True
+    return False
+
+
+def _connect(doc: Document, conn: Connectivity, after: Document, block: Block,
+             port: tuple[str, str], reach: list[_Reach], fresh: set[str]
+             ) -> list[Wire | NetLabel] | None:
+    """Stub wires (or a net label, for a named net that no wire reaches) joining each block pin
+    to every piece of its port net left on the sheet, or None where no tried layout keeps every
+    net exactly as it was. Checked by re-extraction, so a stub never joins a foreign net."""
+    after_conn = extract(after)
+    expected = {frozenset(k for k, n in conn.net_of_pin.items() if n == net and k[0] in after)
+                for net in set(conn.net_of_pin.values())} - {frozenset()}
+    # ``fresh`` elements (cut-back wires) are new: the nets are judged on the pins that stay
+    labels = {lab.name for lab in after.labels()}
+    named = {lab.name for lab in doc.labels()}
+    bx0, by0, bx1, by1 = placed_bounds("block", block.at, block.rotation, block.mirror,
+                                       form=block.form)
+    keep_out = (bx0 - 0.5, by0 - 1.5, bx1, by1 + 3.5)  # designator above, values below
+    choices: list[list[tuple[Point, ...] | str]] = []
+    staying: list[frozenset[tuple[str, int]]] = []
+    for pin, net, points in zip(_pins(block), port, reach, strict=True):
+        keys = frozenset(k for k, n in conn.net_of_pin.items() if n == net and k[0] in after)
+        staying.append(keys)
+        for piece in {after_conn.net_of_pin[k] for k in keys}:
+            near = sorted(after_conn.nets[piece], key=lambda pt: math.dist(pt, pin))
+            targets = [pt for pt in near if points.touches(pt)]
+            options: list[tuple[Point, ...] | str] = [r for t in targets[:2]
+                                                      for r in _routes(pin, t, keep_out)]
+            if pin in targets:
+                options = [()]
+            elif net == GROUND:
+                options = [GROUND, *options]  # a ground marker at the pin, as drawn by hand
+            elif not options:
+                # a named net is joined by name; any other by a wire to its nearest point
+                options = [net] if net in labels else [r for t in near[:2]
+                                                      for r in _routes(pin, t, keep_out)]
+            if not options:
+                return None
+            choices.append(options)
+    for combo in islice(product(*choices), 64):
+        stubs: list[Wire | NetLabel] = []
+        trial = _scratch(after, drop=set())
+        for option in combo:
+            if isinstance(option, str):
+                stub = NetLabel(doc.new_id(NetLabel), option, _pins(block)[port.index(option)],
+                                style="ground" if option == GROUND else "label")
+            elif option:
+                stub = Wire(doc.new_id(Wire), option)
+            else:
+                continue
+            stubs.append(stub)
+            trial.add(stub)
+        trial.add(block)
+        if not _keeps_nets(extract(trial), block.id, {s.id for s in stubs}, expected, staying):
+            continue
+        # a named net keeps its name: where the collapse took all its labels, one goes on the pin
+        trial_conn = extract(trial)
+        for i, (pin, net) in enumerate(zip(_pins(block), port, strict=True)):
+            if net in named and trial_conn.net_of_pin[block.id, i] != net:
+                label = NetLabel(doc.new_id(NetLabel), net, pin,
+                                 style="ground" if net == GROUND else "label")
+                stubs.append(label)
+                trial.add(label)
+        if _keeps_nets(extract(trial), block.id, {s.id for s in stubs}, expected, staying):
+            return stubs
+    return None
+
+
+def _keeps_nets(conn: Connectivity, block_id: str, added: set[str],
+                expected: set[frozenset[tuple[str, int]]],
+                staying: list[frozenset[tuple[str, int]]]) -> bool:
+    plus, minus = conn.net_of_pin[block_id, 0], conn.net_of_pin[block_id, 1]
+    groups: dict[str, set[tuple[str, int]]] = {}
+    for key, net in conn.net_of_pin.items():
+        if key[0] != block_id and key[0] not in added:
+            groups.setdefault(net, set()).add(key)
+    if plus == minus or {frozenset(g) for g in groups.values()} != expected:
+        return False
+    return all(conn.net_of_pin[k] == net for net, keys in zip((plus, minus), staying, strict=True)
+               for k in keys)
+
+
+# -- expand ---------------------------------------------------------------------------------------
+
+def expand_block(doc: Document, block_id: str) -> Edit:
+    """The edit that puts a block's region back exactly as it was before the collapse."""
+    block = doc[block_id]
+    if not isinstance(block, Block):
+        raise DocumentError(f"{block_id} is a {type(block).__name__}, not a collapsed block")
+    restored: tuple[Element, ...] = (*block.contents.parts, *block.contents.blocks,
+                                     *block.contents.wires, *block.contents.junctions,
+                                     *block.contents.labels, block.region)
+    stubs = tuple(doc[s] for s in block.stubs if s in doc)
+    leaving = {block.id, *(s.id for s in stubs)}
+    for element in restored:
+        if element.id in doc and element.id not in leaving:
+            raise DocumentError(f"cannot expand {block.designator}: element id {element.id} is "
+                                "used on the sheet again")
+        if isinstance(element, PlacedPart | Block):
+            other = doc.by_designator(element.designator)
+            if other is not None and other.id not in leaving:
+                raise DocumentError(f"cannot expand {block.designator}: {element.designator} "
+                                    "inside it clashes with a part of that name on the sheet; "
+                                    "rename one of them")
+    return Edit(removed=(block, *stubs), added=restored)

@@ -1,0 +1,231 @@
+"""Regions of a drawn document: analysis, collapse into a block, expand back exactly."""
+
+from __future__ import annotations
+
+import cmath
+
+import pytest
+
+import assets
+from engine import Circuit, CutError, check_equivalence
+from engine.schematic import (
+    Document,
+    NetLabel,
+    PlacedPart,
+    Region,
+    Wire,
+    build_circuit,
+    extract,
+    fileformat,
+)
+from engine.schematic.reduction import (
+    analyse_region,
+    collapse_region,
+    equivalence,
+    expand_block,
+)
+
+EXAMPLES = assets.example_names()
+
+
+def _load(name: str) -> Document:
+    return fileformat.load(assets.example_path(name))
+
+
+def _divider(doc: Document | None = None) -> tuple[Document, dict[str, str]]:
+    """V1 = 10 V behind R1 = 1 kΩ, R2 = 1 kΩ to ground, loaded by RL = 2 kΩ at net 'out'.
+
+    Layout (grid units): V1 vertical at x=0, R1 horizontal on the top row, R2 vertical at x=8,
+    RL vertical at x=16; the region is V1, R1, R2.
+    """
+    doc = doc or Document("divider")
+    ids: dict[str, str] = {}
+
+    def part(kind: str, designator: str, at, rotation: int, value: str) -> None:
+        ids[designator] = doc.new_id(PlacedPart)
+        doc.add(PlacedPart(ids[designator], kind, designator, at, rotation, value=value))
+
+    part("voltage_source", "V1", (0, 4), 90, "10")   # pins (0, 2) top = plus, (0, 6) bottom
+    part("resistor", "R1", (4, 2), 0, "1k")          # pins (2, 2), (6, 2)
+    part("resistor", "R2", (8, 4), 90, "1k")         # pins (8, 2), (8, 6)
+    part("resistor", "RL", (16, 4), 90, "2k")        # pins (16, 2), (16, 6)
+    for points in (((0, 2), (2, 2)), ((6, 2), (16, 2)), ((0, 6), (16, 6))):
+        doc.add(Wire(doc.new_id(Wire), points))
+    doc.add(NetLabel(doc.new_id(NetLabel), "0", (0, 6), style="ground"))
+    doc.add(NetLabel(doc.new_id(NetLabel), "out", (12, 2)))
+    doc.add(Region(doc.new_id(Region), "source side", frozenset(ids[d] for d in ("V1", "R1",
+                                                                                  "R2")),
+                   outline=((-2, 0), (11, 0), (11, 8), (-2, 8))))
+    return doc, ids
+
+
+def test_divider_region_matches_the_closed_form():
+    # common practice (voltage divider): Vth = V R2 / (R1 + R2) = 5 V, Zth = R1 || R2 = 500 Ω
+    doc, _ = _divider()
+    result = analyse_region(doc, doc.regions()[0].id)
+    assert result.ok, result.message
+    eq = result.equivalent
+    assert eq.port == ("out", "0")
+    assert eq.voc == pytest.approx(5.0, rel=1e-12)
+    assert eq.z == pytest.approx(500.0, rel=1e-12)
+    assert eq.isc == pytest.approx(0.01, rel=1e-12)
+
+
+def test_swap_exchanges_plus_and_minus():
+    # common practice: seen the other way round, the open-circuit voltage changes sign
+    doc, _ = _divider()
+    region = doc.regions()[0]
+    doc.replace_fields(region.id, swap=True)
+    eq = analyse_region(doc, region.id).equivalent
+    assert eq.port == ("0", "out")
+    assert eq.voc == pytest.approx(-5.0, rel=1e-12)
+    assert eq.isc == pytest.approx(-0.01, rel=1e-12)
+    assert eq.z == pytest.approx(500.0, rel=1e-12)
+
+
+def test_a_three_net_cut_is_refused_and_names_the_nets():
+    doc, ids = _divider()
+    region = doc.regions()[0]
+    doc.replace_fields(region.id, members=frozenset({ids["R1"], ids["R2"]}))  # V1 left out
+    result = analyse_region(doc, region.id)
+    assert not result.ok
+    assert "3 nets" in result.message
+    assert result.equivalent is None
+
+
+def test_an_empty_region_says_what_to_do():
+    doc, _ = _divider()
+    region = doc.regions()[0]
+    doc.replace_fields(region.id, members=frozenset())
+    result = analyse_region(doc, region.id)
+    assert not result.ok and "draw the boundary" in result.message
+
+
+def test_a_bad_value_is_reported_not_raised():
+    doc, ids = _divider()
+    doc.replace_fields(ids["R1"], value="4k7k")
+    result = analyse_region(doc, doc.regions()[0].id)
+    assert not result.ok and "R1" in result.message and "4k7k" in result.message
+
+
+@pytest.mark.parametrize("name", EXAMPLES)
+def test_collapse_then_expand_restores_the_exact_document(name):
+    doc, original = _load(name), _load(name)
+    edit = collapse_region(doc, doc.regions()[0].id)
+    edit.apply(doc)
+    assert len(doc.blocks()) == 1 and not doc.regions()
+    expand_block(doc, doc.blocks()[0].id).apply(doc)
+    assert doc == original
+
+
+@pytest.mark.parametrize("name", EXAMPLES)
+def test_undoing_a_collapse_restores_the_exact_document(name):
+    doc, original = _load(name), _load(name)
+    edit = collapse_region(doc, doc.regions()[0].id)
+    edit.apply(doc)
+    edit.inverse().apply(doc)
+    assert doc == original
+
+
+def _renamed(reduced: Circuit, original: Circuit, outside: set[str]) -> Circuit:
+    """``reduced`` with its nets renamed to ``original``'s, read off the outside parts' pins
+    (automatic net names follow the lowest pin, which the collapse may have taken away)."""
+    names: dict[str, str] = {}
+    for name in outside:
+        for new, old in zip(reduced[name].nodes, original[name].nodes, strict=True):
+            assert names.setdefault(new, old) == old, f"{name}: net {new} became two nets"
+    out = Circuit()
+    for part in reduced:
+        nodes = tuple(names.get(n, n) for n in part.nodes)
+        out.add(type(part)(part.name, part.kind, nodes, part.value, part.refs))
+    return out
+
+
+@pytest.mark.parametrize("name", EXAMPLES)
+def test_the_collapsed_sheet_behaves_like_the_original_from_outside(name):
+    # The theorem itself: every net outside the region and the port current are unchanged,
+    # for the outside as drawn and with extra loads across the port.
+    doc = _load(name)
+    analysis = analyse_region(doc, doc.regions()[0].id)
+    original = analysis.circuit
+    collapse_region(doc, doc.regions()[0].id).apply(doc)
+    outside = set(original.names) - set(analysis.part_names)
+    reduced = _renamed(build_circuit(doc, freq=analysis.freq), original, outside)
+    report = check_equivalence(original, reduced, set(analysis.part_names),
+                               port=analysis.equivalent.port, freq=analysis.freq,
+                               loads=[1e3, 0])
+    assert report.within(1e-9), report
+
+
+def test_block_values_follow_the_analysis_frequency():
+    doc = _load("rc_antialias")
+    collapse_region(doc, doc.regions()[0].id).apply(doc)
+    block_names = {"EQ1.src", "EQ1.z"}
+    z = {}
+    for freq in ("1k", "100k"):
+        doc.set_analysis(type(doc.analysis)(freq=freq))
+        circuit = build_circuit(doc, freq=1e3 if freq == "1k" else 1e5)
+        assert block_names <= set(circuit.names)
+        z[freq] = complex(circuit["EQ1.z"].value)
+    assert not cmath.isclose(z["1k"], z["100k"])
+
+
+def test_nested_collapse_expands_back_in_two_steps():
+    doc, ids = _divider()
+    original = fileformat.loads(fileformat.dumps(doc))
+    collapse_region(doc, doc.regions()[0].id).apply(doc)
+    inner = doc.blocks()[0]
+    # a new region holding the block and the load: the whole circuit, port given by its nets
+    doc.add(Region(doc.new_id(Region), "all", frozenset({inner.id, ids["RL"]}),
+                   outline=((-4, -2), (20, -2), (20, 10), (-4, 10))))
+    outer_region = doc.regions()[0]
+    result = analyse_region(doc, outer_region.id)
+    assert not result.ok  # the whole circuit meets nothing outside: no port to choose
+    doc.remove(outer_region.id)
+    expand_block(doc, inner.id).apply(doc)
+    assert doc == original
+
+
+def test_a_block_inside_a_new_region_reduces_again():
+    # common practice: reducing in two steps gives the same equivalent as in one.
+    # V1 R1 R2 collapse to 5 V behind 500 Ω; with a series 500 Ω (R3) added later the
+    # new region (block + R3) must show 5 V behind 1 kΩ.
+    doc, ids = _divider()
+    collapse_region(doc, doc.regions()[0].id).apply(doc)
+    block = doc.blocks()[0]
+    conn = extract(doc)
+    plus_net = conn.net_of_pin[block.id, 0]
+    assert plus_net == "out"
+    # insert R3 in the wire from the block to the load: move RL right and put R3 between
+    rl = doc[ids["RL"]]
+    wire_to_load = next(w for w in doc.wires() if (16, 2) in w.points)
+    with doc.batch():
+        doc.remove(wire_to_load.id)
+        doc.replace_fields(rl.id, at=(24, 4))
+        r3 = PlacedPart(doc.new_id(PlacedPart), "resistor", "R3", (18, 2), value="500")
+        doc.add(r3)  # pins (16, 2) and (20, 2)
+        doc.add(Wire(doc.new_id(Wire), ((20, 2), (24, 2))))
+        doc.add(Wire(doc.new_id(Wire), ((16, 6), (24, 6))))
+        doc.add(Wire(doc.new_id(Wire), tuple(p for p in wire_to_load.points if p != (16, 2))
+                     + ((16, 2),)))
+    region = Region(doc.new_id(Region), "two steps", frozenset({block.id, r3.id}))
+    doc.add(region)
+    eq = analyse_region(doc, region.id).equivalent
+    assert eq.voc == pytest.approx(5.0, rel=1e-12)
+    assert eq.z == pytest.approx(1000.0, rel=1e-12)
+
+
+def test_collapse_refuses_an_invalid_cut():
+    doc, ids = _divider()
+    region = doc.regions()[0]
+    doc.replace_fields(region.id, members=frozenset({ids["R1"], ids["R2"]}))
+    with pytest.raises(CutError, match="cannot collapse"):
+        collapse_region(doc, region.id)
+
+
+def test_equivalence_line_for_the_current_load():
+    doc, _ = _divider()
+    analysis = analyse_region(doc, doc.regions()[0].id)
+    for form in ("thevenin", "norton"):
+        report = equivalence(analysis, form, loads=[100, 0])
+        assert report.within(1e-12), report
