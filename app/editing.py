@@ -195,8 +195,9 @@ def plan_placement(doc: Document, index: SheetIndex, ids: Iterable[str],
                    m: RigidMap) -> list[Element]:
     """New versions of the elements ``ids`` carried by ``m``, and of the wires that follow them.
 
-    A wire end follows when it sits on a pin, junction or wire that moves, unless a pin or
-    junction that stays holds it there. A wire with both ends following moves whole.
+    A net marker (label, ground) whose pin sits on a moving pin moves along. A wire end follows
+    when it sits on a pin, junction or wire that moves, unless a pin or junction that stays
+    holds it there. A wire with both ends following moves whole.
     """
     moving = [doc[i] for i in dict.fromkeys(ids) if i in doc]
     out: dict[str, Element] = {e.id: moved(e, m) for e in moving}
@@ -208,6 +209,14 @@ def plan_placement(doc: Document, index: SheetIndex, ids: Iterable[str],
             carried.add(e.at)
         if isinstance(e, Wire):
             carried |= index.points_on(e)
+
+    # a net marker sitting right on a moving pin goes along (keeping its own orientation)
+    pins = {p for e in moving for p in element_pins(e)}
+    for label_id in sorted({eid for p in pins for eid, _ in index.pins_at(p)} - moving_ids):
+        label = doc[label_id]
+        if isinstance(label, NetLabel):
+            out[label_id] = replace(label, at=m.point(label.at))
+    moving_ids = frozenset(out)
 
     def follows(p: Point) -> bool:
         if p not in carried:

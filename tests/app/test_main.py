@@ -1,0 +1,51 @@
+"""The entry point: --screenshot renders the window to a PNG that is not blank, a bad file
+fails with the loader's message, and with no display the command says what to do instead."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from PySide6.QtGui import QColor, QImage
+
+import assets
+from app.main import run
+
+
+def _distinct_colours(path: Path) -> int:
+    image = QImage(str(path))
+    assert not image.isNull()
+    return len({QColor(image.pixel(x, y)).name() for y in range(0, image.height(), 7)
+                for x in range(0, image.width(), 7)})
+
+
+def test_screenshot_of_a_sheet(qapp, tmp_path: Path):
+    out = tmp_path / "shot.png"
+    assert run([str(assets.example_path("rc_antialias")), "--screenshot", str(out),
+                "--size", "900x600", "--select", "R1"]) == 0
+    image = QImage(str(out))
+    assert (image.width(), image.height()) == (900, 600)
+    assert _distinct_colours(out) > 20   # strokes, text, grid, panels: not a blank frame
+
+
+def test_screenshot_of_the_demo_in_the_dark_theme(qapp, tmp_path: Path):
+    out = tmp_path / "demo.png"
+    assert run(["--screenshot", str(out), "--theme", "dark", "--symbols", "ieee"]) == 0
+    assert _distinct_colours(out) > 20
+
+
+def test_screenshot_of_a_bad_file_fails_with_the_reason(qapp, tmp_path: Path, capsys):
+    bad = tmp_path / "bad.json"
+    bad.write_text('{"format": "portcut-schematic", "version": 99}', encoding="utf-8")
+    assert run([str(bad), "--screenshot", str(tmp_path / "x.png")]) == 1
+    err = capsys.readouterr().err
+    assert "bad.json" in err and "version" in err
+    assert not (tmp_path / "x.png").exists()
+
+
+def test_no_display_says_what_to_do(monkeypatch, capsys):
+    monkeypatch.setattr("sys.platform", "linux")
+    for name in ("DISPLAY", "WAYLAND_DISPLAY", "QT_QPA_PLATFORM"):
+        monkeypatch.delenv(name, raising=False)
+    assert run([]) == 1
+    err = capsys.readouterr().err
+    assert "no display" in err and "--screenshot" in err
