@@ -17,7 +17,7 @@ import pytest
 import sympy
 from sympy_nodal import PortReference, port_reference
 
-from engine import Circuit, equivalent
+from engine import Circuit, Equivalent, equivalent, sweep
 
 RTOL = 1e-9
 Case = tuple[Circuit, set[str], tuple[str, str], sympy.Expr]
@@ -41,8 +41,12 @@ def assert_close(got: complex, want: complex, floor: float = 0.0) -> None:
 def assert_matches_reference(circuit: Circuit, region: set[str], port: tuple[str, str],
                              freq: sympy.Expr) -> None:
     """The engine's result for the region equals the reference solve of its parts alone."""
-    ref = port_reference(circuit.subcircuit(region), port, freq)
-    eq = equivalent(circuit, region=region, port=port, freq=float(freq))
+    assert_agrees(equivalent(circuit, region=region, port=port, freq=float(freq)),
+                  port_reference(circuit.subcircuit(region), port, freq), port, freq)
+
+
+def assert_agrees(eq: Equivalent, ref: PortReference, port: tuple[str, str],
+                  freq: sympy.Expr) -> None:
     voc, isc, z = ref.numeric()
     assert eq.port == port
     assert eq.freq == float(freq)
@@ -346,3 +350,17 @@ def test_port_may_be_omitted_when_the_region_meets_the_rest_at_two_nets() -> Non
     assert_close(eq.voc, voc)
     assert_close(eq.isc, isc)
     assert_close(eq.z, z)
+
+
+@pytest.mark.parametrize("name", ["bridge_with_l_and_c_at_ac", "transformer_to_grounded_secondary",
+                                  "cccs_and_ccvs_sensing_reactive_currents",
+                                  "opamp_non_inverting_with_output_resistor"])
+def test_sweep_matches_the_reference_at_every_point(name: str) -> None:
+    # reference: independent sympy nodal solve at each frequency, DC included (where L and C
+    # change role) next to AC points solved as one batch.
+    c, region, port, _ = CASES[name]()
+    freqs = [at_omega(w) for w in (0, 300, 3_000, 30_000, 300_000)]
+    result = sweep(c, region, [float(f) for f in freqs], port=port)
+    assert len(result) == len(freqs)
+    for i, f in enumerate(freqs):
+        assert_agrees(result[i], port_reference(c.subcircuit(region), port, f), port, f)

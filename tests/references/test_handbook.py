@@ -17,7 +17,7 @@ import pytest
 import sympy
 from sympy_nodal import port_reference
 
-from engine import Circuit, equivalent
+from engine import Circuit, CircuitError, equivalent
 
 RTOL = 1e-9
 
@@ -115,17 +115,23 @@ def test_source_transformation(solve: Solver, freq: float) -> None:
 
 
 # -- first-order RC low-pass corner (common practice) -------------------------------------------
+R_LOW_PASS, C_LOW_PASS = sympy.Integer(1000), sympy.Rational(1, 10**7)
+F_CORNER = 1 / (2 * sympy.pi * R_LOW_PASS * C_LOW_PASS)  # w = 1e4 rad/s exactly
+
+
+def _rc_low_pass() -> tuple[Circuit, set[str]]:
+    c = Circuit()
+    c.voltage_source("V1", "in", "0", 1)
+    c.resistor("R1", "in", "out", float(R_LOW_PASS))
+    c.capacitor("C1", "out", "0", float(C_LOW_PASS))
+    c.resistor("RL", "out", "0", "1M")
+    return c, {"V1", "R1", "C1"}
+
+
 def test_rc_low_pass_at_its_corner(solve: Solver) -> None:
     # Common practice: f_c = 1 / (2 pi R C); there V_out / V_in = 1 / (1 + j), i.e. 1/sqrt(2) at
     # -45 degrees, and the output impedance is R || 1/(j w C) = R / (1 + j).
-    r, cap = sympy.Integer(1000), sympy.Rational(1, 10**7)
-    f_c = 1 / (2 * sympy.pi * r * cap)
-    c = Circuit()
-    c.voltage_source("V1", "in", "0", 1)
-    c.resistor("R1", "in", "out", float(r))
-    c.capacitor("C1", "out", "0", float(cap))
-    c.resistor("RL", "out", "0", "1M")
-    got = solve(c, {"V1", "R1", "C1"}, ("out", "0"), f_c)
+    got = solve(*_rc_low_pass(), ("out", "0"), F_CORNER)
     assert close(abs(got.voc), 1 / math.sqrt(2))
     assert math.isclose(math.degrees(cmath.phase(got.voc)), -45, rel_tol=RTOL)
     assert close(got.z, 1000 / (1 + 1j))
@@ -249,3 +255,61 @@ def test_an_inductor_across_the_port_at_dc_leaves_no_norton_form(solve: Solver) 
     assert (got.has_thevenin, got.has_norton) == (True, False)
     assert got.z == 0
     assert abs(got.voc) <= RTOL
+
+
+# -- result helpers (engine only) ---------------------------------------------------------------
+def test_max_power_helper_on_example_11_5() -> None:
+    # Alexander & Sadiku, Example 11.5 (from memory), exact form of the circuit above:
+    # P_max = |V_th|^2 / (8 R_th) = (500/9) / (8 * 44/15) = 7500/3168 W with amplitude phasors;
+    # the same numbers read as rms phasors give |V|^2 / (4 R_th), twice as much.
+    c, region = _example_11_5()
+    eq = equivalent(c, region=region, port=("a", "0"))
+    peak, rms = eq.max_power(), eq.max_power("rms")
+    assert (peak.basis, rms.basis) == ("peak", "rms")
+    assert close(peak.load, (44 - 67j) / 15)
+    assert close(peak.power, 7500 / 3168)
+    assert close(rms.power, 2 * 7500 / 3168)
+    # best purely resistive load |Z_th| (same section): P = 0.5 |V|^2 R / |Z + R|^2
+    r = abs((44 + 67j) / 15)
+    assert close(peak.resistive_load, r)
+    assert close(peak.resistive_power, 0.5 * (500 / 9) * r / abs((44 + 67j) / 15 + r) ** 2)
+
+
+def test_max_power_has_no_finite_maximum_for_negative_resistance() -> None:
+    # shared references (Alexander & Sadiku): no finite maximum where Re Z_th <= 0.
+    c = Circuit()
+    c.voltage_source("V1", "in", "0", 3)
+    c.resistor("R1", "in", "a", "10k")
+    c.resistor("R2", "a", "0", "2k")
+    c.vccs("DS1", "0", "a", "a", "0", "1m")  # z = -2.5 kΩ (see test_against_sympy.py)
+    c.resistor("RL", "a", "0", "5k")
+    result = equivalent(c, region={"V1", "R1", "R2", "DS1"}, port=("a", "0")).max_power()
+    assert result.power is None
+    assert result.load is None
+    assert "negative" in result.reason
+
+
+@pytest.mark.parametrize(("build", "port", "freq", "kind", "resistance", "value"), [
+    # Common practice: a series R + C has z = R - j / (w C); a series R + L has z = R + j w L.
+    # RC low-pass at its corner w = 1e4 rad/s: z = 500 - j500 Ω -> 500 Ω + 200 nF.
+    (_rc_low_pass, ("out", "0"), float(F_CORNER), "capacitor", 500.0, 200e-9),
+    # Example 11.5 (fixed impedances, read at 1 kHz): z = 44/15 + j 67/15 Ω -> L = X / w.
+    (_example_11_5, ("a", "0"), 1e3, "inductor", 44 / 15, 67 / 15 / (2 * math.pi * 1e3)),
+])
+def test_series_realisation_of_z(build: Callable[[], tuple[Circuit, set[str]]],
+                                 port: tuple[str, str], freq: float, kind: str,
+                                 resistance: float, value: float) -> None:
+    c, region = build()
+    series = equivalent(c, region=region, port=port, freq=freq).realisation()
+    assert series.kind == kind
+    assert close(series.resistance, resistance)
+    assert close(series.value, value)
+
+
+def test_no_series_realisation_without_a_thevenin_form() -> None:
+    c = Circuit()
+    c.current_source("I1", "0", "a", "1m")
+    c.resistor("RL", "a", "0", "1k")
+    eq = equivalent(c, region={"I1"}, port=("a", "0"))
+    with pytest.raises(CircuitError, match="no Thevenin form"):
+        eq.realisation()

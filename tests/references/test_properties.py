@@ -25,7 +25,17 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from sympy_nodal import port_reference
 
-from engine import KINDS, Circuit, CircuitError, Part, SingularCircuitError, equivalent
+from engine import (
+    KINDS,
+    Circuit,
+    CircuitError,
+    Equivalent,
+    Part,
+    SingularCircuitError,
+    check_equivalence,
+    collapse,
+    equivalent,
+)
 
 RTOL = 1e-9
 FAST = settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
@@ -128,10 +138,10 @@ def _add_motif(draw: st.DrawFn, g: Grown, motif: str) -> None:
         c.resistor(g.name("R"), o, b, draw(OHMS))
 
 
-def with_load(g: Grown, ohms: float = 1e3) -> Circuit:
-    """The region plus a load across its port: the rest of the circuit."""
+def with_load(g: Grown, port: tuple[str, str] | None = None) -> Circuit:
+    """The region plus a 1 kΩ load across its port (or ``port``): the rest of the circuit."""
     full = g.circuit.copy()
-    full.resistor("LOAD", *g.port, ohms)
+    full.resistor("LOAD", *(port or g.port), 1e3)
     return full
 
 
@@ -142,12 +152,17 @@ def _close(got: complex, want: complex, floor: float = 0.0) -> bool:
     return abs(got - want) <= RTOL * max(abs(want), floor)
 
 
-def solved(g: Grown, freq: float):
-    """The engine's equivalent, or a rejected example where the draw is singular."""
+def solved(g: Grown, freq: float, circuit: Circuit | None = None,
+           port: tuple[str, str] | None = None, region: set[str] | None = None) -> Equivalent:
+    """The engine's equivalent of the grown region (or of ``circuit``/``region`` at ``port``),
+    the example rejected where the draw is singular (e.g. a loop of wires)."""
+    port = port or g.port
     try:
-        return equivalent(with_load(g), region=g.region, port=g.port, freq=freq)
+        return equivalent(circuit or with_load(g, port), region=region or g.region, port=port,
+                          freq=freq)
     except SingularCircuitError:
         assume(False)
+        raise
 
 
 # -- existence rules and duality ----------------------------------------------------------------
@@ -180,10 +195,10 @@ def test_passive_regions_are_reciprocal(g: Grown, freq: float, drive: st.DataObj
         c = g.circuit.copy()
         c.current_source("ITEST", "0", into, 1)
         c.resistor("LOAD", seen, "0", "1k")
-        eq = equivalent(c, region={*g.region, "ITEST"}, port=(seen, "0"), freq=freq)
+        eq = solved(g, freq, c, (seen, "0"), {*g.region, "ITEST"})
         assert eq.has_thevenin
         transfer[into] = eq.voc
-    driving = equivalent(with_load(g), region=g.region, port=(a, "0"), freq=freq).z
+    driving = solved(g, freq, port=(a, "0")).z
     assert _close(transfer[a], transfer[b], floor=abs(driving))
 
 
@@ -274,3 +289,38 @@ def test_equivalent_raises_only_circuit_errors(case: tuple[Circuit, object, obje
     if eq.has_norton:
         assert cmath.isfinite(eq.isc)
     assert cmath.isinf(eq.z) if not eq.has_thevenin else cmath.isfinite(eq.z)
+
+
+# -- collapse -----------------------------------------------------------------------------------
+LOADS = st.one_of(OHMS, st.builds(complex, OHMS, st.sampled_from([-470.0, 100.0, 2.2e3])))
+
+
+@FAST
+@given(g=regions(), freq=FREQS, form=st.sampled_from(["thevenin", "norton"]),
+       loads=st.lists(LOADS, min_size=1, max_size=3))
+def test_collapsed_circuit_behaves_as_the_original(g: Grown, freq: float, form: str,
+                                                   loads: list[complex]) -> None:
+    # Thevenin's and Norton's theorems: outside the region, nothing tells the equivalent from
+    # the region, for the load as drawn and for every load tried across the port.
+    original = with_load(g)
+    eq = solved(g, freq)
+    assume(eq.has_thevenin if form == "thevenin" else eq.has_norton)
+    reduced = collapse(original, g.region, port=g.port, freq=freq, form=form)
+    report = check_equivalence(original, reduced, g.region, port=g.port, freq=freq, loads=loads)
+    assert report.within(RTOL), report
+
+
+@FAST
+@given(g=regions(), freq=FREQS, load=LOADS)
+def test_loaded_port_voltage_is_the_divider_of_the_equivalent(g: Grown, freq: float,
+                                                             load: complex) -> None:
+    # Thevenin's theorem with the divider rule (common practice): a load Z_L across the port
+    # sees V = voc Z_L / (z + Z_L), the same as the open voltage of region and load together.
+    eq = solved(g, freq)
+    assume(eq.has_thevenin)
+    c = g.circuit.copy()
+    c.impedance("ZL", *g.port, load)
+    c.resistor("LOAD", *g.port, 1e3)
+    loaded = solved(g, freq, c, g.port, {*g.region, "ZL"})
+    want = eq.voc * load / (eq.z + load)
+    assert _close(loaded.voc, want, floor=abs(eq.voc))
