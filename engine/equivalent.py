@@ -489,7 +489,7 @@ def _frequencies(freqs: Iterable[float]) -> np.ndarray:
         f = raw.astype(float)
         bad = ~np.isfinite(f) | (f < 0)
         if bad.any():
-            raise CircuitError(f"frequency {f[bad][0]!r} Hz must be finite and 0 or more")
+            raise CircuitError(f"frequency {float(f[bad][0])!r} Hz must be finite and 0 or more")
         return f.copy()
     return np.array([parse_frequency(v) for v in raw.tolist()], dtype=float)
 
@@ -580,20 +580,22 @@ def check_equivalence(original: Circuit, reduced: Circuit, region: Collection[st
     nets = sorted({n for p in outside for n in p.nets} | {plus, minus})
     anchors = (GROUND, minus, plus, *nets)
     taken = original.nets() | reduced.nets() | set(original.names) | set(reduced.names)
-    probe = _Probe(_unused("port probe", taken), _unused("port probe net", taken),
+    probe = _Probe(_unused("the port probe", taken), _unused("the port probe net", taken),
                    plus if plus != GROUND else minus, 1.0 if plus != GROUND else -1.0)
     cases: list[tuple[str, list[Part]]] = [("as drawn", [])]
     for load in loads:
         value = parse_value(load, what="load")
         text = format_complex(value, "Ω") if value != 0 else "a short"
-        part = Part(_unused("port load", taken), "impedance" if isinstance(value, complex)
+        part = Part(_unused("the port load", taken), "impedance" if isinstance(value, complex)
                     else "resistor", (plus, minus), value)
         cases.append((f"{text} across the port", [part]))
     worst_v = worst_i = scale_v = scale_i = 0.0
     worst_net, worst_case, worst_rel = None, cases[0][0], -1.0
     for label, extra in cases:
-        (v0, i0), (v1, i1) = (_outside_solution([*outside, *extra], inner, probe, f, anchors, nets)
-                              for inner in (list(cut.parts), replacement))
+        (v0, i0), (v1, i1) = (
+            _outside_solution([*outside, *extra], inner, probe, f, anchors, nets, f"{which} "
+                              f"circuit with {label if extra else 'the outside as drawn'}")
+            for which, inner in (("the original", list(cut.parts)), ("the reduced", replacement)))
         dv, di = np.abs(v0 - v1), abs(i0 - i1)
         peak_v = max(float(np.abs(v0).max(initial=0)), float(np.abs(v1).max(initial=0)))
         scale_v, scale_i = max(scale_v, peak_v), max(scale_i, abs(i0), abs(i1))
@@ -635,18 +637,22 @@ class _Probe:
 
 
 def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: float,
-                      anchors: Sequence[str], nets: list[str]) -> tuple[np.ndarray, complex]:
+                      anchors: Sequence[str], nets: list[str], what: str
+                      ) -> tuple[np.ndarray, complex]:
     """Voltages of ``nets`` and the port current, with ``inner`` fed through the probe."""
     moved = [replace(p, nodes=tuple(probe.side if n == probe.net else n for n in p.nodes))
              for p in inner]
     wire = Part(probe.name, "resistor", (probe.net, probe.side), 0.0)
     netlist = mna.Netlist([*outside, wire, *moved])
     dc = f == 0
-    found = topology.islands(netlist, dc, anchors)
-    found.raise_problems()
-    topology.check_voltage_loops(netlist, dc)
-    system = mna.assemble(netlist, found.pinned)
-    x = mna.Factor(system, f).solve(system.b)
+    try:
+        found = topology.islands(netlist, dc, anchors)
+        found.raise_problems()
+        topology.check_voltage_loops(netlist, dc)
+        system = mna.assemble(netlist, found.pinned)
+        x = mna.Factor(system, f).solve(system.b)
+    except SingularCircuitError as exc:
+        raise SingularCircuitError(f"{what} has no unique solution: {exc}") from None
     ids = system.unknown_of_net[[netlist.index[n] for n in nets]]
     volts = np.where(ids >= 0, x[np.maximum(ids, 0)], 0)
     return volts, probe.sign * complex(x[system.branch_of[probe.name]])

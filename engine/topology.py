@@ -141,7 +141,7 @@ def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = 
     if needs_groups:
         terminals = side.terminals(() if port is None else (plus, minus))
     if port is None:
-        plus, minus = _port_from(terminals, side)
+        plus, minus = _port_from(terminals if len(terminals) >= 2 else side.boundary)
     else:
         extra = sorted(terminals - {plus, minus})
         if extra:
@@ -295,7 +295,7 @@ def _given_port(port: Sequence[str], netlist: Netlist) -> tuple[str, str]:
     return plus, minus
 
 
-def _port_from(terminals: set[str], side: _Sides) -> tuple[str, str]:
+def _port_from(terminals: set[str]) -> tuple[str, str]:
     if len(terminals) != 2:
         count = len(terminals)
         where = f": {_listing(sorted(terminals))}" if terminals else ""

@@ -1,0 +1,170 @@
+"""The two-terminal cut check, islands and loop diagnosis (engine/topology.py).
+
+The refusals themselves, message by message, are in test_errors.py; here: what is accepted and
+what the checks conclude.
+"""
+
+from __future__ import annotations
+
+import cmath
+
+import pytest
+
+from engine import GROUND, Circuit, SingularCircuitError, check_cut, equivalent
+from engine.mna import Netlist
+from engine.topology import check_voltage_loops, circuit_graph, cut, islands
+
+
+def divider_with_load() -> Circuit:
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 5)
+    c.resistor("R1", "in", "a", "1k")
+    c.resistor("R2", "a", GROUND, "1k")
+    c.resistor("RL", "a", GROUND, "10k")
+    return c
+
+
+def transformer(grounded_secondary: bool) -> Circuit:
+    """A source driving a coupled pair; the secondary floats, tied to ground outside by RB."""
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 10)
+    c.resistor("R1", "in", "p", 50)
+    c.inductor("L1", "p", GROUND, "1m")
+    c.inductor("L2", "t", "u", "4m")
+    c.coupling("K1", "L1", "L2", 0.9)
+    c.resistor("RL", "t", "u", 330)
+    if grounded_secondary:
+        c.resistor("RB", "u", GROUND, "1M")
+    return c
+
+
+def test_port_is_inferred_with_ground_as_minus() -> None:
+    assert check_cut(divider_with_load(), {"V1", "R1", "R2"}) == ("a", GROUND)
+
+
+def test_port_without_ground_takes_the_sorted_names() -> None:
+    c = Circuit()
+    c.voltage_source("V1", "top", GROUND, 5)
+    c.resistor("R1", "top", "b", "1k")
+    c.resistor("R2", "b", GROUND, "2k")
+    c.resistor("R3", "top", "a", "3k")
+    c.resistor("R4", "a", GROUND, "4k")
+    c.resistor("RG", "a", "b", 100)  # the detector, outside
+    assert check_cut(c, {"V1", "R1", "R2", "R3", "R4"}) == ("a", "b")
+
+
+def test_given_port_may_include_an_inner_net() -> None:
+    # The region (R5, R6) meets the rest at "a" only; the user looks in between a and its
+    # inner net y: the boundary {a} is a subset of the port.
+    c = divider_with_load()
+    c.resistor("R5", "a", "x", 100)
+    c.resistor("R6", "x", "y", 200)
+    assert check_cut(c, {"R5", "R6"}, port=("a", "y")) == ("a", "y")
+    assert equivalent(c, {"R5", "R6"}, port=("a", "y")).z == pytest.approx(300)
+
+
+def test_a_coupling_follows_its_inductors() -> None:
+    c = transformer(grounded_secondary=False)
+    listed_without_k = {"V1", "R1", "L1", "L2"}
+    assert "K1" in {p.name for p in cut(c, listed_without_k, ("t", "u")).parts}
+    c.inductor("L3", "t", "u", "1m")
+    c.inductor("L4", "v", GROUND, "1m")
+    c.coupling("K2", "L3", "L4", 0.2)
+    with_k_but_not_its_inductors = {"V1", "R1", "L1", "L2", "K1", "K2"}
+    parts = {p.name for p in cut(c, with_k_but_not_its_inductors, ("t", "u")).parts}
+    assert "K2" not in parts
+
+
+def test_a_piece_meeting_the_rest_at_one_net_is_not_a_terminal() -> None:
+    # The primary (V1, R1, L1) meets the rest only at ground; no current can flow there, since
+    # nothing conducts from the primary to the secondary inside the region (KCL, common
+    # practice). So the cut is two-terminal at (t, u).
+    c = transformer(grounded_secondary=True)
+    region = {"V1", "R1", "L1", "L2", "K1"}
+    assert check_cut(c, region) == ("t", "u")
+    assert check_cut(c, region, ("u", "t")) == ("u", "t")
+
+
+def test_an_isolated_winding_gets_its_own_reference() -> None:
+    c = transformer(grounded_secondary=False)
+    netlist = Netlist(list(c.subcircuit({"V1", "R1", "L1", "L2", "K1"})))
+    found = islands(netlist, dc=False, references=("u",))
+    assert len(found.pinned) == 2  # u, and one net of the primary
+    assert found.joined("t")
+    assert not found.joined("p")
+    assert found.problem(found.island("p")) is None
+
+
+def test_transformer_region_matches_the_reflected_impedance() -> None:
+    # Coupled inductors (common practice): seen from the secondary, with the primary loop
+    # R1 + j w L1 and its source V1, z = j w L2 + (w M)^2 / (R1 + j w L1) and
+    # voc = j w M V1 / (R1 + j w L1), with M = k sqrt(L1 L2), dots at the first nodes.
+    c = transformer(grounded_secondary=False)
+    f = 5e3
+    w = 2 * cmath.pi * f
+    m = 0.9 * (1e-3 * 4e-3) ** 0.5
+    primary = 50 + 1j * w * 1e-3
+    eq = equivalent(c, {"V1", "R1", "L1", "L2", "K1"}, ("t", "u"), f)
+    assert eq.z == pytest.approx(1j * w * 4e-3 + (w * m) ** 2 / primary, rel=1e-12)
+    assert eq.voc == pytest.approx(1j * w * m * 10 / primary, rel=1e-12)
+
+
+def test_an_island_fixed_by_controlled_sources_is_solved_with_the_rest() -> None:
+    # An ideal cascode: net x touches only two transconductors, and DS2 senses V(b) - V(x).
+    # KCL at x gives g2 (Vb - Vx) = g1 Vin, so the output is a pure current g1 Vin (common
+    # practice for ideal transconductors): no Thevenin form, isc = -g1 Vin flows back through
+    # the short since DS2 draws g1 Vin out of the output net.
+    g1, g2, vin = 2e-3, 5e-3, 0.3
+    c = Circuit()
+    c.voltage_source("VIN", "in", GROUND, vin)
+    c.voltage_source("VB", "b", GROUND, 2)
+    c.vccs("DS1", "x", GROUND, "in", GROUND, g1)
+    c.vccs("DS2", "out", "x", "b", "x", g2)
+    c.resistor("RL", "out", GROUND, "1k")
+    netlist = Netlist(list(c.subcircuit({"VIN", "VB", "DS1", "DS2"})))
+    found = islands(netlist, dc=True, references=(GROUND,))
+    assert found.island("x") in found.solved
+    eq = equivalent(c, {"VIN", "VB", "DS1", "DS2"}, ("out", GROUND))
+    assert (eq.has_thevenin, eq.has_norton) == (False, True)
+    assert cmath.isinf(eq.z)
+    assert eq.isc == pytest.approx(-g1 * vin)
+
+
+def test_voltage_loops_name_their_parts() -> None:
+    c = Circuit()
+    c.voltage_source("V1", "a", GROUND, 1)
+    c.resistor("W1", "a", "b", 0)
+    c.inductor("L1", "b", GROUND, "1m")
+    c.resistor("R1", "a", GROUND, 1)
+    netlist = Netlist(list(c))
+    check_voltage_loops(netlist, dc=False)  # the inductor has an impedance at AC
+    with pytest.raises(SingularCircuitError,
+                       match=r"(?=.*V1)(?=.*W1)(?=.*L1).*inductors are shorts at DC"):
+        check_voltage_loops(netlist, dc=True)
+
+
+def test_a_source_loop_whose_current_controls_another_source_is_allowed() -> None:
+    # V(a) = 1 V is also set by DS1 = 2 Ω * I(V1): that fixes I(V1) = 0.5 A, so the parallel
+    # pair has a unique solution (KCL at a then fixes I(DS1)).
+    c = Circuit()
+    c.voltage_source("V1", "a", GROUND, 1)
+    c.ccvs("DS1", "a", GROUND, "V1", 2)
+    c.resistor("R1", "a", "b", 1)
+    c.resistor("RL", "b", GROUND, 1)
+    check_voltage_loops(Netlist(list(c)), dc=True)
+    eq = equivalent(c, {"V1", "DS1", "R1"}, ("b", GROUND))
+    assert eq.voc == pytest.approx(1.0)
+    assert eq.z == pytest.approx(1.0)
+
+
+def test_circuit_graph_marks_conducting_edges() -> None:
+    c = Circuit()
+    c.resistor("R1", "a", GROUND, 1)
+    c.capacitor("C1", "a", "b", "1u")
+    c.current_source("I1", GROUND, "b", 1)
+    c.opamp("U1", "a", "b", "o")
+    edges = {key: data for _u, _v, key, data in circuit_graph(c).edges(keys=True, data=True)}
+    assert edges["R1"]["conducting"] and not edges["C1"]["conducting"]
+    assert not edges["I1"]["conducting"]
+    assert edges["U1"]["kind"] == "opamp"
+    assert circuit_graph(c, freq=1e3).edges["a", "b", "C1"]["conducting"]
