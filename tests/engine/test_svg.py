@@ -12,11 +12,12 @@ from __future__ import annotations
 import math
 import re
 import xml.etree.ElementTree as ET
+from dataclasses import replace
 
 import numpy as np
 import pytest
 
-from engine.captions import block_caption, drawn_form, value_caption
+from engine.captions import above_extra_low_voltage, block_caption, drawn_form, value_caption
 from engine.errors import ValueParseError
 from engine.palette import PALETTE
 from engine.schematic import (
@@ -28,6 +29,7 @@ from engine.schematic import (
     Region,
     Wire,
 )
+from engine.schematic.reduction import collapse_region
 from engine.svg import SCALE, document_svg, junction_points
 from engine.symbols import pin_positions, symbol
 
@@ -311,3 +313,52 @@ def test_block_captions_follow_the_form_that_exists():
     assert drawn_form(no_thevenin, "thevenin") == "norton"
     no_norton = _Eq(2.0, complex("nan"), 0.0, has_norton=False)
     assert drawn_form(no_norton, "norton") == "thevenin"
+
+
+# -- collapsed blocks ----------------------------------------------------------------------------
+def _collapsed(form: str = "thevenin") -> Document:
+    doc = _divider()
+    collapse_region(doc, "r1", form).apply(doc)
+    return doc
+
+
+@pytest.mark.parametrize("form", ["thevenin", "norton"])
+def test_a_collapsed_block_shows_its_equivalent_and_the_frequency(form):
+    # V1 = 5 V behind R1 = 4.7 kΩ is its own Thevenin equivalent: Voc = 5 V, Z = 4.7 kΩ and
+    # Isc = 5 V / 4.7 kΩ = 1.064 mA (Thevenin's and Norton's theorems, any circuits text)
+    doc = _collapsed(form)
+    root = _parse(document_svg(doc))
+    (block,) = _groups(root, "block")
+    texts = _texts(block)
+    assert "EQ1" in texts and "Z = 4.7 kΩ" in texts and "at DC" in texts
+    assert ("Voc = 5 V" if form == "thevenin" else "Isc = 1.064 mA") in texts
+    assert "Equivalents at DC, peak values" in _texts(root)
+    (frame,) = [p for p in block.iter(f"{{{NS['s']}}}polygon") if p.get("stroke-dasharray")]
+    assert frame.get("stroke") == PALETTE.accent
+    assert len(_groups(root, "symbol")) == len(doc.parts()) + len(doc.labels()) + 1
+    at_1k = _texts(_parse(document_svg(doc, freq=1e3)))
+    assert "at 1 kHz" in at_1k and "Equivalents at 1 kHz, peak values" in at_1k
+
+
+def test_a_block_without_an_equivalent_says_why_in_the_error_colour():
+    doc = _collapsed()
+    (block,) = doc.blocks()
+    # port points that touch nothing in the contents: the block cannot be evaluated
+    doc.replace(replace(block, port=(((999, 999),), ((998, 998),))))
+    root = _parse(document_svg(doc))
+    (group,) = _groups(root, "block")
+    lines = [t for t in group.iter(f"{{{NS['s']}}}text") if t.get("class") == "value"]
+    assert lines[0].text == "no equivalent:" and "EQ1" in lines[1].text
+    assert all(t.get("fill") == PALETTE.error for t in lines)
+
+
+# -- the extra-low voltage check -----------------------------------------------------------------
+@pytest.mark.parametrize(("volts", "freq", "basis", "above"), [
+    ([120.0], 0.0, "peak", False), ([-120.5], 0.0, "peak", True),     # 120 V ripple-free DC
+    ([70.7], 50.0, "peak", False), ([70.8], 50.0, "peak", True),      # 50 V rms = 70.71 V peak
+    ([50.0], 50.0, "rms", False), ([50.1], 50.0, "rms", True),
+    ([complex("inf"), 1.0], 1e3, "peak", False),                      # undefined values skipped
+])
+def test_extra_low_voltage_limits(volts, freq, basis, above):
+    # limits: 50 V AC rms / 120 V ripple-free DC (common practice, IEC 61140 / IEC 60449 band I)
+    assert above_extra_low_voltage(volts, freq, basis) is above
