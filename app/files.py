@@ -39,6 +39,8 @@ class FileActions(QObject):
         self.settings = settings
         #: The reason the last open, save or export failed.
         self.last_error = ""
+        #: Shows a failure to the user (a non-blocking box; replaced where nobody watches).
+        self.report = dialogs.show_error
 
     def name(self) -> str:
         path = self.workbench.path
@@ -79,7 +81,7 @@ class FileActions(QObject):
             doc = load(path)
         except (CircuitError, OSError) as exc:
             self.last_error = _reason(exc)
-            dialogs.show_error(self.window, "Cannot open sheet",
+            self.report(self.window, "Cannot open sheet",
                                f"“{path.name}” could not be opened; the sheet you had open "
                                "is unchanged.", self.last_error)
             return False
@@ -106,7 +108,7 @@ class FileActions(QObject):
             save(self.workbench.doc, path)
         except (CircuitError, OSError) as exc:
             self.last_error = _reason(exc)
-            dialogs.show_error(self.window, "Cannot save sheet",
+            self.report(self.window, "Cannot save sheet",
                                f"“{path.name}” was not written; any earlier version of it is "
                                "unchanged.", self.last_error)
             return False
@@ -130,7 +132,7 @@ class FileActions(QObject):
             os.replace(partial, path)
         except (CircuitError, OSError) as exc:
             self.last_error = _reason(exc)
-            dialogs.show_error(self.window, "Cannot export SVG",
+            self.report(self.window, "Cannot export SVG",
                                f"“{path.name}” was not written.", self.last_error)
             return False
         return True

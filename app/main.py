@@ -106,6 +106,7 @@ def _screenshot(args: argparse.Namespace, window) -> int:
     import assets
 
     _apply_looks(window, args)
+    window.files.report = lambda *message: None  # nobody is watching: the reason goes to stderr
     path = args.file if args.file is not None else assets.example_path()
     if not window.files.open_path(path, as_copy=args.file is None):
         print(f"portcut: cannot open {path}: {window.files.last_error}", file=sys.stderr)

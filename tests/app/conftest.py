@@ -38,8 +38,12 @@ class Driver:
     def at(self, p: tuple[float, float]) -> QPoint:
         return self.view.mapFromScene(to_scene(p))
 
-    def move(self, p, buttons_held: bool = False) -> None:
-        QTest.mouseMove(self.viewport, self.at(p))
+    def move(self, p) -> None:
+        """Move the pointer to ``p``. Qt sends no move event when the pointer is already
+        there (an earlier test may have left it there), so it comes from one pixel aside."""
+        target = self.at(p)
+        QTest.mouseMove(self.viewport, target + QPoint(1, 1))
+        QTest.mouseMove(self.viewport, target)
 
     def click(self, p, modifiers=Qt.KeyboardModifier.NoModifier) -> None:
         self.move(p)
