@@ -23,11 +23,11 @@ column; no pairwise comparison of elements.
 
 from __future__ import annotations
 
-import cmath
 import re
 from collections import defaultdict
-from collections.abc import Callable
-from dataclasses import dataclass, field
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass, field, replace
 from functools import cache, cached_property, lru_cache
 from itertools import accumulate, pairwise
 
@@ -35,7 +35,8 @@ import numpy as np
 from scipy.sparse import csr_array
 from scipy.sparse.csgraph import connected_components
 
-from ..circuit import GROUND, KINDS, Circuit
+from ..circuit import GROUND, KINDS, Circuit, Part
+from ..equivalent import Equivalent, collapse, equivalent
 from ..errors import CircuitError
 from ..symbols import Point, pin_positions
 from ..units import parse_value
@@ -531,8 +532,8 @@ def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str
         _add_part(circuit, part, nets(part.id, len(KINDS[part.kind])))
     taken = set(conn.nets) | set(rename.values())
     for block in doc.blocks():
-        plus, minus = nets(block.id, 2)
-        _add_block(circuit, block, plus, minus, block_equivalent(block, freq), taken)
+        for part in _block_parts(block, *nets(block.id, 2), freq, taken):
+            circuit.add(part)
     return circuit
 
 
@@ -575,15 +576,19 @@ def contents_document(contents: Contents) -> Document:
     return doc
 
 
-def block_equivalent(block: Block, freq: float = 0.0):  # -> engine.equivalent's result
-    """The equivalent of ``block``'s contents seen between its port points at ``freq`` hertz.
+def block_equivalent(block: Block, freq: float = 0.0) -> Equivalent:
+    """The equivalent of ``block``'s contents seen between its port nets at ``freq`` hertz.
 
     Every contents pin listed in ``block.port[0]`` is on the plus net and every one in
     ``block.port[1]`` on the minus net (the wires that joined them stayed on the sheet).
     Errors come back as the same CircuitError subclass, prefixed with the block's designator.
     """
-    from ..equivalent import equivalent
+    circuit, port = _contents_circuit(block, freq)
+    with _blamed(block):
+        return equivalent(circuit, region=set(circuit.names), port=port, freq=freq)
 
+
+def _contents_circuit(block: Block, freq: float) -> tuple[Circuit, tuple[str, str]]:
     sub = contents_document(block.contents)
     conn = extract(sub)
     rename: dict[str, str] = {}
@@ -600,32 +605,39 @@ def block_equivalent(block: Block, freq: float = 0.0):  # -> engine.equivalent's
                                    "port nets, so it has no equivalent")
             rename[net] = target
         ends.append(target)
-    plus, minus = ends
+    with _blamed(block):
+        return _build(sub, conn, freq, rename), (ends[0], ends[1])
+
+
+@contextmanager
+def _blamed(block: Block) -> Iterator[None]:
     try:
-        circuit = _build(sub, conn, freq, rename)
-        return equivalent(circuit, region=set(circuit.names), port=(plus, minus), freq=freq)
+        yield
     except CircuitError as e:
         raise type(e)(f"{block.designator} (collapsed region): {e}") from None
 
 
-def _add_block(circuit: Circuit, block: Block, plus: str, minus: str, eq: object,
-               taken: set[str]) -> None:
-    """Source ``<designator>.src`` and impedance ``<designator>.z`` between the block's nets.
-
-    Thevenin: the voltage source sets V(mid) - V(minus) = voc and the impedance joins mid to plus.
-    Norton: the current source drives isc from minus into plus, the impedance across plus-minus.
-    The drawn form is used where it exists, the other form otherwise.
-    """
-    d = block.designator
-    z = complex(eq.z)
-    thevenin = eq.has_thevenin and (block.form == "thevenin" or not eq.has_norton)
-    if thevenin and z == 0:
-        circuit.voltage_source(f"{d}.src", plus, minus, eq.voc)
-    elif thevenin:
-        mid = _fresh(f"{d}.mid", taken)
-        circuit.voltage_source(f"{d}.src", mid, minus, eq.voc)
-        circuit.impedance(f"{d}.z", plus, mid, z)
-    else:
-        circuit.current_source(f"{d}.src", minus, plus, eq.isc)
-        if cmath.isfinite(z):
-            circuit.impedance(f"{d}.z", plus, minus, z)
+def _block_parts(block: Block, plus: str, minus: str, freq: float,
+                 taken: set[str]) -> list[Part]:
+    """What the engine's collapse puts in place of the contents, renamed for the sheet: the
+    source ``<designator>.src`` and impedance ``<designator>.z`` on the block's nets, with
+    ``<designator>.mid`` between them in the Thevenin form. The block's form is used where it
+    exists, the other one otherwise."""
+    circuit, port = _contents_circuit(block, freq)
+    region = set(circuit.names)
+    with _blamed(block):
+        eq = equivalent(circuit, region=region, port=port, freq=freq)
+        usable = eq.has_thevenin if block.form == "thevenin" else eq.has_norton
+        other = "norton" if block.form == "thevenin" else "thevenin"
+        reduced = collapse(circuit, region, port, freq, block.form if usable else other)
+    nets = {port[0]: plus, port[1]: minus}
+    mid = None
+    parts = []
+    for part in reduced:  # every part of the contents was in the region: only these remain
+        inner = [n for n in part.nodes if n not in nets]
+        if inner and mid is None:
+            mid = _fresh(f"{block.designator}.mid", taken)
+        role = "src" if part.is_independent_source else "z"
+        parts.append(replace(part, name=f"{block.designator}.{role}",
+                             nodes=tuple(nets.get(n, mid) for n in part.nodes)))
+    return parts

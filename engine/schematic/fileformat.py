@@ -60,7 +60,7 @@ MAX_BLOCK_NESTING = 32
 MAX_FILE_BYTES = 64 * 1024 * 1024
 _LABEL_STYLES = ("label", "ground")
 _BASES = ("peak", "rms")
-_WIDTH = 100
+_WIDTH = 120  # characters per line of the file: one element a line, mostly
 # Optional fields and the values they take when absent; the writer leaves out defaults.
 _PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
                   "couples": []}
@@ -122,8 +122,7 @@ def _document_data(doc: Document) -> Data:
                               doc.blocks())
     a = doc.analysis
     return {"format": FORMAT, "version": VERSION, "title": doc.title,
-            "analysis": _trimmed({"frequency": a.freq, "form": a.form, "basis": a.basis},
-                                 _ANALYSIS_DEFAULTS),
+            "analysis": {"frequency": a.freq, "form": a.form, "basis": a.basis},
             **contents, "regions": [_region_data(r) for r in doc.regions()]}
 
 
@@ -256,8 +255,8 @@ def _read_document(data: Any) -> Document:
     _fields(data, "", required=("format", "version"),
             optional=("title", "analysis", "parts", "wires", "junctions", "labels", "blocks",
                       "regions"))
-    scope = _Scope(Document(_text(data.get("title", "Untitled"), "title")))
-    for path, element in _elements(data, "", 0):
+    scope = _Scope(Document(_text(data.get("title", "Untitled"), "title")), {})
+    for path, element in _elements(data, "", 0, scope.designators):
         scope.add(path, element)
     for path, region in _each(data, "regions", _region):
         scope.add(path, region)
@@ -266,13 +265,15 @@ def _read_document(data: Any) -> Document:
 
 
 class _Scope:
-    """The elements of one level (the sheet, or one block's contents): ids and designators are
-    unique within it, and its Document checks the rest (wires, region members)."""
+    """The elements of one level (the sheet, or one block's contents). Ids are unique within a
+    level; designators across the whole file, since expanding a block puts its parts back on the
+    sheet (``designators`` is shared by every level). The level's Document checks the rest
+    (designator form, wires, region members)."""
 
-    def __init__(self, doc: Document) -> None:
+    def __init__(self, doc: Document, designators: dict[str, str]) -> None:
         self.doc = doc
         self.ids: dict[str, str] = {}
-        self.designators: dict[str, str] = {}
+        self.designators = designators
 
     def add(self, path: str, element: Element) -> None:
         if element.id in self.ids:
@@ -291,12 +292,13 @@ class _Scope:
             self.designators[designator] = path
 
 
-def _elements(data: Data, base: str, depth: int) -> Iterator[tuple[str, Element]]:
+def _elements(data: Data, base: str, depth: int,
+              designators: dict[str, str]) -> Iterator[tuple[str, Element]]:
     yield from _each(data, "parts", _part, base)
     yield from _each(data, "wires", _wire, base)
     yield from _each(data, "junctions", _junction, base)
     yield from _each(data, "labels", _label, base)
-    yield from _each(data, "blocks", lambda d, p: _block(d, p, depth + 1), base)
+    yield from _each(data, "blocks", lambda d, p: _block(d, p, depth + 1, designators), base)
 
 
 def _each(data: Data, key: str, read: Callable[[Any, str], Element],
@@ -366,12 +368,12 @@ def _region(data: Any, path: str) -> Region:
                   _bool(d["swap"], f"{path}.swap"))
 
 
-def _block(data: Any, path: str, depth: int) -> Block:
+def _block(data: Any, path: str, depth: int, designators: dict[str, str]) -> Block:
     if depth > MAX_BLOCK_NESTING:
         raise DocumentError(f"{path}: collapsed blocks nest more than {MAX_BLOCK_NESTING} deep")
     d = _fields(data, path, required=("id", "designator", "form", "at", "region", "contents",
                                       "port"), defaults=_BLOCK_DEFAULTS)
-    contents = _contents(d["contents"], f"{path}.contents.", depth)
+    contents = _contents(d["contents"], f"{path}.contents.", depth, designators)
     region = _region(d["region"], f"{path}.region")
     inside = {e.id for group in (contents.parts, contents.wires, contents.junctions,
                                  contents.labels, contents.blocks) for e in group}
@@ -392,12 +394,12 @@ def _block(data: Any, path: str, depth: int) -> Block:
                  tuple(_text(s, f"{path}.stubs[{i}]") for i, s in enumerate(stubs)))
 
 
-def _contents(data: Any, base: str, depth: int) -> Contents:
+def _contents(data: Any, base: str, depth: int, designators: dict[str, str]) -> Contents:
     _fields(data, base.rstrip("."), optional=("parts", "wires", "junctions", "labels", "blocks"))
-    scope = _Scope(Document())
+    scope = _Scope(Document(), designators)
     groups: dict[type, list[Element]] = {PlacedPart: [], Wire: [], Junction: [], NetLabel: [],
                                          Block: []}
-    for path, element in _elements(data, base, depth):
+    for path, element in _elements(data, base, depth, designators):
         scope.add(path, element)
         groups[type(element)].append(element)
     return Contents(*(tuple(groups[t]) for t in (PlacedPart, Wire, Junction, NetLabel, Block)))

@@ -7,6 +7,8 @@ reference that rasterises every wire and compares every pair of elements (networ
 from __future__ import annotations
 
 import itertools
+import math
+from dataclasses import replace
 
 import networkx as nx
 import pytest
@@ -14,12 +16,17 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from engine import CircuitError
+from engine.equivalent import equivalent
 from engine.schematic import (
+    Block,
+    Contents,
     Document,
     Junction,
     NetLabel,
     PlacedPart,
+    Region,
     Wire,
+    block_equivalent,
     build_circuit,
     extract,
     net_at,
@@ -458,3 +465,96 @@ def test_a_bad_source_phase_names_its_field() -> None:
     doc.replace_fields("p_V1", phase_deg="north")
     with pytest.raises(CircuitError, match=r"^V1 phase: cannot read 'north'"):
         build_circuit(doc)
+
+
+# -- collapsed blocks ---------------------------------------------------------------------------
+def divider_block(form: str = "thevenin", at: tuple[int, int] = (20, 0)) -> Block:
+    """The divider collapsed: the port nets' wires (w2 and the ground) stayed on the sheet, so
+    the contents pins on each port net are listed in ``port``."""
+    contents = Contents(
+        parts=(PlacedPart("c1", "voltage_source", "V1", (0, 4), 90, value="5"),
+               PlacedPart("c2", "resistor", "R1", (4, 0), value="4k7"),
+               PlacedPart("c3", "resistor", "R2", (8, 4), 90, value="10k")),
+        wires=(Wire("cw1", ((0, 2), (0, 0), (2, 0))),))
+    return Block("b1", "EQ1", form, at, Region("r1", "divider", frozenset({"c1", "c2", "c3"})),
+                 contents, (((6, 0), (8, 2)), ((0, 6), (8, 6))))
+
+
+def loaded(block: Block) -> Document:
+    """The block's plus pin (23, -2) to a 1 kΩ load, its minus pin (23, 2) to ground."""
+    return sheet(block, part("R9", "resistor", (27, -2), value="1k"),
+                 Wire("w1", ((23, -2), (25, -2))), ground("g1", (23, 2)), ground("g2", (29, -2)))
+
+
+# common practice: a voltage divider's Thevenin equivalent is V R2 / (R1 + R2) behind R1 || R2
+VTH, RTH = 5 * 10e3 / 14.7e3, 4.7e3 * 10e3 / 14.7e3
+
+
+def test_a_thevenin_block_becomes_a_source_behind_its_impedance() -> None:
+    doc = loaded(divider_block())
+    assert extract(doc).warnings == ()
+    circuit = build_circuit(doc)
+    plus = circuit["R9"].nodes[0]
+    assert plus == "EQ1.plus"
+    src, z = circuit["EQ1.src"], circuit["EQ1.z"]
+    assert (src.kind, src.nodes, z.nodes) == ("voltage_source", (plus, "EQ1.mid"),
+                                             ("EQ1.mid", "0"))
+    assert src.value == pytest.approx(VTH, rel=1e-12)
+    assert complex(z.value) == pytest.approx(RTH, rel=1e-12)
+    seen = equivalent(circuit, region={"EQ1.src", "EQ1.z"}, port=(plus, "0"))
+    assert seen.voc == pytest.approx(VTH, rel=1e-12)
+    assert seen.z == pytest.approx(RTH, rel=1e-12)
+
+
+def test_a_norton_block_drives_its_current_into_plus() -> None:
+    circuit = build_circuit(loaded(divider_block("norton")))
+    plus = circuit["R9"].nodes[0]
+    src, z = circuit["EQ1.src"], circuit["EQ1.z"]
+    assert (src.kind, src.nodes, z.nodes) == ("current_source", ("0", plus), (plus, "0"))
+    assert src.value == pytest.approx(5 / 4.7e3, rel=1e-12)  # the short-circuit current V / R1
+    assert complex(z.value) == pytest.approx(RTH, rel=1e-12)
+
+
+def test_a_block_without_its_drawn_form_uses_the_other_one() -> None:
+    # an ideal source straight across the port has z = 0: no Norton form exists
+    contents = Contents(parts=(PlacedPart("c1", "voltage_source", "V1", (0, 0), 90, value="3"),))
+    block = Block("b1", "EQ1", "norton", (20, 0), Region("r1", "source", frozenset({"c1"})),
+                  contents, (((0, -2),), ((0, 2),)))
+    circuit = build_circuit(loaded(block))
+    assert [(p.name, p.kind, p.value) for p in circuit if p.name.startswith("EQ1")] == [
+        ("EQ1.src", "voltage_source", 3.0)]
+
+
+def test_blocks_nest_and_follow_the_frequency() -> None:
+    # the divider block behind a 100 nF capacitor, collapsed again
+    inner = divider_block(at=(0, 0))
+    contents = Contents(parts=(PlacedPart("c9", "capacitor", "C1", (5, -2), value="100n"),),
+                        blocks=(inner,))
+    outer = Block("b2", "EQ2", "thevenin", (20, 0),
+                  Region("r2", "filter", frozenset({"c9", "b1"})), contents,
+                  (((7, -2),), ((3, 2),)))
+    for freq in (0.0, 1e3):
+        eq = block_equivalent(outer, freq)
+        if freq == 0:  # the capacitor is open at DC: the port floats behind it
+            assert not eq.has_thevenin
+            continue
+        zc = 1 / (2j * math.pi * freq * 100e-9)  # common practice: Z_C = 1 / (j w C)
+        assert eq.voc == pytest.approx(VTH, rel=1e-12)
+        assert eq.z == pytest.approx(RTH + zc, rel=1e-12)
+
+
+def test_a_block_port_point_on_nothing_is_reported() -> None:
+    block = replace(divider_block(), port=(((6, 0), (50, 50)), ((0, 6),)))
+    with pytest.raises(CircuitError, match=r"^EQ1: its plus port point touches nothing in its "
+                                           r"contents; expand and collapse the region again$"):
+        build_circuit(loaded(block))
+
+
+def test_a_block_whose_contents_fail_names_the_block() -> None:
+    block = divider_block()
+    bad = replace(block.contents.parts[1], value="lots")
+    block = replace(block, contents=replace(block.contents,
+                                            parts=(block.contents.parts[0], bad,
+                                                   block.contents.parts[2])))
+    with pytest.raises(CircuitError, match=r"^EQ1 \(collapsed region\): R1 value: cannot read"):
+        build_circuit(loaded(block))
