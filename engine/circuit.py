@@ -146,7 +146,7 @@ class Circuit:
     # -- building -----------------------------------------------------------------------------
     def add(self, part: Part) -> Part:
         """Add a part after checking its name, nodes, value and references."""
-        if part.kind not in KINDS:
+        if not isinstance(part.kind, str) or part.kind not in KINDS:
             raise CircuitError(f"{part.name}: unknown part kind {part.kind!r}; "
                                f"known kinds: {', '.join(KINDS)}")
         part = _validated(replace(part, value=_read(part.kind, part.name, part.value)), self)
@@ -239,6 +239,11 @@ def _validated(part: Part, circuit: Circuit, *, replacing: bool = False) -> Part
     if name in circuit and not replacing:
         raise CircuitError(f"{name}: a part of that name is already in the circuit")
     roles = KINDS[part.kind]
+    if not isinstance(part.nodes, tuple | list):
+        raise CircuitError(f"{name}: nets must be a sequence of net names, not {part.nodes!r}")
+    if not isinstance(part.refs, tuple | list):
+        raise CircuitError(f"{name}: references must be a sequence of part names, "
+                           f"not {part.refs!r}")
     nodes = tuple(part.nodes)
     if len(nodes) != len(roles):
         raise CircuitError(f"{name}: a {part.kind} takes {len(roles)} nets "
@@ -250,6 +255,9 @@ def _validated(part: Part, circuit: Circuit, *, replacing: bool = False) -> Part
         raise CircuitError(f"{name}: an impedance part must be non-zero; use a 0 Ω resistor "
                            "for a wire")
     if part.kind in _CURRENT_CONTROLLED:
+        if len(part.refs) != 1 or not isinstance(part.refs[0], str) or not part.refs[0]:
+            raise CircuitError(f"{name}: a {part.kind} names the one part whose current "
+                               f"controls it, got {tuple(part.refs)!r}")
         (control,) = part.refs
         if control == name:
             raise CircuitError(f"{name}: a source cannot be controlled by its own current")
