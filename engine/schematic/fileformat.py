@@ -321,7 +321,7 @@ def _part(data: Any, path: str) -> PlacedPart:
     _readable(phase, f"{path}.phase_deg", f"{designator} phase")
     couples = _list(d["couples"], f"{path}.couples")
     return PlacedPart(
-        _text(d["id"], f"{path}.id"), kind, designator, _point(d["at"], f"{path}.at"),
+        _id(d["id"], f"{path}.id"), kind, designator, _point(d["at"], f"{path}.at"),
         _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
         _bool(d["mirror"], f"{path}.mirror"), value, phase, _text(d["control"], f"{path}.control"),
         tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)))
@@ -341,18 +341,18 @@ def _wire(data: Any, path: str) -> Wire:
     points = _list(d["points"], f"{path}.points")
     if len(points) < 2:
         raise DocumentError(f"{path}.points: expected at least two points, got {len(points)}")
-    return Wire(_text(d["id"], f"{path}.id"),
+    return Wire(_id(d["id"], f"{path}.id"),
                 tuple(_point(p, f"{path}.points[{i}]") for i, p in enumerate(points)))
 
 
 def _junction(data: Any, path: str) -> Junction:
     d = _fields(data, path, required=("id", "at"))
-    return Junction(_text(d["id"], f"{path}.id"), _point(d["at"], f"{path}.at"))
+    return Junction(_id(d["id"], f"{path}.id"), _point(d["at"], f"{path}.at"))
 
 
 def _label(data: Any, path: str) -> NetLabel:
     d = _fields(data, path, required=("id", "name", "at"), defaults=_LABEL_DEFAULTS)
-    return NetLabel(_text(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
+    return NetLabel(_id(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
                     _point(d["at"], f"{path}.at"),
                     _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
                     _choice(d["style"], f"{path}.style", _LABEL_STYLES))
@@ -362,7 +362,7 @@ def _region(data: Any, path: str) -> Region:
     d = _fields(data, path, required=("id", "name", "members"), defaults=_REGION_DEFAULTS)
     members = _list(d["members"], f"{path}.members")
     outline = _list(d["outline"], f"{path}.outline")
-    return Region(_text(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
+    return Region(_id(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
                   frozenset(_text(m, f"{path}.members[{i}]") for i, m in enumerate(members)),
                   tuple(_outline_point(p, f"{path}.outline[{i}]") for i, p in enumerate(outline)),
                   _bool(d["swap"], f"{path}.swap"))
@@ -386,7 +386,7 @@ def _block(data: Any, path: str, depth: int, designators: dict[str, str]) -> Blo
                         for i, p in enumerate(_list(port[side], f"{path}.port.{side}")))
                   for side in ("plus", "minus"))
     stubs = _list(d["stubs"], f"{path}.stubs")
-    return Block(_text(d["id"], f"{path}.id"), _text(d["designator"], f"{path}.designator"),
+    return Block(_id(d["id"], f"{path}.id"), _text(d["designator"], f"{path}.designator"),
                  _choice(d["form"], f"{path}.form", ANALYSIS_FORMS), _point(d["at"], f"{path}.at"),
                  region, contents, sides,
                  _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
@@ -438,6 +438,12 @@ def _fields(data: Any, path: str, required: tuple[str, ...] = (),
 def _text(value: Any, path: str) -> str:
     if not isinstance(value, str):
         raise DocumentError(f"{path}: expected text, got {_shown(value)}")
+    return value
+
+
+def _id(value: Any, path: str) -> str:
+    if not _text(value, path):
+        raise DocumentError(f"{path}: expected a non-empty id, got \"\"")
     return value
 
 

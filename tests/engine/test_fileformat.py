@@ -115,6 +115,14 @@ def test_there_are_examples_to_round_trip() -> None:
     assert len(assets.example_names()) >= 6
 
 
+def test_the_documented_example_is_read_and_written_back_verbatim() -> None:
+    page = (Path(__file__).parents[2] / "docs" / "file-format.md").read_text(encoding="utf-8")
+    example = page.split("```json\n", 1)[1].split("```", 1)[0]
+    doc = loads(example)
+    assert dumps(doc) == example
+    assert [b.designator for b in doc.blocks()] == ["EQ1"]
+
+
 # generated documents ----------------------------------------------------------------------------
 ident = st.text(string.ascii_letters + string.digits + "_-·Ω ", min_size=1, max_size=6)
 designator = st.from_regex(r"[A-Za-z][A-Za-z0-9_]{0,4}", fullmatch=True)
@@ -245,6 +253,7 @@ REFUSALS = [
     (setter("blocks", 0, "designator", value="U1"),
      "blocks[0].designator: 'U1' is already the designator of parts[3]"),
     (setter("labels", 0, "id", value="p2"), "labels[0].id: 'p2' is already the id of parts[1]"),
+    (setter("wires", 0, "id", value=""), 'wires[0].id: expected a non-empty id, got ""'),
     (setter("blocks", 0, "contents", "parts", 2, "designator", value="DS1"),
      "blocks[0].contents.parts[2].designator: 'DS1' is already the designator of "
      "blocks[0].contents.parts[0]"),
