@@ -1,0 +1,191 @@
+"""Desktop canvas benchmark on a generated schematic (2,000 parts by default).
+
+Three figures, each printed beside a floor measured in the same run on the same machine:
+
+* open: read the file text, build the scene (items, sheet index, junction dots), fit and paint
+  the first frame — against building as many bare QGraphicsPathItems (one per part and per wire)
+  in a plain scene and painting that;
+* pan and zoom: the time of each repainted frame over a run of zoom and pan steps, median and
+  worst — against the same steps on the bare-item scene;
+* move one part: the undo command (wires follow), the scene update, the repaint, and a full
+  connectivity re-extraction (engine.schematic.connectivity.extract) — against moving one bare
+  item and repainting.
+
+Run from the repository root: ``python3 benchmarks/canvas.py [--parts N]`` (offscreen unless a
+display is set). Targets: open under 1 s; frames without stalls (worst under 50 ms); a move with
+re-extraction under 16 ms (one frame at 60 Hz).
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import statistics
+import sys
+import time
+from collections.abc import Callable
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+from PySide6.QtCore import QRectF  # noqa: E402
+from PySide6.QtGui import QPainterPath  # noqa: E402
+from PySide6.QtWidgets import (  # noqa: E402
+    QApplication,
+    QGraphicsPathItem,
+    QGraphicsScene,
+    QGraphicsView,
+)
+
+from app.canvas import Canvas, Look  # noqa: E402
+from app.commands import MoveElements  # noqa: E402
+from app.editing import RigidMap, plan_placement  # noqa: E402
+from app.workbench import Workbench  # noqa: E402
+from engine.schematic import Document, NetLabel, PlacedPart, Wire  # noqa: E402
+from engine.schematic.connectivity import extract  # noqa: E402
+from engine.schematic.fileformat import dumps, loads  # noqa: E402
+
+VIEW_SIZE = (1400, 900)
+CELL = 8   # grid units per ladder cell
+ROW = 10   # grid units between ladder rows
+
+
+def generated_sheet(parts: int, columns: int = 40) -> Document:
+    """Rows of RC ladders: per cell a series resistor and a capacitor to the row's ground rail,
+    joined by wires (the capacitor's wire tees into the series wire). Two parts per cell."""
+    doc = Document(f"Generated {parts}-part ladder")
+    rows = max(1, parts // (2 * columns))
+    n = 0
+    for r in range(rows):
+        y = r * ROW
+        doc.add(NetLabel(f"g{r}", "0", (0, y + 6), style="ground"))
+        doc.add(Wire(f"rail{r}", ((0, y + 6), (columns * CELL, y + 6))))
+        for c in range(columns):
+            x = c * CELL
+            n += 1
+            doc.add(PlacedPart(f"r{n}", "resistor", f"R{n}", (x + 4, y), value="1k"))
+            doc.add(PlacedPart(f"c{n}", "capacitor", f"C{n}", (x + 8, y + 4), rotation=90,
+                               value="100n"))
+            doc.add(Wire(f"s{n}", ((x + 6, y), (x + 10, y))))
+            doc.add(Wire(f"t{n}", ((x + 8, y), (x + 8, y + 2))))
+    return doc
+
+
+def _timed(fn: Callable[[], object]) -> float:
+    start = time.perf_counter()
+    fn()
+    return time.perf_counter() - start
+
+
+def _bare_scene(doc: Document) -> tuple[QGraphicsScene, QGraphicsView, list]:
+    scene = QGraphicsScene()
+    items = []
+    for e in doc:
+        path = QPainterPath()
+        if isinstance(e, Wire):
+            path.moveTo(e.points[0][0] * 20, e.points[0][1] * 20)
+            for x, y in e.points[1:]:
+                path.lineTo(x * 20, y * 20)
+        else:
+            x, y = e.at
+            path.addRect(QRectF(x * 20 - 40, y * 20 - 10, 80, 20))
+        item = QGraphicsPathItem(path)
+        scene.addItem(item)
+        items.append(item)
+    view = QGraphicsView(scene)
+    view.resize(*VIEW_SIZE)
+    view.show()
+    view.fitInView(scene.itemsBoundingRect())
+    view.viewport().repaint()
+    return scene, view, items
+
+
+def _frames(view: QGraphicsView, zoom: Callable[[float], None]) -> list[float]:
+    """Repainted frame times over 20 zoom-in, 20 zoom-out and 40 pan steps."""
+    times = []
+    steps = ([lambda: zoom(1.15)] * 20 + [lambda: zoom(1 / 1.15)] * 20
+             + [lambda: view.horizontalScrollBar().setValue(
+                 view.horizontalScrollBar().value() + 60)] * 20
+             + [lambda: view.verticalScrollBar().setValue(
+                 view.verticalScrollBar().value() + 40)] * 20)
+    for step in steps:
+        times.append(_timed(lambda s=step: (s(), view.viewport().repaint())))
+    return times
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    args.add_argument("--parts", type=int, default=2000)
+    args.add_argument("--repeat", type=int, default=3, help="best of N for the open figure")
+    opts = args.parse_args(argv)
+    app = QApplication.instance() or QApplication([])
+    sheet = generated_sheet(opts.parts)
+    text = dumps(sheet)
+    print(f"sheet: {len(sheet.parts())} parts, {len(sheet.wires())} wires, "
+          f"{len(text) / 1e6:.1f} MB of file text")
+
+    opens, floors = [], []
+    workbench = canvas = None
+    keep = []  # every scene and view made here lives to the end (Qt deletes items with scenes)
+    for _ in range(opts.repeat):
+        workbench = Workbench()
+        canvas = Canvas(workbench, Look())
+        canvas.view.resize(*VIEW_SIZE)
+        canvas.view.show()
+
+        def open_sheet(wb=workbench, cv=canvas) -> None:
+            wb.replace_document(loads(text), None)
+            cv.view.viewport().repaint()
+
+        opens.append(_timed(open_sheet))
+        floors.append(_timed(lambda: keep.append(_bare_scene(sheet))))
+        keep.append((workbench, canvas))
+    _, floor_view, floor_items = _bare_scene(sheet)
+    app.processEvents()
+
+    view = canvas.view
+    view.fit()
+    frames = _frames(view, view.zoom_by)
+    floor_frames = _frames(floor_view, lambda f: floor_view.scale(f, f))
+
+    doc = workbench.doc
+    part = doc.by_designator(f"R{len(doc.parts()) // 4}")
+    view.centerOn(canvas.scene.item(part.id))
+    view.zoom_by(4 / view.zoom())
+    app.processEvents()
+    canvas_ms, extract_ms, floor_ms = [], [], []
+    for i in range(40):
+        step = (1, 0) if i % 2 == 0 else (-1, 0)
+
+        def move(step=step) -> None:
+            plan = plan_placement(doc, canvas.scene.index, [part.id], RigidMap(offset=step))
+            workbench.push(MoveElements(doc, [part.id], plan, "Move"))
+            app.processEvents()  # the repaint of what changed
+
+        canvas_ms.append(_timed(move) * 1e3)
+        extract_ms.append(_timed(lambda: extract(doc)) * 1e3)
+        item = floor_items[0]
+        floor_ms.append(_timed(lambda it=item, s=step: (
+            it.setPos(it.pos().x() + 20 * s[0], it.pos().y()), app.processEvents())) * 1e3)
+    total = [a + b for a, b in zip(canvas_ms, extract_ms, strict=True)]
+
+    def row(name: str, ours: float, floor: float, unit: str, target: str) -> None:
+        print(f"{name:<38}{ours:>10.2f} {unit:<3}{floor:>10.2f} {unit:<3}"
+              f"{ours / floor:>8.1f}x   {target}")
+
+    print(f"{'measure':<38}{'portcut':>14}{'floor':>13}{'ratio':>9}   target")
+    row("open and first paint", min(opens), min(floors), "s", "< 1 s")
+    med, worst = statistics.median(frames) * 1e3, max(frames) * 1e3
+    row("pan/zoom frame, median", med, statistics.median(floor_frames) * 1e3, "ms", "")
+    row("pan/zoom frame, worst", worst, max(floor_frames) * 1e3, "ms", "< 50 ms")
+    row("move one part: edit + repaint", statistics.median(canvas_ms),
+        statistics.median(floor_ms), "ms", "")
+    row("move one part: + full re-extraction", statistics.median(total),
+        statistics.median(floor_ms), "ms", "< 16 ms")
+    print(f"  (re-extraction alone: median {statistics.median(extract_ms):.2f} ms)")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
