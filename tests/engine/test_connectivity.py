@@ -12,6 +12,7 @@ from dataclasses import replace
 
 import networkx as nx
 import pytest
+from drawing_strategies import orthogonal_polylines
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -353,18 +354,9 @@ point = st.tuples(coord, coord)
 
 
 @st.composite
-def polylines(draw) -> tuple[tuple[int, int], ...]:
-    points = [draw(point)]
-    for _ in range(draw(st.integers(1, 3))):
-        x, y = points[-1]
-        points.append((draw(coord), y) if draw(st.booleans()) else (x, draw(coord)))
-    return tuple(points)
-
-
-@st.composite
 def drawings(draw) -> Document:
     doc = Document()
-    for i, pts in enumerate(draw(st.lists(polylines(), max_size=6))):
+    for i, pts in enumerate(draw(st.lists(orthogonal_polylines(coord), max_size=6))):
         doc.add(Wire(f"w{i}", pts))
     for i in range(draw(st.integers(0, 5))):
         doc.add(PlacedPart(f"p{i}", "resistor", f"R{i}", draw(point),

@@ -14,6 +14,7 @@ from pathlib import Path
 from typing import Any
 
 import pytest
+from drawing_strategies import orthogonal_polylines
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -135,15 +136,6 @@ outline_point = st.tuples(*[st.floats(-1e6, 1e6, allow_nan=False) | coordinate] 
 
 
 @st.composite
-def orthogonal_points(draw) -> tuple[tuple[int, int], ...]:
-    points = [draw(grid_point)]
-    for _ in range(draw(st.integers(1, 3))):
-        x, y = points[-1]
-        points.append((draw(coordinate), y) if draw(st.booleans()) else (x, draw(coordinate)))
-    return tuple(points)
-
-
-@st.composite
 def scope_elements(draw, depth: int, numbers: Iterator[int]) -> list[Any]:
     """One level's elements; ``numbers`` keeps designators unique across all levels."""
     n = draw(st.integers(0, 7))
@@ -159,7 +151,7 @@ def scope_elements(draw, depth: int, numbers: Iterator[int]) -> list[Any]:
                                   draw(value_text), draw(phase_text), draw(st.text(max_size=3)),
                                   tuple(draw(st.lists(designator, max_size=2)))))
         elif what == "wire":
-            out.append(Wire(element_id, draw(orthogonal_points())))
+            out.append(Wire(element_id, draw(orthogonal_polylines(coordinate))))
         elif what == "junction":
             out.append(Junction(element_id, draw(grid_point)))
         elif what == "label":
