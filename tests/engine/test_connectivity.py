@@ -439,23 +439,17 @@ def test_build_circuit_reads_phase_control_couplings_and_four_terminal_parts() -
     assert circuit.names[-1] == "K1"  # couplings follow their inductors
 
 
-@pytest.mark.parametrize(("fields", "message"), [
-    ({"value": "4k7x"}, r"^R1 value: cannot read '4k7x'"),
-    ({"value": ""}, r"^R1 value: none given; enter the resistance, e\.g\. 4k7$"),
-    ({"value": "1k", "phase_deg": "30"},
+@pytest.mark.parametrize(("element_id", "fields", "message"), [
+    ("p_R1", {"value": "4k7x"}, r"^R1 value: cannot read '4k7x'"),
+    ("p_R1", {"value": ""}, r"^R1 value: none given; enter the resistance, e\.g\. 4k7$"),
+    ("p_R1", {"value": "1k", "phase_deg": "30"},
      r"^R1 phase: only independent sources take a phase; clear the field$"),
+    ("p_V1", {"phase_deg": "north"}, r"^V1 phase: cannot read 'north'"),
 ])
-def test_bad_values_name_the_designator_and_field(fields, message) -> None:
+def test_bad_values_name_the_designator_and_field(element_id, fields, message) -> None:
     doc = divider()
-    doc.replace_fields("p_R1", **fields)
+    doc.replace_fields(element_id, **fields)
     with pytest.raises(CircuitError, match=message):
-        build_circuit(doc)
-
-
-def test_a_bad_source_phase_names_its_field() -> None:
-    doc = divider()
-    doc.replace_fields("p_V1", phase_deg="north")
-    with pytest.raises(CircuitError, match=r"^V1 phase: cannot read 'north'"):
         build_circuit(doc)
 
 
