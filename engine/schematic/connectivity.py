@@ -458,20 +458,21 @@ def _part_warnings(sheet: _Sheet) -> list[ConnectivityWarning]:
                 seen[key] = e.designator
     for part in sheet.parts:
         if part.kind in _REFERENCING:
-            message = _reference_problem(part, by_designator)
+            message = _reference_problem(part, by_designator, sheet.blocks)
             if message:
                 out.append(ConnectivityWarning(message, part.id, part.at))
     return out
 
 
-def _reference_problem(part: PlacedPart, parts: dict[str, PlacedPart]) -> str:
+def _reference_problem(part: PlacedPart, parts: dict[str, PlacedPart],
+                       blocks: list[Block]) -> str:
     """Why a coupling's inductors or a current-controlled source's controller is unusable."""
     if part.kind == "coupling":
         if len(part.couples) != 2 or part.couples[0] == part.couples[1]:
             return f"{part.designator} must name two different inductors to couple"
         for ref in part.couples:
             if ref not in parts:
-                return f"{part.designator} couples {ref}, which is not on the sheet"
+                return f"{part.designator} couples {ref}, which {_missing(ref, blocks)}"
             if parts[ref].kind != "inductor":
                 return (f"{part.designator} couples {ref}, which is a "
                         f"{parts[ref].kind.replace('_', ' ')}, not an inductor")
@@ -480,11 +481,25 @@ def _reference_problem(part: PlacedPart, parts: dict[str, PlacedPart]) -> str:
             return f"{part.designator} names no part whose current controls it"
         if part.control not in parts:
             return (f"{part.designator} is controlled by the current of {part.control}, "
-                    "which is not on the sheet")
+                    f"which {_missing(part.control, blocks)}")
         if part.control == part.designator or parts[part.control].kind in {"opamp", "coupling"}:
             return (f"{part.designator} cannot be controlled by {part.control}, which has no "
                     "single branch current")
     return ""
+
+
+def _missing(designator: str, blocks: list[Block]) -> str:
+    """Where a designator that is not a part on the sheet is, as the end of a sentence."""
+    for block in blocks:
+        if block.designator == designator:
+            return "is a collapsed block; expand it and name a part inside"
+        stack = [block.contents]
+        while stack:
+            contents = stack.pop()
+            if any(p.designator == designator for p in contents.parts):
+                return f"is inside the collapsed block {block.designator}; expand the block"
+            stack.extend(b.contents for b in contents.blocks)
+    return "is not on the sheet"
 
 
 def net_at(doc: Document, conn: Connectivity, at: Point) -> str | None:
@@ -526,7 +541,7 @@ def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str
     by_designator = {p.designator: p for p in parts}
     # couplings last: the circuit checks that their inductors are already there
     for part in sorted(parts, key=lambda p: p.kind == "coupling"):
-        problem = _reference_problem(part, by_designator)
+        problem = _reference_problem(part, by_designator, doc.blocks())
         if problem:
             raise CircuitError(problem)
         _add_part(circuit, part, nets(part.id, len(KINDS[part.kind])))

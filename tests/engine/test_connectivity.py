@@ -301,6 +301,19 @@ def test_references_to_missing_parts_warn_and_refuse_to_build(extra, message) ->
         build_circuit(doc)
 
 
+def test_a_reference_into_a_collapsed_block_says_where_the_part_went() -> None:
+    doc = loaded(divider_block())
+    doc.add(part("DS1", "ccvs", (0, 20), control="R2", value="100"))
+    doc.add(part("DS2", "cccs", (0, 30), control="EQ1", value="2"))
+    found = {w.element_id: w.message for w in extract(doc).warnings if "control" in w.message}
+    assert found == {
+        "p_DS1": "DS1 is controlled by the current of R2, which is inside the collapsed block "
+                 "EQ1; expand the block",
+        "p_DS2": "DS2 is controlled by the current of EQ1, which is a collapsed block; expand "
+                 "it and name a part inside",
+    }
+
+
 def test_an_unnamed_label_warns() -> None:
     doc = sheet(part("R1", "resistor", (0, 0)), NetLabel("l1", " ", (2, 0)), ground("g", (-2, 0)))
     assert "net label at (2, 0) has no name, so it joins only what touches it" in messages(doc)
