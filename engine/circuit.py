@@ -139,9 +139,23 @@ class Circuit:
 
     def with_value(self, name: str, value: object) -> Circuit:
         """A new circuit in which part ``name`` has a new value (validated as on creation)."""
-        old = self[name]
-        new = _validated(replace(old, value=_read(old.kind, name, value)), self, replacing=True)
-        return Circuit(new if p.name == name else p for p in self)
+        return self.replaced([replace(self[name], value=value)])
+
+    def replaced(self, parts: Iterable[Part]) -> Circuit:
+        """A new circuit in which each of ``parts`` takes the place of the part of the same name
+        and kind, validated as on creation; the other parts are shared unchecked (they were
+        checked when added and a same-kind replacement cannot invalidate them), so an editor
+        changing a few parts of a large circuit pays a dictionary copy, not a rebuild."""
+        new = Circuit()
+        new._parts = dict(self._parts)
+        for part in parts:
+            old = self[part.name]
+            if part.kind != old.kind:
+                raise CircuitError(f"{part.name}: a {old.kind} cannot be replaced by a "
+                                   f"{part.kind}; build the circuit again")
+            value = _read(part.kind, part.name, part.value)
+            new._parts[part.name] = _validated(replace(part, value=value), new, replacing=True)
+        return new
 
     # -- building -----------------------------------------------------------------------------
     def add(self, part: Part) -> Part:

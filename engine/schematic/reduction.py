@@ -101,9 +101,11 @@ def region_part_names(doc: Document, region: Region, circuit: Circuit) -> frozen
 
 
 def analyse_region(doc: Document, region_id: str, *, conn: Connectivity | None = None,
-                   freq: float | None = None) -> RegionAnalysis:
+                   freq: float | None = None, circuit: Circuit | None = None) -> RegionAnalysis:
     """Check the region's cut and compute its equivalent at ``freq`` hertz (default: the
-    document's analysis frequency). Never raises for a bad circuit: the answer says what is
+    document's analysis frequency). ``conn`` and ``circuit``, when given, must be the
+    document's current connectivity and circuit at that frequency (a live view keeps them
+    up to date instead of rebuilding). Never raises for a bad circuit: the answer says what is
     wrong."""
     region = doc[region_id]
     if not isinstance(region, Region):
@@ -111,7 +113,7 @@ def analyse_region(doc: Document, region_id: str, *, conn: Connectivity | None =
     try:
         hz = parse_frequency(doc.analysis.freq) if freq is None else freq
         conn = conn or extract(doc)
-        circuit = build_circuit(doc, conn, hz)
+        circuit = circuit or build_circuit(doc, conn, hz)
     except CircuitError as e:
         return RegionAnalysis(region_id, False, f"the circuit cannot be built: {e}")
     names = region_part_names(doc, region, circuit)

@@ -99,6 +99,21 @@ def test_copy_without_subcircuit_and_with_value_leave_the_original(circuit: Circ
     assert changed.names == circuit.names
 
 
+def test_replaced_swaps_parts_in_place_and_checks_only_the_new_ones(circuit: Circuit) -> None:
+    changed = circuit.replaced([Part("R1", "resistor", ("in", "b"), "2k2"),
+                                Part("L2", "inductor", ("c", GROUND), "1m")])
+    assert changed.names == circuit.names  # same order
+    assert changed["R1"] == Part("R1", "resistor", ("in", "b"), 2200.0)
+    assert changed["V1"] is circuit["V1"]  # the rest is shared, not rebuilt
+    assert circuit["R1"].value == 4700.0
+    with pytest.raises(CircuitError, match="R1: a resistor cannot be replaced by a capacitor"):
+        circuit.replaced([Part("R1", "capacitor", ("in", "a"), "1n")])
+    with pytest.raises(ValueParseError, match="R2 value"):
+        circuit.replaced([Part("R2", "resistor", ("a", GROUND), "4k7k")])
+    with pytest.raises(CircuitError, match="no part named 'R9'"):
+        circuit.replaced([Part("R9", "resistor", ("a", GROUND), 1)])
+
+
 # -- refusals -----------------------------------------------------------------------------------
 def test_duplicate_name(circuit: Circuit) -> None:
     with pytest.raises(CircuitError, match=r"^R1: a part of that name is already in the circuit"):
