@@ -1,8 +1,8 @@
 """Undo commands: every edit of the document is one of these on the window's QUndoStack.
 
-Commands call Document methods only (add, remove, replace, set_title), never canvas items. Each
-command and all its children run inside one ``doc.batch()``, so the views see one Change per
-undo step. Compositions are parent commands with children (redone in order, undone in reverse).
+Commands call Document methods only (add, remove, replace, set_title, set_analysis), never canvas
+items. Each command and all its children run inside one ``doc.batch()``, so the views see one
+Change per undo step. Compositions are parent commands with children (redone in order, undone in reverse).
 """
 
 from __future__ import annotations
@@ -11,16 +11,19 @@ from collections.abc import Iterable
 
 from PySide6.QtGui import QUndoCommand
 
-from engine.schematic import Document, Element, Region
+from engine.schematic import Analysis, Document, Element, Region
+from engine.schematic.reduction import Edit
 
 from .editing import Deletion
 
 __all__ = [
     "AddElements",
+    "ApplyEdit",
     "DocumentCommand",
     "MoveElements",
     "RemoveElements",
     "ReplaceElements",
+    "SetAnalysis",
     "SetTitle",
     "delete_command",
 ]
@@ -151,6 +154,35 @@ class SetTitle(DocumentCommand):
 
     def _revert(self) -> None:
         self.doc.set_title(self.old)
+
+
+class ApplyEdit(DocumentCommand):
+    """An engine-planned edit (a collapse into a block, an expand back): redo applies it,
+    undo applies its exact inverse."""
+
+    def __init__(self, doc: Document, edit: Edit, text: str) -> None:
+        super().__init__(doc, text)
+        self.edit = edit
+
+    def _apply(self) -> None:
+        self.edit.apply(self.doc)
+
+    def _revert(self) -> None:
+        self.edit.inverse().apply(self.doc)
+
+
+class SetAnalysis(DocumentCommand):
+    """Change the analysis settings (frequency, equivalent form, peak or rms)."""
+
+    def __init__(self, doc: Document, analysis: Analysis, text: str) -> None:
+        super().__init__(doc, text)
+        self.analysis, self.old = analysis, doc.analysis
+
+    def _apply(self) -> None:
+        self.doc.set_analysis(self.analysis)
+
+    def _revert(self) -> None:
+        self.doc.set_analysis(self.old)
 
 
 def delete_command(doc: Document, plan: Deletion, text: str) -> DocumentCommand:
