@@ -2,7 +2,8 @@
 
 Commands call Document methods only (add, remove, replace, set_title, set_analysis), never canvas
 items. Each command and all its children run inside one ``doc.batch()``, so the views see one
-Change per undo step. Compositions are parent commands with children (redone in order, undone in reverse).
+Change per undo step. Compositions are parent commands with children (redone in order, undone
+in reverse).
 """
 
 from __future__ import annotations
