@@ -88,7 +88,8 @@ class Connectivity:
 
     ``net_of_pin[(element_id, pin_index)]`` for every pin of a part, block or net marker
     (pin order of engine.symbols.PINS); ``net_of_wire[wire_id]``; ``warnings`` in a stable order;
-    ``nets[name]`` the grid points of each net (its pins, wire vertices and junctions).
+    ``nets[name]`` the grid points of each net (its pins, wire vertices and junctions),
+    gathered on first use.
     """
 
     net_of_pin: dict[tuple[str, int], str]
@@ -99,17 +100,14 @@ class Connectivity:
 
     @cached_property
     def nets(self) -> dict[str, frozenset[Point]]:
-        """Net name -> grid points; gathered on first use, since live re-extraction rarely
-        needs it."""
+        # lazily: live re-extraction after each edit seldom needs the points
         return self._grouped_points()
 
 
+@lru_cache(maxsize=1 << 16)  # the same designators come back on every re-extraction
 def _natural_key(text: str) -> tuple[object, ...]:
     """Sort key in which digit runs compare as numbers: R2 < R10 < RA."""
     return tuple(int(chunk) if i % 2 else chunk for i, chunk in enumerate(re.split(r"(\d+)", text)))
-
-
-_natural_key = lru_cache(maxsize=1 << 16)(_natural_key)
 
 
 @cache
@@ -134,8 +132,9 @@ class _Pin:
 
 
 class _Sheet:
-    """One document flattened for extraction. Graph nodes are numbered pins first (in the order
-    of ``pins``), then wires, then junctions."""
+    """One document flattened for extraction. Graph nodes are numbered pins first (those of parts
+    and blocks in natural designator order, then those of net markers), then wires, then
+    junctions."""
 
     def __init__(self, doc: Document) -> None:
         by_type: dict[type, list] = defaultdict(list)
@@ -199,18 +198,15 @@ def extract(doc: Document) -> Connectivity:
     last = np.cumsum(counts) - 1
     ends = np.concatenate([last - np.array(counts) + 1, last]).astype(np.int64)
     junction_xy = np.array([j.at for j in sheet.junctions], dtype=np.int64).reshape(-1, 2)
-    # every thing that joins whatever passes through its point: pins, wire ends, junctions
-    joint_x = np.concatenate([sheet.pin_x, vertices[ends, 0], junction_xy[:, 0]])
-    joint_y = np.concatenate([sheet.pin_y, vertices[ends, 1], junction_xy[:, 1]])
-    joint_node = np.concatenate([np.arange(n_pins), n_pins + vertex_wire[ends],
-                                 n_pins + n_wires + np.arange(len(sheet.junctions))])
-    grid = _Grid(np.concatenate([joint_x, vertices[:, 0]]),
-                 np.concatenate([joint_y, vertices[:, 1]]))
-    edges = [*grid.join_points(joint_x, joint_y, joint_node),
-             *grid.join_segments(vertices, vertex_wire, n_pins)]
+    # everything that joins whatever passes through its point: pins, wire ends, junctions
+    joints = _Joints(np.concatenate([sheet.pin_x, vertices[ends, 0], junction_xy[:, 0]]),
+                     np.concatenate([sheet.pin_y, vertices[ends, 1], junction_xy[:, 1]]),
+                     np.concatenate([np.arange(n_pins), n_pins + vertex_wire[ends],
+                                     n_pins + n_wires + np.arange(len(sheet.junctions))]),
+                     vertices)
     label_edges, label_names = _label_edges(sheet, warnings)
-    edges.append(label_edges)
-    pairs = np.concatenate(edges, axis=1) if edges else np.zeros((2, 0), dtype=np.int64)
+    pairs = np.concatenate([joints.edges, *joints.segment_edges(vertices, vertex_wire, n_pins),
+                            label_edges], axis=1)
     graph = csr_array((np.ones(pairs.shape[1], dtype=np.int8), (pairs[0], pairs[1])),
                       shape=(n_nodes, n_nodes))
     n_nets, net = connected_components(graph, directed=False)
@@ -252,15 +248,30 @@ class _Axis:
         return np.searchsorted(self.table, values)
 
 
-class _Grid:
-    """Integer grid points encoded as one int64 key, row by row or column by column, so that a
-    horizontal or vertical segment covers one contiguous run of keys."""
+class _Joints:
+    """The points where things join, indexed for segment queries.
 
-    def __init__(self, xs: np.ndarray, ys: np.ndarray) -> None:
-        span = [int(v.max()) - int(v.min()) + 1 if v.size else 1 for v in (xs, ys)]
-        # far-apart coordinates would overflow the key: rank them instead
-        rank = span[0] * span[1] >= 2**62
-        self.x, self.y = _Axis(xs, rank), _Axis(ys, rank)
+    Grid points are encoded as one int64 key, row by row and column by column, so that a
+    horizontal or vertical segment covers one contiguous run of keys in the sorted tables.
+    ``edges`` join every node to the first node at its point.
+    """
+
+    def __init__(self, xs: np.ndarray, ys: np.ndarray, nodes: np.ndarray,
+                 vertices: np.ndarray) -> None:
+        all_x, all_y = np.concatenate([xs, vertices[:, 0]]), np.concatenate([ys, vertices[:, 1]])
+        span = [int(v.max()) - int(v.min()) + 1 if v.size else 1 for v in (all_x, all_y)]
+        rank = span[0] * span[1] >= 2**62  # far-apart coordinates would overflow the key
+        self.x, self.y = _Axis(all_x, rank), _Axis(all_y, rank)
+        keys = self.row_key(xs, ys)
+        order = np.argsort(keys, kind="stable")
+        keys, nodes = keys[order], nodes[order]
+        first = np.ones(keys.size, dtype=bool)
+        first[1:] = keys[1:] != keys[:-1]
+        self.row_keys, self.row_nodes = keys[first], nodes[first]
+        self.edges = np.stack([nodes, self.row_nodes[np.cumsum(first) - 1]])
+        col = self.col_key(xs[order][first], ys[order][first])
+        by_col = np.argsort(col, kind="stable")
+        self.col_keys, self.col_nodes = col[by_col], self.row_nodes[by_col]
 
     def row_key(self, xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
         return self.y.index(ys) * self.x.size + self.x.index(xs)
@@ -268,23 +279,7 @@ class _Grid:
     def col_key(self, xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
         return self.x.index(xs) * self.y.size + self.y.index(ys)
 
-    def join_points(self, xs: np.ndarray, ys: np.ndarray,
-                    nodes: np.ndarray) -> list[np.ndarray]:
-        """Edges joining every node to the first node at its point; keeps the joint points."""
-        keys = self.row_key(xs, ys)
-        order = np.argsort(keys, kind="stable")
-        keys, nodes = keys[order], nodes[order]
-        first = np.ones(keys.size, dtype=bool)
-        first[1:] = keys[1:] != keys[:-1]
-        self.row_keys, self.row_nodes = keys[first], nodes[first]
-        group = np.cumsum(first) - 1
-        ux, uy = xs[order][first], ys[order][first]
-        col = self.col_key(ux, uy)
-        by_col = np.argsort(col, kind="stable")
-        self.col_keys, self.col_nodes = col[by_col], self.row_nodes[by_col]
-        return [np.stack([nodes, self.row_nodes[group]])]
-
-    def join_segments(self, vertices: np.ndarray, vertex_wire: np.ndarray,
+    def segment_edges(self, vertices: np.ndarray, vertex_wire: np.ndarray,
                       base: int) -> list[np.ndarray]:
         """Edges joining each wire (node ``base + index``) to every joint point on its segments."""
         same = vertex_wire[1:] == vertex_wire[:-1]
@@ -299,8 +294,7 @@ class _Grid:
             start = np.searchsorted(keys, key(lo[:, 0], lo[:, 1]), side="left")
             stop = np.searchsorted(keys, key(hi[:, 0], hi[:, 1]), side="right")
             hits = stop - start
-            total = int(hits.sum())
-            offset = np.arange(total) - np.repeat(np.cumsum(hits) - hits, hits)
+            offset = np.arange(int(hits.sum())) - np.repeat(np.cumsum(hits) - hits, hits)
             out.append(np.stack([np.repeat(wire[mask], hits),
                                  nodes[np.repeat(start, hits) + offset]]))
         return out
