@@ -15,7 +15,8 @@ net is named after its lowest pin, ``"<designator>.<role>"`` in natural designat
 pin order (``"R1.b"``, ``"U1.out"``, ``"EQ1.plus"``); a net with no part pins is named after its
 lowest wire or junction id, ``"<id>.net"``. Designators hold no ``.``, so automatic names never
 collide with one another, and one that equals a user label gets ``'`` appended until it is free.
-An automatic name changes only when its own net gains or loses its lowest pin.
+An automatic name changes only with its own net: when its lowest pin leaves, a lower one joins,
+or a label comes to name it; edits elsewhere on the sheet leave it alone.
 
 Cost: linear in the number of elements plus a sort of the joining points per grid row and
 column; no pairwise comparison of elements.
@@ -366,7 +367,7 @@ def _grouped(points: list[Point], point_net: np.ndarray,
     starts = [0, *bounds.tolist()]
     stops = [*starts[1:], len(order)]
     return {names[n]: frozenset(ordered_points[a:b])
-            for n, a, b in zip(ordered[starts].tolist(), starts, stops, strict=True) if b > a}
+            for n, a, b in zip(ordered[starts].tolist(), starts, stops, strict=True)}
 
 
 def _chosen_name(found: dict[str, int], sheet: _Sheet,
