@@ -45,7 +45,7 @@ from .errors import SingularCircuitError
 from .units import format_eng
 
 __all__ = [
-    "EPS", "Factor", "Group", "Netlist", "Singular", "System", "assemble", "bound",
+    "EPS", "Branches", "Factor", "Group", "Netlist", "Singular", "System", "assemble", "bound",
     "describe_freq", "rounding",
 ]
 
@@ -59,6 +59,7 @@ _NODES = attrgetter("nodes")
 _VALUE = attrgetter("value")
 _NAME = attrgetter("name")
 _CONTROLLED = ("ccvs", "cccs")
+_ALWAYS_BRANCH = ("voltage_source", "vcvs", "ccvs", "inductor", "opamp")
 #: Parts that become group-2 (branch current unknown) only when they control a CCVS or CCCS.
 _BRANCH_IF_CONTROLLER = ("resistor", "capacitor", "impedance", "current_source", "vccs", "cccs")
 
@@ -145,15 +146,12 @@ class Netlist:
         """True when a controlled source or op-amp makes the system non-reciprocal."""
         return any(kind in self.groups for kind in ("vcvs", "vccs", "ccvs", "cccs", "opamp"))
 
-    def is_branch(self, kind: str) -> np.ndarray:
-        """Mask of the parts of ``kind`` that carry a branch-current unknown."""
-        group = self[kind]
-        mask = np.zeros(len(group), dtype=bool)
-        if kind == "resistor":
-            mask |= group.values == 0
-        if self.controllers and kind in _BRANCH_IF_CONTROLLER:
-            mask |= np.fromiter((n in self.controllers for n in group.names), bool, len(group))
-        return mask
+    def branches(self) -> Branches:
+        """The group-2 parts (kept in ``memo``: a pure function of the parts)."""
+        found = self.memo.get("branches")
+        if found is None:
+            found = self.memo["branches"] = Branches(self)
+        return found
 
     def impedance_range(self, freqs: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Smallest and largest non-zero impedance magnitude (ohms) of the parts at each freq.
@@ -188,21 +186,70 @@ def _span(*arrays: np.ndarray) -> tuple[float, float]:
     return float(values.min()), float(values.max())
 
 
+class Branches:
+    """Group-2 parts of a netlist: per kind, the positions in its group of the parts that carry
+    a branch current (``where``) and the offset of the first among the branch unknowns
+    (``first``); ``offset_of`` maps a part name to its offset."""
+
+    __slots__ = ("_offsets", "count", "first", "netlist", "where")
+
+    def __init__(self, netlist: Netlist) -> None:
+        self.netlist = netlist
+        self.where: dict[str, np.ndarray] = {}
+        self.first: dict[str, int] = {}
+        count = 0
+        for kind in (*_ALWAYS_BRANCH, *_BRANCH_IF_CONTROLLER):
+            group = netlist.groups.get(kind)
+            if group is None:
+                continue
+            if kind in _ALWAYS_BRANCH:
+                where = np.arange(len(group))
+            else:
+                mask = group.values == 0 if kind == "resistor" else np.zeros(len(group), bool)
+                if netlist.controllers:
+                    mask |= np.fromiter((n in netlist.controllers for n in group.names), bool,
+                                        len(group))
+                where = np.flatnonzero(mask)
+            if where.size:
+                self.where[kind], self.first[kind] = where, count
+                count += where.size
+        self.count = count
+        self._offsets: dict[str, int] | None = None
+
+    def plain(self, kind: str) -> np.ndarray | slice:
+        """Selector of the parts of ``kind`` without a branch current."""
+        where = self.where.get(kind)
+        if where is None:
+            return slice(None)
+        keep = np.ones(len(self.netlist[kind]), dtype=bool)
+        keep[where] = False
+        return keep
+
+    @property
+    def offset_of(self) -> dict[str, int]:
+        if self._offsets is None:
+            self._offsets = {}
+            for kind, where in self.where.items():
+                names = self.netlist[kind].names
+                self._offsets.update((names[i], self.first[kind] + j)
+                                     for j, i in enumerate(where.tolist()))
+        return self._offsets
+
+
 class _Triplets:
-    """COO entries collected kind by kind, concatenated once."""
+    """COO entries collected stamp by stamp, concatenated once; a scalar value is repeated."""
 
     def __init__(self) -> None:
         self.rows: list[np.ndarray] = []
         self.cols: list[np.ndarray] = []
         self.vals: list[np.ndarray] = []
 
-    def add(self, rows: Iterable[np.ndarray], cols: Iterable[np.ndarray],
-            vals: Iterable[np.ndarray | complex]) -> None:
-        rows, cols = list(rows), list(cols)
+    def add(self, rows: Sequence[np.ndarray], cols: Sequence[np.ndarray],
+            vals: Sequence[np.ndarray | float]) -> None:
         for r, c, v in zip(rows, cols, vals, strict=True):
             self.rows.append(r)
             self.cols.append(c)
-            self.vals.append(np.broadcast_to(v, r.shape))
+            self.vals.append(v if isinstance(v, np.ndarray) else np.full(r.size, v))
 
     def admittance(self, a: np.ndarray, b: np.ndarray, y: np.ndarray) -> None:
         self.add((a, b, a, b), (a, b, b, a), (y, y, -y, -y))
@@ -236,13 +283,11 @@ class System:
     """
 
     def __init__(self, netlist: Netlist, unknown_of_net: np.ndarray, n_nodes: int,
-                 branch_of: dict[str, int], short: int | None,
-                 g: tuple[np.ndarray, np.ndarray, np.ndarray],
+                 short: int | None, g: tuple[np.ndarray, np.ndarray, np.ndarray],
                  m: tuple[np.ndarray, np.ndarray, np.ndarray], b: np.ndarray) -> None:
         self.netlist = netlist
         self.unknown_of_net = unknown_of_net
         self.n_nodes = n_nodes
-        self.branch_of = branch_of
         self.short = short
         self.size = b.shape[0]
         self.b = b
@@ -250,6 +295,15 @@ class System:
         self._rows = np.concatenate((g[0], m[0]))
         self._cols = np.concatenate((g[1], m[1]))
         self.symmetric = not netlist.has_dependent
+        self._branch_of: dict[str, int] | None = None
+
+    @property
+    def branch_of(self) -> dict[str, int]:
+        """Branch-current unknown of each group-2 part, by name."""
+        if self._branch_of is None:
+            offsets = self.netlist.branches().offset_of
+            self._branch_of = {name: self.n_nodes + k for name, k in offsets.items()}
+        return self._branch_of
 
     def matrix(self, freq: float) -> sp.csc_matrix:
         """A(j 2 pi freq) in CSC form (real when every entry is real, e.g. at DC)."""
@@ -302,132 +356,120 @@ def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | N
 
     ``short``: net ids (plus, minus) joined by an ideal 0 V branch (the shorted port), whose
     current (from plus through the short into minus) is the unknown ``System.short``.
-    Raises :class:`~engine.errors.CircuitError` where a CCVS/CCCS names a controller that is not
-    among the parts, or a coupling an inductor that is not.
+    Raises :class:`~engine.errors.SingularCircuitError` where a CCVS/CCCS names a controller
+    that is not among the parts, or a coupling an inductor that is not.
     """
     n_nets = len(netlist.nets)
+    u = np.full(n_nets, -1, dtype=np.intp)  # unknown of each net id; -1 where pinned
     is_node = np.ones(n_nets, dtype=bool)
     is_node[np.fromiter(pinned, dtype=np.intp)] = False
-    unknown_of_net = np.full(n_nets, -1, dtype=np.intp)
     n_nodes = int(is_node.sum())
-    unknown_of_net[is_node] = np.arange(n_nodes)
-    u = unknown_of_net
+    u[is_node] = np.arange(n_nodes)
 
-    # Branch unknowns, kind by kind.
-    branch_sets: list[tuple[str, np.ndarray]] = []
-    next_index = n_nodes
-    branch_of: dict[str, int] = {}
-    branch_index: dict[str, np.ndarray] = {}
-    for kind in ("voltage_source", "vcvs", "ccvs", "inductor", "opamp"):
-        mask = np.ones(len(netlist[kind]), dtype=bool)
-        branch_sets.append((kind, mask))
-    for kind in _BRANCH_IF_CONTROLLER:
-        branch_sets.append((kind, netlist.is_branch(kind)))
-    for kind, mask in branch_sets:
-        count = int(mask.sum())
-        index = np.full(mask.size, -1, dtype=np.intp)
-        index[mask] = np.arange(next_index, next_index + count)
-        branch_index[kind] = index
-        if count:
-            names = netlist[kind].names
-            branch_of.update((names[i], int(index[i])) for i in np.flatnonzero(mask))
-        next_index += count
-    short_index = None
-    if short is not None:
-        short_index = next_index
-        next_index += 1
-    size = next_index
+    branches = netlist.branches()
+    size = n_nodes + branches.count
+    short_index = size if short is not None else None
+    size += short is not None
 
     g, m = _Triplets(), _Triplets()
     b = np.zeros(size, dtype=complex if _sources_complex(netlist) else float)
+    controls = _control_indices(netlist, n_nodes) if netlist.controllers else {}
 
-    def control_index(kind: str) -> np.ndarray:
-        names = [r[0] for r in netlist[kind].refs]
-        try:
-            return np.fromiter((branch_of[n] for n in names), dtype=np.intp, count=len(names))
-        except KeyError as missing:
-            part = netlist[kind].names[names.index(missing.args[0])]
-            raise SingularCircuitError(
-                f"{part} is controlled by the current in {missing.args[0]}, which is not among "
-                "the parts analysed; add it or change the controlling part") from None
+    def plain(kind: str) -> tuple[np.ndarray, np.ndarray]:
+        """Nodes (as unknowns) and values of the parts of ``kind`` without a branch current."""
+        group, keep = netlist[kind], branches.plain(kind)
+        return u[group.nodes[keep]], group.values[keep]
 
-    # Two-terminal admittances (not group 2): 1/R and 1/Z in G, C in M.
+    # Parts without a branch current: admittances, transconductances, source injections.
     for kind, target in (("resistor", g), ("impedance", g), ("capacitor", m)):
-        group, mask = netlist[kind], ~netlist.is_branch(kind)
-        if mask.any():
-            nodes, values = group.nodes[mask], group.values[mask]
-            target.admittance(u[nodes[:, 0]], u[nodes[:, 1]],
-                              values if kind == "capacitor" else 1 / values)
-
-    # Independent current sources that are not controllers feed the right-hand side.
-    group = netlist["current_source"]
-    plain = ~netlist.is_branch("current_source")
-    if plain.any():
-        nodes, values = group.nodes[plain], group.values[plain]
+        if kind in netlist.groups:
+            nodes, values = plain(kind)
+            if len(values):
+                target.admittance(nodes[:, 0], nodes[:, 1],
+                                  values if kind == "capacitor" else 1 / values)
+    if "current_source" in netlist.groups:
+        nodes, values = plain("current_source")
         for col, sign in ((0, -1.0), (1, 1.0)):
-            k = u[nodes[:, col]]
+            k = nodes[:, col]
             np.add.at(b, k[k >= 0], sign * values[k >= 0])
-
-    # VCCS and CCCS that are not controllers inject into net rows.
-    group, mask = netlist["vccs"], ~netlist.is_branch("vccs")
-    if mask.any():
-        nd, gm = group.nodes[mask], group.values[mask]
-        f, t, cp, cn = (u[nd[:, i]] for i in range(4))
+    if "vccs" in netlist.groups:
+        nodes, gm = plain("vccs")
+        f, t, cp, cn = nodes.T
         g.add((f, f, t, t), (cp, cn, cp, cn), (gm, -gm, -gm, gm))
-    group, mask = netlist["cccs"], ~netlist.is_branch("cccs")
-    if mask.any():
-        kc = control_index("cccs")[mask]
-        nd, beta = group.nodes[mask], group.values[mask]
-        g.add((u[nd[:, 0]], u[nd[:, 1]]), (kc, kc), (beta, -beta))
+    if "cccs" in netlist.groups:
+        nodes, beta = plain("cccs")
+        kc = controls["cccs"][branches.plain("cccs")]
+        g.add((nodes[:, 0], nodes[:, 1]), (kc, kc), (beta, -beta))
 
-    # Group-2 parts: incidence columns, then their rows.
-    for kind, _mask in branch_sets:
-        index = branch_index[kind]
-        sel = index >= 0
-        if not sel.any():
-            continue
-        k = index[sel]
+    # Group-2 parts: the incidence of their currents, then their branch rows.
+    rows = {}
+    for kind, where in branches.where.items():
         group = netlist[kind]
-        nd, val = group.nodes[sel], group.values[sel]
-        a, bb = u[nd[:, 0]], u[nd[:, 1]]
-        if kind == "opamp":
-            out, ground = u[nd[:, 2]], u[nd[:, 3]]
-            g.add((out, ground), (k, k), (-1.0, 1.0))  # the output current enters ``out``
-            g.voltage_row(k, a, bb)                    # V(inp) - V(inn) = 0
-            continue
-        g.incidence(k, a, bb)
-        if kind in ("voltage_source", "vcvs", "ccvs", "inductor", "resistor", "impedance"):
-            g.voltage_row(k, a, bb)
-        if kind == "voltage_source":
-            b[k] = val
+        start = n_nodes + branches.first[kind]
+        rows[kind] = (np.arange(start, start + where.size), u[group.nodes[where]],
+                      group.values[where], where)
+    two_terminal = [r for kind, r in rows.items() if kind != "opamp"]
+    if two_terminal:
+        k = np.concatenate([r[0] for r in two_terminal])
+        nodes = np.concatenate([r[1][:, :2] for r in two_terminal])
+        g.incidence(k, nodes[:, 0], nodes[:, 1])
+    voltage_rows = [rows[kind] for kind in ("voltage_source", "vcvs", "ccvs", "inductor",
+                                            "resistor", "impedance") if kind in rows]
+    if voltage_rows:
+        k = np.concatenate([r[0] for r in voltage_rows])
+        nodes = np.concatenate([r[1][:, :2] for r in voltage_rows])
+        g.voltage_row(k, nodes[:, 0], nodes[:, 1])
+    for kind, (k, nodes, values, where) in rows.items():
+        if kind == "opamp":  # the output current enters ``out``; row V(inp) - V(inn) = 0
+            g.add((nodes[:, 2], nodes[:, 3]), (k, k), (-1.0, 1.0))
+            g.voltage_row(k, nodes[:, 0], nodes[:, 1])
+        elif kind == "voltage_source":
+            b[k] = values
         elif kind == "vcvs":
-            g.add((k, k), (u[nd[:, 2]], u[nd[:, 3]]), (-val, val))
+            g.add((k, k), (nodes[:, 2], nodes[:, 3]), (-values, values))
         elif kind == "ccvs":
-            g.add((k,), (control_index("ccvs")[sel],), (-val,))
+            g.add((k,), (controls["ccvs"][where],), (-values,))
         elif kind == "inductor":
-            m.add((k,), (k,), (-val,))
-        elif kind in ("resistor", "impedance"):
-            g.add((k,), (k,), (-val,))          # V(a) - V(b) - R I = 0 (R = 0: a wire)
-        elif kind == "capacitor":
-            m.voltage_row(k, a, bb, val)        # s C (V(a) - V(b)) - I = 0
+            m.add((k,), (k,), (-values,))
+        elif kind in ("resistor", "impedance"):   # V(a) - V(b) - R I = 0 (R = 0: a wire)
+            g.add((k,), (k,), (-values,))
+        elif kind == "capacitor":                 # s C (V(a) - V(b)) - I = 0
+            m.voltage_row(k, nodes[:, 0], nodes[:, 1], values)
             g.add((k,), (k,), (-1.0,))
-        else:                                   # current-defined rows: I - value (...) = 0
+        else:                                     # current-defined: I - value (...) = 0
             g.add((k,), (k,), (1.0,))
             if kind == "current_source":
-                b[k] = val
+                b[k] = values
             elif kind == "vccs":
-                g.add((k, k), (u[nd[:, 2]], u[nd[:, 3]]), (-val, val))
+                g.add((k, k), (nodes[:, 2], nodes[:, 3]), (-values, values))
             else:
-                g.add((k,), (control_index("cccs")[sel],), (-val,))
+                g.add((k,), (controls["cccs"][where],), (-values,))
 
-    _stamp_couplings(netlist, branch_of, m)
+    if "coupling" in netlist.groups:
+        _stamp_couplings(netlist, n_nodes, m)
     if short is not None:
         k = np.array([short_index])
         a, bb = u[np.array([short[0]])], u[np.array([short[1]])]
         g.incidence(k, a, bb)
         g.voltage_row(k, a, bb)
-    return System(netlist, unknown_of_net, n_nodes, branch_of, short_index,
-                  g.arrays(), m.arrays(), b)
+    return System(netlist, u, n_nodes, short_index, g.arrays(), m.arrays(), b)
+
+
+def _control_indices(netlist: Netlist, n_nodes: int) -> dict[str, np.ndarray]:
+    """For the CCVS and the CCCS, the branch unknown of each one's controlling part."""
+    offsets = netlist.branches().offset_of
+    result = {}
+    for kind in _CONTROLLED:
+        group = netlist[kind]
+        ids = []
+        for name, (control,) in zip(group.names, group.refs, strict=True):
+            if control not in offsets:
+                raise SingularCircuitError(
+                    f"{name} is controlled by the current in {control}, which is not among the "
+                    "parts analysed; add it or change the controlling part")
+            ids.append(n_nodes + offsets[control])
+        result[kind] = np.array(ids, dtype=np.intp)
+    return result
 
 
 def _sources_complex(netlist: Netlist) -> bool:
@@ -435,10 +477,9 @@ def _sources_complex(netlist: Netlist) -> bool:
                for kind in ("voltage_source", "current_source"))
 
 
-def _stamp_couplings(netlist: Netlist, branch_of: dict[str, int], m: _Triplets) -> None:
+def _stamp_couplings(netlist: Netlist, n_nodes: int, m: _Triplets) -> None:
     group = netlist["coupling"]
-    if not len(group):
-        return
+    offsets = netlist.branches().offset_of
     inductors = netlist["inductor"]
     henries = dict(zip(inductors.names, inductors.values.tolist(), strict=True))
     rows, cols, vals = [], [], []
@@ -448,7 +489,7 @@ def _stamp_couplings(netlist: Netlist, branch_of: dict[str, int], m: _Triplets) 
             raise SingularCircuitError(f"{name} couples {missing}, which is not among the parts "
                                        "analysed")
         mutual = k * math.sqrt(henries[l1] * henries[l2])
-        k1, k2 = branch_of[l1], branch_of[l2]
+        k1, k2 = n_nodes + offsets[l1], n_nodes + offsets[l2]
         rows += [k1, k2]
         cols += [k2, k1]
         vals += [-mutual, -mutual]
@@ -542,10 +583,12 @@ class Factor:
         """
         if self.matrix.shape[0] == 0:
             return 0.0
+        a = self.matrix
+        columns = np.repeat(np.arange(a.shape[1]), np.diff(a.indptr))
         with np.errstate(all="ignore"):
-            residual = rhs - self.matrix @ x
-            abs_ax = abs(self.matrix) @ np.abs(x)
-        return float(bound(adjoint, residual, abs_ax, rhs, rounding(self.matrix)))
+            residual = rhs - a @ x
+            abs_ax = np.bincount(a.indices, np.abs(a.data) * np.abs(x[columns]), a.shape[0])
+        return float(bound(adjoint, residual, abs_ax, rhs, rounding(a)))
 
 
 def rounding(matrix: sp.spmatrix) -> float:

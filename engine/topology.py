@@ -36,7 +36,7 @@ from .errors import CircuitError, CutError, SingularCircuitError
 from .mna import Netlist
 
 __all__ = ["Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",
-           "islands", "netlist_of"]
+           "forget_netlists", "islands", "netlist_of"]
 
 _NODES = attrgetter("nodes")
 _SENSING = frozenset({"vcvs", "vccs", "opamp"})
@@ -173,6 +173,11 @@ def netlist_of(parts: list[Part]) -> Netlist:
     _RECENT.insert(0, (parts, netlist))
     del _RECENT[_KEEP:]
     return netlist
+
+
+def forget_netlists() -> None:
+    """Drop the kept netlists (benchmarks use it to time a first analysis)."""
+    _RECENT.clear()
 
 
 def _region_names(region: Collection[str]) -> set[str]:
@@ -327,12 +332,32 @@ def _pairs(netlist: Netlist, spec: Iterable[tuple[str, tuple[int, int]]],
     return np.concatenate(a), np.concatenate(b)
 
 
+#: Up to this many edges a union-find in Python beats building a SciPy sparse graph (whose
+#: construction costs some 0.2 ms); measured, see docs/performance.md.
+_SMALL_GRAPH = 800
+
+
 def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Connected-component label of each of n vertices joined by edges (a[i], b[i])."""
+    """Connected-component label (0, 1, ...) of each of n vertices joined by edges (a[i], b[i])."""
     if n == 0:
         return np.zeros(0, dtype=np.intp)
-    graph = sp.coo_matrix((np.ones(a.size, dtype=np.int8), (a, b)), shape=(n, n))
-    return connected_components(graph, directed=False)[1]
+    if a.size > _SMALL_GRAPH:
+        graph = sp.csr_matrix((np.ones(a.size, dtype=np.int8), (a, b)), shape=(n, n))
+        return connected_components(graph, directed=False)[1]
+    parent = list(range(n))
+    for u, v in zip(a.tolist(), b.tolist(), strict=True):
+        while parent[u] != u:  # find, halving the path
+            parent[u] = u = parent[parent[u]]
+        while parent[v] != v:
+            parent[v] = v = parent[parent[v]]
+        if u != v:
+            parent[max(u, v)] = min(u, v)
+    for x in range(n):
+        root = x
+        while parent[root] != root:
+            root = parent[root]
+        parent[x] = root
+    return np.unique(parent, return_inverse=True)[1]
 
 
 def _conducting(netlist: Netlist, dc: bool) -> tuple[tuple[str, tuple[int, int]], ...]:
