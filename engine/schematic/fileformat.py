@@ -495,6 +495,6 @@ def _shown(value: Any) -> str:
         return f"a {len(str(abs(value)))}-digit number"
     try:
         text = json.dumps(value, ensure_ascii=False)
-    except (TypeError, ValueError):
-        text = repr(value)
+    except RecursionError:  # nested almost as deep as the decoder allows
+        return f"a deeply nested {_json_type(value)}"
     return text if len(text) <= 40 else text[:37] + "..."

@@ -9,6 +9,7 @@ import os
 import re
 import stat
 import string
+import sys
 from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
@@ -339,6 +340,14 @@ def test_blocks_nested_too_deep_are_refused() -> None:
 def test_text_that_is_not_a_schematic_is_refused(text, message) -> None:
     with pytest.raises(DocumentError, match=message):
         loads(text)
+
+
+def test_nesting_near_the_decoder_limit_is_refused_cleanly() -> None:
+    # around the interpreter's recursion limit the decoder may succeed and the message fail
+    for depth in range(sys.getrecursionlimit() - 120, sys.getrecursionlimit() + 5):
+        nested = "[" * depth + "]" * depth
+        with pytest.raises(DocumentError, match=r"^(title: expected text|not a Portcut schem)"):
+            loads('{"format": "portcut-schematic", "version": 1, "title": ' + nested + "}")
 
 
 def test_dumps_refuses_what_loads_would_refuse() -> None:
