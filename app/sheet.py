@@ -18,6 +18,10 @@ from engine.symbols import Point, pin_positions
 
 __all__ = ["SheetIndex", "element_pins", "segments"]
 
+#: Length (grid units) of the stretches of a row or column that segments are filed under, so
+#: a point looks only at the segments near it.
+_BUCKET = 16
+
 
 def element_pins(element: Element) -> tuple[Point, ...]:
     """Sheet positions of an element's pins (engine.symbols.PINS order); () for wires etc."""
@@ -57,8 +61,9 @@ class SheetIndex:
         self._pins: dict[Point, set[tuple[str, int]]] = defaultdict(set)
         self._ends: dict[Point, Counter[str]] = defaultdict(Counter)
         self._junctions: dict[Point, set[str]] = defaultdict(set)
-        self._rows: dict[int, dict[str, list[tuple[int, int]]]] = defaultdict(dict)
-        self._cols: dict[int, dict[str, list[tuple[int, int]]]] = defaultdict(dict)
+        # segments by (axis, line, bucket of _BUCKET units along it): (lo, hi, wire id)
+        self._segments: dict[tuple[str, int, int], list[tuple[int, int, str]]] = \
+            defaultdict(list)
         self._poi_rows: dict[int, Counter[int]] = defaultdict(Counter)
         self._poi_cols: dict[int, Counter[int]] = defaultdict(Counter)
         self._elements: dict[str, Element] = {}
@@ -102,17 +107,16 @@ class SheetIndex:
                     del self._ends[end]
             self._count_poi(end, sign)
         for (x0, y0), (x1, y1) in segments(wire.points):
-            table, line, span = ((self._rows, y0, (min(x0, x1), max(x0, x1))) if y0 == y1
-                                 else (self._cols, x0, (min(y0, y1), max(y0, y1))))
-            spans = table[line].setdefault(wire.id, [])
-            if sign > 0:
-                spans.append(span)
-            else:
-                spans.remove(span)
-                if not spans:
-                    del table[line][wire.id]
-                    if not table[line]:
-                        del table[line]
+            axis, line, lo, hi = (("h", y0, min(x0, x1), max(x0, x1)) if y0 == y1
+                                  else ("v", x0, min(y0, y1), max(y0, y1)))
+            for bucket in range(lo // _BUCKET, hi // _BUCKET + 1):
+                key = (axis, line, bucket)
+                if sign > 0:
+                    self._segments[key].append((lo, hi, wire.id))
+                else:
+                    self._segments[key].remove((lo, hi, wire.id))
+                    if not self._segments[key]:
+                        del self._segments[key]
 
     def _change(self, table: dict[Point, set], p: Point, key: object, sign: int) -> None:
         if sign > 0:
@@ -147,10 +151,10 @@ class SheetIndex:
     def wires_through(self, p: Point) -> set[str]:
         """Ids of the wires that have ``p`` on one of their segments (ends and bends included)."""
         x, y = p
-        found = {wid for wid, spans in self._rows.get(y, {}).items()
-                 if any(a <= x <= b for a, b in spans)}
-        found.update(wid for wid, spans in self._cols.get(x, {}).items()
-                     if any(a <= y <= b for a, b in spans))
+        found = {wid for lo, hi, wid in self._segments.get(("h", y, x // _BUCKET), ())
+                 if lo <= x <= hi}
+        found.update(wid for lo, hi, wid in self._segments.get(("v", x, y // _BUCKET), ())
+                     if lo <= y <= hi)
         return found
 
     def legs(self, p: Point) -> int:

@@ -4,7 +4,7 @@ Three figures, each printed beside a floor measured in the same run on the same 
 
 * open: read the file text, build the scene (items, sheet index, junction dots), fit and paint
   the first frame — against building as many bare QGraphicsPathItems (one per part and per wire)
-  in a plain scene and painting that;
+  in a plain scene and painting that with the same render hints;
 * pan and zoom: the time of each repainted frame over a run of zoom and pan steps, median and
   worst — against the same steps on the bare-item scene;
 * move one part: the undo command (wires follow), the scene update, the repaint, and a full
@@ -29,22 +29,22 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-from PySide6.QtCore import QRectF  # noqa: E402
-from PySide6.QtGui import QPainterPath  # noqa: E402
-from PySide6.QtWidgets import (  # noqa: E402
+from PySide6.QtCore import QRectF
+from PySide6.QtGui import QPainter, QPainterPath
+from PySide6.QtWidgets import (
     QApplication,
     QGraphicsPathItem,
     QGraphicsScene,
     QGraphicsView,
 )
 
-from app.canvas import Canvas, Look  # noqa: E402
-from app.commands import MoveElements  # noqa: E402
-from app.editing import RigidMap, plan_placement  # noqa: E402
-from app.workbench import Workbench  # noqa: E402
-from engine.schematic import Document, NetLabel, PlacedPart, Wire  # noqa: E402
-from engine.schematic.connectivity import extract  # noqa: E402
-from engine.schematic.fileformat import dumps, loads  # noqa: E402
+from app.canvas import Canvas, Look
+from app.commands import MoveElements
+from app.editing import RigidMap, plan_placement
+from app.workbench import Workbench
+from engine.schematic import Document, NetLabel, PlacedPart, Wire
+from engine.schematic.connectivity import extract
+from engine.schematic.fileformat import dumps, loads
 
 VIEW_SIZE = (1400, 900)
 CELL = 8   # grid units per ladder cell
@@ -94,6 +94,7 @@ def _bare_scene(doc: Document) -> tuple[QGraphicsScene, QGraphicsView, list]:
         scene.addItem(item)
         items.append(item)
     view = QGraphicsView(scene)
+    view.setRenderHints(QPainter.RenderHint.Antialiasing | QPainter.RenderHint.TextAntialiasing)
     view.resize(*VIEW_SIZE)
     view.show()
     view.fitInView(scene.itemsBoundingRect())

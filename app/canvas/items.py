@@ -1,26 +1,26 @@
 """Graphics items: one class per kind of document element, each drawing what the document holds.
 
-An item keeps the id of its element and the last version it was given (:meth:`ElementItem.sync`);
-it derives all geometry from that element, engine.symbols and the scene's :class:`Look`, and
-holds no state of its own. Symbols come from engine.symbols only (painting.py turns them into Qt
-paths); captions from engine.captions.
+An item keeps the last version of its element it was given (:meth:`ElementItem.sync`) and
+derives all geometry from it, engine.symbols and the scene's :class:`Look`; it holds no state of
+its own. Items are Qt's native path, text and ellipse items, so painting runs in C++ and Python
+is involved only when an element changes; symbols come from engine.symbols only (painting.py
+turns them into paths), captions from engine.captions.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cache
 
 from PySide6.QtCore import QPointF, QRectF, Qt
-from PySide6.QtGui import (
-    QBrush,
-    QColor,
-    QPainter,
-    QPainterPath,
-    QPainterPathStroker,
-    QPen,
-    QPolygonF,
+from PySide6.QtGui import QBrush, QColor, QPainterPath, QPen, QPolygonF
+from PySide6.QtWidgets import (
+    QGraphicsEllipseItem,
+    QGraphicsItem,
+    QGraphicsPathItem,
+    QGraphicsPolygonItem,
+    QGraphicsSimpleTextItem,
 )
-from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from engine.captions import block_caption, value_caption
 from engine.errors import CircuitError
@@ -37,7 +37,7 @@ from engine.symbols import (
 )
 from engine.units import parse_value
 
-from ..theme import LIGHT, Theme, qcolor
+from ..theme import LIGHT, Theme
 from .grid import UNIT, to_scene
 from .painting import Caption, caption_font, layout, orientation, symbol_paths
 
@@ -51,54 +51,55 @@ __all__ = [
     "PartItem",
     "RegionItem",
     "WireItem",
+    "element_item",
     "item_for",
 ]
 
 #: Stacking order: regions under wires under symbols under dots; previews on top.
 Z_REGION, Z_WIRE, Z_SYMBOL, Z_DOT, Z_PREVIEW = 0.0, 1.0, 2.0, 3.0, 10.0
-#: Smallest on-screen text height (device pixels) still worth drawing.
-_MIN_TEXT_PX = 3.0
-_PICK_WIDTH = 0.7 * UNIT  # how wide a wire is for the mouse
 
 
 @dataclass
 class Look:
     """What every item draws with, shared by all items of a scene: colours, symbol style, the
     analysis frequency in hertz (above DC sources caption as phasors, blocks show their values
-    there), and which inductors a coupling names (they show a coupling dot)."""
+    there), which inductors a coupling names (they show a coupling dot), and whether captions
+    are big enough on screen to be worth drawing."""
 
     theme: Theme = LIGHT
     style: str = "iec"
     freq: float = 0.0
     coupled: frozenset[str] = field(default_factory=frozenset)
+    captions: bool = True
 
     @property
     def ac(self) -> bool:
         return self.freq > 0
 
 
-def _pen(colour: QColor, dashed: bool = False) -> QPen:
-    pen = QPen(colour, STROKE_WIDTH * UNIT, Qt.PenStyle.SolidLine, Qt.PenCapStyle.RoundCap,
-               Qt.PenJoinStyle.RoundJoin)
+@cache
+def _colour(hex_colour: str) -> QColor:
+    return QColor(hex_colour)
+
+
+@cache
+def _pen(hex_colour: str, dashed: bool = False) -> QPen:
+    pen = QPen(_colour(hex_colour), STROKE_WIDTH * UNIT, Qt.PenStyle.SolidLine,
+               Qt.PenCapStyle.RoundCap, Qt.PenJoinStyle.RoundJoin)
     if dashed:
         pen.setStyle(Qt.PenStyle.DashLine)
     return pen
 
 
-def _text_visible(painter: QPainter, option: QStyleOptionGraphicsItem) -> bool:
-    lod = option.levelOfDetailFromTransform(painter.worldTransform())
-    return lod * FONT_SIZE * UNIT >= _MIN_TEXT_PX
+@cache
+def _brush(hex_colour: str) -> QBrush:
+    return QBrush(_colour(hex_colour))
 
 
-def _paint_captions(painter: QPainter, captions: list[Caption], colours: dict[str, QColor],
-                    fallback: QColor) -> None:
-    for c in captions:
-        painter.setFont(caption_font(c.size))
-        painter.setPen(colours.get(c.role, fallback))
-        painter.drawText(c.origin, c.text)
+_NO_PEN = QPen(Qt.PenStyle.NoPen)
 
 
-class ElementItem(QGraphicsItem):
+class ElementItem(QGraphicsPathItem):
     """Base of the items that show one document element. ``preview`` items show an element
     not (yet) in the document: a part being placed, a wire being drawn."""
 
@@ -109,9 +110,8 @@ class ElementItem(QGraphicsItem):
         self.look = look
         self.preview = preview
         self.element = element
-        self._bounds = QRectF()
         self.setZValue(Z_PREVIEW if preview else self.Z)
-        if not preview:
+        if not preview and self.selectable():
             self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable)
         self.sync(element)
 
@@ -119,63 +119,132 @@ class ElementItem(QGraphicsItem):
     def element_id(self) -> str:
         return self.element.id
 
+    def selectable(self) -> bool:
+        return True
+
     def sync(self, element: Element) -> None:
         """Show ``element`` (the document's version, or a gesture's preview of it)."""
-        self.prepareGeometryChange()
         self.element = element
         self.relayout()
-        self.update()
+        self.recolour()
 
     def relayout(self) -> None:
         """Recompute the geometry from ``self.element`` and ``self.look``."""
         raise NotImplementedError
 
-    def colour(self) -> QColor:
+    def colour(self) -> str:
         theme = self.look.theme
         if self.preview:
-            return qcolor(theme.preview)
+            return theme.preview
         if self.isSelected():
-            return qcolor(theme.selection)
-        return qcolor(self.base_colour(theme))
+            return theme.selection
+        return self.base_colour(theme)
 
     def base_colour(self, theme: Theme) -> str:
         return theme.stroke
 
-    def boundingRect(self) -> QRectF:
-        return self._bounds
+    def recolour(self) -> None:
+        """Apply the colours for the current theme and selection (the scene calls this when
+        the selection changes)."""
+        self.setPen(_pen(self.colour()))
+
+    def show_captions(self, shown: bool) -> None:
+        """Show or hide the item's texts (those that have any)."""
+
+
+
+def element_item(item: QGraphicsItem | None) -> ElementItem | None:
+    """The element item that ``item`` is, or belongs to (a caption, a fill)."""
+    while item is not None and not isinstance(item, ElementItem):
+        item = item.parentItem()
+    return item
 
 
 class SymbolItem(ElementItem):
-    """A drawn symbol: parts, net markers and blocks."""
+    """A drawn symbol: parts, net markers and blocks. Strokes are this item's path; fills,
+    dashed outlines, coupling dots and captions are child items."""
+
+    def __init__(self, element: Element, look: Look, preview: bool = False) -> None:
+        self._fill: QGraphicsPathItem | None = None   # made when a symbol has fills
+        self._dash: QGraphicsPathItem | None = None   # made when it has dashed outlines
+        self._texts: list[tuple[QGraphicsSimpleTextItem, str]] = []
+        self._body = QRectF()
+        super().__init__(element, look, preview)
+
+    def _child_path(self, current: QGraphicsPathItem | None,
+                    path: QPainterPath) -> QGraphicsPathItem | None:
+        if path.isEmpty() and current is None:
+            return None
+        if current is None:
+            current = QGraphicsPathItem(self)
+        current.setPath(path)
+        return current
 
     def relayout(self) -> None:
         kind, form = self.symbol_key()
         rotation, mirror = self.orient()
-        self._paths = symbol_paths(kind, self.look.style, form)
-        self._xform = orientation(rotation, mirror)
+        paths = symbol_paths(kind, self.look.style, form)
+        xform = orientation(rotation, mirror)
         self.setPos(to_scene(self.element.at))
-        sym = symbol(kind, self.look.style, form)
-        texts = self.texts()
+        self.setPath(xform.map(paths.strokes))
+        self._dash = self._child_path(self._dash, xform.map(paths.dashed))
+        fills = xform.map(paths.fills)
         captions: list[Caption] = []
-        self._dots: list[QPointF] = []
-        for anchor in sym.anchors:
+        texts = self.texts()
+        for anchor in symbol(kind, self.look.style, form).anchors:
             if anchor.role in MARK_TEXT:
-                captions += layout(anchor, [MARK_TEXT[anchor.role]], MARK_FONT_SIZE,
+                captions += layout(anchor, (MARK_TEXT[anchor.role],), MARK_FONT_SIZE,
                                    rotation, mirror)
             elif anchor.role == "dot":
                 if self.shows_dot():
-                    x, y = self._xform.map(anchor.at[0] * UNIT, anchor.at[1] * UNIT)
-                    self._dots.append(QPointF(x, y))
+                    x, y = xform.map(anchor.at[0] * UNIT, anchor.at[1] * UNIT)
+                    r = COUPLING_DOT_RADIUS * UNIT
+                    fills.addEllipse(QPointF(x, y), r, r)
             elif texts.get(anchor.role):
-                captions += layout(anchor, texts[anchor.role], FONT_SIZE, rotation, mirror)
-        self._captions = captions
-        body = self._xform.mapRect(self._paths.strokes.boundingRect()
-                                   | self._paths.dashed.boundingRect())
-        self._body = body
-        bounds = body.adjusted(-UNIT, -UNIT, UNIT, UNIT)
-        for c in captions:
-            bounds |= c.box
-        self._bounds = bounds
+                captions += layout(anchor, tuple(texts[anchor.role]), FONT_SIZE, rotation,
+                                   mirror)
+        self._fill = self._child_path(self._fill, fills)
+        # the body (for picking) stays inside the stroke's bounds, so that Qt's index, which
+        # goes by bounds, finds every pick (the pointer's reach covers the edge)
+        self._body = self.path().boundingRect()
+        self._set_captions(captions)
+
+    def _set_captions(self, captions: list[Caption]) -> None:
+        """Reuse the caption items (a sync usually changes one text, or none)."""
+        while len(self._texts) < len(captions):
+            text = QGraphicsSimpleTextItem(self)
+            text.setPen(_NO_PEN)
+            self._texts.append((text, ""))
+        for i, (text, _) in enumerate(self._texts):
+            if i < len(captions):
+                c = captions[i]
+                text.setFont(caption_font(c.size))
+                text.setText(c.text)
+                text.setPos(c.box.topLeft())
+                text.setVisible(self.look.captions)
+                self._texts[i] = (text, c.role)
+            else:
+                text.setVisible(False)
+                self._texts[i] = (text, "")
+
+    def show_captions(self, shown: bool) -> None:
+        for text, role in self._texts:
+            text.setVisible(shown and bool(role))
+
+    def recolour(self) -> None:
+        colour = self.colour()
+        self.setPen(_pen(colour))
+        if self._dash is not None:
+            self._dash.setPen(_pen(colour, dashed=True))
+        if self._fill is not None:
+            self._fill.setPen(_NO_PEN)
+            self._fill.setBrush(_brush(colour))
+        theme = self.look.theme
+        plain = self.preview or self.isSelected()
+        roles = {} if plain else self.text_colours(theme)
+        for text, role in self._texts:
+            hue = colour if plain or role in MARK_TEXT else roles.get(role, theme.text)
+            text.setBrush(_brush(hue))
 
     def symbol_key(self) -> tuple[str, str]:
         """(engine.symbols kind, block form)."""
@@ -195,39 +264,15 @@ class SymbolItem(ElementItem):
         return False
 
     def shape(self) -> QPainterPath:
+        """The symbol's body as a solid box, so a click between its strokes still hits it
+        (captions and dashed frames are child items and hit on their own)."""
         path = QPainterPath()
-        path.addRect(self._body.adjusted(-0.3 * UNIT, -0.3 * UNIT, 0.3 * UNIT, 0.3 * UNIT))
-        for c in self._captions:
-            path.addRect(c.box)
+        path.addRect(self._body)
         return path
 
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
-              widget: QWidget | None = None) -> None:
-        colour = self.colour()
-        painter.save()
-        painter.setTransform(self._xform, True)
-        painter.setPen(_pen(colour))
-        painter.setBrush(Qt.BrushStyle.NoBrush)
-        painter.drawPath(self._paths.strokes)
-        if not self._paths.dashed.isEmpty():
-            painter.setPen(_pen(colour, dashed=True))
-            painter.drawPath(self._paths.dashed)
-        if not self._paths.fills.isEmpty():
-            painter.fillPath(self._paths.fills, QBrush(colour))
-        painter.restore()
-        painter.setPen(Qt.PenStyle.NoPen)
-        painter.setBrush(QBrush(colour))
-        for dot in self._dots:
-            painter.drawEllipse(dot, COUPLING_DOT_RADIUS * UNIT, COUPLING_DOT_RADIUS * UNIT)
-        if _text_visible(painter, option):
-            theme = self.look.theme
-            plain = self.preview or self.isSelected()
-            colours = {} if plain else {k: qcolor(v)
-                                        for k, v in self.text_colours(theme).items()}
-            default = colour if plain else qcolor(theme.text)
-            if not plain:
-                colours.update({role: colour for role in MARK_TEXT})
-            _paint_captions(painter, self._captions, colours, default)
+    def captions(self) -> list[str]:
+        """The texts shown beside the symbol."""
+        return [text.text() for text, role in self._texts if role]
 
 
 def _readable(part: PlacedPart) -> bool:
@@ -315,20 +360,7 @@ class WireItem(ElementItem):
         path.moveTo(to_scene(first))
         for p in rest:
             path.lineTo(to_scene(p))
-        self._path = path
-        stroker = QPainterPathStroker()
-        stroker.setWidth(_PICK_WIDTH)
-        stroker.setCapStyle(Qt.PenCapStyle.RoundCap)
-        self._shape = stroker.createStroke(path)
-        self._bounds = self._shape.boundingRect()
-
-    def shape(self) -> QPainterPath:
-        return self._shape
-
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
-              widget: QWidget | None = None) -> None:
-        painter.setPen(_pen(self.colour()))
-        painter.drawPath(self._path)
+        self.setPath(path)
 
 
 def _dot_rect(at: Point) -> QRectF:
@@ -343,71 +375,69 @@ class JunctionItem(ElementItem):
     Z = Z_DOT
 
     def relayout(self) -> None:
-        self._dot = _dot_rect(self.element.at)
-        self._bounds = self._dot.adjusted(-2, -2, 2, 2)
-
-    def shape(self) -> QPainterPath:
         path = QPainterPath()
-        path.addEllipse(self._dot.adjusted(-0.2 * UNIT, -0.2 * UNIT, 0.2 * UNIT, 0.2 * UNIT))
-        return path
+        path.addEllipse(_dot_rect(self.element.at))
+        self.setPath(path)
 
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
-              widget: QWidget | None = None) -> None:
-        painter.setPen(Qt.PenStyle.NoPen)
-        painter.setBrush(self.colour())
-        painter.drawEllipse(self._dot)
+    def recolour(self) -> None:
+        self.setPen(_NO_PEN)
+        self.setBrush(_brush(self.colour()))
 
 
-class DotItem(QGraphicsItem):
+class DotItem(QGraphicsEllipseItem):
     """A computed junction dot where three or more connections meet (not an element: the
     scene places and removes these from the sheet's geometry)."""
 
     def __init__(self, at: Point, look: Look) -> None:
-        super().__init__()
-        self.look = look
+        super().__init__(_dot_rect(at))
         self.at = at
-        self._dot = _dot_rect(at)
         self.setZValue(Z_DOT)
+        self.setPen(_NO_PEN)
+        self.recolour(look)
 
-    def boundingRect(self) -> QRectF:
-        return self._dot
-
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
-              widget: QWidget | None = None) -> None:
-        painter.setPen(Qt.PenStyle.NoPen)
-        painter.setBrush(qcolor(self.look.theme.stroke))
-        painter.drawEllipse(self._dot)
+    def recolour(self, look: Look) -> None:
+        self.setBrush(_brush(look.theme.stroke))
 
 
 class RegionItem(ElementItem):
-    """A region's outline with a light fill, in the accent colour, and its name."""
+    """A region's outline with a light fill, in the accent colour, and its name.
+
+    Not selectable here: choosing regions belongs to the boundary tool, and a click inside
+    reaches the parts."""
 
     Z = Z_REGION
 
     def __init__(self, element: Element, look: Look, preview: bool = False) -> None:
+        self._outline = QGraphicsPolygonItem()
+        self._name = QGraphicsSimpleTextItem()
         super().__init__(element, look, preview)
-        # choosing regions belongs to the boundary tool; a click here reaches the parts inside
-        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, False)
+        self._outline.setParentItem(self)
+        self._name.setParentItem(self)
+        self._name.setFont(caption_font(FONT_SIZE))
+
+    def selectable(self) -> bool:
+        return False
 
     def base_colour(self, theme: Theme) -> str:
         return theme.accent
 
     def relayout(self) -> None:
         region: Region = self.element
-        self._polygon = QPolygonF([QPointF(x * UNIT, y * UNIT) for x, y in region.outline])
-        self._bounds = self._polygon.boundingRect().adjusted(-UNIT, -2 * UNIT, UNIT, UNIT)
+        polygon = QPolygonF([QPointF(x * UNIT, y * UNIT) for x, y in region.outline])
+        self._outline.setPolygon(polygon)
+        self._name.setText(region.name)
+        if polygon.size():
+            top = min(polygon, key=lambda p: (p.y(), p.x()))
+            self._name.setPos(top + QPointF(0, -1.6 * UNIT))
 
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
-              widget: QWidget | None = None) -> None:
+    def recolour(self) -> None:
         colour = self.colour()
-        painter.setPen(_pen(colour, dashed=True))
-        painter.setBrush(qcolor(self.look.theme.accent_fill))
-        painter.drawPolygon(self._polygon)
-        if self._polygon.size() and _text_visible(painter, option):
-            top = min(self._polygon, key=lambda p: (p.y(), p.x()))
-            painter.setFont(caption_font(FONT_SIZE))
-            painter.setPen(colour)
-            painter.drawText(top + QPointF(0, -0.4 * UNIT), self.element.name)
+        self._outline.setPen(_pen(colour, dashed=True))
+        self._outline.setBrush(_brush(self.look.theme.accent_fill))
+        self._name.setBrush(_brush(colour))
+
+    def show_captions(self, shown: bool) -> None:
+        self._name.setVisible(shown)
 
 
 _ITEM_CLASS: dict[type, type[ElementItem]] = {

@@ -106,10 +106,11 @@ class Caption:
     role: str
 
 
-def layout(anchor: TextAnchor, lines: list[str], size: float, rotation: int = 0,
-           mirror: bool = False) -> list[Caption]:
+@cache
+def layout(anchor: TextAnchor, lines: tuple[str, ...], size: float, rotation: int = 0,
+           mirror: bool = False) -> tuple[Caption, ...]:
     """Captions for ``lines`` at a symbol's anchor once placed with ``rotation``/``mirror``
-    (relative to the symbol's origin, in scene units)."""
+    (relative to the symbol's origin, in scene units). Cached: sheets repeat their values."""
     placed = place(anchor, (0, 0), rotation, mirror)
     how, baselines = text_baselines(placed.at, placed.align, len(lines), size)
     metrics = _metrics(size)
@@ -120,4 +121,4 @@ def layout(anchor: TextAnchor, lines: list[str], size: float, rotation: int = 0,
         origin = QPointF(left, y * UNIT)
         box = QRectF(left, y * UNIT - metrics.ascent(), width, metrics.height())
         out.append(Caption(text, origin, box, size, anchor.role))
-    return out
+    return tuple(out)

@@ -21,7 +21,7 @@ from engine.units import parse_frequency
 from ..sheet import SheetIndex
 from ..theme import qcolor
 from .grid import UNIT
-from .items import DotItem, ElementItem, Look, PartItem, item_for
+from .items import DotItem, ElementItem, Look, PartItem, element_item, item_for
 
 __all__ = ["SchematicScene"]
 
@@ -54,12 +54,21 @@ class SchematicScene(QGraphicsScene):
         self._previewed: set[str] = set()
         self._extent = QRectF(_EMPTY_SHEET)
         self._unsubscribe = lambda: None
+        self._selected: set[ElementItem] = set()
+        self.selectionChanged.connect(self._recolour_selection)
         self.set_document(doc)
+
+    def _recolour_selection(self) -> None:
+        now = {i for i in self.selectedItems() if isinstance(i, ElementItem)}
+        for item in now ^ self._selected:
+            item.recolour()
+        self._selected = now
 
     # -- the document -------------------------------------------------------------------------
     def set_document(self, doc: Document) -> None:
         """Show another document (a file opened, a new sheet)."""
         self._unsubscribe()
+        self._selected = set()
         self.clear()
         self._items.clear()
         self._dots.clear()
@@ -98,7 +107,9 @@ class SchematicScene(QGraphicsScene):
             old = self.index.remove(eid)
             touched |= self.index.touch_points(old)
             self._couplings.pop(eid, None)
-            self.removeItem(self._items.pop(eid))
+            gone = self._items.pop(eid)
+            self._selected.discard(gone)
+            self.removeItem(gone)
         for eid in change.updated:
             old = self.index.remove(eid)
             new = self.doc[eid]
@@ -148,14 +159,26 @@ class SchematicScene(QGraphicsScene):
 
     def _apply_extent(self) -> None:
         m = _MARGIN * UNIT
-        self.setSceneRect(self._extent.adjusted(-m, -m, m, m))
+        rect = self._extent.adjusted(-m, -m, m, m)
+        if rect != self.sceneRect():
+            self.setSceneRect(rect)
 
     # -- looks --------------------------------------------------------------------------------
     def relayout(self) -> None:
         """Redraw every item after a change of theme, symbol style or frequency."""
         for item in self._items.values():
             item.sync(item.element)
+        for dot in self._dots.values():
+            dot.recolour(self.look)
         self.update()
+
+    def set_captions(self, shown: bool) -> None:
+        """Show or hide every caption (texts too small to read are not worth drawing)."""
+        if shown == self.look.captions:
+            return
+        self.look.captions = shown
+        for item in self._items.values():
+            item.show_captions(shown)
 
     # -- reading ------------------------------------------------------------------------------
     def item(self, element_id: str) -> ElementItem | None:
@@ -178,9 +201,10 @@ class SchematicScene(QGraphicsScene):
     def element_at(self, pos: QPointF, tolerance: float) -> ElementItem | None:
         """The topmost selectable element item within ``tolerance`` scene units of ``pos``."""
         box = QRectF(pos.x() - tolerance, pos.y() - tolerance, 2 * tolerance, 2 * tolerance)
-        for item in self.items(box, Qt.ItemSelectionMode.IntersectsItemShape,
-                               Qt.SortOrder.DescendingOrder):
-            if isinstance(item, ElementItem) and not item.preview and (
+        for hit in self.items(box, Qt.ItemSelectionMode.IntersectsItemShape,
+                              Qt.SortOrder.DescendingOrder):
+            item = element_item(hit)
+            if item is not None and not item.preview and (
                     item.flags() & item.GraphicsItemFlag.ItemIsSelectable):
                 return item
         return None

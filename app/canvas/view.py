@@ -23,7 +23,7 @@ from PySide6.QtGui import (
 )
 from PySide6.QtWidgets import QGraphicsView
 
-from engine.symbols import Point
+from engine.symbols import FONT_SIZE, Point
 
 from ..theme import qcolor
 from .grid import UNIT, to_scene
@@ -39,6 +39,7 @@ ENTRY_MIME = "application/x-portcut-entry"
 ZOOM_LIMITS = (0.05, 20.0)
 _WHEEL_BASE = 1.0015  # zoom factor per eighth of a degree of wheel turn
 _KEY_ZOOM = 1.25
+_MIN_TEXT_PX = 6.0  # captions smaller than this on screen (px) are hidden
 _ARROWS = {Qt.Key.Key_Left: (-1, 0), Qt.Key.Key_Right: (1, 0), Qt.Key.Key_Up: (0, -1),
            Qt.Key.Key_Down: (0, 1)}
 
@@ -81,6 +82,10 @@ class SchematicView(QGraphicsView):
         before = self.mapToScene(anchor)
         self.scale(factor, factor)
         self.pan_by(self.mapFromScene(before) - anchor)
+        self._zoomed()
+
+    def _zoomed(self) -> None:
+        self.canvas.scene.set_captions(self.zoom() * FONT_SIZE * UNIT >= _MIN_TEXT_PX)
         self.zoomChanged.emit(self.zoom())
 
     def zoom_in(self) -> None:
@@ -108,7 +113,7 @@ class SchematicView(QGraphicsView):
         if self.zoom() > 3.0:
             self.zoom_by(3.0 / self.zoom())
         self.centerOn(rect.center())
-        self.zoomChanged.emit(self.zoom())
+        self._zoomed()
 
     def wheelEvent(self, event: QWheelEvent) -> None:
         delta = event.angleDelta().y() or event.pixelDelta().y()

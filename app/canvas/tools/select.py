@@ -16,7 +16,7 @@ from PySide6.QtWidgets import QApplication, QGraphicsRectItem
 
 from ...theme import qcolor
 from ..grid import snap
-from ..items import Z_PREVIEW
+from ..items import Z_PREVIEW, ElementItem
 from .base import CanvasEvent, Tool
 from .wire import WireDraft
 
@@ -177,8 +177,8 @@ class SelectTool(Tool):
         mode = (Qt.ItemSelectionMode.ContainsItemShape if inside
                 else Qt.ItemSelectionMode.IntersectsItemShape)
         scene = self.canvas.scene
-        ids = [i.element_id for i in scene.items(rect, mode) if hasattr(i, "element_id")
-               and not i.preview]
+        ids = [i.element_id for i in scene.items(rect, mode)
+               if isinstance(i, ElementItem) and not i.preview]
         scene.select_ids(ids, add=ev.adds)
 
     def _drop_band(self) -> None:

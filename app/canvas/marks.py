@@ -1,0 +1,179 @@
+"""What the live analysis says about the current region, drawn over the sheet: + and − where the
+two port nets cross the outline for a valid cut; for an invalid one the outline in the error
+style and a glow under the nets and parts at fault.
+
+Two items the canvas owns beside the element items (they show no element): one under the wires
+for the fault glow, one over the symbols for the port marks. Both are rebuilt from each analysis
+and read their colours from the scene's Look when they paint.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import QObject, QPointF, QRectF, Qt
+from PySide6.QtGui import QBrush, QColor, QFont, QPainter, QPainterPath, QPen, QPolygonF
+from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
+from shiboken6 import isValid
+
+from engine.schematic import Block, PlacedPart, Region, Wire
+from engine.schematic.reduction import RegionAnalysis
+from engine.symbols import MARK_FONT_SIZE, MARK_TEXT, STROKE_WIDTH
+
+from ..analysis import LiveAnalysis
+from ..regions import PortMark, body_bounds, port_marks
+from ..theme import qcolor
+from .grid import UNIT
+from .items import Z_DOT, Z_REGION, Z_WIRE, Look
+
+__all__ = ["CutMarks", "FaultItem", "PortMarksItem"]
+
+#: Radius of a port mark, grid units.
+MARK_RADIUS = 0.6
+_GLOW_WIDTH = 0.7 * UNIT
+
+
+def _tinted(hex_colour: str, alpha: int) -> QColor:
+    colour = qcolor(hex_colour)
+    colour.setAlpha(alpha)
+    return colour
+
+
+class FaultItem(QGraphicsItem):
+    """An invalid cut: the outline in the error style, a glow under the wires and parts named."""
+
+    def __init__(self, look: Look) -> None:
+        super().__init__()
+        self.look = look
+        self.setZValue((Z_REGION + Z_WIRE) / 2)
+        self.outline = QPolygonF()
+        self.wires = QPainterPath()
+        self.parts = QPainterPath()
+        self._bounds = QRectF()
+
+    def show_fault(self, outline: tuple, wires: list[Wire],
+                   parts: list[PlacedPart | Block]) -> None:
+        self.prepareGeometryChange()
+        self.outline = QPolygonF([QPointF(x * UNIT, y * UNIT) for x, y in outline])
+        self.wires = QPainterPath()
+        for wire in wires:
+            (x, y), *rest = wire.points
+            self.wires.moveTo(x * UNIT, y * UNIT)
+            for x, y in rest:
+                self.wires.lineTo(x * UNIT, y * UNIT)
+        self.parts = QPainterPath()
+        for part in parts:
+            x0, y0, x1, y1 = body_bounds(part, self.look.style)
+            self.parts.addRoundedRect(QRectF((x0 - 0.5) * UNIT, (y0 - 0.5) * UNIT,
+                                             (x1 - x0 + 1) * UNIT, (y1 - y0 + 1) * UNIT),
+                                      0.4 * UNIT, 0.4 * UNIT)
+        pad = _GLOW_WIDTH
+        self._bounds = (self.outline.boundingRect() | self.wires.boundingRect()
+                        | self.parts.boundingRect()).adjusted(-pad, -pad, pad, pad)
+        self.update()
+
+    def clear(self) -> None:
+        self.show_fault((), [], [])
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
+              widget: QWidget | None = None) -> None:
+        theme = self.look.theme
+        if not self.outline.isEmpty():
+            # over the region's own accent drawing: paper first, so the tint reads as the error's
+            painter.setPen(Qt.PenStyle.NoPen)
+            painter.setBrush(qcolor(theme.sheet))
+            painter.drawPolygon(self.outline)
+            pen = QPen(qcolor(theme.error), STROKE_WIDTH * UNIT * 1.4, Qt.PenStyle.DashLine)
+            painter.setPen(pen)
+            painter.setBrush(_tinted(theme.error, 24))
+            painter.drawPolygon(self.outline)
+        glow = QPen(_tinted(theme.error, 110), _GLOW_WIDTH, Qt.PenStyle.SolidLine,
+                    Qt.PenCapStyle.RoundCap, Qt.PenJoinStyle.RoundJoin)
+        painter.setPen(glow)
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        painter.drawPath(self.wires)
+        painter.setPen(QPen(_tinted(theme.error, 160), 0))
+        painter.setBrush(_tinted(theme.error, 60))
+        painter.drawPath(self.parts)
+
+
+class PortMarksItem(QGraphicsItem):
+    """Circled + and − where the port nets cross the outline."""
+
+    def __init__(self, look: Look) -> None:
+        super().__init__()
+        self.look = look
+        self.setZValue(Z_DOT + 0.5)
+        self.marks: tuple[PortMark, ...] = ()
+        self._bounds = QRectF()
+
+    def show_marks(self, marks: tuple[PortMark, ...]) -> None:
+        self.prepareGeometryChange()
+        self.marks = marks
+        r = (MARK_RADIUS + 0.2) * UNIT
+        bounds = QRectF()
+        for m in marks:
+            bounds |= QRectF(m.at[0] * UNIT - r, m.at[1] * UNIT - r, 2 * r, 2 * r)
+        self._bounds = bounds
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
+              widget: QWidget | None = None) -> None:
+        theme = self.look.theme
+        font = QFont(painter.font())
+        font.setPixelSize(max(1, round(MARK_FONT_SIZE * UNIT * 1.2)))
+        font.setBold(True)
+        painter.setFont(font)
+        r = MARK_RADIUS * UNIT
+        for m in self.marks:
+            centre = QPointF(m.at[0] * UNIT, m.at[1] * UNIT)
+            painter.setPen(QPen(qcolor(theme.accent), STROKE_WIDTH * UNIT))
+            painter.setBrush(QBrush(qcolor(theme.sheet)))
+            painter.drawEllipse(centre, r, r)
+            painter.setPen(qcolor(theme.accent))
+            painter.drawText(QRectF(centre.x() - r, centre.y() - r, 2 * r, 2 * r),
+                             Qt.AlignmentFlag.AlignCenter, MARK_TEXT[m.role])
+
+
+class CutMarks(QObject):
+    """Keeps the fault glow and the port marks in step with the live analysis."""
+
+    def __init__(self, scene, live: LiveAnalysis, parent: QObject | None = None) -> None:
+        super().__init__(parent)
+        self.scene = scene
+        self.live = live
+        self._fault: FaultItem | None = None
+        self._ports: PortMarksItem | None = None
+        live.analysed.connect(self.show)
+
+    def items(self) -> tuple[FaultItem, PortMarksItem]:
+        """The two items, made again where the scene was cleared (a document replaced)."""
+        if self._fault is None or not isValid(self._fault):
+            self._fault = FaultItem(self.scene.look)
+            self.scene.addItem(self._fault)
+        if self._ports is None or not isValid(self._ports):
+            self._ports = PortMarksItem(self.scene.look)
+            self.scene.addItem(self._ports)
+        return self._fault, self._ports
+
+    def show(self, analysis: RegionAnalysis | None) -> None:
+        fault, ports = self.items()
+        doc = self.live.doc
+        region = doc[analysis.region_id] if analysis is not None and \
+            analysis.region_id in doc else None
+        if not isinstance(region, Region):
+            fault.clear()
+            ports.show_marks(())
+            return
+        if analysis.ok:
+            fault.clear()
+            ports.show_marks(port_marks(doc, self.live.conn, region, analysis.equivalent.port))
+            return
+        ports.show_marks(())
+        named = [doc[i] for i in analysis.bad_elements if i in doc]
+        fault.show_fault(region.outline, [e for e in named if isinstance(e, Wire)],
+                         [e for e in named if isinstance(e, PlacedPart | Block)])
