@@ -11,7 +11,6 @@ synced to disk, and replaces the target in one rename; on any failure the old fi
 from __future__ import annotations
 
 import json
-import math
 import os
 import secrets
 import shutil
@@ -477,8 +476,9 @@ def _point(value: Any, path: str) -> tuple[int, int]:
 
 def _outline_point(value: Any, path: str) -> tuple[float, float]:
     pair = _list(value, path)
-    if len(pair) != 2 or not all(type(c) in (int, float) and math.isfinite(c)
-                                 and abs(c) <= COORD_LIMIT for c in pair):
+    # the bound also refuses nan and infinities; ints are compared exactly, however long
+    if len(pair) != 2 or not all(type(c) in (int, float) and abs(c) <= COORD_LIMIT
+                                 for c in pair):
         raise DocumentError(f"{path}: expected a point [x, y] of numbers from -{COORD_LIMIT} "
                             f"to {COORD_LIMIT}, got {_shown(value)}")
     return (pair[0], pair[1])
