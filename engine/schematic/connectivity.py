@@ -540,10 +540,12 @@ def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str
         if problem:
             raise CircuitError(problem)
         _add_part(circuit, part, nets(part.id, len(KINDS[part.kind])))
-    taken = set(conn.nets) | set(rename.values())
-    for block in doc.blocks():
-        for part in _block_parts(block, *nets(block.id, 2), freq, taken):
-            circuit.add(part)
+    blocks = doc.blocks()
+    if blocks:  # the names a block's internal net must avoid
+        taken = {*conn.net_of_pin.values(), *conn.net_of_wire.values(), *rename.values()}
+        for block in blocks:
+            for part in _block_parts(block, *nets(block.id, 2), freq, taken):
+                circuit.add(part)
     return circuit
 
 

@@ -505,6 +505,15 @@ def test_a_thevenin_block_becomes_a_source_behind_its_impedance() -> None:
     assert seen.z == pytest.approx(RTH, rel=1e-12)
 
 
+def test_the_internal_net_of_a_block_avoids_the_sheet_s_names() -> None:
+    doc = loaded(divider_block())
+    doc.add(part("R8", "resistor", (40, 40), value="1k"))
+    doc.add(NetLabel("l9", "EQ1.mid", (42, 40)))
+    circuit = build_circuit(doc)
+    assert circuit["EQ1.src"].nodes[1] == circuit["EQ1.z"].nodes[0] == "EQ1.mid'"
+    assert circuit["R8"].nodes[1] == "EQ1.mid"
+
+
 def test_a_norton_block_drives_its_current_into_plus() -> None:
     circuit = build_circuit(loaded(divider_block("norton")))
     plus = circuit["R9"].nodes[0]
