@@ -82,7 +82,10 @@ def parse_value(value: object, *, what: str = "value") -> float | complex:
         if result.imag == 0:
             result = result.real
     elif isinstance(value, str):
-        result = _parse_text(value, what)
+        try:
+            result = _parse_text(value, what)
+        except ArithmeticError:  # decimal.Overflow / InvalidOperation on absurd exponents
+            raise ValueParseError(f"{what}: {value!r} is far out of range") from None
     else:
         raise ValueParseError(f"{what}: {value!r} is not a number or text; {_HELP}")
     if not cmath.isfinite(result):
