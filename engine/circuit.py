@@ -154,7 +154,7 @@ class Circuit:
                 raise CircuitError(f"{part.name}: a {old.kind} cannot be replaced by a "
                                    f"{part.kind}; build the circuit again")
             value = _read(part.kind, part.name, part.value)
-            new._parts[part.name] = _validated(replace(part, value=value), new, replacing=True)
+            new._parts[part.name] = _validated(part, value, new, replacing=True)
         return new
 
     # -- building -----------------------------------------------------------------------------
@@ -163,7 +163,7 @@ class Circuit:
         if not isinstance(part.kind, str) or part.kind not in KINDS:
             raise CircuitError(f"{part.name}: unknown part kind {part.kind!r}; "
                                f"known kinds: {', '.join(KINDS)}")
-        part = _validated(replace(part, value=_read(part.kind, part.name, part.value)), self)
+        part = _validated(part, _read(part.kind, part.name, part.value), self)
         self._parts[part.name] = part
         return part
 
@@ -245,8 +245,10 @@ def _read(kind: str, name: str, value: object) -> complex | float:
     return number
 
 
-def _validated(part: Part, circuit: Circuit, *, replacing: bool = False) -> Part:
-    """Check one part against the circuit it joins; returns it with tuples normalised."""
+def _validated(part: Part, value: complex | float, circuit: Circuit, *,
+               replacing: bool = False) -> Part:
+    """Check one part, with its value already read, against the circuit it joins; returns the
+    part as stored (tuples normalised)."""
     name = part.name
     if not isinstance(name, str) or not name.strip():
         raise CircuitError(f"a part name must be non-empty text, not {name!r}")
@@ -265,7 +267,7 @@ def _validated(part: Part, circuit: Circuit, *, replacing: bool = False) -> Part
     for role, net in zip(roles, nodes, strict=True):
         if not isinstance(net, str) or not net.strip():
             raise CircuitError(f"{name}: net {role!r} must be a non-empty name, not {net!r}")
-    if part.kind == "impedance" and part.value == 0:
+    if part.kind == "impedance" and value == 0:
         raise CircuitError(f"{name}: an impedance part must be non-zero; use a 0 Ω resistor "
                            "for a wire")
     if part.kind in _CURRENT_CONTROLLED:
@@ -278,16 +280,16 @@ def _validated(part: Part, circuit: Circuit, *, replacing: bool = False) -> Part
         if control in circuit and circuit[control].kind in {"opamp", "coupling"}:
             raise CircuitError(f"{name}: {control} has no single branch current to sense")
     if part.kind == "coupling":
-        _validate_coupling(part, circuit)
-    return replace(part, nodes=nodes, refs=tuple(part.refs))
+        _validate_coupling(part, value, circuit)
+    return Part(name, part.kind, nodes, value, tuple(part.refs))
 
 
-def _validate_coupling(part: Part, circuit: Circuit) -> None:
+def _validate_coupling(part: Part, k: float, circuit: Circuit) -> None:
     name = part.name
     if len(part.refs) != 2 or part.refs[0] == part.refs[1]:
         raise CircuitError(f"{name}: a coupling names two different inductors, got {part.refs!r}")
-    if not -1 <= part.value <= 1:
-        raise CircuitError(f"{name}: coupling coefficient {part.value!r} must lie in [-1, 1]")
+    if not -1 <= k <= 1:
+        raise CircuitError(f"{name}: coupling coefficient {k!r} must lie in [-1, 1]")
     for ref in part.refs:
         if ref not in circuit:
             raise CircuitError(f"{name}: couples {ref!r}, which is not in the circuit; "

@@ -73,6 +73,10 @@ def parse_value(value: object, *, what: str = "value") -> float | complex:
     ``what`` names the field in the error message (e.g. ``"R1 resistance"``).
     Raises :class:`ValueParseError` quoting the text when it cannot be read or is not finite.
     """
+    if type(value) is float:  # the common case, ahead of the slower abstract-type checks
+        if not math.isfinite(value):
+            raise ValueParseError(f"{what}: {value!r} is not finite")
+        return value
     if isinstance(value, bool):
         raise ValueParseError(f"{what}: {value!r} is not a number; {_HELP}")
     if isinstance(value, Real):

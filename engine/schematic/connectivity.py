@@ -534,13 +534,13 @@ def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str
     circuit = Circuit()
     parts = doc.parts()
     by_designator = {p.designator: p for p in parts}
+    blocks = doc.blocks()
     # couplings last: the circuit checks that their inductors are already there
     for part in sorted(parts, key=lambda p: p.kind == "coupling"):
-        problem = _reference_problem(part, by_designator, doc.blocks())
+        problem = _reference_problem(part, by_designator, blocks)
         if problem:
             raise CircuitError(problem)
         _add_part(circuit, part, nets(part.id, len(KINDS[part.kind])))
-    blocks = doc.blocks()
     if blocks:  # the names a block's internal net must avoid
         taken = {*conn.net_of_pin.values(), *conn.net_of_wire.values(), *rename.values()}
         for block in blocks:

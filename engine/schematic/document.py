@@ -73,7 +73,7 @@ class Document:
     def __init__(self, title: str = "Untitled") -> None:
         self._elements: dict[str, Element] = {}
         # indexes kept beside the elements so that checks on add stay O(1) on large sheets
-        self._block_ids: set[str] = set()
+        self._block_ids: dict[str, None] = {}  # ordered set
         self._designators: dict[str, str] = {}
         self._analysis = Analysis()
         self._title = title
@@ -130,7 +130,7 @@ class Document:
         return self.of_type(Region)
 
     def blocks(self) -> list[Block]:
-        return self.of_type(Block)
+        return [self._elements[b] for b in self._block_ids]
 
     def by_designator(self, designator: str) -> PlacedPart | Block | None:
         element_id = self._designators.get(designator)
@@ -206,14 +206,14 @@ class Document:
         self._check(element)
         self._index(element)
         if isinstance(element, Block):
-            self._block_ids.add(element.id)
+            self._block_ids[element.id] = None
         self._notify(Change(added=frozenset({element.id})))
 
     def remove(self, element_id: str) -> Element:
         """Remove and return an element."""
         element = self[element_id]
         self._unindex(element)
-        self._block_ids.discard(element_id)
+        self._block_ids.pop(element_id, None)
         self._notify(Change(removed=frozenset({element_id})))
         return element
 
