@@ -9,13 +9,13 @@ turns them into paths), captions from engine.captions.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from functools import cache
 
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QColor, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import (
-    QGraphicsEllipseItem,
     QGraphicsItem,
     QGraphicsPathItem,
     QGraphicsPolygonItem,
@@ -25,25 +25,16 @@ from PySide6.QtWidgets import (
 from engine.captions import block_caption, value_caption
 from engine.errors import CircuitError
 from engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
-from engine.symbols import (
-    COUPLING_DOT_RADIUS,
-    FONT_SIZE,
-    JUNCTION_RADIUS,
-    MARK_FONT_SIZE,
-    MARK_TEXT,
-    STROKE_WIDTH,
-    Point,
-    symbol,
-)
+from engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point
 from engine.units import parse_value
 
 from ..theme import LIGHT, Theme
 from .grid import UNIT, to_scene
-from .painting import Caption, caption_font, layout, orientation, symbol_paths
+from .painting import Caption, caption_font, layout, placed_symbol
 
 __all__ = [
     "BlockItem",
-    "DotItem",
+    "DotTile",
     "ElementItem",
     "JunctionItem",
     "LabelItem",
@@ -183,30 +174,21 @@ class SymbolItem(ElementItem):
     def relayout(self) -> None:
         kind, form = self.symbol_key()
         rotation, mirror = self.orient()
-        paths = symbol_paths(kind, self.look.style, form)
-        xform = orientation(rotation, mirror)
+        placed = placed_symbol(kind, self.look.style, form, rotation, mirror)
         self.setPos(to_scene(self.element.at))
-        self.setPath(xform.map(paths.strokes))
-        self._dash = self._child_path(self._dash, xform.map(paths.dashed))
-        fills = xform.map(paths.fills)
-        captions: list[Caption] = []
+        self.setPath(placed.strokes)
+        self._dash = self._child_path(self._dash, placed.dashed)
+        self._fill = self._child_path(self._fill, placed.fills_with_dot if self.shows_dot()
+                                      else placed.fills)
         texts = self.texts()
-        for anchor in symbol(kind, self.look.style, form).anchors:
-            if anchor.role in MARK_TEXT:
-                captions += layout(anchor, (MARK_TEXT[anchor.role],), MARK_FONT_SIZE,
-                                   rotation, mirror)
-            elif anchor.role == "dot":
-                if self.shows_dot():
-                    x, y = xform.map(anchor.at[0] * UNIT, anchor.at[1] * UNIT)
-                    r = COUPLING_DOT_RADIUS * UNIT
-                    fills.addEllipse(QPointF(x, y), r, r)
-            elif texts.get(anchor.role):
+        captions: list[Caption] = []
+        for anchor in placed.anchors:
+            if texts.get(anchor.role):
                 captions += layout(anchor, tuple(texts[anchor.role]), FONT_SIZE, rotation,
                                    mirror)
-        self._fill = self._child_path(self._fill, fills)
         # the body (for picking) stays inside the stroke's bounds, so that Qt's index, which
         # goes by bounds, finds every pick (the pointer's reach covers the edge)
-        self._body = self.path().boundingRect()
+        self._body = placed.strokes.boundingRect()
         self._set_captions(captions)
 
     def _set_captions(self, captions: list[Caption]) -> None:
@@ -243,8 +225,7 @@ class SymbolItem(ElementItem):
         plain = self.preview or self.isSelected()
         roles = {} if plain else self.text_colours(theme)
         for text, role in self._texts:
-            hue = colour if plain or role in MARK_TEXT else roles.get(role, theme.text)
-            text.setBrush(_brush(hue))
+            text.setBrush(_brush(colour if plain else roles.get(role, theme.text)))
 
     def symbol_key(self) -> tuple[str, str]:
         """(engine.symbols kind, block form)."""
@@ -275,6 +256,19 @@ class SymbolItem(ElementItem):
         return [text.text() for text, role in self._texts if role]
 
 
+def _valued(part: PlacedPart) -> PlacedPart:
+    """The part reduced to what its caption depends on, so sheets that repeat values (most
+    do) read each value once."""
+    return PlacedPart("", part.kind, "", (0, 0), value=part.value, phase_deg=part.phase_deg,
+                      control=part.control)
+
+
+@cache
+def _caption(valued: PlacedPart, ac: bool) -> str:
+    return value_caption(valued, ac=ac)
+
+
+@cache
 def _readable(part: PlacedPart) -> bool:
     """Whether the part's value (and phase) can be read; an op-amp needs none."""
     if part.kind == "opamp":
@@ -297,7 +291,7 @@ class PartItem(SymbolItem):
 
     def texts(self) -> dict[str, list[str]]:
         part: PlacedPart = self.element
-        value = value_caption(part, ac=self.look.ac)
+        value = _caption(_valued(part), self.look.ac)
         if not value and part.kind != "opamp":
             value = "no value"
         if part.kind == "coupling" and part.couples:
@@ -305,7 +299,7 @@ class PartItem(SymbolItem):
         return {"designator": [part.designator], "value": [value] if value else []}
 
     def text_colours(self, theme: Theme) -> dict[str, str]:
-        return {"value": theme.value if _readable(self.element) else theme.error}
+        return {"value": theme.value if _readable(_valued(self.element)) else theme.error}
 
     def shows_dot(self) -> bool:
         return self.element.kind == "inductor" and self.element.designator in self.look.coupled
@@ -384,16 +378,22 @@ class JunctionItem(ElementItem):
         self.setBrush(_brush(self.colour()))
 
 
-class DotItem(QGraphicsEllipseItem):
-    """A computed junction dot where three or more connections meet (not an element: the
-    scene places and removes these from the sheet's geometry)."""
+class DotTile(QGraphicsPathItem):
+    """The computed junction dots (where three or more connections meet) of one square tile of
+    the sheet, drawn as one path. Not elements: the scene works them out from the sheet's
+    geometry; tiles keep a change local and the item count small on big sheets."""
 
-    def __init__(self, at: Point, look: Look) -> None:
-        super().__init__(_dot_rect(at))
-        self.at = at
+    def __init__(self, look: Look) -> None:
+        super().__init__()
         self.setZValue(Z_DOT)
         self.setPen(_NO_PEN)
         self.recolour(look)
+
+    def set_dots(self, points: Iterable[Point]) -> None:
+        path = QPainterPath()
+        for p in points:
+            path.addEllipse(_dot_rect(p))
+        self.setPath(path)
 
     def recolour(self, look: Look) -> None:
         self.setBrush(_brush(look.theme.stroke))

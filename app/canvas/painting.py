@@ -14,6 +14,9 @@ from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QFont, QFontMetricsF, QPainterPath, QTransform
 
 from engine.symbols import (
+    COUPLING_DOT_RADIUS,
+    MARK_FONT_SIZE,
+    MARK_TEXT,
     Arc,
     Circle,
     Line,
@@ -27,7 +30,8 @@ from engine.symbols import (
 
 from .grid import UNIT
 
-__all__ = ["Caption", "SymbolPaths", "caption_font", "layout", "orientation", "symbol_paths"]
+__all__ = ["Caption", "PlacedSymbol", "SymbolPaths", "caption_font", "layout", "orientation",
+           "placed_symbol", "symbol_paths"]
 
 
 @dataclass(frozen=True)
@@ -122,3 +126,40 @@ def layout(anchor: TextAnchor, lines: tuple[str, ...], size: float, rotation: in
         box = QRectF(left, y * UNIT - metrics.ascent(), width, metrics.height())
         out.append(Caption(text, origin, box, size, anchor.role))
     return tuple(out)
+
+
+@dataclass(frozen=True)
+class PlacedSymbol:
+    """A symbol turned for one rotation and mirror, relative to its origin (scene units):
+    strokes, dashed strokes, fills (polarity marks included, as outlines of their text), the
+    fills with the coupling dot added, and the anchors of its designator, value and name."""
+
+    strokes: QPainterPath
+    dashed: QPainterPath
+    fills: QPainterPath
+    fills_with_dot: QPainterPath
+    anchors: tuple[TextAnchor, ...]
+
+
+@cache
+def placed_symbol(kind: str, style: str, form: str, rotation: int,
+                  mirror: bool) -> PlacedSymbol:
+    """Cached: a sheet has few distinct (kind, orientation) pairs."""
+    paths = symbol_paths(kind, style, form)
+    xform = orientation(rotation, mirror)
+    fills = xform.map(paths.fills)
+    with_dot = QPainterPath(fills)
+    texts = []
+    for anchor in symbol(kind, style, form).anchors:
+        if anchor.role in MARK_TEXT:
+            for c in layout(anchor, (MARK_TEXT[anchor.role],), MARK_FONT_SIZE, rotation, mirror):
+                fills.addText(c.origin, caption_font(c.size), c.text)
+                with_dot.addText(c.origin, caption_font(c.size), c.text)
+        elif anchor.role == "dot":
+            x, y = xform.map(anchor.at[0] * UNIT, anchor.at[1] * UNIT)
+            r = COUPLING_DOT_RADIUS * UNIT
+            with_dot.addEllipse(QPointF(x, y), r, r)
+        else:
+            texts.append(anchor)
+    return PlacedSymbol(xform.map(paths.strokes), xform.map(paths.dashed), fills, with_dot,
+                        tuple(texts))

@@ -21,13 +21,15 @@ from engine.units import parse_frequency
 from ..sheet import SheetIndex
 from ..theme import qcolor
 from .grid import UNIT
-from .items import DotItem, ElementItem, Look, PartItem, element_item, item_for
+from .items import DotTile, ElementItem, Look, PartItem, element_item, item_for
 
 __all__ = ["SchematicScene"]
 
 #: Room around the drawing, grid units, so the view can always scroll past the edges.
 _MARGIN = 60.0
 _EMPTY_SHEET = QRectF(-30 * UNIT, -20 * UNIT, 60 * UNIT, 40 * UNIT)
+#: Side of the square tiles (grid units) whose junction dots are drawn together.
+_TILE = 32
 #: Grid lines closer than this on screen (device pixels) are thinned out.
 _MIN_GRID_PX = 7.0
 
@@ -49,7 +51,8 @@ class SchematicScene(QGraphicsScene):
         self.doc = doc
         self.index = SheetIndex()
         self._items: dict[str, ElementItem] = {}
-        self._dots: dict[Point, DotItem] = {}
+        self._dots: dict[tuple[int, int], set[Point]] = {}   # by tile
+        self._tiles: dict[tuple[int, int], DotTile] = {}
         self._couplings: dict[str, tuple[str, ...]] = {}
         self._previewed: set[str] = set()
         self._extent = QRectF(_EMPTY_SHEET)
@@ -72,6 +75,7 @@ class SchematicScene(QGraphicsScene):
         self.clear()
         self._items.clear()
         self._dots.clear()
+        self._tiles.clear()
         self._previewed.clear()
         self.doc = doc
         self.index = SheetIndex(doc)
@@ -148,14 +152,21 @@ class SchematicScene(QGraphicsScene):
                 item.sync(item.element)
 
     def _update_dots(self, points: Iterable[Point]) -> None:
+        changed: set[tuple[int, int]] = set()
         for p in points:
+            tile = (p[0] // _TILE, p[1] // _TILE)
+            dots = self._dots.get(tile, set())
             wanted = self.index.is_dot(p)
-            if wanted and p not in self._dots:
-                dot = DotItem(p, self.look)
-                self._dots[p] = dot
-                self.addItem(dot)
-            elif not wanted and p in self._dots:
-                self.removeItem(self._dots.pop(p))
+            if wanted != (p in dots):
+                (dots.add if wanted else dots.discard)(p)
+                self._dots[tile] = dots
+                changed.add(tile)
+        for tile in changed:
+            item = self._tiles.get(tile)
+            if item is None:
+                item = self._tiles[tile] = DotTile(self.look)
+                self.addItem(item)
+            item.set_dots(self._dots[tile])
 
     def _apply_extent(self) -> None:
         m = _MARGIN * UNIT
@@ -168,8 +179,8 @@ class SchematicScene(QGraphicsScene):
         """Redraw every item after a change of theme, symbol style or frequency."""
         for item in self._items.values():
             item.sync(item.element)
-        for dot in self._dots.values():
-            dot.recolour(self.look)
+        for tile in self._tiles.values():
+            tile.recolour(self.look)
         self.update()
 
     def set_captions(self, shown: bool) -> None:
@@ -189,7 +200,7 @@ class SchematicScene(QGraphicsScene):
 
     def dot_points(self) -> set[Point]:
         """Where computed junction dots are drawn."""
-        return set(self._dots)
+        return set().union(*self._dots.values())
 
     def drawing_rect(self) -> QRectF:
         """The scene rectangle of everything drawn (for fit to sheet)."""
