@@ -121,7 +121,7 @@ def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = 
         unknown = sorted(map(str, names.difference(circuit.names)))
         raise CutError(f"the region names {_plural(len(unknown), 'a part', 'parts')} that "
                        f"{_plural(len(unknown), 'is', 'are')} not in the circuit: "
-                       f"{_listing(unknown)}")
+                       f"{_listing(unknown)}", parts=unknown)
     outside = [p for p in everything if p.name not in names] if len(inside) < len(everything) \
         else []
     netlist = netlist_of(inside)
@@ -149,7 +149,8 @@ def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = 
                 f"the region meets the rest of the circuit at {_plural(len(extra), 'net', 'nets')}"
                 f" {_listing(extra)} besides its port ({plus}, {minus}); a two-terminal cut meets "
                 "the rest only at its port — move the parts on "
-                f"{_plural(len(extra), 'that net', 'those nets')} into or out of the region")
+                f"{_plural(len(extra), 'that net', 'those nets')} into or out of the region",
+                nets=extra)
     return Cut((plus, minus), tuple(inside), netlist)
 
 
@@ -202,7 +203,7 @@ def _coupling_sides(netlist: Netlist, outside: list[Part], names: set[str]) -> s
             a, b = (l1, l2) if l1 in names else (l2, l1)
             raise CutError(f"{k.name} couples {a} inside the region with {b} outside it; a "
                            "magnetic coupling cannot cross the boundary — put both inductors "
-                           "on one side")
+                           "on one side", parts=(k.name, a, b))
         if (l1 in names) != (k.name in names):
             flipped.add(k.name)
     return flipped
@@ -222,7 +223,8 @@ def _check_controls(circuit: Circuit, netlist: Netlist, outside: list[Part],
             where = ("inside", "outside") if inside else ("outside", "inside")
             raise CutError(f"{name} {where[0]} the region is controlled by the current in "
                            f"{control} {where[1]} it; a controlled source and its controlling "
-                           "part must lie on the same side of the boundary")
+                           "part must lie on the same side of the boundary",
+                           parts=(name, control))
 
 
 class _Sides:
@@ -257,7 +259,8 @@ class _Sides:
                         other = next(p.name for p in self.outside if net in p.nets)
                         raise CutError(f"{name} inside the region senses net {net}, which lies "
                                        f"outside it ({other} is connected there); a controlled "
-                                       "source and the nets it senses must lie on the same side")
+                                       "source and the nets it senses must lie on the same side",
+                                       nets=(net,), parts=(name, other))
         for p in sensors:
             sensed = p.nodes[:2] if p.kind == "opamp" else p.nodes[2:]
             for net in sensed:
@@ -265,7 +268,8 @@ class _Sides:
                     other = next(q.name for q in netlist.parts if net in q.nets)
                     raise CutError(f"{p.name} outside the region senses net {net}, which lies "
                                    f"inside it ({other} is connected there); a controlled "
-                                   "source and the nets it senses must lie on the same side")
+                                   "source and the nets it senses must lie on the same side",
+                                   nets=(net,), parts=(p.name, other))
 
     def terminals(self, port: Sequence[str]) -> set[str]:
         """Boundary nets through which current can enter or leave the region.
@@ -308,7 +312,7 @@ def _port_from(terminals: set[str]) -> tuple[str, str]:
                 if count > 2 else "give the port (plus, minus) explicitly")
         raise CutError(f"the region meets the rest of the circuit at {count} "
                        f"{_plural(count, 'net', 'nets')}{where} — a two-terminal cut needs "
-                       f"exactly 2; {hint}")
+                       f"exactly 2; {hint}", nets=sorted(terminals))
     if GROUND in terminals:
         (plus,) = terminals - {GROUND}
         return plus, GROUND

@@ -10,7 +10,7 @@ import cmath
 
 import pytest
 
-from engine import GROUND, Circuit, SingularCircuitError, check_cut, equivalent
+from engine import GROUND, Circuit, CutError, SingularCircuitError, check_cut, equivalent
 from engine.mna import Netlist
 from engine.topology import check_voltage_loops, circuit_graph, cut, islands
 
@@ -168,3 +168,20 @@ def test_circuit_graph_marks_conducting_edges() -> None:
     assert not edges["I1"]["conducting"]
     assert edges["U1"]["kind"] == "opamp"
     assert circuit_graph(c, freq=1e3).edges["a", "b", "C1"]["conducting"]
+
+
+def test_refusals_carry_the_nets_and_parts_they_name():
+    # what a view highlights must be what the message names
+    c = divider_with_load()
+    with pytest.raises(CutError) as three:
+        check_cut(c, {"R1", "R2"})
+    assert set(three.value.nets) == {"in", "a", GROUND}
+    assert all(n in str(three.value) for n in three.value.nets)
+    c.ccvs("DS1", "x", GROUND, "R1", 100)
+    c.resistor("RX", "x", GROUND, "1k")
+    with pytest.raises(CutError) as controlled:
+        check_cut(c, {"DS1", "RX"})
+    assert set(controlled.value.parts) == {"DS1", "R1"}
+    with pytest.raises(CutError) as coupled:
+        check_cut(transformer(True), {"V1", "R1", "L1", "L2", "K1"} - {"L2"})
+    assert {"K1", "L1", "L2"} <= set(coupled.value.parts)
