@@ -113,7 +113,8 @@ def _screenshot(args: argparse.Namespace, window) -> int:
         return 1
     window.resize(*_size(args.size))
     window.show()
-    QApplication.processEvents()
+    for _ in range(3):  # let the docks settle their sizes before fitting the drawing
+        QApplication.processEvents()
     window.canvas.view.fit()
     names = [n.strip() for n in args.select.split(",") if n.strip()]
     chosen = [e.id for n in names if (e := window.workbench.doc.by_designator(n)) is not None]

@@ -203,10 +203,10 @@ class SchematicScene(QGraphicsScene):
         return set().union(*self._dots.values())
 
     def drawing_rect(self) -> QRectF:
-        """The scene rectangle of everything drawn (for fit to sheet)."""
+        """The scene rectangle of everything drawn, captions included (for fit to sheet)."""
         rect = QRectF()
         for item in self._items.values():
-            rect |= item.sceneBoundingRect()
+            rect |= item.sceneBoundingRect() | item.mapRectToScene(item.childrenBoundingRect())
         return rect
 
     def element_at(self, pos: QPointF, tolerance: float) -> ElementItem | None:
