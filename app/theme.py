@@ -45,7 +45,7 @@ LIGHT = Theme(
 
 DARK = Theme(
     name="dark",
-    sheet="#1c1f23", grid="#30353b", grid_major="#454b53",
+    sheet="#1c1f23", grid="#272b30", grid_major="#363b42",
     stroke="#d9dce1", text="#e4e6e9", value="#a3a9b2",
     selection="#e3a04a", accent="#5fb3bf", accent_fill="#1f3538",
     error="#e8775c", preview="#8a919b",

@@ -85,6 +85,7 @@ class FieldEditor(QWidget):
         """Show the document's version (clears any error)."""
         self.element = element
         self.edit.setText(self.field.read(element))
+        self.edit.setCursorPosition(0)  # show the start of a long text
         self._set_error("")
 
     def revert(self) -> None:
