@@ -1,7 +1,8 @@
-"""Docked panels: part palette, inspector, undo history.
+"""Docked panels: part palette, inspector, undo history, live equivalent, sweep.
 
 :func:`install` adds them to a main window; a further panel is a QDockWidget given to
-``MainWindow.add_dock``.
+``MainWindow.add_dock``. The equivalent and sweep panels read the live analysis of the current
+region (app.analysis), which the boundary tool draws and the canvas marks.
 """
 
 from __future__ import annotations
@@ -10,15 +11,21 @@ from typing import TYPE_CHECKING
 
 from PySide6.QtCore import Qt
 
+from ..analysis import LiveAnalysis
+from ..canvas.marks import CutMarks
+from ..canvas.tools import ToolSpec
+from ..canvas.tools.boundary import BoundaryTool
+from .equivalent import EquivalentDock
 from .history import HistoryDock
 from .inspector import FieldEditor, InspectorDock
 from .palette import PaletteDock, entry_icon
+from .sweep import SweepDock
 
 if TYPE_CHECKING:
     from ..window import MainWindow
 
-__all__ = ["FieldEditor", "HistoryDock", "InspectorDock", "PaletteDock", "entry_icon",
-           "install"]
+__all__ = ["EquivalentDock", "FieldEditor", "HistoryDock", "InspectorDock", "PaletteDock",
+           "SweepDock", "entry_icon", "install"]
 
 
 def install(window: MainWindow) -> None:
@@ -29,3 +36,23 @@ def install(window: MainWindow) -> None:
     window.add_dock(window.palette_dock, Qt.DockWidgetArea.LeftDockWidgetArea, "Ctrl+1")
     window.add_dock(window.inspector, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+2")
     window.add_dock(window.history, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+3")
+    install_reduction(window)
+
+
+def install_reduction(window: MainWindow) -> None:
+    """The live analysis, its marks on the canvas, the boundary tool, and the equivalent
+    (tabbed with the history) and sweep (bottom, hidden until asked for) panels."""
+    live = window.analysis = LiveAnalysis(window.workbench, window)
+    window.cut_marks = CutMarks(window.canvas.scene, live, window)
+    window.add_tool(ToolSpec("boundary", "&Boundary", "B", "Draw a region to reduce: drag a "
+                             "lasso, Ctrl+drag a rectangle, Shift+click a part (B)",
+                             lambda canvas: BoundaryTool(canvas, live)))
+    window.equivalent_dock = EquivalentDock(window.workbench, window.canvas, live, window)
+    window.sweep_dock = SweepDock(live, window)
+    window.add_dock(window.equivalent_dock, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+4")
+    window.add_dock(window.sweep_dock, Qt.DockWidgetArea.BottomDockWidgetArea, "Ctrl+5")
+    window.tabifyDockWidget(window.history, window.equivalent_dock)
+    window.equivalent_dock.raise_()
+    window.sweep_dock.hide()
+    window.equivalent_dock.sweep_button.clicked.connect(
+        lambda: (window.sweep_dock.show(), window.sweep_dock.raise_()))

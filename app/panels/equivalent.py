@@ -1,0 +1,404 @@
+"""The live equivalent panel: the current region's Thevenin and Norton equivalents as the user
+edits, the analysis settings, and the region's commands (swap polarity, collapse, expand,
+remove).
+
+It reads the numbers from app.analysis.LiveAnalysis and writes only through undo commands; for
+an invalid cut it shows the reason in plain words (the canvas highlights what is named).
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import (
+    QButtonGroup,
+    QComboBox,
+    QDockWidget,
+    QFormLayout,
+    QGridLayout,
+    QHBoxLayout,
+    QLabel,
+    QPushButton,
+    QRadioButton,
+    QScrollArea,
+    QVBoxLayout,
+    QWidget,
+)
+
+from engine.equivalent import EquivalenceReport, Equivalent
+from engine.errors import CircuitError
+from engine.mna import describe_freq
+from engine.schematic import Block, Change, Document, Region
+from engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
+from engine.units import format_complex, format_eng, parse_frequency
+
+from ..analysis import LiveAnalysis
+from ..canvas import Canvas
+from ..commands import ApplyEdit, RemoveElements, ReplaceElements, SetAnalysis
+from ..workbench import Workbench
+from .entry import ERROR_STYLE, CheckedEntry, mark_error
+
+__all__ = ["EquivalentDock", "equivalence_text", "forms_text", "power_text",
+           "realisation_text"]
+
+#: Relative deviation below which the reduced circuit counts as reproducing the original.
+MATCH_RTOL = 1e-9
+_NO_REGION = ("No region yet. Choose Tools > Boundary (B) and drag a lasso around the parts to "
+              "reduce; their Thevenin and Norton equivalents appear here as you edit.")
+
+
+# -- texts ----------------------------------------------------------------------------------------
+def forms_text(eq: Equivalent, form: str) -> list[str]:
+    """Which forms exist, and why one does not; the chosen ``form`` first."""
+    thevenin = ("Thevenin: Voc in series with Z" if eq.has_thevenin else
+                "No Thevenin form: Z is infinite (an ideal current source or an open circuit "
+                "at the port)")
+    norton = ("Norton: Isc in parallel with Z" if eq.has_norton else
+              "No Norton form: Z is zero (an ideal voltage source or a short across the port)")
+    return [thevenin, norton] if form == "thevenin" else [norton, thevenin]
+
+
+def realisation_text(eq: Equivalent) -> str:
+    """The series R + L or R + C that has impedance z at the analysis frequency."""
+    at = describe_freq(eq.freq)
+    try:
+        r = eq.realisation()
+    except CircuitError as exc:
+        return f"No series R, L or C realises Z: {exc}"
+    resistance = format_eng(r.resistance, "Ω", 4)
+    if r.kind is None:
+        text = f"Z at {at} is a resistance of {resistance}"
+    else:
+        unit = "H" if r.kind == "inductor" else "F"
+        text = f"Z at {at} = {resistance} in series with {format_eng(r.value, unit, 4)}"
+    if r.resistance < 0:
+        text += " (negative resistance: the region is active)"
+    return text
+
+
+def power_text(eq: Equivalent, basis: str) -> str:
+    """The conjugate-matched load and the power it takes, in ``basis`` ("peak" or "rms")."""
+    p = eq.max_power(basis)
+    if p.reason:
+        return p.reason[0].upper() + p.reason[1:]
+    return (f"Matched load {format_complex(p.load, 'Ω')} takes {format_eng(p.power, 'W', 4)}; "
+            f"the best resistor, {format_eng(p.resistive_load, 'Ω', 4)}, takes "
+            f"{format_eng(p.resistive_power, 'W', 4)} ({basis} phasors)")
+
+
+def _relative(x: float) -> str:
+    return "0" if x == 0 else f"{x:.1e}"
+
+
+def equivalence_text(report: EquivalenceReport) -> str:
+    """The one-line check: the reduced circuit against the original, from outside."""
+    worst = f" (worst at net {report.worst_net})" if report.worst_net else ""
+    verdict = "Reduced circuit matches" if report.within(MATCH_RTOL) else "Reduced circuit DIFFERS"
+    return (f"{verdict} for the load as drawn: outside voltages within "
+            f"{_relative(report.voltage_rel)}{worst}, port current within "
+            f"{_relative(report.current_rel)} (relative)")
+
+
+# -- widgets --------------------------------------------------------------------------------------
+def _label(text: str = "", selectable: bool = True) -> QLabel:
+    label = QLabel(text)
+    label.setWordWrap(True)
+    if selectable:
+        label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+    return label
+
+
+class ValuesTable(QWidget):
+    """Voc, Isc and Z, each in rectangular and polar form, with units."""
+
+    ROWS = (("voc", "Voc"), ("isc", "Isc"), ("z", "Z"))
+
+    def __init__(self) -> None:
+        super().__init__()
+        grid = QGridLayout(self)
+        grid.setContentsMargins(0, 0, 0, 0)
+        grid.setHorizontalSpacing(12)
+        for col, title in enumerate(("", "rectangular", "polar")):
+            head = QLabel(title)
+            head.setEnabled(False)
+            grid.addWidget(head, 0, col)
+        self.cells: dict[tuple[str, str], QLabel] = {}
+        for row, (key, title) in enumerate(self.ROWS, start=1):
+            name = QLabel(f"<b>{title}</b>")
+            grid.addWidget(name, row, 0)
+            for col, form in enumerate(("rectangular", "polar"), start=1):
+                cell = _label()
+                cell.setAccessibleName(f"{title} {form}")
+                self.cells[key, form] = cell
+                grid.addWidget(cell, row, col)
+        grid.setColumnStretch(2, 1)
+
+    def show_equivalent(self, eq: Equivalent | None) -> None:
+        if eq is None:
+            for cell in self.cells.values():
+                cell.setText("—")
+            return
+        rect, polar = eq.rectangular(), eq.polar()
+        defined = {"voc": eq.has_thevenin, "isc": eq.has_norton, "z": True}
+        for key, _ in self.ROWS:
+            for form, texts in (("rectangular", rect), ("polar", polar)):
+                self.cells[key, form].setText(getattr(texts, key) if defined[key] else
+                                              "none")
+
+    def text(self, key: str, form: str) -> str:
+        return self.cells[key, form].text()
+
+
+class EquivalentDock(QDockWidget):
+    """The dock; ``live`` supplies the analysis, ``workbench`` takes the edits."""
+
+    def __init__(self, workbench: Workbench, canvas: Canvas, live: LiveAnalysis,
+                 parent: QWidget | None = None) -> None:
+        super().__init__("Equivalent", parent)
+        self.setObjectName("equivalentDock")
+        self.workbench = workbench
+        self.canvas = canvas
+        self.live = live
+        self._unsubscribe = lambda: None
+
+        self.region_box = QComboBox()
+        self.region_box.setAccessibleName("Region shown")
+        self.region_box.activated.connect(self._choose_region)
+        self.port = _label()
+        self.frequency = CheckedEntry(parse_frequency, "DC", "Analysis frequency",
+                                      "DC, or a frequency with SI prefixes: 50, 1k, 2.4 GHz")
+        self.frequency.accepted.connect(self._set_frequency)
+        self.thevenin = QRadioButton("Thevenin")
+        self.norton = QRadioButton("Norton")
+        self.form_group = QButtonGroup(self)
+        for button in (self.thevenin, self.norton):
+            self.form_group.addButton(button)
+            button.toggled.connect(self._set_form)
+        self.basis = QComboBox()
+        self.basis.addItem("peak phasors", "peak")
+        self.basis.addItem("rms phasors", "rms")
+        self.basis.setAccessibleName("Phasor basis")
+        self.basis.activated.connect(self._set_basis)
+        self.message = _label()
+        self.values = ValuesTable()
+        self.forms = _label()
+        self.realisation = _label()
+        self.power = _label()
+        self.check = _label()
+        self.notice = _label()
+        self.swap_button = QPushButton("Swap + / −")
+        self.swap_button.setToolTip("Exchange the port's plus and minus nets")
+        self.swap_button.clicked.connect(self.swap)
+        self.collapse_button = QPushButton("Collapse")
+        self.collapse_button.setToolTip("Replace the region by its equivalent block")
+        self.collapse_button.clicked.connect(self.collapse)
+        self.expand_button = QPushButton("Expand")
+        self.expand_button.setToolTip("Put a collapsed block's parts back exactly")
+        self.expand_button.clicked.connect(self.expand)
+        self.remove_button = QPushButton("Remove region")
+        self.remove_button.setToolTip("Forget the region (the parts stay)")
+        self.remove_button.clicked.connect(self.remove_region)
+        self.sweep_button = QPushButton("Sweep…")
+        self.sweep_button.setToolTip("Show the region's Z and Voc over frequency")
+        self._build()
+
+        live.analysed.connect(self.show_analysis)
+        live.checked.connect(self.show_check)
+        live.currentChanged.connect(lambda _: self._fill_regions())
+        canvas.selectionChanged.connect(lambda _: self._update_expand())
+        workbench.documentReplaced.connect(self._follow)
+        self._follow(workbench.doc)
+
+    def _build(self) -> None:
+        settings = QFormLayout()
+        settings.addRow("Region", self.region_box)
+        settings.addRow("Frequency", self.frequency)
+        forms = QHBoxLayout()
+        forms.addWidget(self.thevenin)
+        forms.addWidget(self.norton)
+        forms.addStretch(1)
+        settings.addRow("Form", forms)
+        settings.addRow("Power", self.basis)
+        row1, row2 = QHBoxLayout(), QHBoxLayout()
+        row1.addWidget(self.swap_button)
+        row1.addWidget(self.sweep_button)
+        row1.addWidget(self.remove_button)
+        row2.addWidget(self.collapse_button)
+        row2.addWidget(self.expand_button)
+        body = QWidget()
+        column = QVBoxLayout(body)
+        column.addLayout(settings)
+        for widget in (self.port, self.message, self.values, self.forms, self.realisation,
+                       self.power, self.check):
+            column.addWidget(widget)
+        column.addLayout(row1)
+        column.addLayout(row2)
+        column.addWidget(self.notice)
+        column.addStretch(1)
+        body.setStyleSheet(ERROR_STYLE)
+        scroll = QScrollArea()
+        scroll.setWidgetResizable(True)
+        scroll.setWidget(body)
+        self.setWidget(scroll)
+
+    @property
+    def doc(self) -> Document:
+        return self.workbench.doc
+
+    # -- following ----------------------------------------------------------------------------
+    def _follow(self, doc: Document) -> None:
+        self._unsubscribe()
+        self._unsubscribe = doc.subscribe(self._on_change)
+        self._on_change(Change(analysis=True))
+
+    def _on_change(self, change: Change) -> None:
+        if change.analysis:
+            self._show_settings()
+        self._fill_regions()
+        self._update_expand()
+
+    def _show_settings(self) -> None:
+        a = self.doc.analysis
+        if a.freq != self.frequency.text or not self.frequency.in_error:
+            self.frequency.set_text(a.freq)
+        for button, form in ((self.thevenin, "thevenin"), (self.norton, "norton")):
+            button.blockSignals(True)
+            button.setChecked(a.form == form)
+            button.blockSignals(False)
+        self.basis.setCurrentIndex(self.basis.findData(a.basis))
+
+    def _fill_regions(self) -> None:
+        box = self.region_box
+        box.blockSignals(True)
+        box.clear()
+        for region in self.doc.regions():
+            box.addItem(region.name, region.id)
+        box.setCurrentIndex(box.findData(self.live.region_id))
+        box.blockSignals(False)
+        box.setEnabled(box.count() > 1)
+
+    def _choose_region(self, index: int) -> None:
+        self.live.set_region(self.region_box.itemData(index))
+
+    # -- showing ------------------------------------------------------------------------------
+    def show_analysis(self, analysis: RegionAnalysis | None) -> None:
+        self.notice.clear()
+        ok = analysis is not None and analysis.ok
+        for widget in (self.forms, self.realisation, self.power, self.check):
+            widget.setVisible(ok)
+        self.port.setVisible(ok)
+        self.values.setVisible(analysis is not None)
+        self.swap_button.setEnabled(ok)
+        self.sweep_button.setEnabled(ok)
+        self.collapse_button.setEnabled(ok)
+        self.remove_button.setEnabled(analysis is not None)
+        if analysis is None:
+            self.message.setText(_NO_REGION)
+            mark_error(self.message, False)
+            self.values.show_equivalent(None)
+            return
+        if not analysis.ok:
+            self.message.setText(analysis.message[0].upper() + analysis.message[1:])
+            mark_error(self.message, True)
+            self.message.show()
+            self.values.show_equivalent(None)
+            return
+        eq = analysis.equivalent
+        self.message.hide()
+        plus, minus = eq.port
+        self.port.setText(f"Port <b>{plus}</b> (+) / <b>{minus}</b> (−) at "
+                          f"{describe_freq(eq.freq)}")
+        self.values.show_equivalent(eq)
+        form = self.doc.analysis.form
+        self.forms.setText("<br>".join(forms_text(eq, form)))
+        self.realisation.setText(realisation_text(eq))
+        self.power.setText(power_text(eq, self.doc.analysis.basis))
+        self.check.setText("Checking the reduced circuit…")
+        mark_error(self.check, False)
+
+    def show_check(self, result: EquivalenceReport | str) -> None:
+        if isinstance(result, EquivalenceReport):
+            self.check.setText(equivalence_text(result))
+            mark_error(self.check, not result.within(MATCH_RTOL))
+        else:
+            self.check.setText(f"No equivalence check: {result}")
+
+    def _update_expand(self) -> None:
+        block = self._block()
+        self.expand_button.setEnabled(block is not None)
+        self.expand_button.setText(f"Expand {block.designator}" if block else "Expand")
+
+    def _block(self) -> Block | None:
+        """The block to expand: the selected one, or the sheet's only one."""
+        doc = self.doc
+        chosen = [doc[i] for i in self.canvas.scene.selected_ids() if i in doc]
+        blocks = [e for e in chosen if isinstance(e, Block)] or doc.blocks()
+        return blocks[0] if len(blocks) == 1 else None
+
+    # -- settings -----------------------------------------------------------------------------
+    def _set_analysis(self, text: str, **changes: str) -> None:
+        new = replace(self.doc.analysis, **changes)
+        if new != self.doc.analysis:
+            self.workbench.push(SetAnalysis(self.doc, new, text))
+
+    def _set_frequency(self, text: str, hz: float) -> None:
+        shown = "DC" if hz == 0 and text.upper() == "DC" else text
+        self._set_analysis(f"Analyse at {describe_freq(hz)}", freq=shown)
+
+    def _set_form(self, checked: bool) -> None:
+        if checked:
+            form = "thevenin" if self.thevenin.isChecked() else "norton"
+            self._set_analysis(f"Show the {form.title()} form", form=form)
+
+    def _set_basis(self, index: int) -> None:
+        basis = self.basis.itemData(index)
+        self._set_analysis(f"Read phasors as {basis} values", basis=basis)
+
+    # -- region commands ----------------------------------------------------------------------
+    def _region(self) -> Region | None:
+        rid = self.live.region_id
+        region = self.doc[rid] if rid is not None and rid in self.doc else None
+        return region if isinstance(region, Region) else None
+
+    def swap(self) -> None:
+        region = self._region()
+        if region is not None:
+            self.workbench.push(ReplaceElements(self.doc, [replace(region, swap=not region.swap)],
+                                                f"Swap the port of “{region.name}”"))
+
+    def remove_region(self) -> None:
+        region = self._region()
+        if region is not None:
+            self.workbench.push(RemoveElements(self.doc, [region.id],
+                                               f"Remove region “{region.name}”"))
+
+    def collapse(self) -> None:
+        region = self._region()
+        if region is None:
+            return
+        try:
+            edit = collapse_region(self.doc, region.id, self.doc.analysis.form)
+        except CircuitError as exc:
+            self._refuse(str(exc))
+            return
+        block = next(e for e in edit.added if isinstance(e, Block))
+        self.workbench.push(ApplyEdit(self.doc, edit, f"Collapse “{region.name}” into "
+                                                      f"{block.designator}"))
+        self.canvas.scene.select_ids([block.id])
+
+    def expand(self) -> None:
+        block = self._block()
+        if block is None:
+            return
+        try:
+            edit = expand_block(self.doc, block.id)
+        except CircuitError as exc:
+            self._refuse(str(exc))
+            return
+        self.workbench.push(ApplyEdit(self.doc, edit, f"Expand {block.designator}"))
+        self.live.set_region(block.region.id)
+
+    def _refuse(self, reason: str) -> None:
+        self.notice.setText(reason[0].upper() + reason[1:])
+        mark_error(self.notice, True)

@@ -1,0 +1,207 @@
+"""Region geometry on the sheet: which parts a drawn outline takes in, how the outline follows a
+part added or taken out by hand, and where the two port nets cross it (the + and − marks).
+
+Outlines are closed polygons in grid units (floats), as engine.schematic.Region keeps them. A part
+or block belongs inside when the middle of its symbol's body lies inside the outline (even-odd
+rule), so a freehand lasso may cut across leads and wires.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from itertools import pairwise
+
+from PySide6.QtCore import QPointF, QRectF, Qt
+from PySide6.QtGui import QPainterPath, QPolygonF
+
+from engine.schematic import Block, Connectivity, Document, PlacedPart, Region
+from engine.symbols import placed_bounds
+
+from .sheet import element_pins
+
+__all__ = [
+    "Outline",
+    "PortMark",
+    "body_bounds",
+    "enclosed",
+    "outline_with",
+    "outline_without",
+    "port_marks",
+    "region_name",
+]
+
+Outline = tuple[tuple[float, float], ...]
+FPoint = tuple[float, float]
+#: Room left around a part's body when the outline grows to take it in, grid units.
+_PAD = 1.0
+
+
+@dataclass(frozen=True)
+class PortMark:
+    """Where a port net meets the outline: ``role`` "plus" or "minus", ``net`` its name."""
+
+    at: FPoint
+    role: str
+    net: str
+
+
+def body_bounds(element: PlacedPart | Block, style: str = "iec") -> tuple[float, ...]:
+    """(xmin, ymin, xmax, ymax) of the element's symbol on the sheet, grid units."""
+    if isinstance(element, Block):
+        return placed_bounds("block", element.at, element.rotation, element.mirror, style=style,
+                             form=element.form)
+    return placed_bounds(element.kind, element.at, element.rotation, element.mirror, style=style)
+
+
+def _polygon(outline: Iterable[FPoint]) -> QPolygonF:
+    return QPolygonF([QPointF(x, y) for x, y in outline])
+
+
+def enclosed(doc: Document, outline: Outline, style: str = "iec") -> frozenset[str]:
+    """Ids of the parts and blocks whose body's middle lies inside ``outline``."""
+    if len(outline) < 3:
+        return frozenset()
+    polygon = _polygon(outline)
+    found = set()
+    for element in doc:
+        if isinstance(element, PlacedPart | Block):
+            x0, y0, x1, y1 = body_bounds(element, style)
+            if polygon.containsPoint(QPointF((x0 + x1) / 2, (y0 + y1) / 2),
+                                     Qt.FillRule.OddEvenFill):
+                found.add(element.id)
+    return frozenset(found)
+
+
+def _padded(element: PlacedPart | Block, style: str) -> QPainterPath:
+    x0, y0, x1, y1 = body_bounds(element, style)
+    path = QPainterPath()
+    path.addRect(QRectF(x0 - _PAD, y0 - _PAD, x1 - x0 + 2 * _PAD, y1 - y0 + 2 * _PAD))
+    return path
+
+
+def _outline_path(outline: Outline) -> QPainterPath:
+    path = QPainterPath()
+    path.addPolygon(_polygon(outline))
+    path.closeSubpath()
+    return path
+
+
+def _pieces(path: QPainterPath) -> list[Outline]:
+    """The closed polygons of a path, each without its repeated closing point."""
+    out = []
+    for polygon in path.simplified().toFillPolygons():
+        points = [(round(p.x(), 3), round(p.y(), 3)) for p in polygon]
+        if len(points) > 1 and points[0] == points[-1]:
+            points.pop()
+        if len(points) >= 3:
+            out.append(tuple(points))
+    return out
+
+
+def outline_with(outline: Outline, element: PlacedPart | Block, style: str = "iec") -> Outline:
+    """The outline grown to take in ``element``'s body (with a little room): the union of the
+    two, or their convex hull where they do not touch, so the region stays one shape."""
+    grown = _padded(element, style)
+    if len(outline) < 3:
+        return _pieces(grown)[0]
+    pieces = _pieces(_outline_path(outline).united(grown))
+    if len(pieces) == 1:
+        return pieces[0]
+    return _hull([p for piece in pieces for p in piece])
+
+
+def outline_without(outline: Outline, element: PlacedPart | Block,
+                    style: str = "iec") -> Outline:
+    """The outline with ``element``'s body cut out, where that leaves one shape; otherwise the
+    outline as it was (membership, not the drawing, decides what is inside)."""
+    if len(outline) < 3:
+        return outline
+    pieces = _pieces(_outline_path(outline).subtracted(_padded(element, style)))
+    return pieces[0] if len(pieces) == 1 else outline
+
+
+def _hull(points: Sequence[FPoint]) -> Outline:
+    """Convex hull, counterclockwise in the sheet's axes (monotone chain)."""
+    pts = sorted(set(points))
+    if len(pts) < 3:
+        return tuple(pts)
+
+    def cross(o: FPoint, a: FPoint, b: FPoint) -> float:
+        return (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
+
+    def chain(seq: Iterable[FPoint]) -> list[FPoint]:
+        out: list[FPoint] = []
+        for p in seq:
+            while len(out) >= 2 and cross(out[-2], out[-1], p) <= 0:
+                out.pop()
+            out.append(p)
+        return out
+
+    lower, upper = chain(pts), chain(reversed(pts))
+    return tuple(lower[:-1] + upper[:-1])
+
+
+def region_name(doc: Document) -> str:
+    """The first free name "Region 1", "Region 2", ... for a new region."""
+    taken = {r.name for r in doc.regions()}
+    n = 1
+    while f"Region {n}" in taken:
+        n += 1
+    return f"Region {n}"
+
+
+# -- port marks ---------------------------------------------------------------------------------
+def port_marks(doc: Document, conn: Connectivity, region: Region,
+               port: tuple[str, str]) -> tuple[PortMark, ...]:
+    """A mark for each place a port net's wires cross the outline (plus first). A port net that
+    no wire carries across (joined by a net label or a ground marker) gets one mark on the
+    outline next to the region's pin nearest to it."""
+    if len(region.outline) < 3:
+        return ()
+    edges = list(zip(region.outline, region.outline[1:] + region.outline[:1], strict=True))
+    members = [doc[m] for m in region.members if m in doc]
+    marks: list[PortMark] = []
+    for role, net in zip(("plus", "minus"), port, strict=True):
+        points = [pt for wire in doc.wires() if conn.net_of_wire.get(wire.id) == net
+                  for a, b in pairwise(wire.points) for pt in _crossings(a, b, edges)]
+        if not points:
+            pins = [pin for m in members for i, pin in enumerate(element_pins(m))
+                    if conn.net_of_pin.get((m.id, i)) == net]
+            if pins:
+                points = [min((_nearest(edges, p) for p in pins),
+                              key=lambda q: q[0])[1]]
+        for pt in dict.fromkeys((round(x, 3), round(y, 3)) for x, y in points):
+            marks.append(PortMark(pt, role, net))
+    return tuple(marks)
+
+
+def _crossings(a: FPoint, b: FPoint, edges: list[tuple[FPoint, FPoint]]) -> list[FPoint]:
+    """Where segment a-b crosses the outline's edges (an edge's end point counts once)."""
+    found = []
+    rx, ry = b[0] - a[0], b[1] - a[1]
+    for p, q in edges:
+        sx, sy = q[0] - p[0], q[1] - p[1]
+        d = rx * sy - ry * sx
+        if d == 0:
+            continue  # parallel: a wire running along the outline does not cross it
+        wx, wy = p[0] - a[0], p[1] - a[1]
+        t = (wx * sy - wy * sx) / d
+        u = (wx * ry - wy * rx) / d
+        if 0 <= t <= 1 and 0 <= u < 1:
+            found.append((a[0] + t * rx, a[1] + t * ry))
+    return found
+
+
+def _nearest(edges: list[tuple[FPoint, FPoint]], pt: FPoint) -> tuple[float, FPoint]:
+    """(distance, point) of the outline point nearest to ``pt``."""
+    best = (math.inf, pt)
+    for p, q in edges:
+        sx, sy = q[0] - p[0], q[1] - p[1]
+        length = sx * sx + sy * sy
+        t = 0.0 if length == 0 else max(0.0, min(1.0, ((pt[0] - p[0]) * sx
+                                                       + (pt[1] - p[1]) * sy) / length))
+        near = (p[0] + t * sx, p[1] + t * sy)
+        best = min(best, (math.dist(near, pt), near))
+    return best

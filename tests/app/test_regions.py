@@ -1,0 +1,194 @@
+"""The boundary tool with real mouse and keyboard events: lasso, rectangle, Shift+click, Esc,
+choosing a region; the live numbers it brings up; the + and − marks; and an invalid cut shown in
+the error style with the named nets and parts highlighted."""
+
+from __future__ import annotations
+
+import pytest
+from PySide6.QtCore import QPointF, Qt
+from PySide6.QtGui import QColor, QPolygonF
+from PySide6.QtTest import QTest
+from sheets import SOURCE_SIDE, WITHOUT_SOURCE, divider, lasso, open_sheet, settle
+
+from app.canvas.grid import to_scene
+from engine.schematic import Region
+
+CTRL = Qt.KeyboardModifier.ControlModifier
+SHIFT = Qt.KeyboardModifier.ShiftModifier
+
+
+def _ids(doc, *designators):
+    return frozenset(doc.by_designator(d).id for d in designators)
+
+
+def _inside(region: Region, p) -> bool:
+    return QPolygonF([QPointF(x, y) for x, y in region.outline]).containsPoint(
+        QPointF(*p), Qt.FillRule.OddEvenFill)
+
+
+def test_a_lasso_around_a_divider_shows_its_closed_form(window, drive):
+    # common practice (voltage divider): Vth = V R2/(R1+R2) = 10 V * 3k/4k = 7.5 V,
+    # Zth = R1 || R2 = 1k * 3k / 4k = 750 Ω, Isc = V / R1 = 10 mA
+    open_sheet(window, divider())
+    lasso(drive, SOURCE_SIDE)
+    doc = drive.doc
+    (region,) = doc.regions()
+    assert region.members == _ids(doc, "V1", "R1", "R2")
+    assert window.analysis.region_id == region.id
+    eq = window.analysis.analysis.equivalent
+    assert eq.port == ("out", "0")
+    assert eq.voc == pytest.approx(7.5, rel=1e-12)
+    assert eq.z == pytest.approx(750.0, rel=1e-12)
+    assert eq.isc == pytest.approx(0.01, rel=1e-12)
+    values = window.equivalent_dock.values
+    assert values.text("voc", "rectangular") == "7.5 V"
+    assert values.text("voc", "polar") == "7.5 V ∠ 0°"
+    assert values.text("z", "rectangular") == "750 Ω"
+    assert values.text("isc", "polar") == "10 mA ∠ 0°"
+    assert "out" in window.equivalent_dock.port.text()
+    drive.key(Qt.Key.Key_Z, CTRL)  # the region was one undo step
+    settle()
+    assert not doc.regions()
+    assert "No region yet" in window.equivalent_dock.message.text()
+
+
+def test_ctrl_drag_draws_a_rectangle(window, drive):
+    open_sheet(window, divider())
+    drive.key(Qt.Key.Key_B)
+    drive.drag((-3, -1), (11, 9), modifiers=CTRL)
+    settle()
+    (region,) = drive.doc.regions()
+    assert region.outline == ((-3, -1), (11, -1), (11, 9), (-3, 9))
+    assert region.members == _ids(drive.doc, "V1", "R1", "R2")
+
+
+def test_the_keyboard_draws_a_rectangle_too(window, drive):
+    open_sheet(window, divider())
+    drive.key(Qt.Key.Key_B)
+    drive.view.set_cursor((-3, -1))
+    drive.key(Qt.Key.Key_Return)
+    drive.key(Qt.Key.Key_Right, times=14)
+    drive.key(Qt.Key.Key_Down, times=10)
+    drive.key(Qt.Key.Key_Return)
+    settle()
+    (region,) = drive.doc.regions()
+    assert region.members == _ids(drive.doc, "V1", "R1", "R2")
+
+
+def test_shift_click_adds_and_removes_a_part(window, drive):
+    open_sheet(window, divider())
+    lasso(drive, SOURCE_SIDE)
+    doc = drive.doc
+    rl = doc.by_designator("RL")
+    drive.click(rl.at, SHIFT)
+    settle()
+    (region,) = doc.regions()
+    assert rl.id in region.members
+    assert _inside(region, rl.at)  # the outline grew round it
+    # the whole circuit now meets nothing outside: the panel says so instead of numbers
+    assert not window.analysis.analysis.ok
+    drive.click(rl.at, SHIFT)
+    settle()
+    (region,) = doc.regions()
+    assert region.members == _ids(doc, "V1", "R1", "R2")
+    assert not _inside(region, rl.at)
+    assert window.analysis.analysis.ok
+    assert window.analysis.analysis.equivalent.voc == pytest.approx(7.5, rel=1e-12)
+
+
+def test_shift_click_with_no_region_starts_one(window, drive):
+    open_sheet(window, divider())
+    drive.key(Qt.Key.Key_B)
+    drive.click(drive.doc.by_designator("R2").at, SHIFT)
+    settle()
+    (region,) = drive.doc.regions()
+    assert region.members == _ids(drive.doc, "R2")
+
+
+def test_esc_drops_the_lasso_being_drawn(window, drive):
+    open_sheet(window, divider())
+    drive.key(Qt.Key.Key_B)
+    drive.move((-3, -1))
+    QTest.mousePress(drive.viewport, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                     drive.at((-3, -1)))
+    for p in ((5, -1), (11, -1), (11, 9)):
+        QTest.mouseMove(drive.viewport, drive.at(p))
+    drive.key(Qt.Key.Key_Escape)
+    QTest.mouseRelease(drive.viewport, Qt.MouseButton.LeftButton,
+                       Qt.KeyboardModifier.NoModifier, drive.at((-3, 9)))
+    settle()
+    assert not drive.doc.regions()
+    assert window.canvas.tool.name == "boundary"  # Esc dropped the gesture, not the tool
+    drive.key(Qt.Key.Key_Escape)
+    assert window.canvas.tool.name == "select"
+
+
+def test_a_lasso_around_nothing_makes_no_region(window, drive):
+    open_sheet(window, divider())
+    lasso(drive, [(20, -4), (26, -4), (26, 0), (20, 0), (20, -3)])
+    assert not drive.doc.regions()
+    assert "no part lies inside" in window.tool_status.text()
+
+
+def test_clicking_inside_a_region_shows_that_region(window, drive):
+    open_sheet(window, divider())
+    lasso(drive, SOURCE_SIDE)
+    first = window.analysis.region_id
+    lasso(drive, [(13, -1), (19, -1), (19, 9), (13, 9), (13, 0)])  # around RL alone
+    second = window.analysis.region_id
+    assert second != first and len(drive.doc.regions()) == 2
+    assert window.analysis.analysis.equivalent.z == pytest.approx(2000.0, rel=1e-12)
+    drive.click((-1, 8))  # inside the first outline, on empty sheet
+    settle()
+    assert window.analysis.region_id == first
+    assert window.equivalent_dock.region_box.currentData() == first
+
+
+def test_port_marks_sit_where_the_port_nets_cross_the_outline(window, drive):
+    open_sheet(window, divider())
+    lasso(drive, [(-3, -1), (11, -1), (11, 9), (-3, 9), (-3, 0)])
+    marks = window.cut_marks.items()[1].marks
+    # the top wire (net out) crosses x = 11 at y = 2, the ground wire at y = 6
+    assert {(m.role, m.net, m.at) for m in marks} == {("plus", "out", (11.0, 2.0)),
+                                                      ("minus", "0", (11.0, 6.0))}
+    window.equivalent_dock.swap_button.click()
+    settle()
+    marks = window.cut_marks.items()[1].marks
+    assert {(m.role, m.net) for m in marks} == {("plus", "0"), ("minus", "out")}
+
+
+def _pixel(window, p) -> QColor:
+    view = window.canvas.view
+    image = view.viewport().grab().toImage()
+    return QColor(image.pixel(view.mapFromScene(to_scene(p))))
+
+
+def test_an_invalid_cut_names_the_nets_and_highlights_them(window, drive):
+    open_sheet(window, divider())
+    lasso(drive, WITHOUT_SOURCE)
+    analysis = window.analysis.analysis
+    assert not analysis.ok
+    text = window.equivalent_dock.message.text()
+    assert "3 nets" in text and "out" in text
+    assert window.equivalent_dock.message.isVisible()
+    assert window.equivalent_dock.values.text("voc", "rectangular") == "—"
+    assert not window.equivalent_dock.collapse_button.isEnabled()
+    # the net from V1 to R1, named in the message, is highlighted on the canvas
+    doc = drive.doc
+    v1_wire = next(w for w in doc.wires() if w.points == ((0, 2), (2, 2)))
+    assert v1_wire.id in analysis.bad_elements
+    (net,) = {window.analysis.conn.net_of_wire[v1_wire.id]}
+    assert net in analysis.bad_nets and net in text
+    fault = window.cut_marks.items()[0]
+    assert fault.wires.intersects(fault.mapRectFromScene(
+        window.canvas.scene.item(v1_wire.id).sceneBoundingRect()))
+    assert not fault.outline.isEmpty()  # the outline takes the error style
+    glow = _pixel(window, (1, 1.7))  # beside the wire, inside the glow
+    assert glow.red() > glow.green() + 40 and glow.red() > glow.blue() + 40
+    assert not window.cut_marks.items()[1].marks
+    # taking V1 in mends the cut: the error style goes
+    drive.click(doc.by_designator("V1").at, SHIFT)
+    settle()
+    assert window.analysis.analysis.ok
+    assert fault.outline.isEmpty() and fault.wires.isEmpty()
+    assert not window.equivalent_dock.message.isVisible()
