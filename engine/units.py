@@ -168,7 +168,7 @@ def format_complex(z: complex, unit: str = "", digits: int = 4) -> str:
 
 def format_phasor(z: complex, unit: str = "", digits: int = 4) -> str:
     """Polar form, magnitude ∠ degrees: ``format_phasor(3.33, "V") == "3.33 V ∠ 0°"``."""
-    z = complex(z)
+    z = complex(z.real, z.imag + 0.0)  # -0.0 + 0.0 is +0.0: a negation of a real reads 180°
     if cmath.isinf(z):
         return format_eng(math.inf, unit, digits)
     angle = math.degrees(cmath.phase(z)) if z != 0 else 0.0

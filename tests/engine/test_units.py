@@ -193,6 +193,7 @@ def test_format_eng_rounds_to_the_requested_significant_digits() -> None:
 
 @pytest.mark.parametrize(("z", "text"), [
     (3.33, "3.33 V ∠ 0°"), (-3.33, "3.33 V ∠ 180°"), (2j, "2 V ∠ 90°"), (0, "0 V ∠ 0°"),
+    (-complex(3.33, 0), "3.33 V ∠ 180°"),  # negated: the imaginary part is -0.0
     (complex(1, -1), "1.414 V ∠ -45°"), (complex(math.inf, 0), "∞ V"),
 ])
 def test_format_phasor_magnitude_angle_in_degrees(z: complex, text: str) -> None:
