@@ -138,6 +138,7 @@ class LiveAnalysis(QObject):
         """Show this region (None: the first one of the document, if any)."""
         if region_id != self.region_id:
             self.region_id = region_id
+            self.currentChanged.emit(region_id)
             self._schedule()
 
     def _choose_region(self) -> str | None:
