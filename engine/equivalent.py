@@ -212,8 +212,10 @@ class EquivalenceReport:
 
     ``voltage_abs`` (V): the largest |ΔV| of a net outside the region, ``worst_net`` that net;
     ``current_abs`` (A): the largest |ΔI| of the port current (into the region at plus).
-    The relative figures divide by the largest magnitude of the same quantity in either circuit
-    over all cases (0 when everything is exactly 0). ``cases`` describes the loads tried,
+    The relative figures divide by the largest magnitude of any net voltage (for
+    ``voltage_rel``) or branch current (for ``current_rel``) in either whole solution over all
+    cases (0 when everything is exactly 0). Voltages are measured from ground where the outside
+    reaches it, else from the port's minus net. ``cases`` describes the loads tried,
     ``worst_case`` the one with the largest relative deviation.
     """
 
@@ -578,7 +580,10 @@ def check_equivalence(original: Circuit, reduced: Circuit, region: Collection[st
     replacement = [p for p in reduced if p.name not in kept]
     plus, minus = cut.port
     nets = sorted({n for p in outside for n in p.nets} | {plus, minus})
-    anchors = (GROUND, minus, plus, *nets)
+    # Both circuits are measured from one reference that exists in both: ground where the
+    # outside reaches it, else the port's minus net (a ground inside the region is gone once
+    # the region is replaced, and potentials against it are no part of the equivalence).
+    anchors = (GROUND, minus, plus, *nets) if GROUND in nets else (minus, plus, *nets)
     taken = original.nets() | reduced.nets() | set(original.names) | set(reduced.names)
     probe = _Probe(_unused("the port probe", taken), _unused("the port probe net", taken),
                    plus if plus != GROUND else minus, 1.0 if plus != GROUND else -1.0)
@@ -592,15 +597,16 @@ def check_equivalence(original: Circuit, reduced: Circuit, region: Collection[st
     worst_v = worst_i = scale_v = scale_i = 0.0
     worst_net, worst_case, worst_rel = None, cases[0][0], -1.0
     for label, extra in cases:
-        (v0, i0), (v1, i1) = (
+        (v0, i0, sv0, si0), (v1, i1, sv1, si1) = (
             _outside_solution([*outside, *extra], inner, probe, f, anchors, nets, f"{which} "
                               f"circuit with {label if extra else 'the outside as drawn'}")
             for which, inner in (("the original", list(cut.parts)), ("the reduced", replacement)))
         dv, di = np.abs(v0 - v1), abs(i0 - i1)
-        peak_v = max(float(np.abs(v0).max(initial=0)), float(np.abs(v1).max(initial=0)))
-        scale_v, scale_i = max(scale_v, peak_v), max(scale_i, abs(i0), abs(i1))
-        case_rel = max(_ratio(float(dv.max(initial=0)), peak_v),
-                       _ratio(di, max(abs(i0), abs(i1))))
+        # Relative to the size of the whole solution, so outside values that cancel to
+        # rounding level do not turn rounding noise into a large ratio.
+        peak_v, peak_i = max(sv0, sv1), max(si0, si1)
+        scale_v, scale_i = max(scale_v, peak_v), max(scale_i, peak_i)
+        case_rel = max(_ratio(float(dv.max(initial=0)), peak_v), _ratio(di, peak_i))
         if case_rel > worst_rel:
             worst_rel, worst_case = case_rel, label
         if dv.size and dv.max() > worst_v:
@@ -638,8 +644,9 @@ class _Probe:
 
 def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: float,
                       anchors: Sequence[str], nets: list[str], what: str
-                      ) -> tuple[np.ndarray, complex]:
-    """Voltages of ``nets`` and the port current, with ``inner`` fed through the probe."""
+                      ) -> tuple[np.ndarray, complex, float, float]:
+    """Voltages of ``nets`` and the port current, with ``inner`` fed through the probe, and the
+    largest magnitudes of any net voltage and of any branch current in the whole solution."""
     moved = [replace(p, nodes=tuple(probe.side if n == probe.net else n for n in p.nodes))
              for p in inner]
     wire = Part(probe.name, "resistor", (probe.net, probe.side), 0.0)
@@ -655,4 +662,7 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
         raise SingularCircuitError(f"{what} has no unique solution: {exc}") from None
     ids = system.unknown_of_net[[netlist.index[n] for n in nets]]
     volts = np.where(ids >= 0, x[np.maximum(ids, 0)], 0)
-    return volts, probe.sign * complex(x[system.branch_of[probe.name]])
+    current = probe.sign * complex(x[system.branch_of[probe.name]])
+    node_part, branch_part = x[:system.n_nodes], x[system.n_nodes:]
+    return (volts, current, float(np.abs(node_part).max(initial=0)),
+            max(float(np.abs(branch_part).max(initial=0)), abs(current)))
