@@ -9,10 +9,11 @@ in reverse).
 from __future__ import annotations
 
 from collections.abc import Iterable
+from dataclasses import replace
 
 from PySide6.QtGui import QUndoCommand
 
-from engine.schematic import Analysis, Document, Element, Region
+from engine.schematic import Analysis, Block, Document, Element, PlacedPart, Region
 from engine.schematic.reduction import Edit
 
 from .editing import Deletion
@@ -27,6 +28,7 @@ __all__ = [
     "SetAnalysis",
     "SetTitle",
     "delete_command",
+    "edit_command",
 ]
 
 #: QUndoCommand.id() of a move; moves of the same elements in a row merge into one step.
@@ -161,8 +163,9 @@ class ApplyEdit(DocumentCommand):
     """An engine-planned edit (a collapse into a block, an expand back): redo applies it,
     undo applies its exact inverse."""
 
-    def __init__(self, doc: Document, edit: Edit, text: str) -> None:
-        super().__init__(doc, text)
+    def __init__(self, doc: Document, edit: Edit, text: str,
+                 parent: DocumentCommand | None = None) -> None:
+        super().__init__(doc, text, parent)
         self.edit = edit
 
     def _apply(self) -> None:
@@ -195,4 +198,24 @@ def delete_command(doc: Document, plan: Deletion, text: str) -> DocumentCommand:
     RemoveElements(doc, plan.removed, "Remove elements", parent)
     if plan.dangling:
         RemoveElements(doc, plan.dangling, "Remove dangling wires", parent)
+    return parent
+
+
+def edit_command(doc: Document, edit: Edit, text: str) -> DocumentCommand:
+    """One undo step for an engine edit (collapse, expand) that keeps the other regions'
+    members in the document: a region naming an element the edit takes away lets go of it
+    first, and afterwards names the parts or blocks the edit put there instead (the block a
+    collapse made, the parts an expand restored), so a nested region follows its block."""
+    parent = DocumentCommand(doc, text)
+    gone = {e.id for e in edit.removed}
+    touched = [r for r in doc.regions() if r.id not in gone and r.members & gone]
+    shrunk = [replace(r, members=r.members - gone) for r in touched]
+    if shrunk:
+        ReplaceElements(doc, shrunk, "Update regions", parent)
+    ApplyEdit(doc, edit, text, parent)
+    held = frozenset(e.id for e in edit.added if isinstance(e, PlacedPart | Block))
+    if shrunk and held:
+        regrown = ReplaceElements(doc, [replace(r, members=r.members | held) for r in shrunk],
+                                  "Update regions", parent)
+        regrown.before = {r.id: r for r in shrunk}  # what it finds when it runs, not now
     return parent
