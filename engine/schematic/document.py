@@ -146,15 +146,18 @@ class Document:
                 return candidate
 
     def collapsed(self) -> Iterator[Element]:
-        """Every element kept inside a collapsed block (at any depth of nesting); their ids and
-        designators stay reserved so that expanding a block can always put them back."""
-        stack = [self._elements[b].contents for b in self._block_ids]
+        """Every element kept inside a collapsed block (at any depth of nesting), the region it
+        was collapsed from included; their ids and designators stay reserved so that expanding a
+        block can always put them back."""
+        stack = [self._elements[b] for b in self._block_ids]
         while stack:
-            contents = stack.pop()
+            block = stack.pop()
+            contents = block.contents
+            yield block.region
             for group in (contents.parts, contents.wires, contents.junctions, contents.labels,
                           contents.blocks):
                 yield from group
-            stack.extend(b.contents for b in contents.blocks)
+            stack.extend(contents.blocks)
 
     def _collapsed_ids(self) -> set[str]:
         return {e.id for e in self.collapsed()} if self._block_ids else set()

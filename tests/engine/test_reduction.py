@@ -229,3 +229,18 @@ def test_equivalence_line_for_the_current_load():
     for form in ("thevenin", "norton"):
         report = equivalence(analysis, form, loads=[100, 0])
         assert report.within(1e-12), report
+
+
+def test_a_reloaded_sheet_never_hands_out_the_collapsed_regions_id():
+    # the block keeps the region it was collapsed from; a new region drawn after the file is
+    # read again must not take that id, or the block could never be expanded
+    doc = _load("rc_antialias")
+    region_id = doc.regions()[0].id
+    collapse_region(doc, region_id).apply(doc)
+    again = fileformat.loads(fileformat.dumps(doc))
+    fresh = again.new_id(Region)
+    assert fresh != region_id
+    block = again.blocks()[0]
+    again.add(Region(fresh, "around the block", frozenset({block.id})))
+    expand_block(again, block.id).apply(again)
+    assert {r.id for r in again.regions()} == {region_id, fresh}
