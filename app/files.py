@@ -42,6 +42,12 @@ class FileActions(QObject):
         #: Shows a failure to the user (a non-blocking box; replaced where nobody watches).
         self.report = dialogs.show_error
 
+    def _failed(self, exc: Exception, title: str, what: str) -> bool:
+        """Report a failed file operation (what happened, and the reason); returns False."""
+        self.last_error = _reason(exc)
+        self.report(self.window, title, what, self.last_error)
+        return False
+
     def name(self) -> str:
         path = self.workbench.path
         return path.name if path else self.workbench.doc.title
@@ -80,11 +86,8 @@ class FileActions(QObject):
         try:
             doc = load(path)
         except (CircuitError, OSError) as exc:
-            self.last_error = _reason(exc)
-            self.report(self.window, "Cannot open sheet",
-                               f"“{path.name}” could not be opened; the sheet you had open "
-                               "is unchanged.", self.last_error)
-            return False
+            return self._failed(exc, "Cannot open sheet", f"“{path.name}” could not be opened; "
+                                "the sheet you had open is unchanged.")
         self.workbench.replace_document(doc, None if as_copy else path)
         if not as_copy:
             self.settings.add_recent(path)
@@ -107,11 +110,8 @@ class FileActions(QObject):
         try:
             save(self.workbench.doc, path)
         except (CircuitError, OSError) as exc:
-            self.last_error = _reason(exc)
-            self.report(self.window, "Cannot save sheet",
-                               f"“{path.name}” was not written; any earlier version of it is "
-                               "unchanged.", self.last_error)
-            return False
+            return self._failed(exc, "Cannot save sheet", f"“{path.name}” was not written; any "
+                                "earlier version of it is unchanged.")
         self.workbench.undo_stack.setClean()
         self.workbench.set_path(path)
         self.settings.add_recent(path)
@@ -131,10 +131,7 @@ class FileActions(QObject):
             partial.write_text(text, encoding="utf-8")
             os.replace(partial, path)
         except (CircuitError, OSError) as exc:
-            self.last_error = _reason(exc)
-            self.report(self.window, "Cannot export SVG",
-                               f"“{path.name}” was not written.", self.last_error)
-            return False
+            return self._failed(exc, "Cannot export SVG", f"“{path.name}” was not written.")
         return True
 
 

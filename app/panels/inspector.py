@@ -12,18 +12,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QKeyEvent, QUndoCommand
-from PySide6.QtWidgets import (
-    QDockWidget,
-    QFormLayout,
-    QLabel,
-    QLineEdit,
-    QVBoxLayout,
-    QWidget,
-)
+from PySide6.QtGui import QUndoCommand
+from PySide6.QtWidgets import QDockWidget, QFormLayout, QLabel, QVBoxLayout, QWidget
 
-from engine.errors import CircuitError
-from engine.palette import PALETTE
 from engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
 
 from ..canvas import Canvas
@@ -31,92 +22,40 @@ from ..catalog import entry
 from ..commands import ReplaceElements, SetTitle
 from ..fields import Field, fields_for
 from ..workbench import Workbench
+from .entry import CheckedEntry
 
 __all__ = ["FieldEditor", "InspectorDock"]
 
-_ERROR_STYLE = (f'QLineEdit[error="true"] {{ border: 1px solid {PALETTE.error}; '
-                f"border-radius: 2px; padding: 1px; }}"
-                f"QLabel#fieldError {{ color: {PALETTE.error}; }}")
-
-
-class _Line(QLineEdit):
-    """A line edit whose Esc reverts instead of closing anything."""
-
-    def __init__(self, revert) -> None:
-        super().__init__()
-        self._revert = revert
-
-    def keyPressEvent(self, event: QKeyEvent) -> None:
-        if event.key() == Qt.Key.Key_Escape:
-            self._revert()
-            return
-        super().keyPressEvent(event)
-
-
-class FieldEditor(QWidget):
-    """One field: the line edit and, under it, the reason an entry was refused."""
+class FieldEditor(CheckedEntry):
+    """One field of the element shown: a checked entry whose reader is the field's writer, so
+    a refused entry shows the reason and an accepted one becomes an undo command."""
 
     def __init__(self, inspector: InspectorDock, field: Field, element: Element) -> None:
-        super().__init__()
         self.inspector = inspector
         self.field = field
         self.element = element
-        self.edit = _Line(self.revert)
-        self.edit.setToolTip(field.tip)
-        self.edit.setAccessibleName(field.title)
+        super().__init__(self._write, field.read(element), field.title, field.tip)
         self.edit.setPlaceholderText(field.unit)
-        self.error = QLabel()
-        self.error.setObjectName("fieldError")
-        self.error.setWordWrap(True)
-        self.error.hide()
-        layout = QVBoxLayout(self)
-        layout.setContentsMargins(0, 0, 0, 0)
-        layout.setSpacing(2)
-        layout.addWidget(self.edit)
-        layout.addWidget(self.error)
-        self.edit.editingFinished.connect(self.commit)
-        self.show_element(element)
+        self.edit.setCursorPosition(0)  # show the start of a long text
+        self.accepted.connect(self._push)
 
-    @property
-    def in_error(self) -> bool:
-        return self.error.isVisible() or bool(self.error.text())
+    def _write(self, text: str) -> list:
+        return self.field.write(self.inspector.workbench.doc, self.element, text)
 
     def show_element(self, element: Element) -> None:
-        """Show the document's version (clears any error)."""
+        """Show the document's version of the element."""
         self.element = element
-        self.edit.setText(self.field.read(element))
-        self.edit.setCursorPosition(0)  # show the start of a long text
-        self._set_error("")
+        self.set_text(self.field.read(element))
+        self.edit.setCursorPosition(0)
 
-    def revert(self) -> None:
-        self.show_element(self.element)
-
-    def commit(self) -> None:
-        text = self.edit.text()
-        if text == self.field.read(self.element) and not self.in_error:
-            return
-        doc = self.inspector.workbench.doc
-        try:
-            new = self.field.write(doc, self.element, text)
-        except CircuitError as exc:
-            self._set_error(str(exc))
-            return
-        self._set_error("")
+    def _push(self, text: str, new: list) -> None:
         if new != [self.element]:
-            self.inspector.push(self.command(doc, new, text.strip()))
+            self.inspector.push(self.command(self.inspector.workbench.doc, new, text))
 
     def command(self, doc: Document, new: list, text: str) -> QUndoCommand:
         """The undo command that puts ``new`` in the document."""
         label = getattr(self.element, "designator", None) or f"label {self.element.name}"
         return ReplaceElements(doc, new, f"Set {label} {self.field.title.lower()} to {text}")
-
-    def _set_error(self, message: str) -> None:
-        self.error.setText(message)
-        self.error.setVisible(bool(message))
-        self.edit.setProperty("error", bool(message))
-        self.edit.setAccessibleDescription(message)
-        self.edit.style().unpolish(self.edit)
-        self.edit.style().polish(self.edit)
 
 
 def _describe(element: Element) -> str:
@@ -144,7 +83,6 @@ class InspectorDock(QDockWidget):
         self._shown: str | None = None  # id of the element shown, "" for the sheet
         self._pushing = False
         body = QWidget()
-        body.setStyleSheet(_ERROR_STYLE)
         self.heading = QLabel()
         font = self.heading.font()
         font.setBold(True)
