@@ -35,7 +35,7 @@ from engine.units import format_complex, format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas
-from ..commands import ApplyEdit, RemoveElements, ReplaceElements, SetAnalysis
+from ..commands import RemoveElements, ReplaceElements, SetAnalysis, edit_command
 from ..workbench import Workbench
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
@@ -383,8 +383,8 @@ class EquivalentDock(QDockWidget):
             self._refuse(str(exc))
             return
         block = next(e for e in edit.added if isinstance(e, Block))
-        self.workbench.push(ApplyEdit(self.doc, edit, f"Collapse “{region.name}” into "
-                                                      f"{block.designator}"))
+        self.workbench.push(edit_command(self.doc, edit, f"Collapse “{region.name}” into "
+                                                         f"{block.designator}"))
         self.canvas.scene.select_ids([block.id])
 
     def expand(self) -> None:
@@ -396,7 +396,7 @@ class EquivalentDock(QDockWidget):
         except CircuitError as exc:
             self._refuse(str(exc))
             return
-        self.workbench.push(ApplyEdit(self.doc, edit, f"Expand {block.designator}"))
+        self.workbench.push(edit_command(self.doc, edit, f"Expand {block.designator}"))
         self.live.set_region(block.region.id)
 
     def _refuse(self, reason: str) -> None:
