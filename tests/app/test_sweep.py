@@ -1,0 +1,138 @@
+"""The sweep view with real events: curves against the closed form of an RC region, axes with
+units, the cursor read-out after a click on the plot, CSV export through the file dialog, a
+collapsed block swept through its contents, and refused ranges."""
+
+from __future__ import annotations
+
+import csv
+import math
+from pathlib import Path
+
+import numpy as np
+import pytest
+from PySide6.QtCore import QPointF, Qt
+from PySide6.QtTest import QTest
+from PySide6.QtWidgets import QFileDialog
+from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
+
+from app.panels.sweep import CSV_COLUMNS
+from engine.units import format_eng
+
+R, C, V = 1e3, 100e-9, 10.0
+SHIFT = Qt.KeyboardModifier.ShiftModifier
+
+
+def rc_z(f):
+    """common practice (RC low-pass seen from the capacitor): Z = R / (1 + jωRC)."""
+    return R / (1 + 1j * 2 * np.pi * np.asarray(f) * R * C)
+
+
+def rc_voc(f):
+    """... and Voc = V / (1 + jωRC)."""
+    return V / (1 + 1j * 2 * np.pi * np.asarray(f) * R * C)
+
+
+def _swept(window, drive):
+    open_sheet(window, divider(second="capacitor", second_value="100n"))
+    lasso(drive, SOURCE_SIDE)
+    click_button(window.equivalent_dock.sweep_button)
+    dock = window.sweep_dock
+    assert dock.isVisible()
+    settle()
+    assert dock.result is not None, dock.status.text()
+    return dock
+
+
+def test_the_curves_follow_the_closed_form(window, drive):
+    dock = _swept(window, drive)
+    f = dock.z_curve.xData
+    assert len(f) == 201 and f[0] == pytest.approx(10) and f[-1] == pytest.approx(1e6)
+    np.testing.assert_allclose(dock.z_curve.yData, np.abs(rc_z(f)), rtol=1e-12)
+    np.testing.assert_allclose(dock.phase_curve.yData, np.degrees(np.angle(rc_z(f))),
+                               rtol=1e-10, atol=1e-12)
+    np.testing.assert_allclose(dock.voc_curve.yData, np.abs(rc_voc(f)), rtol=1e-12)
+    assert dock.z_plot.getAxis("left").labelText == "|Z| (Ω)"
+    assert dock.phase_plot.getAxis("left").labelText == "∠Z (°)"
+    assert dock.voc_plot.getAxis("left").labelText == "|Voc| (V)"
+    assert dock.voc_plot.getAxis("bottom").labelText == "Frequency (Hz)"
+    assert dock.z_plot.getAxis("bottom").logMode
+
+
+def test_a_click_on_the_plot_moves_the_cursor_and_reads_the_values(window, drive):
+    dock = _swept(window, drive)
+    vb = dock.z_plot.vb
+    target = 1591.5  # near the corner frequency 1 / (2π RC)
+    at = dock.plots.mapFromScene(vb.mapViewToScene(QPointF(math.log10(target),
+                                                           vb.viewRange()[1][0] + 0.1)))
+    QTest.mouseClick(dock.plots.viewport(), Qt.MouseButton.LeftButton,
+                     Qt.KeyboardModifier.NoModifier, at)
+    settle()
+    chosen = dock.cursor_frequency()
+    assert chosen == pytest.approx(target, rel=0.02)  # within a pixel or two
+    freqs = dock.result.freqs
+    nearest = freqs[np.argmin(np.abs(np.log10(freqs) - math.log10(chosen)))]
+    text = dock.readout.text()
+    assert format_eng(abs(rc_z(nearest)), "Ω", 4) in text
+    assert format_eng(abs(rc_voc(nearest)), "V", 4) in text
+    assert f"{math.degrees(np.angle(rc_z(nearest))):.2f}°" in text
+
+
+def test_csv_export_through_the_file_dialog(window, drive, monkeypatch, tmp_path: Path):
+    dock = _swept(window, drive)
+    out = tmp_path / "rc.csv"
+    monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(out), ""))
+    click_button(dock.export_button)
+    with out.open(encoding="utf-8", newline="") as f:
+        rows = list(csv.reader(f))
+    assert rows[0] == CSV_COLUMNS
+    assert len(rows) == 1 + 201
+    column = {name: i for i, name in enumerate(CSV_COLUMNS)}
+    for row in (rows[1], rows[100], rows[-1]):
+        f = float(row[column["f (Hz)"]])
+        z = complex(float(row[column["Re Z (ohm)"]]), float(row[column["Im Z (ohm)"]]))
+        assert z == pytest.approx(complex(rc_z(f)), rel=1e-12)
+        assert float(row[column["|Voc| (V)"]]) == pytest.approx(abs(rc_voc(f)), rel=1e-12)
+    assert "Wrote 201 frequencies" in dock.status.text()
+
+
+def test_the_sweep_follows_an_edit(window, drive):
+    dock = _swept(window, drive)
+    drive.key(Qt.Key.Key_S)
+    drive.click(drive.by("R1").at)
+    type_into(window.inspector.editors["value"].edit, "2k")
+    settle()
+    # at 10 Hz the capacitor barely conducts: |Z| is close to the new R1
+    assert dock.z_curve.yData[0] == pytest.approx(2e3, rel=1e-3)
+
+
+def test_a_collapsed_block_is_swept_through_its_contents(window, drive):
+    open_sheet(window, divider(second="capacitor", second_value="100n"))
+    lasso(drive, SOURCE_SIDE)
+    click_button(window.equivalent_dock.collapse_button)
+    (block,) = drive.doc.blocks()
+    window.canvas.scene.select_ids([])
+    drive.key(Qt.Key.Key_B)
+    drive.click(block.at, SHIFT)  # a new region of the block alone
+    settle()
+    assert window.analysis.analysis.ok, window.analysis.analysis.message
+    click_button(window.equivalent_dock.sweep_button)
+    settle()
+    dock = window.sweep_dock
+    f = dock.result.freqs
+    # the drawn block holds its DC values; the sweep must see the capacitor inside it
+    np.testing.assert_allclose(np.abs(dock.result.z), np.abs(rc_z(f)), rtol=1e-12)
+    np.testing.assert_allclose(dock.result.voc, rc_voc(f), rtol=1e-12)
+
+
+def test_a_back_to_front_range_is_refused(window, drive):
+    dock = _swept(window, drive)
+    type_into(dock.start.edit, "2M")
+    settle()
+    assert dock.result is None
+    assert "make From less than To" in dock.status.text()
+    assert not dock.export_button.isEnabled()
+    type_into(dock.start.edit, "0")
+    assert dock.start.in_error and "above 0 Hz" in dock.start.error.text()
+    type_into(dock.start.edit, "100")
+    settle()
+    assert dock.result is not None and dock.result.freqs[0] == pytest.approx(100)
