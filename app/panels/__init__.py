@@ -54,5 +54,12 @@ def install_reduction(window: MainWindow) -> None:
     window.tabifyDockWidget(window.history, window.equivalent_dock)
     window.equivalent_dock.raise_()
     window.sweep_dock.hide()
-    window.equivalent_dock.sweep_button.clicked.connect(
-        lambda: (window.sweep_dock.show(), window.sweep_dock.raise_()))
+    window.equivalent_dock.sweep_button.clicked.connect(lambda: _show_sweep(window))
+
+
+def _show_sweep(window: MainWindow) -> None:
+    dock = window.sweep_dock
+    if dock.isHidden():
+        dock.show()
+        window.resizeDocks([dock], [int(window.height() * 0.4)], Qt.Orientation.Vertical)
+    dock.raise_()

@@ -276,7 +276,7 @@ class EquivalentDock(QDockWidget):
             box.addItem(region.name, region.id)
         box.setCurrentIndex(box.findData(self.live.region_id))
         box.blockSignals(False)
-        box.setEnabled(box.count() > 1)
+        box.setEnabled(box.count() > 0)
 
     def _choose_region(self, index: int) -> None:
         self.live.set_region(self.region_box.itemData(index))

@@ -76,6 +76,28 @@ def sweep_csv(result: Sweep) -> str:
     return buffer.getvalue()
 
 
+class LogAxis(pg.AxisItem):
+    """A log axis ticked at each decade and, where there is room, at 2 and 5 times it (every
+    integer multiple inside a single decade), labelled in engineering notation (1 k, 200 m)."""
+
+    def logTickValues(self, minVal, maxVal, size, stdTicks):
+        lo, hi = math.floor(minVal), math.ceil(maxVal)
+
+        def ticks(multiples) -> list[float]:
+            return [d + math.log10(m) for d in range(lo, hi + 1) for m in multiples
+                    if minVal <= d + math.log10(m) <= maxVal]
+
+        decades = ticks((1,))
+        room = size / max(maxVal - minVal, 1e-12)  # pixels per decade
+        between = ticks((2, 5)) if room >= 90 else []
+        if len(decades) + len(between) < 2:
+            between = ticks(range(2, 10))
+        return [(None, decades), (None, between)]
+
+    def logTickStrings(self, values, scale, spacing):
+        return [format_eng(10 ** v * scale, "", 3) for v in values]
+
+
 def _positive(text: str) -> float:
     f = parse_frequency(text)
     if f <= 0:
@@ -141,7 +163,8 @@ class SweepDock(QDockWidget):
         self.visibilityChanged.connect(lambda shown: shown and self._stale and self._schedule())
 
     def _plot(self, row: int, label: str, log_y: bool) -> pg.PlotItem:
-        plot = self.plots.addPlot(row=row, col=0)
+        axes = {"bottom": LogAxis("bottom"), **({"left": LogAxis("left")} if log_y else {})}
+        plot = self.plots.addPlot(row=row, col=0, axisItems=axes)
         plot.setLogMode(x=True, y=log_y)
         plot.showGrid(x=True, y=True, alpha=0.25)
         plot.setLabel("left", label)
@@ -150,6 +173,8 @@ class SweepDock(QDockWidget):
         plot.setMenuEnabled(False)
         if row:
             plot.setXLink(self.z_plot)
+        if row < 2:  # the frequencies are read off the bottom plot's axis
+            plot.getAxis("bottom").setStyle(showValues=False)
         return plot
 
     def _build(self) -> None:
