@@ -40,15 +40,6 @@ def segments(points: Iterable[Point]) -> Iterator[tuple[Point, Point]]:
     return pairwise(points)
 
 
-def _on_segment(p: Point, a: Point, b: Point) -> bool:
-    (x, y), (x0, y0), (x1, y1) = p, a, b
-    if y0 == y1 == y:
-        return min(x0, x1) <= x <= max(x0, x1)
-    if x0 == x1 == x:
-        return min(y0, y1) <= y <= max(y0, y1)
-    return False
-
-
 class SheetIndex:
     """Pins, wire ends, junctions and wire segments of a document, by grid point.
 
@@ -81,10 +72,6 @@ class SheetIndex:
         element = self._elements.pop(element_id)
         self._update(element, -1)
         return element
-
-    def element(self, element_id: str) -> Element:
-        """The indexed version of an element."""
-        return self._elements[element_id]
 
     def points_of_interest(self) -> set[Point]:
         """Every pin, wire end and junction point."""
@@ -140,10 +127,6 @@ class SheetIndex:
     def pins_at(self, p: Point) -> set[tuple[str, int]]:
         """(element id, pin index) of every pin at ``p``."""
         return set(self._pins.get(p, ()))
-
-    def wire_ends_at(self, p: Point) -> dict[str, int]:
-        """Wire id -> how many of its ends (1 or 2) are at ``p``."""
-        return dict(self._ends.get(p, {}))
 
     def junction_at(self, p: Point) -> bool:
         return p in self._junctions
@@ -223,6 +206,3 @@ class SheetIndex:
     def is_connection(self, p: Point) -> bool:
         """Whether anything can join at ``p``: a pin, a wire end or a junction sits there."""
         return p in self._pins or p in self._ends or p in self._junctions
-
-    def on_any_segment(self, p: Point, wire: Wire) -> bool:
-        return any(_on_segment(p, a, b) for a, b in segments(wire.points))

@@ -6,11 +6,11 @@ pixel. Document positions are integer grid points; :func:`snap` rounds to the sn
 
 from __future__ import annotations
 
-from PySide6.QtCore import QPointF, QRectF
+from PySide6.QtCore import QPointF
 
-from engine.symbols import Bounds, Point
+from engine.symbols import Point
 
-__all__ = ["UNIT", "rect_of", "snap", "to_grid", "to_scene"]
+__all__ = ["UNIT", "snap", "to_grid", "to_scene"]
 
 #: Scene units per grid unit.
 UNIT = 20.0
@@ -27,9 +27,3 @@ def to_grid(p: QPointF) -> tuple[float, float]:
 def snap(p: tuple[float, float], step: int = 1) -> Point:
     """The nearest grid point whose coordinates are multiples of ``step``."""
     return (round(p[0] / step) * step, round(p[1] / step) * step)
-
-
-def rect_of(bounds: Bounds) -> QRectF:
-    """Scene rectangle of (xmin, ymin, xmax, ymax) grid bounds."""
-    x0, y0, x1, y1 = bounds
-    return QRectF(x0 * UNIT, y0 * UNIT, (x1 - x0) * UNIT, (y1 - y0) * UNIT)

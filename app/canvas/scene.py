@@ -91,11 +91,6 @@ class SchematicScene(QGraphicsScene):
         self._apply_extent()
         self._unsubscribe = doc.subscribe(self._on_change)
 
-    def detach(self) -> None:
-        """Stop following the document (the scene is being thrown away)."""
-        self._unsubscribe()
-        self._unsubscribe = lambda: None
-
     def _add_item(self, element: Element) -> ElementItem:
         item = item_for(element, self.look)
         self._items[element.id] = item
@@ -194,9 +189,6 @@ class SchematicScene(QGraphicsScene):
     # -- reading ------------------------------------------------------------------------------
     def item(self, element_id: str) -> ElementItem | None:
         return self._items.get(element_id)
-
-    def element_items(self) -> list[ElementItem]:
-        return list(self._items.values())
 
     def dot_points(self) -> set[Point]:
         """Where computed junction dots are drawn."""
