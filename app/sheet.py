@@ -86,6 +86,8 @@ class SheetIndex:
             self._update_wire(element, sign)
 
     def _update_wire(self, wire: Wire, sign: int) -> None:
+        if len(set(wire.points)) < 2:
+            return  # a zero-length wire joins nothing new (the SVG writer's dots agree)
         for end in (wire.points[0], wire.points[-1]):
             self._ends[end][wire.id] += sign
             if self._ends[end][wire.id] <= 0:
