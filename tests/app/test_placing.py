@@ -81,8 +81,9 @@ def test_drag_from_palette_drops_a_part(drive):
     viewport = drive.viewport
     action = Qt.DropAction.CopyAction
     none = Qt.KeyboardModifier.NoModifier
-    for event in (QDragEnterEvent(at, action, data, Qt.MouseButton.LeftButton, none),
-                  QDragMoveEvent(at, action, data, Qt.MouseButton.LeftButton, none),
+    # Qt's drag enter/move events take an integer point, the drop a real one
+    for event in (QDragEnterEvent(at.toPoint(), action, data, Qt.MouseButton.LeftButton, none),
+                  QDragMoveEvent(at.toPoint(), action, data, Qt.MouseButton.LeftButton, none),
                   QDropEvent(at, action, data, Qt.MouseButton.LeftButton, none)):
         QApplication.sendEvent(viewport, event)
     part = drive.by("C1")
