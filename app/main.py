@@ -17,9 +17,10 @@ from pathlib import Path
 __all__ = ["run"]
 
 _NO_DISPLAY = (
-    "portcut: no display to open the window on (neither DISPLAY nor WAYLAND_DISPLAY is set).\n"
-    "Run it in a graphical session, use the headless commands (portcut reduce | sweep | export "
-    "--help), or render the window with: portcut FILE --screenshot OUT.png"
+    "portcut: no display to open the window on (neither DISPLAY nor WAYLAND_DISPLAY is set), so "
+    "here is the sheet's equivalent in the terminal.\n"
+    "Run it in a graphical session for the workbench, use the headless commands (portcut reduce "
+    "| sweep | export --help), or render the window with: portcut FILE --screenshot OUT.png\n"
 )
 
 
@@ -61,7 +62,9 @@ def run(argv: list[str]) -> int:
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
     elif not _has_display():
         print(_NO_DISPLAY, file=sys.stderr)
-        return 1
+        from engine import cli
+
+        return cli.main(["reduce", *([str(args.file)] if args.file is not None else [])])
 
     from PySide6.QtCore import QSettings, QStandardPaths
     from PySide6.QtWidgets import QApplication
