@@ -13,6 +13,7 @@ from pathlib import Path
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtWidgets import QFileDialog, QWidget
 
+from engine.atomic import write_atomically
 from engine.errors import CircuitError
 from engine.schematic import Document
 from engine.schematic.fileformat import load, save
@@ -126,10 +127,7 @@ class FileActions(QObject):
 
     def export_svg_to(self, path: Path) -> bool:
         try:
-            text = document_svg(self.workbench.doc, style=self.settings.style)
-            partial = path.with_name(path.name + ".partial")
-            partial.write_text(text, encoding="utf-8")
-            os.replace(partial, path)
+            write_atomically(path, document_svg(self.workbench.doc, style=self.settings.style))
         except (CircuitError, OSError) as exc:
             return self._failed(exc, "Cannot export SVG", f"“{path.name}” was not written.")
         return True

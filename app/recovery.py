@@ -11,7 +11,6 @@ recognises a lock left by a dead process as stale) are offered for restoring.
 from __future__ import annotations
 
 import json
-import os
 import uuid
 from dataclasses import dataclass
 from datetime import datetime
@@ -19,6 +18,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QLockFile, QObject, QTimer, Signal
 
+from engine.atomic import write_atomically
 from engine.errors import CircuitError
 from engine.schematic import Document
 from engine.schematic.fileformat import load, save
@@ -110,9 +110,7 @@ class Recovery(QObject):
                 "saved_at": datetime.now().strftime("%Y-%m-%d %H:%M"), "title": doc.title}
         try:
             save(doc, self.document)
-            partial = self.meta.with_suffix(".tmp")
-            partial.write_text(json.dumps(note), encoding="utf-8")
-            os.replace(partial, self.meta)
+            write_atomically(self.meta, json.dumps(note))
         except (OSError, CircuitError) as exc:
             self.failed.emit(f"Autosave failed: {exc}")
             return False

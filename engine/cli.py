@@ -15,9 +15,7 @@ import csv
 import io
 import json
 import math
-import os
 import sys
-import tempfile
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -27,6 +25,7 @@ import numpy as np
 
 import assets
 
+from .atomic import write_atomically
 from .captions import SAFETY_CAUTION, above_extra_low_voltage
 from .circuit import Circuit
 from .equivalent import Equivalent, equivalent, sweep
@@ -380,24 +379,6 @@ def _sweep_rows(doc: Document, sel: _Selection, port: tuple[str, str] | None,
     return first.circuit, [swept[i] for i in range(len(swept))]
 
 
-def _write_atomically(path: Path, text: str) -> None:
-    """Write beside the target, flush to disk, then rename over it, so a failure leaves any
-    old file whole. An OSError names ``path``, not the temporary file."""
-    try:
-        fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
-        try:
-            with os.fdopen(fd, "w", encoding="utf-8", newline="") as f:
-                f.write(text)
-                f.flush()
-                os.fsync(f.fileno())
-            os.replace(tmp, path)
-        except BaseException:
-            Path(tmp).unlink(missing_ok=True)
-            raise
-    except OSError as e:
-        raise OSError(e.errno, f"cannot write it: {e.strerror or e}", str(path)) from None
-
-
 def _run_sweep(args: argparse.Namespace, out: TextIO) -> int:
     freqs = _frequencies(args.start, args.stop, args.points)
     doc = _document(args.file)
@@ -413,7 +394,7 @@ def _run_sweep(args: argparse.Namespace, out: TextIO) -> int:
             writer.writerow([repr(eq.freq), *_csv_cells(eq.voc, eq.has_thevenin),
                              *_csv_cells(eq.isc, eq.has_norton),
                              *_csv_cells(eq.z, eq.has_thevenin)])
-        _write_atomically(args.csv, buffer.getvalue())
+        write_atomically(args.csv, buffer.getvalue())
         out.write(f"wrote {len(rows)} frequencies for port ({port[0]}, {port[1]}) "
                   f"to {args.csv}\n")
         return 0
@@ -435,7 +416,7 @@ def _run_export(args: argparse.Namespace, out: TextIO) -> int:
         region = _drawn_region(doc, args.region)
         collapse_region(doc, region.id, args.form).apply(doc)
     text = document_svg(doc, style=args.style, show_regions=args.regions, freq=args.freq)
-    _write_atomically(args.output, text)
+    write_atomically(args.output, text)
     out.write(f"wrote {args.output}\n")
     return 0
 

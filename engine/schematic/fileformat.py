@@ -12,13 +12,10 @@ from __future__ import annotations
 
 import json
 import os
-import secrets
-import shutil
 from collections.abc import Callable, Iterator
-from contextlib import suppress
-from pathlib import Path
 from typing import Any
 
+from ..atomic import write_atomically
 from ..errors import DocumentError, ValueParseError
 from ..units import parse_frequency, parse_value
 from .document import Document
@@ -82,38 +79,12 @@ def dumps(doc: Document) -> str:
 
 def save(doc: Document, path: str | os.PathLike[str]) -> None:
     """Write ``doc`` to ``path`` atomically; the old file survives any failure unchanged."""
-    text = dumps(doc).encode("utf-8")
-    target = Path(os.path.realpath(path))  # through a symlink, replace what it points at
-    temporary = target.with_name(f".{target.name}.{secrets.token_hex(6)}.tmp")
+    text = dumps(doc)
     try:
-        fd = os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_BINARY", 0),
-                     0o666)
-        try:
-            with os.fdopen(fd, "wb") as f:
-                f.write(text)
-                f.flush()
-                os.fsync(f.fileno())
-            if target.exists():
-                shutil.copymode(target, temporary)
-            os.replace(temporary, target)
-        finally:
-            with suppress(OSError):
-                os.unlink(temporary)
+        write_atomically(path, text)
     except OSError as e:
         raise DocumentError(f"cannot save {os.fspath(path)}: {e.strerror or e}; "
                             "the file on disk is unchanged") from None
-    with suppress(OSError):  # the new file is in place; this only hastens the rename to disk
-        _sync_folder(target.parent)
-
-
-def _sync_folder(folder: Path) -> None:
-    """Make the rename itself durable (POSIX; other systems have no directory handles)."""
-    if hasattr(os, "O_DIRECTORY"):
-        fd = os.open(folder, os.O_RDONLY | os.O_DIRECTORY)
-        try:
-            os.fsync(fd)
-        finally:
-            os.close(fd)
 
 
 def _document_data(doc: Document) -> Data:
