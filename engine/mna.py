@@ -141,6 +141,50 @@ class Netlist:
     def __getitem__(self, kind: str) -> Group:
         return self.groups.get(kind, _EMPTY)
 
+    def with_values(self, parts: Sequence[Part], changed: np.ndarray) -> Netlist | None:
+        """This netlist for ``parts``, which differ from its own only at the positions
+        ``changed`` and there only in value; None where a changed part differs otherwise.
+
+        Nets, node arrays and unchanged groups are shared; what was derived from the old
+        values (``memo``) is not carried over.
+        """
+        slots = self._slots()
+        patched: dict[str, tuple[list[Part], np.ndarray]] = {}
+        for i in changed.tolist():
+            old, new = self.parts[i], parts[i]
+            if (new.name, new.kind, new.nodes, new.refs) != (old.name, old.kind, old.nodes,
+                                                             old.refs):
+                return None
+            if new.kind not in patched:
+                group = self.groups[new.kind]
+                patched[new.kind] = (list(group.members), group.values.copy())
+            members, values = patched[new.kind]
+            if isinstance(new.value, complex) and not np.iscomplexobj(values):
+                values = values.astype(complex)
+                patched[new.kind] = (members, values)
+            members[slots[i]] = new
+            values[slots[i]] = new.value
+        netlist = Netlist.__new__(Netlist)
+        netlist.parts, netlist.nets, netlist.index = parts, self.nets, self.index
+        netlist.controllers, netlist.memo = self.controllers, {"slots": slots}
+        netlist.groups = dict(self.groups)
+        for kind, (members, values) in patched.items():
+            netlist.groups[kind] = Group(members, self.groups[kind].nodes, values)
+        return netlist
+
+    def _slots(self) -> np.ndarray:
+        """Position of each part (in ``parts`` order) within its kind's group."""
+        found = self.memo.get("slots")
+        if found is None:
+            code = {kind: i for i, kind in enumerate(KINDS)}
+            kinds = np.fromiter((code[p.kind] for p in self.parts), np.intp, len(self.parts))
+            found = np.empty(kinds.size, dtype=np.intp)
+            for i in np.unique(kinds).tolist():
+                where = kinds == i
+                found[where] = np.arange(int(where.sum()))
+            self.memo["slots"] = found
+        return found
+
     @property
     def has_dependent(self) -> bool:
         """True when a controlled source or op-amp makes the system non-reciprocal."""

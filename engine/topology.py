@@ -157,20 +157,34 @@ def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = 
 #: The netlists of the last few regions, each with the exact Part objects it was built from.
 _RECENT: list[tuple[list[Part], Netlist]] = []
 _KEEP = 3
+_PATCH_RATIO = 10
 
 
 def netlist_of(parts: list[Part]) -> Netlist:
     """The :class:`Netlist` of ``parts``, reused while they are the very same Part objects.
 
     Parts are immutable, so a netlist (and what is derived from it alone) cannot go stale; an
-    edit makes new Part objects and a new netlist. Comparing identities costs one pointer test
-    per part, against some microseconds per part to build.
+    edit makes new Part objects. Comparing identities costs one pointer test per part, against
+    some microseconds per part to build. Where only a few parts of a kept netlist were replaced
+    by parts that differ in value alone (a value edit), its arrays are patched instead.
     """
     for i, (key, netlist) in enumerate(_RECENT):
-        if len(key) == len(parts) and all(map(is_, key, parts)):
+        if len(key) != len(parts):
+            continue
+        same = np.fromiter(map(is_, key, parts), bool, len(parts))
+        changed = np.flatnonzero(~same)
+        if changed.size == 0:
             _RECENT.insert(0, _RECENT.pop(i))
             return netlist
-    netlist = Netlist(parts)
+        # patching costs some microseconds per changed part, building under one per part
+        if changed.size * _PATCH_RATIO <= len(parts):
+            updated = netlist.with_values(parts, changed)
+            if updated is not None:
+                return _keep(parts, updated)
+    return _keep(parts, Netlist(parts))
+
+
+def _keep(parts: list[Part], netlist: Netlist) -> Netlist:
     _RECENT.insert(0, (parts, netlist))
     del _RECENT[_KEEP:]
     return netlist

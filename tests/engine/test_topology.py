@@ -7,7 +7,9 @@ what the checks conclude.
 from __future__ import annotations
 
 import cmath
+from dataclasses import replace
 
+import numpy as np
 import pytest
 from test_errors import REGION, divider
 
@@ -177,3 +179,29 @@ def test_refusals_carry_the_nets_and_parts_they_name():
     with pytest.raises(CutError) as coupled:
         check_cut(transformer(True), {"V1", "R1", "L1", "L2", "K1"} - {"L2"})
     assert {"K1", "L1", "L2"} <= set(coupled.value.parts)
+
+
+def test_a_value_edit_patches_the_kept_netlist() -> None:
+    # A kept netlist is reused for the same parts, patched where only values changed, and
+    # rebuilt where a part moved; each result equals a netlist built from scratch.
+    c = divider()
+    c.resistor("W1", "a", "w", 1)
+    c.resistor("RW", "w", GROUND, "1k")
+    region = REGION | {"W1", "RW"}
+    first = cut(c, region, ("a", GROUND)).netlist
+    assert cut(c, region, ("a", GROUND)).netlist is first
+    edited = c.replaced([replace(c["R2"], value="2k2"), replace(c["W1"], value=0)])
+    patched = cut(edited, region, ("a", GROUND)).netlist
+    assert patched is not first and patched.nets == first.nets
+    fresh = Netlist(list(edited.subcircuit(region)))
+    for kind, group in fresh.groups.items():
+        assert np.array_equal(patched[kind].values, group.values)
+        assert patched[kind].names == group.names
+    assert "W1" in patched.branches().offset_of  # now a 0 Ω wire with a branch current
+    assert equivalent(edited, region, ("a", GROUND)).z == pytest.approx(1 / (1 / 1e3 + 1 / 2.2e3
+                                                                             + 1 / 1e3))
+    moved = edited.replaced([replace(edited["RW"], nodes=("w", "in"))])
+    rebuilt = cut(moved, region, ("a", GROUND)).netlist
+    assert np.array_equal(rebuilt["resistor"].nodes,
+                          Netlist(list(moved.subcircuit(region)))["resistor"].nodes)
+    assert not np.array_equal(rebuilt["resistor"].nodes, patched["resistor"].nodes)
