@@ -588,9 +588,6 @@ class Factor:
     def __init__(self, system: System, freq: float) -> None:
         self.system, self.freq = system, freq
         self.matrix = system.matrix(freq)
-        if self.matrix.shape[0] == 0:
-            self._lu = None
-            return
         try:
             with warnings.catch_warnings():
                 warnings.simplefilter("error")
@@ -600,8 +597,6 @@ class Factor:
 
     def solve(self, rhs: np.ndarray, transposed: bool = False) -> np.ndarray:
         """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k)."""
-        if self._lu is None:
-            return np.zeros(rhs.shape, dtype=complex)
         data = rhs.astype(self.matrix.dtype if not np.iscomplexobj(rhs) else complex)
         if np.iscomplexobj(data) and not np.iscomplexobj(self.matrix.data):
             # SuperLU solves in the factor's own dtype: real factor, complex rhs in two parts
@@ -625,8 +620,6 @@ class Factor:
         ``gamma = (nz + 1) eps`` and nz the most non-zeros in one row (the same rounding that a
         perturbation of the part values by one unit in the last place would cause).
         """
-        if self.matrix.shape[0] == 0:
-            return 0.0
         a = self.matrix
         columns = np.repeat(np.arange(a.shape[1]), np.diff(a.indptr))
         with np.errstate(all="ignore"):

@@ -61,6 +61,14 @@ def test_resistor_and_voltage_source_stamps() -> None:
     assert x[index(s, "I:V1")] == pytest.approx(-5 / 3e3)  # current from p to n inside: negative
 
 
+def test_a_real_factor_solves_a_complex_right_hand_side() -> None:
+    s = build(divider())
+    factor = Factor(s, 0)
+    assert not np.iscomplexobj(factor.matrix.data)
+    x = factor.solve(s.b * (1 - 2j))
+    assert x[index(s, "a")] == pytest.approx(10 / 3 * (1 - 2j))
+
+
 def test_current_source_pushes_into_its_to_net() -> None:
     # engine/circuit.py: a current source (n_from, n_to) drives its value into n_to.
     c = Circuit()
