@@ -205,3 +205,12 @@ def test_a_value_edit_patches_the_kept_netlist() -> None:
     assert np.array_equal(rebuilt["resistor"].nodes,
                           Netlist(list(moved.subcircuit(region)))["resistor"].nodes)
     assert not np.array_equal(rebuilt["resistor"].nodes, patched["resistor"].nodes)
+
+
+def test_the_docstring_examples_run() -> None:
+    import doctest
+
+    import engine.topology
+
+    result = doctest.testmod(engine.topology)
+    assert result.attempted > 0 and result.failed == 0
