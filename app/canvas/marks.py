@@ -148,6 +148,9 @@ class CutMarks(QObject):
         self.live = live
         self._fault: FaultItem | None = None
         self._ports: PortMarksItem | None = None
+        # the marks depend on the drawing only: kept while connectivity, region and port stay
+        self._marks_for: tuple | None = None
+        self._marks: tuple[PortMark, ...] = ()
         live.analysed.connect(self.show)
 
     def items(self) -> tuple[FaultItem, PortMarksItem]:
@@ -171,7 +174,11 @@ class CutMarks(QObject):
             return
         if analysis.ok:
             fault.clear()
-            ports.show_marks(port_marks(doc, self.live.conn, region, analysis.equivalent.port))
+            key = (self.live.conn, region, analysis.equivalent.port)
+            if key != self._marks_for:
+                self._marks_for = key
+                self._marks = port_marks(doc, self.live.conn, region, analysis.equivalent.port)
+            ports.show_marks(self._marks)
             return
         ports.show_marks(())
         named = [doc[i] for i in analysis.bad_elements if i in doc]

@@ -22,6 +22,8 @@ ERROR_STYLE = (f'QLineEdit[error="true"] {{ border: 1px solid {PALETTE.error}; '
 
 def mark_error(widget: QWidget, error: bool) -> None:
     """Put a widget in or out of the error style of :data:`ERROR_STYLE`."""
+    if widget.property("error") == error:
+        return  # restyling costs a relayout of the panel
     widget.setProperty("error", error)
     widget.style().unpolish(widget)
     widget.style().polish(widget)

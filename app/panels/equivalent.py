@@ -250,13 +250,19 @@ class EquivalentDock(QDockWidget):
     def _follow(self, doc: Document) -> None:
         self._unsubscribe()
         self._unsubscribe = doc.subscribe(self._on_change)
-        self._on_change(Change(analysis=True))
+        self._show_settings()
+        self._fill_regions()
+        self._update_expand()
 
     def _on_change(self, change: Change) -> None:
         if change.analysis:
             self._show_settings()
-        self._fill_regions()
-        self._update_expand()
+        doc = self.doc
+        ids = change.added | change.removed | change.updated
+        # the lists shown change only with regions and blocks (a value edit touches neither)
+        if any(i not in doc or isinstance(doc[i], Region | Block) for i in ids):
+            self._fill_regions()
+            self._update_expand()
 
     def _show_settings(self) -> None:
         a = self.doc.analysis
@@ -314,15 +320,16 @@ class EquivalentDock(QDockWidget):
         self.forms.setText("<br>".join(forms_text(eq, form)))
         self.realisation.setText(realisation_text(eq))
         self.power.setText(power_text(eq, self.doc.analysis.basis))
-        self.check.setText("Checking the reduced circuit…")
-        mark_error(self.check, False)
+        self.check.setEnabled(False)  # greyed until the check of these numbers arrives
 
     def show_check(self, result: EquivalenceReport | str) -> None:
+        self.check.setEnabled(True)
         if isinstance(result, EquivalenceReport):
             self.check.setText(equivalence_text(result))
             mark_error(self.check, not result.within(MATCH_RTOL))
         else:
             self.check.setText(f"No equivalence check: {result}")
+            mark_error(self.check, False)
 
     def _update_expand(self) -> None:
         block = self._block()
