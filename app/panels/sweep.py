@@ -11,7 +11,6 @@ from __future__ import annotations
 import csv
 import io
 import math
-import os
 from pathlib import Path
 
 import numpy as np
@@ -29,6 +28,7 @@ from PySide6.QtWidgets import (
 )
 
 from engine import Sweep
+from engine.atomic import write_atomically
 from engine.errors import CircuitError, ValueParseError
 from engine.mna import describe_freq
 from engine.palette import PALETTE
@@ -293,12 +293,9 @@ class SweepDock(QDockWidget):
 
     def export_csv_to(self, path: Path) -> bool:
         """Write the sweep to ``path`` (atomically: a failure leaves any old file whole)."""
-        partial = path.with_name(path.name + ".partial")
         try:
-            partial.write_text(sweep_csv(self.result), encoding="utf-8", newline="")
-            os.replace(partial, path)
+            write_atomically(path, sweep_csv(self.result))
         except OSError as exc:
-            partial.unlink(missing_ok=True)
             self.status.setText(f"“{path.name}” was not written: {exc.strerror or exc}")
             mark_error(self.status, True)
             return False

@@ -136,3 +136,10 @@ def test_a_back_to_front_range_is_refused(window, drive):
     type_into(dock.start.edit, "100")
     settle()
     assert dock.result is not None and dock.result.freqs[0] == pytest.approx(100)
+
+
+def test_a_csv_that_cannot_be_written_says_so(window, drive, tmp_path: Path):
+    dock = _swept(window, drive)
+    assert not dock.export_csv_to(tmp_path / "no such folder" / "rc.csv")
+    assert "rc.csv” was not written" in dock.status.text()
+    assert dock.status.property("error") is True
