@@ -87,17 +87,18 @@ def power_text(eq: Equivalent, basis: str) -> str:
             f"{format_eng(p.resistive_power, 'W', 4)} ({basis} phasors)")
 
 
-def _relative(x: float) -> str:
-    return "0" if x == 0 else f"{x:.1e}"
+def _agreement(relative: float) -> str:
+    return "agree exactly" if relative == 0 else f"agree within {relative:.1e} (relative)"
 
 
 def equivalence_text(report: EquivalenceReport) -> str:
     """The one-line check: the reduced circuit against the original, from outside."""
-    worst = f" (worst at net {report.worst_net})" if report.worst_net else ""
+    worst = f", worst at net {report.worst_net}" if report.worst_net and report.voltage_rel \
+        else ""
     verdict = "Reduced circuit matches" if report.within(MATCH_RTOL) else "Reduced circuit DIFFERS"
-    return (f"{verdict} for the load as drawn: outside voltages within "
-            f"{_relative(report.voltage_rel)}{worst}, port current within "
-            f"{_relative(report.current_rel)} (relative)")
+    return (f"{verdict} for the load as drawn: outside voltages "
+            f"{_agreement(report.voltage_rel)}{worst}; port current "
+            f"{_agreement(report.current_rel)}")
 
 
 # -- widgets --------------------------------------------------------------------------------------
@@ -302,6 +303,7 @@ class EquivalentDock(QDockWidget):
         if analysis is None:
             self.message.setText(_NO_REGION)
             mark_error(self.message, False)
+            self.message.show()
             self.values.show_equivalent(None)
             return
         if not analysis.ok:

@@ -1,0 +1,83 @@
+"""Renders the user guide's region screenshots offscreen: a valid region, an invalid one, a
+collapsed block and the sweep view, from the bundled examples.
+
+Run from the repository root: ``python3 docs/images/make_region_screenshots.py``. Settings are
+throwaway; nothing of the user's is read or written.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import tempfile
+from dataclasses import replace
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+from PySide6.QtCore import QSettings
+from PySide6.QtWidgets import QApplication
+
+import assets
+from app.panels import _show_sweep
+from app.settings import Settings
+from app.window import MainWindow
+from engine.schematic import fileformat
+
+HERE = Path(__file__).resolve().parent
+SIZE = (1400, 900)
+
+
+def _window(app: QApplication, scratch: str) -> MainWindow:
+    window = MainWindow(Settings(QSettings(str(Path(scratch) / f"{len(os.listdir(scratch))}.ini"),
+                                           QSettings.Format.IniFormat)))
+    window.files.report = lambda *message: None
+    window.resize(*SIZE)
+    window.show()
+    return window
+
+
+def _settle(app: QApplication) -> None:
+    for _ in range(6):
+        app.processEvents()
+
+
+def _shoot(app: QApplication, window: MainWindow, name: str) -> None:
+    _settle(app)
+    window.canvas.view.fit()
+    _settle(app)
+    path = HERE / name
+    window.grab().save(str(path))
+    print(f"wrote {path}")
+
+
+def main() -> int:
+    app = QApplication.instance() or QApplication([])
+    scratch = tempfile.mkdtemp()
+
+    window = _window(app, scratch)
+    window.files.open_path(assets.example_path("rc_antialias"), as_copy=True)
+    _shoot(app, window, "region-valid.png")
+
+    window.equivalent_dock.collapse()
+    window.canvas.scene.select_ids([])  # the block in its own colours, not the selection's
+    _shoot(app, window, "region-collapsed.png")
+    window.workbench.undo_stack.undo()
+
+    window.resize(SIZE[0], 1000)
+    _show_sweep(window)
+    _shoot(app, window, "sweep-view.png")
+
+    window = _window(app, scratch)
+    doc = fileformat.load(assets.example_path("rc_antialias"))
+    region = doc.regions()[0]
+    left_out = doc.by_designator("R1")
+    doc.replace(replace(region, members=region.members - {left_out.id}))
+    window.workbench.replace_document(doc, None)
+    _shoot(app, window, "region-invalid.png")
+    os._exit(0)  # no teardown: closing would ask about the unsaved sheets
+
+
+if __name__ == "__main__":
+    sys.exit(main())
