@@ -69,6 +69,8 @@ class LiveAnalysis(QObject):
     checked = Signal(object)
     #: The current region's id (None: none).
     currentChanged = Signal(object)
+    #: Each Change of the current document, once noted here (views of the region follow it).
+    documentChanged = Signal(object)
 
     def __init__(self, workbench: Workbench, parent: QObject | None = None) -> None:
         super().__init__(parent)
@@ -128,6 +130,7 @@ class LiveAnalysis(QObject):
             else:
                 self._stale_sheet = True
         self._schedule()
+        self.documentChanged.emit(change)
 
     def _schedule(self) -> None:
         self._check_timer.stop()

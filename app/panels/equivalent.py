@@ -110,6 +110,14 @@ def _label(text: str = "", selectable: bool = True) -> QLabel:
     return label
 
 
+def _button(text: str, tip: str, slot=None) -> QPushButton:
+    button = QPushButton(text)
+    button.setToolTip(tip)
+    if slot is not None:
+        button.clicked.connect(slot)
+    return button
+
+
 class ValuesTable(QWidget):
     """Voc, Isc and Z, each in rectangular and polar form, with units."""
 
@@ -161,7 +169,6 @@ class EquivalentDock(QDockWidget):
         self.workbench = workbench
         self.canvas = canvas
         self.live = live
-        self._unsubscribe = lambda: None
 
         self.region_box = QComboBox()
         self.region_box.setAccessibleName("Region shown")
@@ -188,28 +195,24 @@ class EquivalentDock(QDockWidget):
         self.power = _label()
         self.check = _label()
         self.notice = _label()
-        self.swap_button = QPushButton("Swap + / −")
-        self.swap_button.setToolTip("Exchange the port's plus and minus nets")
-        self.swap_button.clicked.connect(self.swap)
-        self.collapse_button = QPushButton("Collapse")
-        self.collapse_button.setToolTip("Replace the region by its equivalent block")
-        self.collapse_button.clicked.connect(self.collapse)
-        self.expand_button = QPushButton("Expand")
-        self.expand_button.setToolTip("Put a collapsed block's parts back exactly")
-        self.expand_button.clicked.connect(self.expand)
-        self.remove_button = QPushButton("Remove region")
-        self.remove_button.setToolTip("Forget the region (the parts stay)")
-        self.remove_button.clicked.connect(self.remove_region)
-        self.sweep_button = QPushButton("Sweep…")
-        self.sweep_button.setToolTip("Show the region's Z and Voc over frequency")
+        self.swap_button = _button("Swap + / −", "Exchange the port's plus and minus nets",
+                                   self.swap)
+        self.collapse_button = _button("Collapse", "Replace the region by its equivalent block",
+                                       self.collapse)
+        self.expand_button = _button("Expand", "Put a collapsed block's parts back exactly",
+                                     self.expand)
+        self.remove_button = _button("Remove region", "Forget the region (the parts stay)",
+                                     self.remove_region)
+        self.sweep_button = _button("Sweep…", "Show the region's Z and Voc over frequency")
         self._build()
 
         live.analysed.connect(self.show_analysis)
         live.checked.connect(self.show_check)
         live.currentChanged.connect(lambda _: self._fill_regions())
         canvas.selectionChanged.connect(lambda _: self._update_expand())
-        workbench.documentReplaced.connect(self._follow)
-        self._follow(workbench.doc)
+        live.documentChanged.connect(self._on_change)
+        workbench.documentReplaced.connect(lambda _: self._show_document())
+        self._show_document()
 
     def _build(self) -> None:
         settings = QFormLayout()
@@ -248,9 +251,7 @@ class EquivalentDock(QDockWidget):
         return self.workbench.doc
 
     # -- following ----------------------------------------------------------------------------
-    def _follow(self, doc: Document) -> None:
-        self._unsubscribe()
-        self._unsubscribe = doc.subscribe(self._on_change)
+    def _show_document(self) -> None:
         self._show_settings()
         self._fill_regions()
         self._update_expand()

@@ -40,6 +40,7 @@ def test_collapse_then_expand_gives_back_the_exact_document(window, drive):
     doc = drive.doc
     assert not doc.regions() and doc.by_designator("R1") is None
     panel = window.equivalent_dock
+    assert panel.message.isVisible() and "No region yet" in panel.message.text()
     assert window.canvas.scene.selected_ids() == [block.id]
     assert panel.expand_button.isEnabled() and panel.expand_button.text() == "Expand EQ1"
     click_button(panel.expand_button)
