@@ -55,6 +55,8 @@ def _columns() -> list[str]:
 #: (the command line's `portcut sweep --csv` writes the same).
 CSV_COLUMNS = _columns()
 _MAX_POINTS = 100_000
+#: After an edit, the sweep waits this long (ms) for the next one before it runs again.
+FOLLOW_MS = 150
 
 
 def sweep_csv(result: Sweep) -> str:
@@ -159,7 +161,7 @@ class SweepDock(QDockWidget):
         for entry in (self.start, self.stop):
             entry.accepted.connect(lambda *_: self._schedule())
         self.points.editingFinished.connect(self._schedule)
-        live.analysed.connect(lambda _: self._schedule())
+        live.analysed.connect(lambda _: self._schedule(FOLLOW_MS))
         self.visibilityChanged.connect(lambda shown: shown and self._stale and self._schedule())
 
     def _plot(self, row: int, label: str, log_y: bool) -> pg.PlotItem:
@@ -194,10 +196,12 @@ class SweepDock(QDockWidget):
         self.setWidget(body)
 
     # -- computing ----------------------------------------------------------------------------
-    def _schedule(self) -> None:
+    def _schedule(self, delay_ms: int = 0) -> None:
+        """Sweep again once the view is shown; ``delay_ms`` lets a burst of edits settle
+        first (a sweep of a large region takes a good part of a second)."""
         self._stale = True
         if self.isVisible():
-            self._timer.start()
+            self._timer.start(delay_ms)
 
     def frequencies(self) -> np.ndarray:
         """The sweep's frequencies; raises CircuitError where the range is back to front."""
