@@ -130,3 +130,18 @@ def test_export_svg_writes_the_reduced_sheet(window, drive, monkeypatch, tmp_pat
     painter.end()
     assert _ink_pixels(image) > 200
     assert not list(tmp_path.glob("*.partial"))
+
+
+def test_a_region_holding_a_block_follows_the_frequency(window, drive):
+    # the block's drawn values hold at one frequency; the live analysis of a region around it
+    # must take the block's contents at the new frequency
+    _, block = _collapsed(window, drive, divider(second="capacitor", second_value="100n"))
+    window.canvas.scene.select_ids([])
+    drive.key(Qt.Key.Key_B)
+    drive.click(block.at, Qt.KeyboardModifier.ShiftModifier)  # a region of the block alone
+    settle()
+    type_into(window.equivalent_dock.frequency.edit, "1k")
+    # common practice (RC low-pass seen from the capacitor): Z = R / (1 + jωRC)
+    z = 1e3 / (1 + 1j * 2 * math.pi * 1e3 * 1e3 * 100e-9)
+    assert window.analysis.analysis.equivalent.z == pytest.approx(z, rel=1e-12)
+    assert window.equivalent_dock.values.text("z", "rectangular") == format_complex(z, "Ω")

@@ -7,14 +7,16 @@ from __future__ import annotations
 
 import cmath
 import math
+from dataclasses import replace
 
 import pytest
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
-from engine.schematic import PlacedPart
-from engine.units import format_complex, format_eng
+from app.commands import AddElements, ReplaceElements, SetAnalysis
+from engine.schematic import Analysis, PlacedPart, Wire, build_circuit, extract
+from engine.units import format_complex, format_eng, parse_frequency
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 
@@ -178,3 +180,32 @@ def test_remove_region_is_undoable(window, drive):
     drive.key(Qt.Key.Key_Z, CTRL)
     settle()
     assert len(drive.doc.regions()) == 1 and window.analysis.analysis.ok
+
+
+def test_the_kept_circuit_stays_the_one_a_fresh_build_gives(window, drive):
+    # the live analysis patches its circuit after value edits instead of rebuilding: after
+    # each kind of edit it must equal a build from scratch
+    _drawn(window, drive, divider())
+    doc, live = drive.doc, window.analysis
+
+    def fresh():
+        return build_circuit(doc, extract(doc), parse_frequency(doc.analysis.freq))
+
+    source = doc.by_designator("V1")
+    edits = [
+        ReplaceElements(doc, [replace(doc.by_designator("R2"), value="4k7")], "value"),
+        ReplaceElements(doc, [replace(source, value="2", phase_deg="30")], "phase"),
+        SetAnalysis(doc, Analysis(freq="50"), "frequency"),
+        ReplaceElements(doc, [replace(doc.by_designator("RL"), value="10")], "outside"),
+        AddElements(doc, [Wire(doc.new_id(Wire), ((16, 6), (16, 9), (20, 9)))], "wire"),
+        ReplaceElements(doc, [replace(doc.by_designator("R1"), value="33")], "value again"),
+    ]
+    for command in edits:
+        window.workbench.push(command)
+        settle()
+        assert live.analysis.circuit == fresh(), command.text()
+    eq = live.analysis.equivalent
+    # common practice (voltage divider with a phasor source): Voc = V R2 / (R1 + R2)
+    v = cmath.rect(2, math.radians(30))
+    assert eq.voc == pytest.approx(v * 4700 / (33 + 4700), rel=1e-12)
+    assert eq.z == pytest.approx(33 * 4700 / (33 + 4700), rel=1e-12)

@@ -192,3 +192,15 @@ def test_an_invalid_cut_names_the_nets_and_highlights_them(window, drive):
     assert window.analysis.analysis.ok
     assert fault.outline.isEmpty() and fault.wires.isEmpty()
     assert not window.equivalent_dock.message.isVisible()
+
+
+def test_marks_and_numbers_survive_opening_another_sheet(window, drive):
+    open_sheet(window, divider())
+    lasso(drive, SOURCE_SIDE)
+    open_sheet(window, divider(r2="1k"))  # the scene is cleared and rebuilt
+    assert window.analysis.analysis is None  # the new sheet has no region yet
+    lasso(drive, SOURCE_SIDE)
+    # common practice (voltage divider): R1 = R2 = 1 kΩ halves 10 V behind 500 Ω
+    assert window.analysis.analysis.equivalent.voc == pytest.approx(5.0, rel=1e-12)
+    ports = window.cut_marks.items()[1]
+    assert ports.scene() is window.canvas.scene and len(ports.marks) == 2
