@@ -8,6 +8,7 @@ an invalid cut it shows the reason in plain words (the canvas highlights what is
 
 from __future__ import annotations
 
+import html
 from dataclasses import replace
 
 from PySide6.QtCore import Qt
@@ -39,7 +40,7 @@ from ..commands import RemoveElements, ReplaceElements, SetAnalysis, edit_comman
 from ..workbench import Workbench
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
-__all__ = ["EquivalentDock", "equivalence_text", "forms_text", "power_text",
+__all__ = ["EquivalentDock", "boundary_text", "equivalence_text", "forms_text", "power_text",
            "realisation_text"]
 
 #: Relative deviation below which the reduced circuit counts as reproducing the original.
@@ -49,6 +50,29 @@ _NO_REGION = ("No region yet. Choose Tools > Boundary (B) and drag a lasso aroun
 
 
 # -- texts ----------------------------------------------------------------------------------------
+def _names(names: list[str], most: int = 6) -> str:
+    if not names:
+        return "nothing"
+    shown = ", ".join(names[:most])
+    return shown if len(names) <= most else f"{shown} and {len(names) - most} more"
+
+
+def boundary_text(analysis: RegionAnalysis) -> list[str]:
+    """For each net a refused cut names, the parts on it inside and outside the region (a
+    collapsed block by its designator), so the user sees which part to take in or leave out."""
+    if analysis.circuit is None:
+        return []
+    lines = []
+    for net in sorted(analysis.bad_nets):
+        sides: tuple[set[str], set[str]] = (set(), set())
+        for part in analysis.circuit:
+            if net in part.nets:
+                sides[part.name not in analysis.part_names].add(part.name.split(".")[0])
+        inside, outside = (sorted(side) for side in sides)
+        lines.append(f"On {net}: {_names(inside)} inside, {_names(outside)} outside")
+    return lines
+
+
 def forms_text(eq: Equivalent, form: str) -> list[str]:
     """Which forms exist, and why one does not; the chosen ``form`` first."""
     thevenin = ("Thevenin: Voc in series with Z" if eq.has_thevenin else
@@ -308,7 +332,8 @@ class EquivalentDock(QDockWidget):
             self.values.show_equivalent(None)
             return
         if not analysis.ok:
-            self.message.setText(analysis.message[0].upper() + analysis.message[1:])
+            lines = [analysis.message[0].upper() + analysis.message[1:], *boundary_text(analysis)]
+            self.message.setText("<br>".join(html.escape(line) for line in lines))
             mark_error(self.message, True)
             self.message.show()
             self.values.show_equivalent(None)

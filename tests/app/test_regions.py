@@ -179,6 +179,9 @@ def test_an_invalid_cut_names_the_nets_and_highlights_them(window, drive):
     assert v1_wire.id in analysis.bad_elements
     (net,) = {window.analysis.conn.net_of_wire[v1_wire.id]}
     assert net in analysis.bad_nets and net in text
+    # and which part to take in: on that net V1 is the one outside
+    assert f"On {net}: R1 inside, V1 outside" in text
+    assert "On out: R1, R2 inside, RL outside" in text
     fault = window.cut_marks.items()[0]
     assert fault.wires.intersects(fault.mapRectFromScene(
         window.canvas.scene.item(v1_wire.id).sceneBoundingRect()))
