@@ -23,7 +23,7 @@ from dataclasses import fields, replace
 import numpy as np
 from PySide6.QtCore import QObject, QTimer, Signal
 
-from engine import Sweep, sweep
+from engine import Circuit, Sweep, sweep
 from engine.errors import CircuitError
 from engine.schematic import (
     Block,
@@ -78,7 +78,7 @@ class LiveAnalysis(QObject):
         self.region_id: str | None = None
         self.analysis: RegionAnalysis | None = None
         self.conn: Connectivity | None = None
-        self._circuit = None
+        self._circuit: Circuit | None = None
         self._circuit_hz: float | None = None
         self._parts: dict[str, PlacedPart] = {}
         self._region_ids: set[str] = set()
@@ -109,6 +109,9 @@ class LiveAnalysis(QObject):
     def _on_change(self, change: Change) -> None:
         """Note how far the change reaches (while the old versions are still known)."""
         doc = self.doc
+        if not (change.added or change.removed or change.updated or change.analysis):
+            self.documentChanged.emit(change)  # the title: nothing to analyse again
+            return
         for eid in change.added:
             if eid in doc and isinstance(doc[eid], Region):
                 self._region_ids.add(eid)
