@@ -223,8 +223,7 @@ class EquivalentDock(QDockWidget):
                                    self.swap)
         self.collapse_button = _button("Collapse", "Replace the region by its equivalent block",
                                        self.collapse)
-        self.expand_button = _button("Expand", "Put a collapsed block's parts back exactly",
-                                     self.expand)
+        self.expand_button = _button("Expand", "", self.expand)
         self.remove_button = _button("Remove region", "Forget the region (the parts stay)",
                                      self.remove_region)
         self.sweep_button = _button("Sweep…", "Show the region's Z and Voc over frequency")
@@ -363,6 +362,10 @@ class EquivalentDock(QDockWidget):
         block = self._block()
         self.expand_button.setEnabled(block is not None)
         self.expand_button.setText(f"Expand {block.designator}" if block else "Expand")
+        self.expand_button.setToolTip(
+            f"Put the parts {block.designator} stands for back exactly" if block else
+            "Select a collapsed block to expand it" if self.doc.blocks() else
+            "Collapse a region first: its block can be expanded again")
 
     def _block(self) -> Block | None:
         """The block to expand: the selected one, or the sheet's only one."""
