@@ -19,18 +19,22 @@ An automatic name changes only with its own net: when its lowest pin leaves, a l
 or a label comes to name it; edits elsewhere on the sheet leave it alone.
 
 Cost: linear in the number of elements plus a sort of the joining points per grid row and
-column; no pairwise comparison of elements.
+column; no pairwise comparison of elements. Re-extraction from the previous result (a move, a
+value typed) redoes per element only what the replaced elements changed; the joining, naming and
+warnings run whole, in array operations.
 """
 
 from __future__ import annotations
 
 import re
 from collections import defaultdict
-from collections.abc import Callable, Iterator
+from collections.abc import Iterable, Iterator
 from contextlib import contextmanager
+from copy import copy
 from dataclasses import dataclass, field, replace
 from functools import cache, cached_property, lru_cache
-from itertools import accumulate, pairwise
+from itertools import accumulate, chain, compress, count, pairwise
+from operator import attrgetter, is_not
 
 import numpy as np
 from scipy.sparse import csr_array
@@ -42,7 +46,7 @@ from ..errors import CircuitError
 from ..symbols import Point, pin_positions
 from ..units import parse_value
 from .document import Document
-from .model import Block, Contents, Junction, NetLabel, PlacedPart, Wire
+from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Wire
 
 __all__ = [
     "BLOCK_ROLES",
@@ -60,6 +64,8 @@ BLOCK_ROLES = ("plus", "minus")
 _CONTROLLED_BY_CURRENT = frozenset({"ccvs", "cccs"})
 _SOURCES = frozenset({"voltage_source", "current_source"})
 _REFERENCING = _CONTROLLED_BY_CURRENT | {"coupling"}
+#: A number for each kind of pin owner that a designator names, for comparing kinds in arrays.
+_KIND_CODE = {kind: code for code, kind in enumerate([*KINDS, "block"])}
 #: What each kind's value means, with an example, for the message when it is missing.
 _QUANTITY: dict[str, tuple[str, str]] = {
     "resistor": ("resistance", "4k7"), "capacitor": ("capacitance", "100n"),
@@ -90,19 +96,27 @@ class Connectivity:
     ``net_of_pin[(element_id, pin_index)]`` for every pin of a part, block or net marker
     (pin order of engine.symbols.PINS); ``net_of_wire[wire_id]``; ``warnings`` in a stable order;
     ``nets[name]`` the grid points of each net (its pins, wire vertices and junctions),
-    gathered on first use.
+    gathered on first use. Read-only: a later ``extract(doc, previous=...)`` starts from it.
     """
 
     net_of_pin: dict[tuple[str, int], str]
     net_of_wire: dict[str, str]
     warnings: tuple[ConnectivityWarning, ...]
-    _grouped_points: Callable[[], dict[str, frozenset[Point]]] = field(repr=False,
-                                                                        compare=False)
+    _sheet: _Sheet = field(repr=False, compare=False)
+    _net: np.ndarray = field(repr=False, compare=False)  # the net index of every graph node
+    _names: list[str] = field(repr=False, compare=False)  # the name of every net index
+    _node_names: np.ndarray = field(repr=False, compare=False)  # the net name of every node
 
     @cached_property
     def nets(self) -> dict[str, frozenset[Point]]:
         # lazily: live re-extraction after each edit seldom needs the points
-        return self._grouped_points()
+        sheet, net = self._sheet, self._net
+        n_pins, n_wires = sheet.pin_count, len(sheet.wires)
+        points_net = np.concatenate([net[:n_pins], net[n_pins + sheet.vertex_wire],
+                                     net[n_pins + n_wires:]])
+        points = [*zip(sheet.pin_x.tolist(), sheet.pin_y.tolist(), strict=True),
+                  *(p for w in sheet.wires for p in w.points), *(j.at for j in sheet.junctions)]
+        return _grouped(points, points_net, self._names)
 
 
 @lru_cache(maxsize=1 << 16)  # the same designators come back on every re-extraction
@@ -132,73 +146,220 @@ class _Pin:
     role: str
 
 
+def _pin_offsets(e: PlacedPart | Block | NetLabel) -> tuple[Point, ...]:
+    if type(e) is PlacedPart:
+        return _offsets(e.kind, e.rotation, e.mirror)
+    if type(e) is Block:
+        return _offsets("block", e.rotation, e.mirror)
+    return _offsets("ground" if e.style == "ground" else "label", e.rotation, False)
+
+
+def _roles(e: PlacedPart | Block) -> tuple[str, ...]:
+    return KINDS[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
+
+
+def _same_slot(old: Element, new: Element) -> bool:
+    """Whether ``new`` replaces ``old`` without moving any graph node or automatic name: same
+    type and id, and for a part or block the same designator (and kind, which fixes the pins)."""
+    if type(old) is not type(new) or old.id != new.id:
+        return False
+    if type(new) is PlacedPart:
+        return old.designator == new.designator and old.kind == new.kind
+    return type(new) is not Block or old.designator == new.designator
+
+
+#: A sheet is patched for a re-extraction only while at most one element in this many changed;
+#: past that, building it afresh costs less.
+_PATCH_SHARE = 8
+
+
+def _int_array(points: Iterable[Point], size: int) -> np.ndarray:
+    """An (n, 2) int64 array of ``points``, which hold ``size`` coordinates in all."""
+    return np.fromiter(chain.from_iterable(points), dtype=np.int64, count=size).reshape(-1, 2)
+
+
 class _Sheet:
     """One document flattened for extraction. Graph nodes are numbered pins first (those of parts
     and blocks in natural designator order, then those of net markers), then wires, then
-    junctions."""
+    junctions.
 
-    def __init__(self, doc: Document) -> None:
+    A sheet is never modified once made; :meth:`updated` gives the sheet of a later version of
+    the document, reusing this one's arrays wherever the element is still the same object.
+    """
+
+    def __init__(self, elements: list[Element]) -> None:
+        self.elements = elements  # in document order
         by_type: dict[type, list] = defaultdict(list)
-        for e in doc:
+        for e in elements:
             by_type[type(e)].append(e)
         self.parts: list[PlacedPart] = by_type[PlacedPart]
         self.blocks: list[Block] = by_type[Block]
         self.labels: list[NetLabel] = by_type[NetLabel]
         self.wires: list[Wire] = by_type[Wire]
         self.junctions: list[Junction] = by_type[Junction]
+        self._place: list[int] | None = None
+        self.referencing = [i for i, p in enumerate(self.parts) if p.kind in _REFERENCING]
         # pin-bearing elements: designated ones first, in natural designator order
-        self.owners: list[PlacedPart | Block | NetLabel] = sorted(
-            [*self.parts, *self.blocks], key=lambda e: _natural_key(e.designator))
+        designated = [*self.parts, *self.blocks]
+        order = sorted(range(len(designated)), key=lambda i: _natural_key(designated[i].designator))
+        self.owner_index = [0] * len(order)  # of parts, then blocks, in owners
+        for j, i in enumerate(order):
+            self.owner_index[i] = j
+        self.owners: list[PlacedPart | Block | NetLabel] = [designated[i] for i in order]
         self.designated = len(self.owners)
-        offsets = [_offsets(e.kind if type(e) is PlacedPart else "block", e.rotation, e.mirror)
-                   for e in self.owners]
-        offsets += [_offsets("ground" if e.style == "ground" else "label", e.rotation, False)
-                    for e in self.labels]
+        kinds = [*map(_KIND_CODE.__getitem__, map(attrgetter("kind"), self.parts)),
+                 *[_KIND_CODE["block"]] * len(self.blocks)]
+        self.owner_kind = np.array(kinds, dtype=np.int64)[order]
         self.owners += self.labels
+        offsets = [_pin_offsets(e) for e in self.owners]
         counts = [len(o) for o in offsets]
         self.first_pin: list[int] = [0, *accumulate(counts)]
         self.pin_owner: list[int] = np.repeat(np.arange(len(counts)), counts).tolist()
         self.pin_count = self.first_pin[-1]
-        at = np.array([e.at for e in self.owners], dtype=np.int64).reshape(-1, 2)
-        flat = np.array([c for o in offsets for point in o for c in point], dtype=np.int64)
-        pins = np.repeat(at, counts, axis=0) + flat.reshape(-1, 2)
-        self.pin_x, self.pin_y = pins[:, 0], pins[:, 1]
         self.designated_pins = self.first_pin[self.designated]
+        self.at = _int_array(map(attrgetter("at"), self.owners), 2 * len(self.owners))
+        flat = np.array([c for o in offsets for point in o for c in point], dtype=np.int64)
+        self.pins = np.repeat(self.at, counts, axis=0) + flat.reshape(-1, 2)
+        ids = [e.id for e in self.owners]
+        index = np.arange(self.pin_count) - np.repeat(self.first_pin[:-1], counts)
+        #: ``(element_id, pin_index)`` of every pin, in node order
+        self.keys = list(zip(map(ids.__getitem__, self.pin_owner), index.tolist(), strict=True))
+        #: the automatic net name of each designated pin, ``"<designator>.<role>"``
+        self.auto = [f"{e.designator}.{role}" for e in self.owners[:self.designated]
+                     for role in _roles(e)]
+        self.wire_ids = [w.id for w in self.wires]
+        self.wire_points = np.fromiter(map(len, map(attrgetter("points"), self.wires)),
+                                       dtype=np.int64, count=len(self.wires))
+        self.vertices = _int_array(chain.from_iterable(map(attrgetter("points"), self.wires)),
+                                   2 * int(self.wire_points.sum()))
+        self._index_vertices()
+        self.junction_xy = _int_array(map(attrgetter("at"), self.junctions),
+                                      2 * len(self.junctions))
+
+    def place(self) -> list[int]:
+        """Each element's index in the list of its type (the same for every updated sheet)."""
+        if self._place is None:
+            seen: dict[type, int] = defaultdict(int)
+            self._place = []
+            for t in map(type, self.elements):
+                self._place.append(seen[t])
+                seen[t] += 1
+        return self._place
+
+    def _index_vertices(self) -> None:
+        counts = self.wire_points
+        self.vertex_wire = np.repeat(np.arange(len(counts)), counts)
+        last = np.cumsum(counts) - 1
+        self.first_vertex = last - counts + 1
+        self.ends = np.concatenate([self.first_vertex, last])  # every wire's first, then last
+
+    @property
+    def pin_x(self) -> np.ndarray:
+        return self.pins[:, 0]
+
+    @property
+    def pin_y(self) -> np.ndarray:
+        return self.pins[:, 1]
+
+    def updated(self, elements: list[Element]) -> _Sheet:
+        """The sheet of ``elements``: this one where nothing changed; a copy with the replaced
+        elements written in where every change is a replacement that keeps the node numbering
+        (:func:`_same_slot`); else, or where much changed, a sheet built afresh."""
+        old = self.elements
+        if len(elements) != len(old):
+            return _Sheet(elements)
+        changed = list(compress(count(), map(is_not, elements, old)))
+        if not changed:
+            return self
+        if len(changed) * _PATCH_SHARE > len(elements) or not all(
+                _same_slot(old[p], elements[p]) for p in changed):
+            return _Sheet(elements)
+        place = self.place()  # before the copy, which then shares it
+        sheet = copy(self)
+        sheet.elements = elements
+        sheet._write([(elements[p], place[p]) for p in changed])
+        return sheet
+
+    def _write(self, replaced: list[tuple[Element, int]]) -> None:
+        """Put each ``(element, index in the list of its type)`` in place of its old version."""
+        for name in ("parts", "blocks", "labels", "wires", "junctions", "owners"):
+            setattr(self, name, list(getattr(self, name)))
+        self.at, self.pins, self.junction_xy = (
+            self.at.copy(), self.pins.copy(), self.junction_xy.copy())
+        points: dict[int, tuple[Point, ...]] = {}
+        for e, i in replaced:
+            t = type(e)
+            if t is Wire:
+                self.wires[i] = e
+                points[i] = e.points
+            elif t is Junction:
+                self.junctions[i] = e
+                self.junction_xy[i] = e.at
+            elif t is PlacedPart or t is Block or t is NetLabel:
+                if t is PlacedPart:
+                    self.parts[i] = e
+                    j = self.owner_index[i]
+                elif t is Block:
+                    self.blocks[i] = e
+                    j = self.owner_index[len(self.parts) + i]
+                else:
+                    self.labels[i] = e
+                    j = self.designated + i
+                self.owners[j] = e
+                self.at[j] = e.at
+                offsets = _pin_offsets(e)
+                if offsets:  # a coupling has none
+                    self.pins[self.first_pin[j]:self.first_pin[j + 1]] = np.add(e.at, offsets)
+        if points:
+            self._splice(points)
+
+    def _splice(self, points: dict[int, tuple[Point, ...]]) -> None:
+        """Replace the vertices of the wires ``points`` names (index -> new points)."""
+        pieces, start = [], 0
+        counts = self.wire_points.copy()
+        for i in sorted(points):
+            first = int(self.first_vertex[i])
+            pieces += [self.vertices[start:first], np.array(points[i], dtype=np.int64)]
+            start = first + int(counts[i])
+            counts[i] = len(points[i])
+        pieces.append(self.vertices[start:])
+        self.vertices = np.concatenate(pieces)
+        self.wire_points = counts
+        self._index_vertices()
 
     def pin(self, k: int) -> _Pin:
         e = self.owners[self.pin_owner[k]]
         index = k - self.first_pin[self.pin_owner[k]]
-        at = (int(self.pin_x[k]), int(self.pin_y[k]))
+        at = (int(self.pins[k, 0]), int(self.pins[k, 1]))
         if type(e) is NetLabel:
             return _Pin(e.id, index, at, "", "net")
-        roles = KINDS[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
-        return _Pin(e.id, index, at, e.designator, roles[index])
-
-    def pin_keys(self) -> list[tuple[str, int]]:
-        """``(element_id, pin_index)`` of every pin, in node order."""
-        ids = [e.id for e in self.owners]
-        index = np.arange(self.pin_count) - np.repeat(self.first_pin[:-1], np.diff(self.first_pin))
-        return list(zip([ids[i] for i in self.pin_owner], index.tolist(), strict=True))
+        return _Pin(e.id, index, at, e.designator, _roles(e)[index])
 
 
-def extract(doc: Document) -> Connectivity:
+def extract(doc: Document, previous: Connectivity | None = None) -> Connectivity:
     """Derive the nets of ``doc`` (rules and naming in the module docstring); never raises on
     a drawing problem, which comes back in ``warnings`` instead.
 
+    ``previous``, an earlier result (of any document), is a head start: what it worked out for
+    each element that is still the same object is reused, since elements are immutable. A
+    re-extraction after an edit that replaced a few elements (a move, a value typed) so
+    costs less than a first one; the result is the same either way.
+
     Grid coordinates must fit in 64-bit integers.
     """
-    sheet = _Sheet(doc)
+    elements = list(doc)
+    if previous is None:
+        sheet = _Sheet(elements)
+    else:
+        sheet = previous._sheet.updated(elements)
+        if sheet is previous._sheet:
+            return previous
     n_pins, n_wires = sheet.pin_count, len(sheet.wires)
     n_nodes = n_pins + n_wires + len(sheet.junctions)
     warnings: list[ConnectivityWarning] = []
 
-    counts = [len(w.points) for w in sheet.wires]
-    flat = [c for w in sheet.wires for point in w.points for c in point]
-    vertices = np.array(flat, dtype=np.int64).reshape(-1, 2)
-    vertex_wire = np.repeat(np.arange(n_wires), counts)
-    last = np.cumsum(counts) - 1
-    ends = np.concatenate([last - np.array(counts) + 1, last]).astype(np.int64)
-    junction_xy = np.array([j.at for j in sheet.junctions], dtype=np.int64).reshape(-1, 2)
+    vertices, vertex_wire, ends = sheet.vertices, sheet.vertex_wire, sheet.ends
+    junction_xy = sheet.junction_xy
     # everything that joins whatever passes through its point: pins, wire ends, junctions
     joints = _Joints(np.concatenate([sheet.pin_x, vertices[ends, 0], junction_xy[:, 0]]),
                      np.concatenate([sheet.pin_y, vertices[ends, 1], junction_xy[:, 1]]),
@@ -213,23 +374,28 @@ def extract(doc: Document) -> Connectivity:
     n_nets, net = connected_components(graph, directed=False)
 
     names = _net_names(sheet, net, n_nets, label_names, warnings)
-    net_list = net.tolist()
-    net_of_pin = dict(zip(sheet.pin_keys(), map(names.__getitem__, net_list[:n_pins]),
-                          strict=True))
-    net_of_wire = {w.id: names[k] for w, k in
-                   zip(sheet.wires, net_list[n_pins:n_pins + n_wires], strict=True)}
+    node_names = np.array(names, dtype=object)[net]
+    pin_names, wire_names = node_names[:n_pins], node_names[n_pins:n_pins + n_wires]
+    if previous is not None and sheet.keys is previous._sheet.keys:  # same nodes, same order
+        before = previous._node_names
+        net_of_pin = _renamed(previous.net_of_pin, sheet.keys, before[:n_pins], pin_names)
+        net_of_wire = _renamed(previous.net_of_wire, sheet.wire_ids,
+                               before[n_pins:n_pins + n_wires], wire_names)
+    else:
+        net_of_pin = dict(zip(sheet.keys, pin_names.tolist(), strict=True))
+        net_of_wire = dict(zip(sheet.wire_ids, wire_names.tolist(), strict=True))
     warnings += _pin_warnings(sheet, net, names)
     warnings += _wire_warnings(sheet, vertices, vertex_wire)
     warnings += _part_warnings(sheet)
+    return Connectivity(net_of_pin, net_of_wire, tuple(warnings), sheet, net, names, node_names)
 
-    def grouped_points() -> dict[str, frozenset[Point]]:
-        points_net = np.concatenate([net[:n_pins], net[n_pins + vertex_wire],
-                                     net[n_pins + n_wires:]])
-        points = [*zip(sheet.pin_x.tolist(), sheet.pin_y.tolist(), strict=True),
-                  *(p for w in sheet.wires for p in w.points), *(j.at for j in sheet.junctions)]
-        return _grouped(points, points_net, names)
 
-    return Connectivity(net_of_pin, net_of_wire, tuple(warnings), grouped_points)
+def _renamed(before: dict, keys: list, names_before: np.ndarray, names: np.ndarray) -> dict:
+    """``dict(zip(keys, names))``, made from ``before``, that dict for ``names_before``."""
+    out = before.copy()
+    for k in np.flatnonzero(names_before != names).tolist():
+        out[keys[k]] = names[k]
+    return out
 
 
 class _Axis:
@@ -332,15 +498,10 @@ def _net_names(sheet: _Sheet, net: np.ndarray, n_nets: int, label_names: dict[in
         names[n] = _chosen_name(found, sheet, warnings)
     taken = set(label_names.values())
     # designated pins are numbered in natural designator order, so a net's lowest pin comes first
-    designated = net[:sheet.designated_pins]
-    nets_seen, first = np.unique(designated, return_index=True)
-    owners, pin_owner, first_pin = sheet.owners, sheet.pin_owner, sheet.first_pin
-    for n, k in zip(nets_seen.tolist(), first.tolist(), strict=True):
-        if names[n] is None:
-            i = pin_owner[k]
-            e = owners[i]
-            roles = KINDS[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
-            names[n] = _fresh(f"{e.designator}.{roles[k - first_pin[i]]}", taken)
+    nets_seen, first = np.unique(net[:sheet.designated_pins], return_index=True)
+    auto = sheet.auto
+    _name_fresh(names, [(n, auto[k]) for n, k in zip(nets_seen.tolist(), first.tolist(),
+                                                      strict=True) if names[n] is None], taken)
     if None not in names:
         return names
     unnamed: dict[int, list[str]] = defaultdict(list)
@@ -351,9 +512,21 @@ def _net_names(sheet: _Sheet, net: np.ndarray, n_nets: int, label_names: dict[in
     for element, n in zip(others, net[other_nodes].tolist(), strict=True):
         if names[n] is None:
             unnamed[n].append(element.id)
-    for n, ids in unnamed.items():
-        names[n] = _fresh(f"{min(ids, key=_natural_key)}.net", taken)
+    _name_fresh(names, [(n, f"{min(ids, key=_natural_key)}.net") for n, ids in unnamed.items()],
+                taken)
     return names
+
+
+def _name_fresh(names: list[str | None], wanted: list[tuple[int, str]], taken: set[str]) -> None:
+    """``names[n] = _fresh(name, taken)`` for each ``(n, name)`` of ``wanted`` in turn."""
+    fresh = {name for _, name in wanted}
+    if len(fresh) == len(wanted) and taken.isdisjoint(fresh):  # the usual case: none is taken
+        for n, name in wanted:
+            names[n] = name
+        taken |= fresh
+        return
+    for n, name in wanted:
+        names[n] = _fresh(name, taken)
 
 
 def _grouped(points: list[Point], point_net: np.ndarray,
@@ -439,24 +612,33 @@ def _wire_warnings(sheet: _Sheet, vertices: np.ndarray,
 def _part_warnings(sheet: _Sheet) -> list[ConnectivityWarning]:
     """Parts stacked on one another, and couplings or controlled sources naming bad parts."""
     out = []
-    by_designator = {p.designator: p for p in sheet.parts}
     placed = sheet.owners[:sheet.designated]
-    keys = [(e.kind if type(e) is PlacedPart else "block", e.at) for e in placed]
-    if len(set(keys)) < len(keys):
+    if _stacked(sheet):
         seen: dict[tuple[str, Point], str] = {}
-        for e, key in zip(placed, keys, strict=True):
+        for e in placed:
+            key = (e.kind if type(e) is PlacedPart else "block", e.at)
             if key in seen:
                 out.append(ConnectivityWarning(
                     f"{seen[key]} and {e.designator} lie on top of each other at "
                     f"{_fmt(e.at)}; move one of them", e.id, e.at))
             else:
                 seen[key] = e.designator
-    for part in sheet.parts:
-        if part.kind in _REFERENCING:
+    if sheet.referencing:
+        by_designator = {p.designator: p for p in sheet.parts}
+        for i in sheet.referencing:
+            part = sheet.parts[i]
             message = _reference_problem(part, by_designator, sheet.blocks)
             if message:
                 out.append(ConnectivityWarning(message, part.id, part.at))
     return out
+
+
+def _stacked(sheet: _Sheet) -> bool:
+    """Whether two parts or blocks of one kind sit at the same point."""
+    kind, at = sheet.owner_kind, sheet.at[:sheet.designated]
+    order = np.lexsort((at[:, 1], at[:, 0], kind))
+    kind, at = kind[order], at[order]
+    return bool(((kind[1:] == kind[:-1]) & (at[1:] == at[:-1]).all(axis=1)).any())
 
 
 def _reference_problem(part: PlacedPart, parts: dict[str, PlacedPart],
@@ -499,10 +681,10 @@ def _missing(designator: str, blocks: list[Block]) -> str:
 
 def net_at(doc: Document, conn: Connectivity, at: Point) -> str | None:
     """The net at grid point ``at``: a pin's net first, else a wire through the point."""
-    sheet = _Sheet(doc)
+    sheet = conn._sheet.updated(list(doc))
     hits = np.flatnonzero((sheet.pin_x == at[0]) & (sheet.pin_y == at[1]))
     if hits.size:
-        return conn.net_of_pin[sheet.pin_keys()[int(hits[0])]]
+        return conn.net_of_pin[sheet.keys[int(hits[0])]]
     for wire in sheet.wires:
         if any(_on_segment(at, a, b) for a, b in pairwise(wire.points)):
             return conn.net_of_wire[wire.id]

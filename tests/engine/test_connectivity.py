@@ -566,3 +566,124 @@ def test_a_block_whose_contents_fail_names_the_block() -> None:
                                                    block.contents.parts[2])))
     with pytest.raises(CircuitError, match=r"^EQ1 \(collapsed region\): R1 value: cannot read"):
         build_circuit(loaded(block))
+
+
+# -- re-extraction from a previous result ----------------------------------------------------------
+# A re-extraction must give exactly what a first extraction of the same document gives (that one
+# is held to the brute-force reference above): nets, names, warnings, and their order.
+def same_result(a, b) -> bool:
+    return (list(a.net_of_pin.items()) == list(b.net_of_pin.items())
+            and list(a.net_of_wire.items()) == list(b.net_of_wire.items())
+            and a.warnings == b.warnings and list(a.nets.items()) == list(b.nets.items()))
+
+
+def test_a_move_with_its_wires_following_re_extracts_as_a_first_extraction() -> None:
+    doc = divider()
+    conn = extract(doc)
+    with doc.batch():  # R2 one step right; w2 gains a bend to reach its pin
+        doc.replace_fields("p_R2", at=(9, 4))
+        doc.replace_fields("w2", points=((6, 0), (8, 0), (8, 1), (9, 1), (9, 2)))
+    again = extract(doc, previous=conn)
+    assert same_result(again, extract(doc))
+    assert again.net_of_wire["w2"] == "out"
+    assert same_result(conn, extract(divider()))  # the previous result is left as it was
+
+
+def test_a_previous_result_of_another_document_is_only_a_head_start() -> None:
+    other = divider()
+    doc = crossing(Junction("j1", (5, 0)))
+    assert same_result(extract(doc, previous=extract(other)), extract(doc))
+    assert same_result(extract(other, previous=extract(doc)), extract(other))
+
+
+def test_a_re_extraction_of_an_unchanged_document_is_the_previous_result() -> None:
+    doc = divider()
+    conn = extract(doc)
+    assert extract(doc, previous=conn) is conn
+
+
+LABEL_NAMES = ("a", "b", "0", "P1.a", "", "P10")  # "P1.a" takes an automatic name; "" warns
+DRAWN_KINDS = ("resistor", "capacitor", "opamp", "vcvs", "ccvs", "coupling")
+rotation = st.sampled_from((0, 90, 180, 270))
+
+
+def drawn_part(draw, element_id: str, designator: str) -> PlacedPart:
+    kind = draw(st.sampled_from(DRAWN_KINDS))
+    return PlacedPart(element_id, kind, designator, draw(point), draw(rotation),
+                      draw(st.booleans()), value="1k", control="P1" if kind == "ccvs" else "",
+                      couples=("P1", "P2") if kind == "coupling" else ())
+
+
+def edit(doc: Document, draw, fresh: itertools.count) -> None:
+    """One random edit: a move, a turn, a new shape of wire, a renamed label, a new designator,
+    kind or value, a removal or an addition."""
+    drawn = [e for e in doc if not e.id.startswith("f")]  # the quiet row: one edit in ten
+    elements = drawn if drawn and draw(st.integers(0, 9)) else list(doc)
+    if not elements or draw(st.integers(0, 9)) == 0:
+        n = next(fresh)
+        doc.add(draw(st.sampled_from([
+            Wire(f"w{n}", draw(orthogonal_polylines(coord))), Junction(f"j{n}", draw(point)),
+            NetLabel(f"n{n}", draw(st.sampled_from(LABEL_NAMES)), draw(point)),
+            drawn_part(draw, f"p{n}", f"P{n}")])))
+        return
+    e = draw(st.sampled_from(elements))
+    action = draw(st.sampled_from(("move", "turn", "rename", "retype", "remove")))
+    if action == "remove":
+        doc.remove(e.id)
+    elif isinstance(e, Wire):
+        points = draw(orthogonal_polylines(coord)) if action == "turn" else tuple(
+            (x + 1, y) for x, y in e.points)
+        doc.replace(replace(e, points=points))
+    elif isinstance(e, Junction) or action == "move":
+        doc.replace(replace(e, at=draw(point)))
+    elif action == "turn" or isinstance(e, Block):
+        doc.replace(replace(e, rotation=draw(rotation)))
+    elif isinstance(e, NetLabel):
+        doc.replace(replace(e, name=draw(st.sampled_from(LABEL_NAMES)),
+                            style=draw(st.sampled_from(("label", "ground")))))
+    elif draw(st.booleans()):
+        doc.replace(replace(e, value=draw(st.sampled_from(("2k", "")))))
+    else:
+        designator = draw(st.sampled_from(("P0", "P3", "P11", "Q2", e.designator)))
+        kind = drawn_part(draw, e.id, designator).kind
+        if doc.by_designator(designator) in (None, e):
+            doc.replace(replace(e, designator=designator, kind=kind))
+
+
+@st.composite
+def large_drawings(draw) -> Document:
+    """A random drawing of all kinds of element, a collapsed block among them, beside a row of
+    resistors that edits seldom touch (as on a large sheet)."""
+    doc = Document()
+    for i in range(draw(st.integers(0, 6))):
+        doc.add(drawn_part(draw, f"p{i}", f"P{i + 1}"))
+    for i, pts in enumerate(draw(st.lists(orthogonal_polylines(coord), max_size=6))):
+        doc.add(Wire(f"w{i}", pts))
+    for i, at in enumerate(draw(st.lists(point, max_size=3))):
+        doc.add(Junction(f"j{i}", at))
+    for i, at in enumerate(draw(st.lists(point, max_size=4))):
+        doc.add(NetLabel(f"n{i}", draw(st.sampled_from(LABEL_NAMES)), at,
+                         style=draw(st.sampled_from(("label", "ground")))))
+    if draw(st.booleans()):
+        doc.add(divider_block(at=draw(point)))
+    for i in range(40):
+        doc.add(PlacedPart(f"f{i}", "resistor", f"F{i + 1}", (100 + 4 * i, 0)))
+    return doc
+
+
+@settings(max_examples=120, deadline=None)
+@given(large_drawings(), st.data())
+def test_re_extraction_after_random_edits_equals_a_first_extraction(doc: Document,
+                                                                    data: st.DataObject) -> None:
+    fresh = itertools.count(100)
+    conn = extract(doc)
+    for _ in range(data.draw(st.integers(1, 5))):
+        first = extract(doc)
+        with doc.batch():
+            for _ in range(data.draw(st.integers(1, 3))):
+                edit(doc, data.draw, fresh)
+        again = extract(doc, previous=conn)
+        # the previous result is left as it was, its lazily gathered net points included
+        assert same_result(conn, first)
+        conn = again
+    assert same_result(conn, extract(doc))
