@@ -184,7 +184,7 @@ class LiveAnalysis(QObject):
     def _update_sheet(self, doc: Document, hz: float | None) -> None:
         """Bring the kept connectivity and circuit up to date with the document."""
         if self._stale_sheet or self.conn is None:
-            self.conn = extract(doc)
+            self.conn = extract(doc, previous=self.conn)  # reuses what a move left alone
             self._parts = {p.id: p for p in doc.parts()}
             self._circuit = None
         elif hz != self._circuit_hz and doc.blocks():
