@@ -7,15 +7,18 @@ and designators (app/editing.paste). Regions and collapsed blocks are not copied
 
 from __future__ import annotations
 
+import atexit
 from collections.abc import Iterable
+from functools import cache
 
 from PySide6.QtCore import QMimeData
+from PySide6.QtWidgets import QApplication
 
 from engine.errors import CircuitError
 from engine.schematic import Block, Document, Element, Region
 from engine.schematic.fileformat import dumps, loads
 
-__all__ = ["MIME", "copyable", "elements_from", "mime_for"]
+__all__ = ["MIME", "copyable", "elements_from", "mime_for", "put"]
 
 MIME = "application/x-portcut-elements"
 
@@ -32,6 +35,24 @@ def mime_for(elements: Iterable[Element]) -> QMimeData:
     data = QMimeData()
     data.setData(MIME, dumps(sheet).encode("utf-8"))
     return data
+
+
+def put(data: QMimeData) -> None:
+    """Hand ``data`` to the system clipboard."""
+    _clear_at_exit()
+    QApplication.clipboard().setMimeData(data)
+
+
+@cache
+def _clear_at_exit() -> None:
+    # Qt's clipboard still owning our data while the interpreter shuts down crashes the
+    # process on exit (seen with the offscreen platform), so it is emptied first.
+    def clear() -> None:
+        app = QApplication.instance()
+        if app is not None:
+            app.clipboard().clear()
+
+    atexit.register(clear)
 
 
 def elements_from(data: QMimeData) -> list[Element]:

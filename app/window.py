@@ -30,7 +30,7 @@ import assets
 from engine.errors import CircuitError
 from engine.schematic import Change, Document
 
-from . import dialogs, panels
+from . import clipboard, dialogs, panels
 from .about import show_about
 from .canvas import Canvas, Look, ToolSpec
 from .catalog import ENTRIES, GROUPS
@@ -358,7 +358,7 @@ class MainWindow(QMainWindow):
     def copy(self) -> None:
         data = self.canvas.copy()
         if data is not None:
-            QApplication.clipboard().setMimeData(data)
+            clipboard.put(data)
 
     def cut(self) -> None:
         self.copy()
