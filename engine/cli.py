@@ -11,10 +11,7 @@ from __future__ import annotations
 
 import argparse
 import cmath
-import csv
-import io
 import json
-import math
 import sys
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -37,6 +34,7 @@ from .schematic.fileformat import load
 from .schematic.model import Region
 from .schematic.reduction import collapse_region, region_part_names, swapped
 from .svg import document_svg
+from .tables import sweep_csv
 from .units import format_complex, format_eng, parse_frequency
 
 __all__ = ["COMMANDS", "main"]
@@ -345,19 +343,6 @@ def _run_reduce(args: argparse.Namespace, out: TextIO) -> int:
 
 
 # -- sweep ---------------------------------------------------------------------------------------
-_CSV_HEADER = ["f (Hz)",
-               "Re Voc (V)", "Im Voc (V)", "|Voc| (V)", "arg Voc (deg)",
-               "Re Isc (A)", "Im Isc (A)", "|Isc| (A)", "arg Isc (deg)",
-               "Re Z (ohm)", "Im Z (ohm)", "|Z| (ohm)", "arg Z (deg)"]
-
-
-def _csv_cells(z: complex, defined: bool) -> list[str]:
-    z = complex(z)
-    if not defined or not cmath.isfinite(z):
-        return ["", "", "", ""]
-    return [repr(z.real), repr(z.imag), repr(abs(z)), repr(math.degrees(cmath.phase(z)))]
-
-
 def _frequencies(start: float, stop: float, points: int) -> np.ndarray:
     if not 0 < start < stop:
         raise _UsageError(f"portcut sweep: --from must be above 0 and below --to, got "
@@ -387,14 +372,7 @@ def _run_sweep(args: argparse.Namespace, out: TextIO) -> int:
     _caution(circuit, rows, doc.analysis.basis, sys.stderr)
     port = rows[0].port
     if args.csv is not None:
-        buffer = io.StringIO()
-        writer = csv.writer(buffer, lineterminator="\n")
-        writer.writerow(_CSV_HEADER)
-        for eq in rows:
-            writer.writerow([repr(eq.freq), *_csv_cells(eq.voc, eq.has_thevenin),
-                             *_csv_cells(eq.isc, eq.has_norton),
-                             *_csv_cells(eq.z, eq.has_thevenin)])
-        write_atomically(args.csv, buffer.getvalue())
+        write_atomically(args.csv, sweep_csv(rows))
         out.write(f"wrote {len(rows)} frequencies for port ({port[0]}, {port[1]}) "
                   f"to {args.csv}\n")
         return 0

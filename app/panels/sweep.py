@@ -8,8 +8,6 @@ region is swept through its contents (app.analysis.sweep_region).
 
 from __future__ import annotations
 
-import csv
-import io
 import math
 from pathlib import Path
 
@@ -32,6 +30,8 @@ from engine.atomic import write_atomically
 from engine.errors import CircuitError, ValueParseError
 from engine.mna import describe_freq
 from engine.palette import PALETTE
+from engine.tables import SWEEP_COLUMNS
+from engine.tables import sweep_csv as rows_csv
 from engine.units import format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
@@ -39,43 +39,17 @@ from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
 __all__ = ["CSV_COLUMNS", "SweepDock", "sweep_csv"]
 
-_QUANTITIES = (("Voc", "V", "voc", "has_thevenin"), ("Isc", "A", "isc", "has_norton"),
-               ("Z", "ohm", "z", "has_thevenin"))
 
-
-def _columns() -> list[str]:
-    out = ["f (Hz)"]
-    for name, unit, _, _ in _QUANTITIES:
-        out += [f"Re {name} ({unit})", f"Im {name} ({unit})", f"|{name}| ({unit})",
-                f"arg {name} (deg)"]
-    return out
-
-
-#: CSV columns: frequency, then real part, imaginary part, magnitude and angle of each quantity
-#: (the command line's `portcut sweep --csv` writes the same).
-CSV_COLUMNS = _columns()
+#: CSV columns (the command line's `portcut sweep --csv` writes the same table).
+CSV_COLUMNS = SWEEP_COLUMNS
 _MAX_POINTS = 100_000
 #: After an edit, the sweep waits this long (ms) for the next one before it runs again.
 FOLLOW_MS = 150
 
 
 def sweep_csv(result: Sweep) -> str:
-    """The sweep as CSV text (:data:`CSV_COLUMNS`); a quantity whose form does not exist at a
-    frequency, or is not finite, leaves its four cells empty."""
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(CSV_COLUMNS)
-    for i, f in enumerate(result.freqs):
-        row = [repr(float(f))]
-        for _, _, key, exists in _QUANTITIES:
-            value = complex(getattr(result, key)[i])
-            if getattr(result, exists)[i] and math.isfinite(abs(value)):
-                row += [repr(value.real), repr(value.imag), repr(abs(value)),
-                        repr(math.degrees(math.atan2(value.imag, value.real)))]
-            else:
-                row += ["", "", "", ""]
-        writer.writerow(row)
-    return buffer.getvalue()
+    """The sweep as CSV text (:data:`CSV_COLUMNS`)."""
+    return rows_csv(result[i] for i in range(len(result)))
 
 
 class LogAxis(pg.AxisItem):

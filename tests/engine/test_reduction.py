@@ -206,8 +206,8 @@ def test_a_block_inside_a_new_region_reduces_again():
         doc.add(r3)  # pins (16, 2) and (20, 2)
         doc.add(Wire(doc.new_id(Wire), ((20, 2), (24, 2))))
         doc.add(Wire(doc.new_id(Wire), ((16, 6), (24, 6))))
-        doc.add(Wire(doc.new_id(Wire), tuple(p for p in wire_to_load.points if p != (16, 2))
-                     + ((16, 2),)))
+        rest = [p for p in wire_to_load.points if p != (16, 2)]
+        doc.add(Wire(doc.new_id(Wire), (*rest, (16, 2))))
     region = Region(doc.new_id(Region), "two steps", frozenset({block.id, r3.id}))
     doc.add(region)
     eq = analyse_region(doc, region.id).equivalent
