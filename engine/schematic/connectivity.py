@@ -218,8 +218,8 @@ class _Sheet:
         self.pin_count = self.first_pin[-1]
         self.designated_pins = self.first_pin[self.designated]
         self.at = _int_array(map(attrgetter("at"), self.owners), 2 * len(self.owners))
-        flat = np.array([c for o in offsets for point in o for c in point], dtype=np.int64)
-        self.pins = np.repeat(self.at, counts, axis=0) + flat.reshape(-1, 2)
+        self.pins = np.repeat(self.at, counts, axis=0) + _int_array(
+            chain.from_iterable(offsets), 2 * self.pin_count)
         ids = [e.id for e in self.owners]
         index = np.arange(self.pin_count) - np.repeat(self.first_pin[:-1], counts)
         #: ``(element_id, pin_index)`` of every pin, in node order
@@ -369,8 +369,8 @@ def extract(doc: Document, previous: Connectivity | None = None) -> Connectivity
     label_edges, label_names = _label_edges(sheet, warnings)
     pairs = np.concatenate([joints.edges, *joints.segment_edges(vertices, vertex_wire, n_pins),
                             label_edges], axis=1)
-    graph = csr_array((np.ones(pairs.shape[1], dtype=np.int8), (pairs[0], pairs[1])),
-                      shape=(n_nodes, n_nodes))
+    # float weights: what the component search converts to anyway
+    graph = csr_array((np.ones(pairs.shape[1]), (pairs[0], pairs[1])), shape=(n_nodes, n_nodes))
     n_nets, net = connected_components(graph, directed=False)
 
     names = _net_names(sheet, net, n_nets, label_names, warnings)
