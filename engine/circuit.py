@@ -15,13 +15,16 @@ from __future__ import annotations
 
 import cmath
 import math
+from array import array
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass, replace
+
+import numpy as np
 
 from .errors import CircuitError
 from .units import parse_value
 
-__all__ = ["GROUND", "KINDS", "Circuit", "Part"]
+__all__ = ["GROUND", "KINDS", "Circuit", "Columns", "Part"]
 
 GROUND = "0"
 
@@ -42,6 +45,10 @@ KINDS: dict[str, tuple[str, ...]] = {
 }
 _CURRENT_CONTROLLED = frozenset({"ccvs", "cccs"})
 _SOURCES = frozenset({"voltage_source", "current_source"})
+#: Each kind's code in :class:`Columns` (its position in KINDS).
+KIND_CODE = {kind: code for code, kind in enumerate(KINDS)}
+#: Columns of net ids per part: enough for the widest kind (an op-amp with its ground return).
+NET_COLUMNS = 4
 
 
 @dataclass(frozen=True, slots=True)
@@ -87,6 +94,7 @@ class Circuit:
 
     def __init__(self, parts: Iterable[Part] = ()) -> None:
         self._parts: dict[str, Part] = {}
+        self._store = _Store()
         for part in parts:
             self.add(part)
 
@@ -121,7 +129,21 @@ class Circuit:
         return {net for part in self for net in part.nets}
 
     def copy(self) -> Circuit:
-        return Circuit(self)
+        new = Circuit()
+        new._parts, new._store = dict(self._parts), self._store.copy(self._parts)
+        return new
+
+    def rows_of(self, names: set[str] | frozenset[str]) -> np.ndarray | None:
+        """Rows (circuit order) of the parts named in ``names``, None where it names every
+        part; names of no part are passed over."""
+        parts = self._parts
+        if len(names) >= len(parts) and names.issuperset(parts):
+            return None
+        return np.flatnonzero(np.fromiter(map(names.__contains__, parts), bool, len(parts)))
+
+    def columns(self) -> Columns:
+        """The parts as arrays (see :class:`Columns`); kept until the next :meth:`add`."""
+        return self._store.columns(self._parts)
 
     def without(self, names: Iterable[str]) -> Circuit:
         """A new circuit without the named parts (unknown names are refused)."""
@@ -145,16 +167,20 @@ class Circuit:
         """A new circuit in which each of ``parts`` takes the place of the part of the same name
         and kind, validated as on creation; the other parts are shared unchecked (they were
         checked when added and a same-kind replacement cannot invalidate them), so an editor
-        changing a few parts of a large circuit pays a dictionary copy, not a rebuild."""
+        changing a few parts of a large circuit pays a dictionary and an array copy, not a
+        rebuild."""
         new = Circuit()
         new._parts = dict(self._parts)
+        stored: dict[str, Part] = {}
         for part in parts:
             old = self[part.name]
             if part.kind != old.kind:
                 raise CircuitError(f"{part.name}: a {old.kind} cannot be replaced by a "
                                    f"{part.kind}; build the circuit again")
             value = _read(part.kind, part.name, part.value)
-            new._parts[part.name] = _validated(part, value, new, replacing=True)
+            new._parts[part.name] = stored[part.name] = _validated(part, value, new,
+                                                                   replacing=True)
+        new._store = self._store.replaced(self._parts, list(stored.values()))
         return new
 
     # -- building -----------------------------------------------------------------------------
@@ -165,6 +191,7 @@ class Circuit:
                                f"known kinds: {', '.join(KINDS)}")
         part = _validated(part, _read(part.kind, part.name, part.value), self)
         self._parts[part.name] = part
+        self._store.append(part)
         return part
 
     def _two(self, kind: str, name: str, a: str, b: str, value: object) -> Part:
@@ -217,6 +244,174 @@ class Circuit:
     def coupling(self, name: str, l1: str, l2: str, k: object) -> Part:
         """Magnetic coupling of inductors l1 and l2, coefficient |k| <= 1."""
         return self.add(Part(name, "coupling", (), k, (l1, l2)))
+
+
+@dataclass(frozen=True, slots=True, eq=False, repr=False)
+class Columns:
+    """A circuit's parts as arrays, one row per part in circuit order (read-only).
+
+    ``kinds[i]`` is the code of part i's kind (:data:`KIND_CODE`); ``nodes[i]`` the ids of the
+    nets it touches (``Part.nets`` order, so an op-amp's ground return is its fourth), padded
+    with -1; ``values[i]`` its value as a complex number and ``complex_valued[i]`` whether the
+    value was given as one. A net id indexes ``nets`` (``net_id`` maps a name back), a register
+    that circuits derived from one another share and only ever extend, so it may name nets no
+    part of this circuit touches.
+    """
+
+    kinds: np.ndarray
+    nodes: np.ndarray
+    values: np.ndarray
+    complex_valued: np.ndarray
+    names: list[str]
+    parts: list[Part]
+    nets: list[str]
+    net_id: dict[str, int]
+
+    def __len__(self) -> int:
+        return len(self.parts)
+
+    @classmethod
+    def of(cls, parts: Iterable[Part]) -> Columns:
+        """The columns of parts already checked (those of a Circuit, or made from them)."""
+        listed = list(parts)
+        store = _Store()
+        for part in listed:
+            store.append(part)
+        return store.columns(listed)
+
+    def rows_of(self, kinds: Iterable[str]) -> np.ndarray:
+        """Rows of the parts of the given kinds, in circuit order."""
+        return np.flatnonzero(kind_mask(kinds)[self.kinds])
+
+
+def kind_mask(kinds: Iterable[str]) -> np.ndarray:
+    """A boolean per kind code, True for the given kinds (index it with an array of codes)."""
+    mask = np.zeros(len(KINDS), dtype=bool)
+    mask[[KIND_CODE[k] for k in kinds]] = True
+    return mask
+
+
+class _Store:
+    """The columns behind a Circuit: growing arrays appended to as parts are added, and the
+    read-only :class:`Columns` made from them when first asked (kept until the next append).
+
+    A store made by :meth:`replaced` starts from columns alone, sharing the unchanged arrays
+    with the store it came from; it makes growing arrays only if parts are added to it. The net
+    register (``net_id``, ``nets``) is shared with the stores made from this one: it only grows
+    and a name keeps its id, so sharing cannot make an id wrong. ``row`` (part name to row) is
+    shared the same way and copied before this store first appends to it.
+    """
+
+    __slots__ = ("_columns", "_growing", "_own_rows", "net_id", "nets", "row")
+
+    def __init__(self) -> None:
+        self._growing: _Growing | None = _Growing()
+        self._columns: Columns | None = None
+        self.net_id: dict[str, int] = {}
+        self.nets: list[str] = []
+        self.row: dict[str, int] = {}
+        self._own_rows = True
+
+    def _derived(self, columns: Columns) -> _Store:
+        new = _Store.__new__(_Store)
+        new._growing, new._columns = None, columns
+        new.net_id, new.nets, new.row, new._own_rows = self.net_id, self.nets, self.row, False
+        return new
+
+    def copy(self, parts: dict[str, Part]) -> _Store:
+        return self._derived(self.columns(parts))
+
+    def replaced(self, parts: dict[str, Part], new: list[Part]) -> _Store:
+        """A store for ``parts`` with each of ``new`` in place of its same-named, same-kind
+        part: the arrays that change are copied, the others shared."""
+        base = self.columns(parts)
+        rows = [self.row[part.name] for part in new]
+        nodes = base.nodes
+        ids = [self._ids(part.nets) for part in new]
+        if any(nodes[i].tolist() != row for i, row in zip(rows, ids, strict=True)):
+            nodes = nodes.copy()
+            nodes[rows] = ids
+        values, flags = base.values.copy(), base.complex_valued.copy()
+        values[rows] = [part.value for part in new]
+        flags[rows] = [isinstance(part.value, complex) for part in new]
+        listed = base.parts.copy()
+        for i, part in zip(rows, new, strict=True):
+            listed[i] = part
+        for a in (nodes, values, flags):
+            a.flags.writeable = False
+        return self._derived(Columns(base.kinds, nodes, values, flags, base.names, listed,
+                                     self.nets, self.net_id))
+
+    def _ids(self, nets: tuple[str, ...]) -> list[int]:
+        """Register ids of ``nets``, padded with -1 to NET_COLUMNS; a new name takes the next."""
+        ids = []
+        for net in nets:
+            found = self.net_id.get(net)
+            if found is None:
+                found = self.net_id[net] = len(self.nets)
+                self.nets.append(net)
+            ids.append(found)
+        ids += [-1] * (NET_COLUMNS - len(ids))
+        return ids
+
+    def append(self, part: Part) -> None:
+        if not self._own_rows:
+            self.row, self._own_rows = dict(self.row), True
+        if self._growing is None:
+            assert self._columns is not None
+            self._growing = _Growing.of(self._columns)
+        self.row[part.name] = len(self._growing.kinds)
+        self._growing.append(KIND_CODE[part.kind], self._ids(part.nets), part.value)
+        self._columns = None
+
+    def columns(self, parts: dict[str, Part] | list[Part]) -> Columns:
+        """The columns, with ``parts`` (by name, or listed) in row order."""
+        if self._columns is None:
+            assert self._growing is not None
+            listed = list(parts.values()) if isinstance(parts, dict) else parts
+            names = list(parts) if isinstance(parts, dict) else [p.name for p in listed]
+            self._columns = self._growing.columns(names, listed, self.nets, self.net_id)
+        return self._columns
+
+
+class _Growing:
+    """Columns being appended to (compact arrays, amortised growth)."""
+
+    __slots__ = ("flags", "kinds", "nodes", "values")
+
+    def __init__(self) -> None:
+        self.kinds = array("b")
+        self.nodes = array("q")
+        self.values = array("d")  # real and imaginary parts, interleaved
+        self.flags = array("b")  # 1 where the value was given as a complex number
+
+    @classmethod
+    def of(cls, columns: Columns) -> _Growing:
+        new = cls()
+        new.kinds.frombytes(columns.kinds.tobytes())
+        new.nodes.frombytes(columns.nodes.astype(np.int64).tobytes())
+        new.values.frombytes(columns.values.tobytes())
+        new.flags.frombytes(columns.complex_valued.astype(np.int8).tobytes())
+        return new
+
+    def append(self, kind: int, ids: list[int], value: complex | float) -> None:
+        self.kinds.append(kind)
+        self.nodes.extend(ids)
+        number = complex(value)
+        self.values.extend((number.real, number.imag))
+        self.flags.append(isinstance(value, complex))
+
+    def columns(self, names: list[str], parts: list[Part], nets: list[str],
+                net_id: dict[str, int]) -> Columns:
+        """Read-only copies as a :class:`Columns`."""
+        kinds = np.frombuffer(self.kinds, dtype=np.int8).copy()
+        nodes = np.frombuffer(self.nodes, dtype=np.int64).astype(np.intp)
+        values = np.frombuffer(self.values, dtype=np.complex128).copy()
+        flags = np.frombuffer(self.flags, dtype=np.int8).astype(bool)
+        for a in (kinds, nodes, values, flags):
+            a.flags.writeable = False
+        return Columns(kinds, nodes.reshape(-1, NET_COLUMNS), values, flags, names, parts,
+                       nets, net_id)
 
 
 def _phasor(name: str, value: object, phase_deg: float | None) -> complex | float:

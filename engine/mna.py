@@ -30,17 +30,14 @@ from __future__ import annotations
 
 import math
 import warnings
-from collections import defaultdict
-from collections.abc import Iterable, Sequence
-from itertools import chain, count
-from operator import attrgetter
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 
 import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.csgraph import maximum_bipartite_matching
 from scipy.sparse.linalg import splu
 
-from .circuit import KINDS, Part
+from .circuit import KIND_CODE, KINDS, Columns, Part
 from .errors import SingularCircuitError
 from .units import format_eng
 
@@ -55,9 +52,6 @@ EPS = float(np.finfo(float).eps)
 #: on an RC mesh; see docs/performance.md).
 ORDERING = "MMD_AT_PLUS_A"
 
-_NODES = attrgetter("nodes")
-_VALUE = attrgetter("value")
-_NAME = attrgetter("name")
 _CONTROLLED = ("ccvs", "cccs")
 _ALWAYS_BRANCH = ("voltage_source", "vcvs", "ccvs", "inductor", "opamp")
 #: Parts that become group-2 (branch current unknown) only when they control a CCVS or CCCS.
@@ -70,120 +64,161 @@ def describe_freq(freq: float) -> str:
 
 
 class Group:
-    """The parts of one kind: ``nodes[i]`` are part i's net ids (``Part.nets`` order),
-    ``values[i]`` its value; ``names`` and ``refs`` are read from the parts when first asked."""
+    """The parts of one kind: ``rows`` are their rows in the circuit's :class:`Columns`,
+    ``nodes[i]`` part i's net ids (``Part.nets`` order), ``values[i]`` its value; ``names``
+    and ``refs`` are read from the parts when first asked."""
 
-    __slots__ = ("_names", "members", "nodes", "values")
+    __slots__ = ("_names", "columns", "nodes", "rows", "values")
 
-    def __init__(self, members: list[Part], nodes: np.ndarray, values: np.ndarray) -> None:
-        self.members, self.nodes, self.values = members, nodes, values
+    def __init__(self, columns: Columns, rows: np.ndarray, nodes: np.ndarray,
+                 values: np.ndarray) -> None:
+        self.columns, self.rows, self.nodes, self.values = columns, rows, nodes, values
         self._names: list[str] | None = None
 
     def __len__(self) -> int:
-        return len(self.members)
+        return self.rows.size
 
     @property
     def names(self) -> list[str]:
         if self._names is None:
-            self._names = list(map(_NAME, self.members))
+            self._names = _picked(self.columns.names, self.rows)
         return self._names
 
     @property
     def refs(self) -> list[tuple[str, ...]]:
-        return [p.refs for p in self.members]
+        parts = self.columns.parts
+        return [parts[i].refs for i in self.rows.tolist()]
 
 
-_EMPTY = Group([], np.zeros((0, 4), dtype=np.intp), np.zeros(0))
+_NO_ROWS = np.zeros(0, dtype=np.intp)
+_EMPTY = Group(Columns.of(()), _NO_ROWS, np.zeros((0, 4), dtype=np.intp), np.zeros(0))
+#: Net ids per part of each kind (``Part.nets``: the op-amp's ground return included).
+_WIDTH = [len(roles) + (kind == "opamp") for kind, roles in KINDS.items()]
+#: Kinds whose parts name other parts (``refs``).
+_REFERRING = ("ccvs", "cccs", "coupling")
 
 
-def _values(members: list[Part]) -> np.ndarray:
-    try:
-        return np.fromiter(map(_VALUE, members), float, len(members))
-    except TypeError:  # a complex value among them
-        return np.fromiter(map(_VALUE, members), complex, len(members))
+def _group_values(columns: Columns, rows: np.ndarray) -> np.ndarray:
+    """Values of the parts at ``rows``: real unless one of them was given as complex."""
+    values = columns.values[rows]
+    return values if columns.complex_valued[rows].any() else values.real.copy()
 
 
 class Netlist:
     """A set of parts as index arrays, one :class:`Group` per kind.
 
     ``nets[i]`` is the name of net id ``i`` (numbered in order of first use, kind by kind);
-    ``index`` maps a name back. Couplings are kept with their inductor names in ``refs``.
-    A netlist never changes after construction (its parts are immutable), so results derived
-    from it alone may be kept in ``memo``.
+    ``index`` maps a name back and ``net_ids[i]`` is net i's id in the circuit's register.
+    ``rows`` are the parts' rows in ``columns`` (None: all of them). Couplings are kept with
+    their inductor names in ``refs``. A netlist never changes after construction, so results
+    derived from it alone may be kept in ``memo``.
     """
 
-    __slots__ = ("controllers", "groups", "index", "memo", "nets", "parts")
+    __slots__ = ("_nets", "columns", "controllers", "groups", "index", "memo", "net_ids", "rows")
 
     def __init__(self, parts: Sequence[Part]) -> None:
-        by_kind: dict[str, list[Part]] = {kind: [] for kind in KINDS}
-        for part in parts:
-            by_kind[part.kind].append(part)
-        # one hash look-up per node: a missing net name takes the next id
-        index: defaultdict[str, int] = defaultdict(count().__next__)
-        lookup = index.__getitem__
+        self._build(Columns.of(parts), None)
+
+    @classmethod
+    def of(cls, columns: Columns, rows: np.ndarray | None = None) -> Netlist:
+        """The netlist of the parts at ``rows`` (ascending) of ``columns``; None: all."""
+        netlist = cls.__new__(cls)
+        netlist._build(columns, rows)
+        return netlist
+
+    def _build(self, columns: Columns, rows: np.ndarray | None) -> None:
+        kinds = columns.kinds if rows is None else columns.kinds[rows]
+        order = np.argsort(kinds, kind="stable")
+        grouped = order if rows is None else rows[order]  # rows of each kind, in circuit order
+        ends = np.cumsum(np.bincount(kinds, minlength=len(KINDS))).tolist()
+        spans = [(kind, grouped[start:end]) for kind, start, end
+                 in zip(KINDS, [0, *ends[:-1]], ends, strict=True) if end > start]
+        ids = [columns.nodes[part_rows, :_WIDTH[KIND_CODE[kind]]].ravel()
+               for kind, part_rows in spans]
+        flat = np.concatenate(ids) if ids else _NO_ROWS
+        # local ids in order of first use: each net's first position in the flat listing,
+        # then the nets by that position (a counting sort: positions are distinct)
+        first = np.full(len(columns.nets), flat.size, dtype=np.intp)
+        np.minimum.at(first, flat, np.arange(flat.size))
+        by_position = np.full(flat.size + 1, -1, dtype=np.intp)
+        by_position[first] = np.arange(first.size)
+        used = by_position[:-1][by_position[:-1] >= 0]
+        local = np.full(len(columns.nets), -1, dtype=np.intp)
+        local[used] = np.arange(used.size)
+        flat = local[flat]
         self.groups: dict[str, Group] = {}
-        for kind, members in by_kind.items():
-            if not members:
-                continue
-            width = len(KINDS[kind]) + (kind == "opamp")
-            nets = (chain.from_iterable(p.nets for p in members) if kind == "opamp"
-                    else chain.from_iterable(map(_NODES, members)))
-            ids = np.fromiter(map(lookup, nets), np.intp, width * len(members))
-            self.groups[kind] = Group(members, ids.reshape(len(members), width),
-                                      _values(members))
-        index.default_factory = None
-        self.parts = parts
-        self.index: dict[str, int] = index
-        self.nets: list[str] = list(index)
+        at = 0
+        for kind, part_rows in spans:
+            width = _WIDTH[KIND_CODE[kind]]
+            nodes = flat[at:at + width * part_rows.size].reshape(part_rows.size, width)
+            at += nodes.size
+            self.groups[kind] = Group(columns, part_rows, nodes,
+                                      _group_values(columns, part_rows))
+        self.columns, self.rows, self.net_ids = columns, rows, used
+        self.index: Mapping[str, int] = _NetIndex(columns, local, used)
+        self._nets: list[str] | None = None
         self.controllers: set[str] = {r[0] for kind in _CONTROLLED for r in self[kind].refs}
         self.memo: dict[object, object] = {}
 
     def __getitem__(self, kind: str) -> Group:
         return self.groups.get(kind, _EMPTY)
 
-    def with_values(self, parts: Sequence[Part], changed: np.ndarray) -> Netlist | None:
-        """This netlist for ``parts``, which differ from its own only at the positions
-        ``changed`` and there only in value; None where a changed part differs otherwise.
+    @property
+    def net_count(self) -> int:
+        return self.net_ids.size
 
-        Nets, node arrays and unchanged groups are shared; what was derived from the old
-        values (``memo``) is not carried over.
+    @property
+    def nets(self) -> list[str]:
+        """Name of each net id."""
+        if self._nets is None:
+            self._nets = list(map(self.columns.nets.__getitem__, self.net_ids.tolist()))
+        return self._nets
+
+    @property
+    def parts(self) -> list[Part]:
+        """The parts, in circuit order."""
+        rows = self.rows
+        return self.columns.parts if rows is None else [self.columns.parts[i]
+                                                        for i in rows.tolist()]
+
+    def with_values(self, columns: Columns, rows: np.ndarray | None) -> Netlist | None:
+        """This netlist for the parts at ``rows`` of ``columns``, where they differ from its
+        own parts at most in value; None where they differ otherwise (a part renamed, moved to
+        other nets, of another kind or referring to another part).
+
+        Nets and node arrays are shared; where a value changed, what was derived from the old
+        values (``memo``) is not carried over. Costs a few array comparisons, no part by part
+        work.
         """
-        slots = self._slots()
-        patched: dict[str, tuple[list[Part], np.ndarray]] = {}
-        for i in changed.tolist():
-            old, new = self.parts[i], parts[i]
-            if (new.name, new.kind, new.nodes, new.refs) != (old.name, old.kind, old.nodes,
-                                                             old.refs):
-                return None
-            if new.kind not in patched:
-                group = self.groups[new.kind]
-                patched[new.kind] = (list(group.members), group.values.copy())
-            members, values = patched[new.kind]
-            if isinstance(new.value, complex) and not np.iscomplexobj(values):
-                values = values.astype(complex)
-                patched[new.kind] = (members, values)
-            members[slots[i]] = new
-            values[slots[i]] = new.value
-        netlist = Netlist.__new__(Netlist)
-        netlist.parts, netlist.nets, netlist.index = parts, self.nets, self.index
-        netlist.controllers, netlist.memo = self.controllers, {"slots": slots}
-        netlist.groups = dict(self.groups)
-        for kind, (members, values) in patched.items():
-            netlist.groups[kind] = Group(members, self.groups[kind].nodes, values)
-        return netlist
+        mine = self.columns
+        if not _same_rows(rows, len(columns), self.rows, len(mine)):
+            return None
+        if columns is mine:
+            return self
+        if columns.nets is not mine.nets:  # ids from another register: not comparable
+            return None
+        def same(a: np.ndarray, b: np.ndarray) -> bool:
+            return _same_at(a, b, rows)
 
-    def _slots(self) -> np.ndarray:
-        """Position of each part (in ``parts`` order) within its kind's group."""
-        found = self.memo.get("slots")
-        if found is None:
-            code = {kind: i for i, kind in enumerate(KINDS)}
-            kinds = np.fromiter((code[p.kind] for p in self.parts), np.intp, len(self.parts))
-            found = np.empty(kinds.size, dtype=np.intp)
-            for i in np.unique(kinds).tolist():
-                where = kinds == i
-                found[where] = np.arange(int(where.sum()))
-            self.memo["slots"] = found
-        return found
+        if not (same(columns.kinds, mine.kinds) and same(columns.nodes, mine.nodes)
+                and (columns.names is mine.names
+                     or _picked(columns.names, rows) == _picked(mine.names, rows))):
+            return None
+        referring = columns.rows_of(_REFERRING)
+        if rows is not None:
+            referring = np.intersect1d(referring, rows)
+        if any(columns.parts[i].refs != mine.parts[i].refs for i in referring.tolist()):
+            return None
+        if same(columns.values, mine.values) and same(columns.complex_valued,
+                                                      mine.complex_valued):
+            return self
+        netlist = Netlist.__new__(Netlist)
+        netlist.columns, netlist.rows, netlist.net_ids = columns, rows, self.net_ids
+        netlist._nets, netlist.index, netlist.controllers = self._nets, self.index, self.controllers
+        netlist.groups = {kind: Group(columns, g.rows, g.nodes, _group_values(columns, g.rows))
+                          for kind, g in self.groups.items()}
+        netlist.memo = {}
+        return netlist
 
     @property
     def has_dependent(self) -> bool:
@@ -219,6 +254,56 @@ class Netlist:
         lo[~np.isfinite(lo)] = 0.0
         hi[hi <= 0] = np.inf
         return lo, hi
+
+
+class _NetIndex(Mapping[str, int]):
+    """Net name to net id of a netlist, looked up in the circuit's net register: ``local`` maps
+    a register id to the netlist's net id (-1 where the netlist has no such net), ``used`` back.
+    """
+
+    __slots__ = ("_local", "_names", "_register", "_used")
+
+    def __init__(self, columns: Columns, local: np.ndarray, used: np.ndarray) -> None:
+        self._register, self._names = columns.net_id, columns.nets
+        self._local, self._used = local, used
+
+    def __getitem__(self, net: str) -> int:
+        found = self._register.get(net)
+        if found is not None and found < self._local.size:  # the register may have grown
+            i = int(self._local[found])
+            if i >= 0:
+                return i
+        raise KeyError(net)
+
+    def __contains__(self, net: object) -> bool:
+        try:
+            self[net]  # type: ignore[index]
+        except (KeyError, TypeError):
+            return False
+        return True
+
+    def __iter__(self) -> Iterator[str]:
+        return map(self._names.__getitem__, self._used.tolist())
+
+    def __len__(self) -> int:
+        return self._used.size
+
+
+def _same_rows(a: np.ndarray | None, size_a: int, b: np.ndarray | None, size_b: int) -> bool:
+    """Whether two selections of rows (None: all ``size`` rows) pick the same rows."""
+    if a is None or b is None:
+        return a is None and b is None and size_a == size_b
+    return np.array_equal(a, b)
+
+
+def _same_at(a: np.ndarray, b: np.ndarray, rows: np.ndarray | None) -> bool:
+    """Whether two arrays agree at ``rows`` (None: everywhere); an array that Circuit.replaced
+    shared between two circuits is not compared element by element."""
+    return a is b or np.array_equal(a if rows is None else a[rows], b if rows is None else b[rows])
+
+
+def _picked(items: list[str], rows: np.ndarray | None) -> list[str]:
+    return items if rows is None else [items[i] for i in rows.tolist()]
 
 
 def _span(*arrays: np.ndarray) -> tuple[float, float]:
@@ -308,10 +393,12 @@ class _Triplets:
         self.add((k, k), (a, b), (scale, -scale))
 
     def arrays(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Rows, columns (32-bit, as SciPy's sparse formats keep them) and values."""
         if not self.rows:
-            empty = np.zeros(0, dtype=np.intp)
+            empty = np.zeros(0, dtype=np.int32)
             return empty, empty, np.zeros(0)
-        rows, cols = np.concatenate(self.rows), np.concatenate(self.cols)
+        rows = np.concatenate(self.rows, dtype=np.int32)
+        cols = np.concatenate(self.cols, dtype=np.int32)
         vals = np.concatenate(self.vals)
         keep = (rows >= 0) & (cols >= 0)  # entries of pinned nets drop out
         return rows[keep], cols[keep], vals[keep]
@@ -340,6 +427,7 @@ class System:
         self._cols = np.concatenate((g[1], m[1]))
         self.symmetric = not netlist.has_dependent
         self._branch_of: dict[str, int] | None = None
+        self._last: tuple[float, sp.csc_matrix] | None = None
 
     @property
     def branch_of(self) -> dict[str, int]:
@@ -350,7 +438,13 @@ class System:
         return self._branch_of
 
     def matrix(self, freq: float) -> sp.csc_matrix:
-        """A(j 2 pi freq) in CSC form (real when every entry is real, e.g. at DC)."""
+        """A(j 2 pi freq) in CSC form (real when every entry is real, e.g. at DC); the last one
+        is kept for the next analysis at the same frequency (read it, never write it)."""
+        if self._last is None or self._last[0] != freq:
+            self._last = (freq, self._matrix(freq))
+        return self._last[1]
+
+    def _matrix(self, freq: float) -> sp.csc_matrix:
         n = self.size
         if freq == 0 or self._m[2].size == 0:
             rows, cols, vals = self._g
@@ -403,7 +497,7 @@ def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | N
     Raises :class:`~engine.errors.SingularCircuitError` where a CCVS/CCCS names a controller
     that is not among the parts, or a coupling an inductor that is not.
     """
-    n_nets = len(netlist.nets)
+    n_nets = netlist.net_count
     u = np.full(n_nets, -1, dtype=np.intp)  # unknown of each net id; -1 where pinned
     is_node = np.ones(n_nets, dtype=bool)
     is_node[np.fromiter(pinned, dtype=np.intp)] = False
@@ -621,10 +715,10 @@ class Factor:
         perturbation of the part values by one unit in the last place would cause).
         """
         a = self.matrix
-        columns = np.repeat(np.arange(a.shape[1]), np.diff(a.indptr))
+        magnitudes = sp.csc_matrix((np.abs(a.data), a.indices, a.indptr), shape=a.shape)
         with np.errstate(all="ignore"):
             residual = rhs - a @ x
-            abs_ax = np.bincount(a.indices, np.abs(a.data) * np.abs(x[columns]), a.shape[0])
+            abs_ax = magnitudes @ np.abs(x)
         return float(bound(adjoint, residual, abs_ax, rhs, rounding(a)))
 
 

@@ -24,23 +24,21 @@ from __future__ import annotations
 from collections.abc import Collection, Iterable, Sequence
 from dataclasses import dataclass
 from itertools import chain
-from operator import attrgetter, is_
 
 import networkx as nx
 import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.csgraph import connected_components
 
-from .circuit import GROUND, Circuit, Part
+from .circuit import GROUND, KIND_CODE, KINDS, NET_COLUMNS, Circuit, Columns, Part, kind_mask
 from .errors import CircuitError, CutError, SingularCircuitError
 from .mna import Netlist
 
 __all__ = ["Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",
            "forget_netlists", "islands", "netlist_of"]
 
-_NODES = attrgetter("nodes")
-_SENSING = frozenset({"vcvs", "vccs", "opamp"})
-_CONTROLLED = frozenset({"ccvs", "cccs"})
+_SENSING = ("vcvs", "vccs", "opamp")
+_CONTROLLED = ("ccvs", "cccs")
 #: (kind, node columns) of the branches that can carry current, at any frequency.
 _CARRYING = (("resistor", (0, 1)), ("capacitor", (0, 1)), ("inductor", (0, 1)),
              ("impedance", (0, 1)), ("voltage_source", (0, 1)), ("current_source", (0, 1)),
@@ -63,14 +61,17 @@ def _plural(count: int, one: str, many: str) -> str:
 # -- the cut ------------------------------------------------------------------------------------
 @dataclass(frozen=True, slots=True, eq=False)
 class Cut:
-    """A validated two-terminal cut: ``port`` (plus, minus) and the region's parts.
+    """A validated two-terminal cut: ``port`` (plus, minus) and the region's ``netlist``.
 
-    ``parts`` are in circuit order, couplings following their inductors; ``netlist`` holds them.
+    ``parts`` are the region's parts in circuit order, couplings following their inductors.
     """
 
     port: tuple[str, str]
-    parts: tuple[Part, ...]
     netlist: Netlist
+
+    @property
+    def parts(self) -> tuple[Part, ...]:
+        return tuple(self.netlist.parts)
 
 
 def check_cut(circuit: Circuit, region: Collection[str],
@@ -106,33 +107,25 @@ def check_cut(circuit: Circuit, region: Collection[str],
 
     Notes
     -----
-    Linear in the number of parts: set look-ups per part and one connected-components pass.
+    Linear in the number of parts: one set look-up per part, then array operations on the
+    circuit's columns and one connected-components pass.
     """
     return cut(circuit, region, port).port
 
 
 def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = None) -> Cut:
-    """:func:`check_cut`, returning the :class:`Cut` with the region's parts and netlist."""
+    """:func:`check_cut`, returning the :class:`Cut` with the region's netlist."""
     names = _region_names(region)
-    everything = list(circuit)
-    whole = len(names) == len(everything) and names.issuperset(circuit.names)
-    inside = everything if whole else [p for p in everything if p.name in names]
-    if len(inside) != len(names):
-        unknown = sorted(map(str, names.difference(circuit.names)))
-        raise CutError(f"the region names {_plural(len(unknown), 'a part', 'parts')} that "
-                       f"{_plural(len(unknown), 'is', 'are')} not in the circuit: "
-                       f"{_listing(unknown)}", parts=unknown)
-    outside = [p for p in everything if p.name not in names] if len(inside) < len(everything) \
-        else []
-    netlist = netlist_of(inside)
-    flipped = _coupling_sides(netlist, outside, names)
+    columns = circuit.columns()
+    rows = _region_rows(circuit, names)
+    flipped = _coupling_sides(columns, names)
     if flipped:
         names = names.symmetric_difference(flipped)
-        inside = [p for p in everything if p.name in names]
-        outside = [p for p in everything if p.name not in names]
-        netlist = netlist_of(inside)
-    _check_controls(circuit, netlist, outside, names)
-    side = _Sides(netlist, outside)
+        rows = _region_rows(circuit, names)
+    netlist = netlist_of(columns, rows)
+    outside = _complement(rows, len(columns))
+    _check_controls(circuit, columns, names)
+    side = _Sides(netlist, columns, outside)
     if port is not None:
         plus, minus = _given_port(port, netlist)
     terminals = side.boundary
@@ -151,41 +144,54 @@ def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = 
                 "the rest only at its port — move the parts on "
                 f"{_plural(len(extra), 'that net', 'those nets')} into or out of the region",
                 nets=extra)
-    return Cut((plus, minus), tuple(inside), netlist)
+    return Cut((plus, minus), netlist)
 
 
-#: The netlists of the last few regions, each with the exact Part objects it was built from.
-_RECENT: list[tuple[list[Part], Netlist]] = []
+def _region_rows(circuit: Circuit, names: set[str]) -> np.ndarray | None:
+    """Rows of the region's parts in the circuit's columns (None: all); refuses unknown names."""
+    rows = circuit.rows_of(names)
+    if len(names) != (len(circuit) if rows is None else rows.size):
+        unknown = sorted(map(str, names.difference(circuit.names)))
+        raise CutError(f"the region names {_plural(len(unknown), 'a part', 'parts')} that "
+                       f"{_plural(len(unknown), 'is', 'are')} not in the circuit: "
+                       f"{_listing(unknown)}", parts=unknown)
+    return rows
+
+
+def _complement(rows: np.ndarray | None, size: int) -> np.ndarray:
+    if rows is None:
+        return np.zeros(0, dtype=np.intp)
+    keep = np.ones(size, dtype=bool)
+    keep[rows] = False
+    return np.flatnonzero(keep)
+
+
+#: The netlists of the last few regions, each tied to the columns it was built from.
+_RECENT: list[Netlist] = []
 _KEEP = 3
-_PATCH_RATIO = 10
 
 
-def netlist_of(parts: list[Part]) -> Netlist:
-    """The :class:`Netlist` of ``parts``, reused while they are the very same Part objects.
+def netlist_of(columns: Columns, rows: np.ndarray | None = None) -> Netlist:
+    """The :class:`Netlist` of the parts at ``rows`` of ``columns`` (None: all), reused while
+    they are the same parts.
 
-    Parts are immutable, so a netlist (and what is derived from it alone) cannot go stale; an
-    edit makes new Part objects. Comparing identities costs one pointer test per part, against
-    some microseconds per part to build. Where only a few parts of a kept netlist were replaced
-    by parts that differ in value alone (a value edit), its arrays are patched instead.
+    A circuit's columns change only by adding parts, which makes new columns, so a netlist
+    kept for the same columns cannot go stale. Where the parts differ from a kept netlist's only
+    in value (a value edit through ``Circuit.replaced``), its nets and node arrays are reused and
+    only the values read again (:meth:`Netlist.with_values`).
     """
-    for i, (key, netlist) in enumerate(_RECENT):
-        if len(key) != len(parts):
-            continue
-        same = np.fromiter(map(is_, key, parts), bool, len(parts))
-        changed = np.flatnonzero(~same)
-        if changed.size == 0:
+    for i, kept in enumerate(_RECENT):
+        found = kept.with_values(columns, rows)
+        if found is kept:
             _RECENT.insert(0, _RECENT.pop(i))
-            return netlist
-        # patching costs some microseconds per changed part, building under one per part
-        if changed.size * _PATCH_RATIO <= len(parts):
-            updated = netlist.with_values(parts, changed)
-            if updated is not None:
-                return _keep(parts, updated)
-    return _keep(parts, Netlist(parts))
+            return kept
+        if found is not None:
+            return _keep(found)
+    return _keep(Netlist.of(columns, rows))
 
 
-def _keep(parts: list[Part], netlist: Netlist) -> Netlist:
-    _RECENT.insert(0, (parts, netlist))
+def _keep(netlist: Netlist) -> Netlist:
+    _RECENT.insert(0, netlist)
     del _RECENT[_KEEP:]
     return netlist
 
@@ -208,10 +214,15 @@ def _region_names(region: Collection[str]) -> set[str]:
     return names
 
 
-def _coupling_sides(netlist: Netlist, outside: list[Part], names: set[str]) -> set[str]:
+def _inside_first(parts: list[Part], names: set[str]) -> list[Part]:
+    return [p for p in parts if p.name in names] + [p for p in parts if p.name not in names]
+
+
+def _coupling_sides(columns: Columns, names: set[str]) -> set[str]:
     """Couplings that must change side to follow their inductors; refuse one spanning it."""
     flipped: set[str] = set()
-    for k in [*netlist["coupling"].members, *(p for p in outside if p.kind == "coupling")]:
+    couplings = [columns.parts[i] for i in columns.rows_of(("coupling",)).tolist()]
+    for k in _inside_first(couplings, names):
         l1, l2 = k.refs
         if (l1 in names) != (l2 in names):
             a, b = (l1, l2) if l1 in names else (l2, l1)
@@ -223,62 +234,79 @@ def _coupling_sides(netlist: Netlist, outside: list[Part], names: set[str]) -> s
     return flipped
 
 
-def _check_controls(circuit: Circuit, netlist: Netlist, outside: list[Part],
-                    names: set[str]) -> None:
+def _check_controls(circuit: Circuit, columns: Columns, names: set[str]) -> None:
     """A CCVS/CCCS and its controlling part lie on the same side, and the part exists."""
-    pairs = [(name, refs[0], True) for kind in _CONTROLLED
-             for name, refs in zip(netlist[kind].names, netlist[kind].refs, strict=True)]
-    pairs += [(p.name, p.refs[0], False) for p in outside if p.kind in _CONTROLLED]
-    for name, control, inside in pairs:
+    controlled = [columns.parts[i] for i in columns.rows_of(_CONTROLLED).tolist()]
+    for p in _inside_first(controlled, names):
+        control, inside = p.refs[0], p.name in names
         if control not in circuit:
-            raise CircuitError(f"{name} is controlled by the current in {control}, which is "
+            raise CircuitError(f"{p.name} is controlled by the current in {control}, which is "
                                "not in the circuit; add it or change the controlling part")
         if (control in names) != inside:
             where = ("inside", "outside") if inside else ("outside", "inside")
-            raise CutError(f"{name} {where[0]} the region is controlled by the current in "
+            raise CutError(f"{p.name} {where[0]} the region is controlled by the current in "
                            f"{control} {where[1]} it; a controlled source and its controlling "
                            "part must lie on the same side of the boundary",
-                           parts=(name, control))
+                           parts=(p.name, control))
+
+
+def _outer_columns() -> np.ndarray:
+    """Per kind code, the net columns at which a part outside the region carries current:
+    all its nets but a VCVS/VCCS's sense inputs and an op-amp's inputs."""
+    mask = np.zeros((len(KINDS), NET_COLUMNS), dtype=bool)
+    for kind, roles in KINDS.items():
+        mask[KIND_CODE[kind], :len(roles)] = True
+    for kind in ("vcvs", "vccs"):
+        mask[KIND_CODE[kind], 2:] = False
+    mask[KIND_CODE["opamp"]] = (False, False, True, True)  # output and ground return
+    return mask
+
+
+_OUTER = _outer_columns()
 
 
 class _Sides:
     """Which nets carry current on each side of the boundary, and the nets the sides share."""
 
-    def __init__(self, netlist: Netlist, outside: list[Part]) -> None:
-        self.netlist, self.outside = netlist, outside
-        n = len(netlist.nets)
-        self.carrying = np.zeros(n, dtype=bool)
-        for kind, cols in _CARRYING:
-            self.carrying[netlist[kind].nodes[:, list(cols)].ravel()] = True
-        plain = [p for p in outside if p.kind not in _SENSING]
-        self.outer = set(chain.from_iterable(map(_NODES, plain)))
-        sensors = [p for p in outside if p.kind in _SENSING]
-        for p in sensors:
-            self.outer.update(p.nodes[2:] if p.kind == "opamp" else p.nodes[:2])
-            if p.kind == "opamp":
-                self.outer.add(GROUND)
-        index = netlist.index
-        self.boundary = {net for net in self.outer
-                         if net in index and self.carrying[index[net]]}
-        self._check_sensing(sensors)
+    def __init__(self, netlist: Netlist, columns: Columns, outside: np.ndarray) -> None:
+        self.netlist, self.columns, self.outside = netlist, columns, outside
+        #: per net of the region: an outside part conducts there
+        self.outer = np.zeros(netlist.net_count, dtype=bool)
+        self.boundary: set[str] = set()
+        if not outside.size:  # the whole circuit: no boundary, nothing sensed across it
+            return
+        outer = np.zeros(len(columns.nets), dtype=bool)
+        kinds = columns.kinds[outside]
+        outer[columns.nodes[outside][_OUTER[kinds]]] = True
+        self.outer = outer[netlist.net_ids]
+        carrying = _carrying(netlist)
+        self.boundary = {netlist.nets[i] for i in np.flatnonzero(carrying & self.outer)}
+        self._check_sensing_inside(carrying)
+        sensing = outside[kind_mask(_SENSING)[kinds]]
+        self._check_sensing_outside(carrying, [columns.parts[i] for i in sensing.tolist()])
 
-    def _check_sensing(self, sensors: list[Part]) -> None:
-        index, netlist = self.netlist.index, self.netlist
+    def _check_sensing_inside(self, carrying: np.ndarray) -> None:
+        netlist = self.netlist
         for kind, cols in _SENSES:
-            group = netlist[kind]
-            for name, row in zip(group.names, group.nodes[:, list(cols)].tolist(), strict=True):
-                for net_id in row:
-                    net = netlist.nets[net_id]
-                    if not self.carrying[net_id] and net in self.outer:
-                        other = next(p.name for p in self.outside if net in p.nets)
-                        raise CutError(f"{name} inside the region senses net {net}, which lies "
-                                       f"outside it ({other} is connected there); a controlled "
-                                       "source and the nets it senses must lie on the same side",
-                                       nets=(net,), parts=(name, other))
+            sensed = netlist[kind].nodes[:, list(cols)]
+            across = ~carrying[sensed] & self.outer[sensed]
+            if across.any():
+                part, col = np.unravel_index(int(np.argmax(across)), across.shape)
+                name, net = netlist[kind].names[part], netlist.nets[sensed[part, col]]
+                parts = self.columns.parts
+                other = next(parts[i].name for i in self.outside.tolist()
+                             if net in parts[i].nets)
+                raise CutError(f"{name} inside the region senses net {net}, which lies "
+                               f"outside it ({other} is connected there); a controlled "
+                               "source and the nets it senses must lie on the same side",
+                               nets=(net,), parts=(name, other))
+
+    def _check_sensing_outside(self, carrying: np.ndarray, sensors: list[Part]) -> None:
+        index, netlist = self.netlist.index, self.netlist
         for p in sensors:
             sensed = p.nodes[:2] if p.kind == "opamp" else p.nodes[2:]
             for net in sensed:
-                if net in index and self.carrying[index[net]] and net not in self.outer:
+                if net in index and carrying[index[net]] and not self.outer[index[net]]:
                     other = next(q.name for q in netlist.parts if net in q.nets)
                     raise CutError(f"{p.name} outside the region senses net {net}, which lies "
                                    f"inside it ({other} is connected there); a controlled "
@@ -293,12 +321,22 @@ class _Sides:
         """
         netlist = self.netlist
         a, b = _pairs(netlist, _CARRYING)
-        labels = _components(len(netlist.nets), a, b)
+        labels = _components(netlist.net_count, a, b)
         pieces: dict[int, set[str]] = {}
         for net in chain(self.boundary, port):
             pieces.setdefault(int(labels[netlist.index[net]]), set()).add(net)
         return {net for nets in pieces.values() if len(nets) > 1 or nets & set(port)
                 for net in nets}
+
+
+def _carrying(netlist: Netlist) -> np.ndarray:
+    """Per net: a part of the netlist can carry current there (kept in its memo)."""
+    found = netlist.memo.get("carrying")
+    if found is None:
+        found = netlist.memo["carrying"] = np.zeros(netlist.net_count, dtype=bool)
+        for kind, cols in _CARRYING:
+            found[netlist[kind].nodes[:, list(cols)].ravel()] = True
+    return found
 
 
 def _given_port(port: Sequence[str], netlist: Netlist) -> tuple[str, str]:
@@ -360,7 +398,8 @@ def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
     if n == 0:
         return np.zeros(0, dtype=np.intp)
     if a.size > _SMALL_GRAPH:
-        graph = sp.csr_matrix((np.ones(a.size, dtype=np.int8), (a, b)), shape=(n, n))
+        ends = (a.astype(np.int32), b.astype(np.int32))  # SciPy's own index type: no checks
+        graph = sp.csr_matrix((np.ones(a.size, dtype=np.int8), ends), shape=(n, n))
         return connected_components(graph, directed=False)[1]
     parent = list(range(n))
     for u, v in zip(a.tolist(), b.tolist(), strict=True):
@@ -403,7 +442,7 @@ class Islands:
     def __init__(self, netlist: Netlist, dc: bool, references: Sequence[str],
                  short: tuple[int, int] | None = None) -> None:
         self.netlist, self.dc = netlist, dc
-        n = len(netlist.nets)
+        n = netlist.net_count
         a, b = _pairs(netlist, _conducting(netlist, dc))
         if short is not None:
             a, b = np.append(a, short[0]), np.append(b, short[1])

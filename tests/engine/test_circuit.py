@@ -114,6 +114,46 @@ def test_replaced_swaps_parts_in_place_and_checks_only_the_new_ones(circuit: Cir
         circuit.replaced([Part("R9", "resistor", ("a", GROUND), 1)])
 
 
+def _rows_as_parts(c: Circuit) -> list[tuple[str, str, tuple[str, ...], complex, bool]]:
+    """What the columns say of each part, in names (for comparing with the parts)."""
+    cols = c.columns()
+    return [(name, list(KINDS)[kind], tuple(cols.nets[i] for i in ids if i >= 0), value, flag)
+            for name, kind, ids, value, flag in zip(cols.names, cols.kinds.tolist(),
+                                                   cols.nodes.tolist(), cols.values.tolist(),
+                                                   cols.complex_valued.tolist(), strict=True)]
+
+
+def _as_parts(c: Circuit) -> list[tuple[str, str, tuple[str, ...], complex, bool]]:
+    return [(p.name, p.kind, p.nets, complex(p.value), isinstance(p.value, complex)) for p in c]
+
+
+def test_columns_follow_every_add_and_replacement(circuit: Circuit) -> None:
+    # The arrays an analysis reads are kept as parts are added: they always say what the
+    # parts say, and an add or a replacement never changes columns already handed out.
+    first = circuit.columns()
+    assert circuit.columns() is first  # kept while nothing is added
+    assert _rows_as_parts(circuit) == _as_parts(circuit)
+    circuit.impedance("Z1", "b", "new", 3 + 4j)
+    assert circuit.columns() is not first and len(first) == 7
+    assert _rows_as_parts(circuit) == _as_parts(circuit)
+    edited = circuit.replaced([Part("R1", "resistor", ("in", "far"), 1), Part("Z1", "impedance",
+                                                                          ("b", "new"), 5)])
+    assert _rows_as_parts(edited) == _as_parts(edited)
+    assert _rows_as_parts(circuit) == _as_parts(circuit)  # the original is untouched
+    value_only = circuit.with_value("R2", "1k")
+    assert value_only.columns().nodes is circuit.columns().nodes  # shared, not copied
+    for derived in (edited.copy(), value_only.without(["U1"]), value_only.subcircuit(["R1"])):
+        assert _rows_as_parts(derived) == _as_parts(derived)
+    edited.resistor("R7", "far", GROUND, 1)  # a replaced circuit grows like any other
+    assert _rows_as_parts(edited) == _as_parts(edited)
+    assert _rows_as_parts(circuit) == _as_parts(circuit)
+
+
+def test_rows_of_a_region(circuit: Circuit) -> None:
+    assert circuit.rows_of(set(circuit.names)) is None  # the whole circuit
+    assert circuit.rows_of({"U1", "R1", "nothing"}).tolist() == [1, 6]
+
+
 # -- refusals -----------------------------------------------------------------------------------
 def test_duplicate_name(circuit: Circuit) -> None:
     with pytest.raises(CircuitError, match=r"^R1: a part of that name is already in the circuit"):

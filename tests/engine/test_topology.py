@@ -15,7 +15,7 @@ from test_errors import REGION, divider
 
 from engine import GROUND, Circuit, CutError, SingularCircuitError, check_cut, equivalent
 from engine.mna import Netlist
-from engine.topology import check_voltage_loops, circuit_graph, cut, islands
+from engine.topology import check_voltage_loops, circuit_graph, cut, islands, netlist_of
 
 
 def transformer(grounded_secondary: bool) -> Circuit:
@@ -205,6 +205,26 @@ def test_a_value_edit_patches_the_kept_netlist() -> None:
     assert np.array_equal(rebuilt["resistor"].nodes,
                           Netlist(list(moved.subcircuit(region)))["resistor"].nodes)
     assert not np.array_equal(rebuilt["resistor"].nodes, patched["resistor"].nodes)
+
+
+def test_a_region_netlist_from_the_columns_equals_one_built_from_its_parts() -> None:
+    # The netlist of a region is read from the circuit's columns; it must number the nets and
+    # group the parts exactly as one built part by part from the same parts.
+    c = transformer(True)
+    c.opamp("U1", "p", "t", "o")
+    c.cccs("F1", "o", GROUND, "RL", 2)
+    c.impedance("Z1", "o", GROUND, 1 + 2j)
+    for region in (set(c.names), {"L1", "L2", "K1", "RL", "U1", "F1"}, {"Z1"}):
+        kept = netlist_of(c.columns(), c.rows_of(region))
+        built = Netlist([p for p in c if p.name in region])
+        assert kept.nets == built.nets and dict(kept.index) == dict(built.index)
+        assert kept.groups.keys() == built.groups.keys()
+        for kind, group in built.groups.items():
+            assert np.array_equal(kept[kind].nodes, group.nodes)
+            assert np.array_equal(kept[kind].values, group.values)
+            assert kept[kind].values.dtype == group.values.dtype
+            assert kept[kind].names == group.names and kept[kind].refs == group.refs
+        assert kept.parts == built.parts and kept.controllers == built.controllers
 
 
 def test_the_docstring_examples_run() -> None:
