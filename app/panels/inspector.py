@@ -113,6 +113,8 @@ class InspectorDock(QDockWidget):
         if self._pushing:
             return
         shown = self._shown
+        if shown == "" and (change.added or change.removed):
+            self.details.setText(self._sheet_summary())
         if shown == "" and change.title:
             self.editors["title"].show_element(_Sheet(self.workbench.doc.title))
         elif shown and (shown in change.updated or shown in change.removed):
@@ -137,6 +139,12 @@ class InspectorDock(QDockWidget):
             for editor in self.editors.values():
                 editor.show_element(element)
 
+    def _sheet_summary(self) -> str:
+        doc = self.workbench.doc
+        parts, wires = len(doc.parts()), len(doc.wires())
+        return (f"{parts} part{'s' * (parts != 1)}, {wires} wire{'s' * (wires != 1)}. "
+                "Select an element to edit it.")
+
     def show_selection(self, ids: list[str], force: bool = False) -> None:
         doc = self.workbench.doc
         ids = [i for i in ids if i in doc]
@@ -151,8 +159,7 @@ class InspectorDock(QDockWidget):
         elif target == "":
             self.heading.setText("Sheet")
             self._add_editor(_TITLE, _Sheet(doc.title))
-            self.details.setText(f"{len(doc.parts())} parts, {len(doc.wires())} wires. "
-                                 "Select an element to edit it.")
+            self.details.setText(self._sheet_summary())
         else:
             element = doc[target]
             self.heading.setText(_describe(element))

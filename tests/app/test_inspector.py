@@ -103,3 +103,13 @@ def test_canvas_keys_do_not_fire_while_typing(window, drive):
     part = drive.by("R1")
     assert (part.rotation, part.mirror) == (0, False)
     assert editor.edit.text() != ""
+
+
+def test_sheet_summary_follows_parts_added_and_undone(window, drive):
+    drive.place("resistor", (0, 0))
+    drive.place("capacitor", (0, 6))
+    drive.canvas.scene.select_ids([])
+    details = window.inspector.details
+    assert details.text().startswith("2 parts, 0 wires")
+    window.workbench.undo_stack.undo()               # the capacitor goes, nothing selected
+    assert details.text().startswith("1 part, 0 wires")
