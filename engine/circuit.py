@@ -49,6 +49,7 @@ _SOURCES = frozenset({"voltage_source", "current_source"})
 KIND_CODE = {kind: code for code, kind in enumerate(KINDS)}
 #: Columns of net ids per part: enough for the widest kind (an op-amp with its ground return).
 NET_COLUMNS = 4
+_PAD = [[-1] * (NET_COLUMNS - used) for used in range(NET_COLUMNS + 1)]
 
 
 @dataclass(frozen=True, slots=True)
@@ -255,7 +256,8 @@ class Columns:
     with -1; ``values[i]`` its value as a complex number and ``complex_valued[i]`` whether the
     value was given as one. A net id indexes ``nets`` (``net_id`` maps a name back), a register
     that circuits derived from one another share and only ever extend, so it may name nets no
-    part of this circuit touches.
+    part of this circuit touches; ``row`` (a part name to its row) is shared the same way, so
+    :meth:`row_of` checks what it finds.
     """
 
     kinds: np.ndarray
@@ -266,9 +268,16 @@ class Columns:
     parts: list[Part]
     nets: list[str]
     net_id: dict[str, int]
+    row: dict[str, int]
 
     def __len__(self) -> int:
         return len(self.parts)
+
+    def row_of(self, name: str) -> int | None:
+        """The row of part ``name``, None where there is no such part."""
+        row = self.row.get(name)
+        return row if row is not None and row < len(self.names) and \
+            self.names[row] == name else None
 
     @classmethod
     def of(cls, parts: Iterable[Part]) -> Columns:
@@ -327,7 +336,7 @@ class _Store:
         base = self.columns(parts)
         rows = [self.row[part.name] for part in new]
         nodes = base.nodes
-        ids = [self._ids(part.nets) for part in new]
+        ids = [[*self._ids(part.nets), *_PAD[len(part.nets)]] for part in new]
         if any(nodes[i].tolist() != row for i, row in zip(rows, ids, strict=True)):
             nodes = nodes.copy()
             nodes[rows] = ids
@@ -340,10 +349,10 @@ class _Store:
         for a in (nodes, values, flags):
             a.flags.writeable = False
         return self._derived(Columns(base.kinds, nodes, values, flags, base.names, listed,
-                                     self.nets, self.net_id))
+                                     self.nets, self.net_id, self.row))
 
     def _ids(self, nets: tuple[str, ...]) -> list[int]:
-        """Register ids of ``nets``, padded with -1 to NET_COLUMNS; a new name takes the next."""
+        """Register ids of ``nets``; a new name takes the next."""
         ids = []
         for net in nets:
             found = self.net_id.get(net)
@@ -351,17 +360,23 @@ class _Store:
                 found = self.net_id[net] = len(self.nets)
                 self.nets.append(net)
             ids.append(found)
-        ids += [-1] * (NET_COLUMNS - len(ids))
         return ids
 
     def append(self, part: Part) -> None:
+        # one call per added part, kept lean: it is most of what add() spends here
         if not self._own_rows:
             self.row, self._own_rows = dict(self.row), True
-        if self._growing is None:
+        growing = self._growing
+        if growing is None:
             assert self._columns is not None
-            self._growing = _Growing.of(self._columns)
-        self.row[part.name] = len(self._growing.kinds)
-        self._growing.append(KIND_CODE[part.kind], self._ids(part.nets), part.value)
+            growing = self._growing = _Growing.of(self._columns)
+        self.row[part.name] = len(growing.kinds)
+        growing.kinds.append(KIND_CODE[part.kind])
+        ids = self._ids(part.nets)
+        growing.nodes.extend(ids + _PAD[len(ids)])
+        value = part.value
+        growing.values.extend((value.real, value.imag))
+        growing.flags.append(isinstance(value, complex))
         self._columns = None
 
     def columns(self, parts: dict[str, Part] | list[Part]) -> Columns:
@@ -370,18 +385,19 @@ class _Store:
             assert self._growing is not None
             listed = list(parts.values()) if isinstance(parts, dict) else parts
             names = list(parts) if isinstance(parts, dict) else [p.name for p in listed]
-            self._columns = self._growing.columns(names, listed, self.nets, self.net_id)
+            self._columns = self._growing.columns(names, listed, self.nets, self.net_id, self.row)
         return self._columns
 
 
 class _Growing:
-    """Columns being appended to (compact arrays, amortised growth)."""
+    """Columns being appended to: compact arrays (amortised growth); the columns handed out
+    are read-only copies."""
 
     __slots__ = ("flags", "kinds", "nodes", "values")
 
     def __init__(self) -> None:
         self.kinds = array("b")
-        self.nodes = array("q")
+        self.nodes = array("i")  # NET_COLUMNS per part (32-bit: SciPy's index type)
         self.values = array("d")  # real and imaginary parts, interleaved
         self.flags = array("b")  # 1 where the value was given as a complex number
 
@@ -389,29 +405,22 @@ class _Growing:
     def of(cls, columns: Columns) -> _Growing:
         new = cls()
         new.kinds.frombytes(columns.kinds.tobytes())
-        new.nodes.frombytes(columns.nodes.astype(np.int64).tobytes())
+        new.nodes.frombytes(columns.nodes.astype(np.int32).tobytes())
         new.values.frombytes(columns.values.tobytes())
         new.flags.frombytes(columns.complex_valued.astype(np.int8).tobytes())
         return new
 
-    def append(self, kind: int, ids: list[int], value: complex | float) -> None:
-        self.kinds.append(kind)
-        self.nodes.extend(ids)
-        number = complex(value)
-        self.values.extend((number.real, number.imag))
-        self.flags.append(isinstance(value, complex))
-
     def columns(self, names: list[str], parts: list[Part], nets: list[str],
-                net_id: dict[str, int]) -> Columns:
-        """Read-only copies as a :class:`Columns`."""
+                net_id: dict[str, int], row: dict[str, int]) -> Columns:
+        """Read-only copies of the arrays, as a :class:`Columns`."""
         kinds = np.frombuffer(self.kinds, dtype=np.int8).copy()
-        nodes = np.frombuffer(self.nodes, dtype=np.int64).astype(np.intp)
+        nodes = np.frombuffer(self.nodes, dtype=np.int32).copy()
         values = np.frombuffer(self.values, dtype=np.complex128).copy()
         flags = np.frombuffer(self.flags, dtype=np.int8).astype(bool)
         for a in (kinds, nodes, values, flags):
             a.flags.writeable = False
         return Columns(kinds, nodes.reshape(-1, NET_COLUMNS), values, flags, names, parts,
-                       nets, net_id)
+                       nets, net_id, row)
 
 
 def _phasor(name: str, value: object, phase_deg: float | None) -> complex | float:

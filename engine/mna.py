@@ -37,8 +37,8 @@ import scipy.sparse as sp
 from scipy.sparse.csgraph import maximum_bipartite_matching
 from scipy.sparse.linalg import splu
 
-from .circuit import KIND_CODE, KINDS, Columns, Part
-from .errors import SingularCircuitError
+from .circuit import KINDS, NET_COLUMNS, Columns, Part
+from .errors import CircuitError, SingularCircuitError
 from .units import format_eng
 
 __all__ = [
@@ -91,7 +91,7 @@ class Group:
 
 
 _NO_ROWS = np.zeros(0, dtype=np.intp)
-_EMPTY = Group(Columns.of(()), _NO_ROWS, np.zeros((0, 4), dtype=np.intp), np.zeros(0))
+_EMPTY = Group(Columns.of(()), _NO_ROWS, np.zeros((0, 4), dtype=np.int32), np.zeros(0))
 #: Net ids per part of each kind (``Part.nets``: the op-amp's ground return included).
 _WIDTH = [len(roles) + (kind == "opamp") for kind, roles in KINDS.items()]
 #: Kinds whose parts name other parts (``refs``).
@@ -109,12 +109,15 @@ class Netlist:
 
     ``nets[i]`` is the name of net id ``i`` (numbered in order of first use, kind by kind);
     ``index`` maps a name back and ``net_ids[i]`` is net i's id in the circuit's register.
-    ``rows`` are the parts' rows in ``columns`` (None: all of them). Couplings are kept with
+    ``rows`` are the parts' rows in ``columns`` (None: all of them). All parts kind by kind:
+    ``table[i]`` the net ids of the i-th (``Part.nets`` order, -1 beyond them) and ``codes[i]``
+    its kind code; the groups' node arrays are views of ``table``. Couplings are kept with
     their inductor names in ``refs``. A netlist never changes after construction, so results
     derived from it alone may be kept in ``memo``.
     """
 
-    __slots__ = ("_nets", "columns", "controllers", "groups", "index", "memo", "net_ids", "rows")
+    __slots__ = ("_nets", "codes", "columns", "controllers", "groups", "index", "memo",
+                 "net_ids", "rows", "table")
 
     def __init__(self, parts: Sequence[Part]) -> None:
         self._build(Columns.of(parts), None)
@@ -127,34 +130,38 @@ class Netlist:
         return netlist
 
     def _build(self, columns: Columns, rows: np.ndarray | None) -> None:
-        kinds = columns.kinds if rows is None else columns.kinds[rows]
+        # (np.take: row gathers several times faster than fancy indexing)
+        kinds = columns.kinds if rows is None else np.take(columns.kinds, rows)
         order = np.argsort(kinds, kind="stable")
-        grouped = order if rows is None else rows[order]  # rows of each kind, in circuit order
+        grouped = order if rows is None else np.take(rows, order)  # by kind, in circuit order
         ends = np.cumsum(np.bincount(kinds, minlength=len(KINDS))).tolist()
-        spans = [(kind, grouped[start:end]) for kind, start, end
-                 in zip(KINDS, [0, *ends[:-1]], ends, strict=True) if end > start]
-        ids = [columns.nodes[part_rows, :_WIDTH[KIND_CODE[kind]]].ravel()
-               for kind, part_rows in spans]
-        flat = np.concatenate(ids) if ids else _NO_ROWS
-        # local ids in order of first use: each net's first position in the flat listing,
-        # then the nets by that position (a counting sort: positions are distinct)
-        first = np.full(len(columns.nets), flat.size, dtype=np.intp)
-        np.minimum.at(first, flat, np.arange(flat.size))
-        by_position = np.full(flat.size + 1, -1, dtype=np.intp)
-        by_position[first] = np.arange(first.size)
+        # Every part's net ids, kind by kind, part by part (-1 pads a row) is the order of first
+        # use. A net's first position in that listing, then the nets by first position (a
+        # counting sort: positions are distinct); the padding falls on a spare last slot.
+        listed = np.take(columns.nodes, grouped, axis=0).ravel()
+        spare = len(columns.nets)
+        first = np.full(spare + 1, listed.size, dtype=np.intp)
+        np.minimum.at(first, listed, np.arange(listed.size))
+        by_position = np.full(listed.size + 1, -1, dtype=np.intp)
+        by_position[first[:spare]] = np.arange(spare)
         used = by_position[:-1][by_position[:-1] >= 0]
-        local = np.full(len(columns.nets), -1, dtype=np.intp)
+        local = np.full(spare + 1, -1, dtype=np.int32)
         local[used] = np.arange(used.size)
-        flat = local[flat]
+        table = np.take(local, listed).reshape(-1, NET_COLUMNS)
+        values = np.take(columns.values, grouped)
+        complex_valued = np.take(columns.complex_valued, grouped)
         self.groups: dict[str, Group] = {}
-        at = 0
-        for kind, part_rows in spans:
-            width = _WIDTH[KIND_CODE[kind]]
-            nodes = flat[at:at + width * part_rows.size].reshape(part_rows.size, width)
-            at += nodes.size
-            self.groups[kind] = Group(columns, part_rows, nodes,
-                                      _group_values(columns, part_rows))
+        start = 0
+        for kind, end, width in zip(KINDS, ends, _WIDTH, strict=True):
+            if end > start:
+                group_values = values[start:end]
+                if not complex_valued[start:end].any():
+                    group_values = group_values.real.copy()
+                self.groups[kind] = Group(columns, grouped[start:end], table[start:end, :width],
+                                          group_values)
+            start = end
         self.columns, self.rows, self.net_ids = columns, rows, used
+        self.table, self.codes = table, np.take(kinds, order)
         self.index: Mapping[str, int] = _NetIndex(columns, local, used)
         self._nets: list[str] | None = None
         self.controllers: set[str] = {r[0] for kind in _CONTROLLED for r in self[kind].refs}
@@ -162,6 +169,22 @@ class Netlist:
 
     def __getitem__(self, kind: str) -> Group:
         return self.groups.get(kind, _EMPTY)
+
+    def marked(self, spec: np.ndarray) -> np.ndarray:
+        """Per net: True where a part has a node column marked in ``spec`` (a boolean per kind
+        code and node column) on it."""
+        found = np.zeros(self.net_count, dtype=bool)
+        found[self.table[np.take(spec, self.codes, axis=0)]] = True
+        return found
+
+    def controlling(self, kind: str) -> np.ndarray:
+        """Per part of ``kind``: True where its current controls a CCVS or CCCS."""
+        flags = self.memo.get("controlling")
+        if flags is None:
+            flags = self.memo["controlling"] = np.zeros(len(self.columns), dtype=bool)
+            found = [self.columns.row_of(name) for name in self.controllers]
+            flags[[row for row in found if row is not None]] = True
+        return flags[self[kind].rows]
 
     @property
     def net_count(self) -> int:
@@ -214,6 +237,7 @@ class Netlist:
             return self
         netlist = Netlist.__new__(Netlist)
         netlist.columns, netlist.rows, netlist.net_ids = columns, rows, self.net_ids
+        netlist.table, netlist.codes = self.table, self.codes
         netlist._nets, netlist.index, netlist.controllers = self._nets, self.index, self.controllers
         netlist.groups = {kind: Group(columns, g.rows, g.nodes, _group_values(columns, g.rows))
                           for kind, g in self.groups.items()}
@@ -320,7 +344,7 @@ class Branches:
     a branch current (``where``) and the offset of the first among the branch unknowns
     (``first``); ``offset_of`` maps a part name to its offset."""
 
-    __slots__ = ("_offsets", "count", "first", "netlist", "where")
+    __slots__ = ("_offsets", "count", "first", "netlist", "offset_by_row", "where")
 
     def __init__(self, netlist: Netlist) -> None:
         self.netlist = netlist
@@ -334,16 +358,28 @@ class Branches:
             if kind in _ALWAYS_BRANCH:
                 where = np.arange(len(group))
             else:
-                mask = group.values == 0 if kind == "resistor" else np.zeros(len(group), bool)
-                if netlist.controllers:
-                    mask |= np.fromiter((n in netlist.controllers for n in group.names), bool,
-                                        len(group))
+                mask = netlist.controlling(kind)
+                if kind == "resistor":
+                    mask = mask | (group.values == 0)
                 where = np.flatnonzero(mask)
             if where.size:
                 self.where[kind], self.first[kind] = where, count
                 count += where.size
         self.count = count
+        #: per row of the netlist's columns: the offset of that part's branch current, or -1
+        self.offset_by_row = np.full(len(netlist.columns), -1, dtype=np.intp)
+        for kind, where in self.where.items():
+            self.offset_by_row[netlist[kind].rows[where]] = np.arange(
+                self.first[kind], self.first[kind] + where.size)
         self._offsets: dict[str, int] | None = None
+
+    def offset(self, name: str) -> int | None:
+        """The branch-current offset of part ``name``; None where it has none."""
+        row = self.netlist.columns.row_of(name)
+        if row is None:
+            return None
+        found = int(self.offset_by_row[row])
+        return found if found >= 0 else None
 
     def plain(self, kind: str) -> np.ndarray | slice:
         """Selector of the parts of ``kind`` without a branch current."""
@@ -498,7 +534,7 @@ def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | N
     that is not among the parts, or a coupling an inductor that is not.
     """
     n_nets = netlist.net_count
-    u = np.full(n_nets, -1, dtype=np.intp)  # unknown of each net id; -1 where pinned
+    u = np.full(n_nets, -1, dtype=np.int32)  # unknown of each net id; -1 where pinned
     is_node = np.ones(n_nets, dtype=bool)
     is_node[np.fromiter(pinned, dtype=np.intp)] = False
     n_nodes = int(is_node.sum())
@@ -595,17 +631,18 @@ def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | N
 
 def _control_indices(netlist: Netlist, n_nodes: int) -> dict[str, np.ndarray]:
     """For the CCVS and the CCCS, the branch unknown of each one's controlling part."""
-    offsets = netlist.branches().offset_of
+    branches = netlist.branches()
     result = {}
     for kind in _CONTROLLED:
         group = netlist[kind]
         ids = []
         for name, (control,) in zip(group.names, group.refs, strict=True):
-            if control not in offsets:
+            offset = branches.offset(control)
+            if offset is None:
                 raise SingularCircuitError(
                     f"{name} is controlled by the current in {control}, which is not among the "
                     "parts analysed; add it or change the controlling part")
-            ids.append(n_nodes + offsets[control])
+            ids.append(n_nodes + offset)
         result[kind] = np.array(ids, dtype=np.intp)
     return result
 
@@ -616,22 +653,26 @@ def _sources_complex(netlist: Netlist) -> bool:
 
 
 def _stamp_couplings(netlist: Netlist, n_nodes: int, m: _Triplets) -> None:
-    group = netlist["coupling"]
-    offsets = netlist.branches().offset_of
-    inductors = netlist["inductor"]
-    henries = dict(zip(inductors.names, inductors.values.tolist(), strict=True))
-    rows, cols, vals = [], [], []
-    for name, (l1, l2), k in zip(group.names, group.refs, group.values.tolist(), strict=True):
-        if l1 not in henries or l2 not in henries:
-            missing = l1 if l1 not in henries else l2
-            raise SingularCircuitError(f"{name} couples {missing}, which is not among the parts "
-                                       "analysed")
-        mutual = k * math.sqrt(henries[l1] * henries[l2])
-        k1, k2 = n_nodes + offsets[l1], n_nodes + offsets[l2]
-        rows += [k1, k2]
-        cols += [k2, k1]
-        vals += [-mutual, -mutual]
-    m.add((np.array(rows),), (np.array(cols),), (np.array(vals),))
+    group, inductors = netlist["coupling"], netlist["inductor"]
+    position = dict(zip(inductors.names, range(len(inductors)), strict=True))
+    pairs = []
+    for name, refs in zip(group.names, group.refs, strict=True):
+        for ref in refs:
+            if ref not in position:
+                raise SingularCircuitError(f"{name} couples {ref}, which is not among the parts "
+                                           "analysed")
+        pairs.append([position[ref] for ref in refs])
+    at = np.array(pairs, dtype=np.intp)
+    henries = inductors.values[at]
+    product = henries[:, 0] * henries[:, 1]
+    if (product < 0).any():
+        name = group.names[int(np.argmax(product < 0))]
+        raise CircuitError(f"{name} couples inductors of opposite signs; M = k sqrt(L1 L2) needs "
+                           "both inductances of one sign")
+    mutual = -group.values * np.sqrt(product)
+    # every inductor carries a branch current, in its group's order
+    k1, k2 = (n_nodes + netlist.branches().first["inductor"] + at[:, i] for i in (0, 1))
+    m.add((k1, k2), (k2, k1), (mutual, mutual))
 
 
 class Singular(SingularCircuitError):
@@ -715,10 +756,10 @@ class Factor:
         perturbation of the part values by one unit in the last place would cause).
         """
         a = self.matrix
-        magnitudes = sp.csc_matrix((np.abs(a.data), a.indices, a.indptr), shape=a.shape)
         with np.errstate(all="ignore"):
             residual = rhs - a @ x
-            abs_ax = magnitudes @ np.abs(x)
+            per_entry = np.abs(a.data) * np.repeat(np.abs(x), np.diff(a.indptr))
+            abs_ax = np.bincount(a.indices, per_entry, a.shape[0])
         return float(bound(adjoint, residual, abs_ax, rhs, rounding(a)))
 
 

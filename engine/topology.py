@@ -46,6 +46,18 @@ _CARRYING = (("resistor", (0, 1)), ("capacitor", (0, 1)), ("inductor", (0, 1)),
              ("opamp", (2, 3)))
 _SENSES = (("vcvs", (2, 3)), ("vccs", (2, 3)), ("opamp", (0, 1)))
 _CURRENT_TYPE = (("current_source", (0, 1)), ("vccs", (0, 1)), ("cccs", (0, 1)))
+
+
+def _column_table(spec: Iterable[tuple[str, tuple[int, ...]]]) -> np.ndarray:
+    """``spec`` as a boolean per kind code and node column (for ``Netlist.marked``)."""
+    table = np.zeros((len(KINDS), NET_COLUMNS), dtype=bool)
+    for kind, cols in spec:
+        table[KIND_CODE[kind], list(cols)] = True
+    return table
+
+
+_CARRYING_COLUMNS = _column_table(_CARRYING)
+_SENSED_COLUMNS = _column_table(_SENSES)
 SHORT = "the port short"
 
 
@@ -276,8 +288,9 @@ class _Sides:
         if not outside.size:  # the whole circuit: no boundary, nothing sensed across it
             return
         outer = np.zeros(len(columns.nets), dtype=bool)
-        kinds = columns.kinds[outside]
-        outer[columns.nodes[outside][_OUTER[kinds]]] = True
+        kinds = np.take(columns.kinds, outside)
+        nodes = np.take(columns.nodes, outside, axis=0)
+        outer[nodes[np.take(_OUTER, kinds, axis=0)]] = True
         self.outer = outer[netlist.net_ids]
         carrying = _carrying(netlist)
         self.boundary = {netlist.nets[i] for i in np.flatnonzero(carrying & self.outer)}
@@ -287,19 +300,20 @@ class _Sides:
 
     def _check_sensing_inside(self, carrying: np.ndarray) -> None:
         netlist = self.netlist
-        for kind, cols in _SENSES:
-            sensed = netlist[kind].nodes[:, list(cols)]
-            across = ~carrying[sensed] & self.outer[sensed]
-            if across.any():
-                part, col = np.unravel_index(int(np.argmax(across)), across.shape)
-                name, net = netlist[kind].names[part], netlist.nets[sensed[part, col]]
-                parts = self.columns.parts
-                other = next(parts[i].name for i in self.outside.tolist()
-                             if net in parts[i].nets)
-                raise CutError(f"{name} inside the region senses net {net}, which lies "
-                               f"outside it ({other} is connected there); a controlled "
-                               "source and the nets it senses must lie on the same side",
-                               nets=(net,), parts=(name, other))
+        table = netlist.table
+        across = np.take(_SENSED_COLUMNS, netlist.codes, axis=0) & ~carrying[table] & \
+            self.outer[table]
+        if across.any():  # the first in kind, part and column order
+            i, col = np.unravel_index(int(np.argmax(across)), across.shape)
+            kind = list(KINDS)[int(netlist.codes[i])]
+            start = int(np.searchsorted(netlist.codes, netlist.codes[i]))
+            name, net = netlist[kind].names[i - start], netlist.nets[table[i, col]]
+            parts = self.columns.parts
+            other = next(parts[r].name for r in self.outside.tolist() if net in parts[r].nets)
+            raise CutError(f"{name} inside the region senses net {net}, which lies "
+                           f"outside it ({other} is connected there); a controlled "
+                           "source and the nets it senses must lie on the same side",
+                           nets=(net,), parts=(name, other))
 
     def _check_sensing_outside(self, carrying: np.ndarray, sensors: list[Part]) -> None:
         index, netlist = self.netlist.index, self.netlist
@@ -333,9 +347,7 @@ def _carrying(netlist: Netlist) -> np.ndarray:
     """Per net: a part of the netlist can carry current there (kept in its memo)."""
     found = netlist.memo.get("carrying")
     if found is None:
-        found = netlist.memo["carrying"] = np.zeros(netlist.net_count, dtype=bool)
-        for kind, cols in _CARRYING:
-            found[netlist[kind].nodes[:, list(cols)].ravel()] = True
+        found = netlist.memo["carrying"] = netlist.marked(_CARRYING_COLUMNS)
     return found
 
 
@@ -398,7 +410,7 @@ def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
     if n == 0:
         return np.zeros(0, dtype=np.intp)
     if a.size > _SMALL_GRAPH:
-        ends = (a.astype(np.int32), b.astype(np.int32))  # SciPy's own index type: no checks
+        ends = (a.astype(np.int32, copy=False), b.astype(np.int32, copy=False))  # SciPy's own
         graph = sp.csr_matrix((np.ones(a.size, dtype=np.int8), ends), shape=(n, n))
         return connected_components(graph, directed=False)[1]
     parent = list(range(n))
@@ -409,12 +421,16 @@ def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
             parent[v] = v = parent[parent[v]]
         if u != v:
             parent[max(u, v)] = min(u, v)
-    for x in range(n):
-        root = x
-        while parent[root] != root:
-            root = parent[root]
-        parent[x] = root
-    return np.unique(parent, return_inverse=True)[1]
+    # A parent is never above its child, so in increasing order each vertex's parent is
+    # labelled before it; a root (its component's lowest vertex) opens the next label.
+    labels = [0] * n
+    count = 0
+    for x, up in enumerate(parent):
+        if up == x:
+            labels[x], count = count, count + 1
+        else:
+            labels[x] = labels[up]
+    return np.array(labels, dtype=np.intp)
 
 
 def _conducting(netlist: Netlist, dc: bool) -> tuple[tuple[str, tuple[int, int]], ...]:
@@ -588,12 +604,8 @@ def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | Non
 
 
 def _free_current(netlist: Netlist, kind: str) -> np.ndarray:
-    group = netlist[kind]
-    keep = np.ones(len(group), dtype=bool) if kind != "resistor" else group.values == 0
-    if netlist.controllers and len(group):
-        keep &= np.fromiter((n not in netlist.controllers for n in group.names), bool,
-                            len(group))
-    return keep
+    keep = ~netlist.controlling(kind)
+    return keep & (netlist[kind].values == 0) if kind == "resistor" else keep
 
 
 # -- a readable graph ---------------------------------------------------------------------------

@@ -154,6 +154,18 @@ def test_coupling_across_the_boundary() -> None:
         check_cut(c, REGION | {"L1", "K1"}, ("a", GROUND))
 
 
+def test_coupling_of_inductances_of_opposite_signs() -> None:
+    # M = k sqrt(L1 L2) (textbook definition of the coupling coefficient) has no real value
+    # when L1 L2 < 0; the coupling must be refused by name, not fail inside the square root.
+    c = divider()
+    c.inductor("L1", "a", GROUND, "1m")
+    c.inductor("L2", "a", "s", "-1m")
+    c.resistor("RS", "s", GROUND, 10)
+    c.coupling("K1", "L1", "L2", 0.5)
+    with pytest.raises(CircuitError, match="K1 couples inductors of opposite signs"):
+        equivalent(c, REGION | {"L1", "L2", "RS", "K1"}, ("a", GROUND), freq=1e3)
+
+
 # -- existence of a unique solution -------------------------------------------------------------
 def test_loop_of_voltage_sources() -> None:
     c = divider()
