@@ -31,6 +31,7 @@ from __future__ import annotations
 import math
 import warnings
 from collections.abc import Iterable, Iterator, Mapping, Sequence
+from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
@@ -113,8 +114,12 @@ class Netlist:
     ``table[i]`` the net ids of the i-th (``Part.nets`` order, -1 beyond them) and ``codes[i]``
     its kind code; the groups' node arrays are views of ``table``. Couplings are kept with
     their inductor names in ``refs``. A netlist never changes after construction, so results
-    derived from it alone may be kept in ``memo``.
+    derived from it alone may be kept in ``memo``; those under a key tagged (the key, or its
+    first item) with a name in ``STRUCTURAL`` depend on the parts' kinds, nets and references
+    only, and outlive a value edit (:meth:`with_values`).
     """
+
+    STRUCTURAL = frozenset({"carrying", "controlling", "islands"})
 
     __slots__ = ("_nets", "codes", "columns", "controllers", "groups", "index", "memo",
                  "net_ids", "rows", "table")
@@ -140,10 +145,10 @@ class Netlist:
         # counting sort: positions are distinct); the padding falls on a spare last slot.
         listed = np.take(columns.nodes, grouped, axis=0).ravel()
         spare = len(columns.nets)
-        first = np.full(spare + 1, listed.size, dtype=np.intp)
-        np.minimum.at(first, listed, np.arange(listed.size))
-        by_position = np.full(listed.size + 1, -1, dtype=np.intp)
-        by_position[first[:spare]] = np.arange(spare)
+        first = np.full(spare + 1, listed.size, dtype=np.int32)
+        np.minimum.at(first, listed, np.arange(listed.size, dtype=np.int32))
+        by_position = np.full(listed.size + 1, -1, dtype=np.int32)
+        by_position[first[:spare]] = np.arange(spare, dtype=np.int32)
         used = by_position[:-1][by_position[:-1] >= 0]
         local = np.full(spare + 1, -1, dtype=np.int32)
         local[used] = np.arange(used.size)
@@ -209,9 +214,9 @@ class Netlist:
         own parts at most in value; None where they differ otherwise (a part renamed, moved to
         other nets, of another kind or referring to another part).
 
-        Nets and node arrays are shared; where a value changed, what was derived from the old
-        values (``memo``) is not carried over. Costs a few array comparisons, no part by part
-        work.
+        Nets and node arrays are shared; where a value changed, of what was derived from the
+        old parts (``memo``) only the ``STRUCTURAL`` results are carried over. Costs a few array
+        comparisons, no part by part work.
         """
         mine = self.columns
         if not _same_rows(rows, len(columns), self.rows, len(mine)):
@@ -241,7 +246,8 @@ class Netlist:
         netlist._nets, netlist.index, netlist.controllers = self._nets, self.index, self.controllers
         netlist.groups = {kind: Group(columns, g.rows, g.nodes, _group_values(columns, g.rows))
                           for kind, g in self.groups.items()}
-        netlist.memo = {}
+        netlist.memo = {key: found for key, found in self.memo.items()
+                        if (key[0] if isinstance(key, tuple) else key) in self.STRUCTURAL}
         return netlist
 
     @property
@@ -263,11 +269,16 @@ class Netlist:
         transresistances and the inverse of VCCS transconductances; (0, inf) where none.
         """
         w = 2 * np.pi * np.asarray(freqs, dtype=float)
+        spans = self.memo.get("spans")
+        if spans is None:
+            with np.errstate(divide="ignore"):
+                spans = self.memo["spans"] = (
+                    _span(np.abs(self["resistor"].values), np.abs(self["impedance"].values),
+                          np.abs(self["ccvs"].values), 1 / np.abs(self["vccs"].values)),
+                    _span(1 / np.abs(self["capacitor"].values)),    # times 1/w
+                    _span(np.abs(self["inductor"].values)))         # times w
+        fixed, per_farad, per_henry = spans
         with np.errstate(divide="ignore"):
-            fixed = _span(np.abs(self["resistor"].values), np.abs(self["impedance"].values),
-                          np.abs(self["ccvs"].values), 1 / np.abs(self["vccs"].values))
-            per_farad = _span(1 / np.abs(self["capacitor"].values))    # times 1/w
-            per_henry = _span(np.abs(self["inductor"].values))         # times w
             ac = w > 0
             lo = np.full(w.shape, fixed[0])
             hi = np.full(w.shape, fixed[1])
@@ -401,6 +412,30 @@ class Branches:
         return self._offsets
 
 
+@dataclass(frozen=True, slots=True, eq=False)
+class _Entries:
+    """Entries of one matrix (G or M): COO triplets (32-bit indices, as SciPy's sparse formats
+    keep them), and the diagonal terms of admittances, summed per unknown when the matrix is
+    made (``keys``, ``weights``): most entries of a large circuit, kept out of the conversion."""
+
+    rows: np.ndarray
+    cols: np.ndarray
+    vals: np.ndarray
+    keys: np.ndarray
+    weights: np.ndarray
+
+
+def _summed(keys: np.ndarray, weights: np.ndarray, size: int) -> np.ndarray:
+    """Per unknown, the sum of its weights, added in the order given (as SciPy adds duplicate
+    entries); complex sums part by part, which is exact."""
+    if not np.iscomplexobj(weights):
+        return np.bincount(keys, weights, size)
+    out = np.empty(size, dtype=complex)
+    out.real, out.imag = np.bincount(keys, weights.real, size), np.bincount(keys, weights.imag,
+                                                                           size)
+    return out
+
+
 class _Triplets:
     """COO entries collected stamp by stamp, concatenated once; a scalar value is repeated."""
 
@@ -408,6 +443,8 @@ class _Triplets:
         self.rows: list[np.ndarray] = []
         self.cols: list[np.ndarray] = []
         self.vals: list[np.ndarray] = []
+        self.keys: list[np.ndarray] = []
+        self.weights: list[np.ndarray] = []
 
     def add(self, rows: Sequence[np.ndarray], cols: Sequence[np.ndarray],
             vals: Sequence[np.ndarray | float]) -> None:
@@ -417,7 +454,13 @@ class _Triplets:
             self.vals.append(v if isinstance(v, np.ndarray) else np.full(r.size, v))
 
     def admittance(self, a: np.ndarray, b: np.ndarray, y: np.ndarray) -> None:
-        self.add((a, b, a, b), (a, b, b, a), (y, y, -y, -y))
+        """``y`` between a and b: its diagonal terms summed per unknown, the off-diagonal ones
+        only where both ends are unknowns (not pinned)."""
+        self.keys += [a, b]
+        self.weights += [y, y]
+        both = (a >= 0) & (b >= 0)
+        a, b, y = (a, b, -y) if both.all() else (a[both], b[both], -y[both])
+        self.add((a, b), (b, a), (y, y))
 
     def incidence(self, k: np.ndarray, a: np.ndarray, b: np.ndarray) -> None:
         """Branch current k leaves net a and enters net b."""
@@ -428,16 +471,23 @@ class _Triplets:
         """``scale * (V(a) - V(b))`` in row k."""
         self.add((k, k), (a, b), (scale, -scale))
 
-    def arrays(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """Rows, columns (32-bit, as SciPy's sparse formats keep them) and values."""
-        if not self.rows:
-            empty = np.zeros(0, dtype=np.int32)
-            return empty, empty, np.zeros(0)
-        rows = np.concatenate(self.rows, dtype=np.int32)
-        cols = np.concatenate(self.cols, dtype=np.int32)
-        vals = np.concatenate(self.vals)
-        keep = (rows >= 0) & (cols >= 0)  # entries of pinned nets drop out
-        return rows[keep], cols[keep], vals[keep]
+    def entries(self) -> _Entries:
+        empty = np.zeros(0, dtype=np.int32)
+        if self.rows:
+            rows = np.concatenate(self.rows, dtype=np.int32)
+            cols = np.concatenate(self.cols, dtype=np.int32)
+            vals = np.concatenate(self.vals)
+            keep = (rows >= 0) & (cols >= 0)  # entries of pinned nets drop out
+            rows, cols, vals = rows[keep], cols[keep], vals[keep]
+        else:
+            rows, cols, vals = empty, empty, np.zeros(0)
+        if self.keys:
+            keys, weights = np.concatenate(self.keys), np.concatenate(self.weights)
+            keep = keys >= 0
+            keys, weights = keys[keep], weights[keep]
+        else:
+            keys, weights = empty, np.zeros(0)
+        return _Entries(rows, cols, vals, keys, weights)
 
 
 class System:
@@ -450,8 +500,7 @@ class System:
     """
 
     def __init__(self, netlist: Netlist, unknown_of_net: np.ndarray, n_nodes: int,
-                 short: int | None, g: tuple[np.ndarray, np.ndarray, np.ndarray],
-                 m: tuple[np.ndarray, np.ndarray, np.ndarray], b: np.ndarray) -> None:
+                 short: int | None, g: _Entries, m: _Entries, b: np.ndarray) -> None:
         self.netlist = netlist
         self.unknown_of_net = unknown_of_net
         self.n_nodes = n_nodes
@@ -459,8 +508,7 @@ class System:
         self.size = b.shape[0]
         self.b = b
         self._g, self._m = g, m
-        self._rows = np.concatenate((g[0], m[0]))
-        self._cols = np.concatenate((g[1], m[1]))
+        self._layouts: dict[tuple[bool, ...], tuple[np.ndarray, ...]] = {}
         self.symmetric = not netlist.has_dependent
         self._branch_of: dict[str, int] | None = None
         self._last: tuple[float, sp.csc_matrix] | None = None
@@ -480,24 +528,42 @@ class System:
             self._last = (freq, self._matrix(freq))
         return self._last[1]
 
+    def _layout(self, *entries: _Entries) -> tuple[np.ndarray, ...]:
+        """For a sum of ``entries``: every diagonal key, the unknowns they touch, and the rows
+        and columns of the matrix (those diagonal entries first, then the triplets')."""
+        key = tuple(e is self._m for e in entries)
+        found = self._layouts.get(key)
+        if found is None:
+            keys = np.concatenate([e.keys for e in entries])
+            touched = np.flatnonzero(np.bincount(keys, minlength=self.size)).astype(np.int32)
+            rows = np.concatenate([touched, *(e.rows for e in entries)])
+            cols = np.concatenate([touched, *(e.cols for e in entries)])
+            found = self._layouts[key] = (keys, touched, rows, cols)
+        return found
+
+    def _compressed(self, entries: Sequence[_Entries], scales: Sequence[complex | None],
+                    form: type[sp.spmatrix]) -> sp.spmatrix:
+        """The sum of ``entries``, each times its scale (None: 1), in ``form``."""
+        keys, touched, rows, cols = self._layout(*entries)
+        weights, vals = [], []
+        for e, scale in zip(entries, scales, strict=True):
+            weights.append(e.weights if scale is None else scale * e.weights)
+            vals.append(e.vals if scale is None else scale * e.vals)
+        diagonal = _summed(keys, np.concatenate(weights), self.size)[touched]
+        data = np.concatenate([diagonal, *vals])
+        if np.iscomplexobj(data) or np.iscomplexobj(self.b):
+            data = data.astype(complex, copy=False)
+        return form((data, (rows, cols)), shape=(self.size, self.size))
+
     def _matrix(self, freq: float) -> sp.csc_matrix:
-        n = self.size
-        if freq == 0 or self._m[2].size == 0:
-            rows, cols, vals = self._g
-        else:
-            s = 2j * math.pi * freq
-            rows, cols = self._rows, self._cols
-            vals = np.concatenate((self._g[2], s * self._m[2]))
-        if np.iscomplexobj(vals) or np.iscomplexobj(self.b):
-            vals = vals.astype(complex, copy=False)
-        return sp.csc_matrix((vals, (rows, cols)), shape=(n, n))
+        if freq == 0 or not (self._m.vals.size or self._m.keys.size):
+            return self._compressed((self._g,), (None,), sp.csc_matrix)
+        return self._compressed((self._g, self._m), (None, 2j * math.pi * freq), sp.csc_matrix)
 
     def parts(self) -> tuple[sp.csr_matrix, sp.csr_matrix]:
-        """G and M separately (CSR, duplicates summed), for batched sweeps."""
-        n = self.size
-        g = sp.csr_matrix((self._g[2].astype(complex), self._g[:2]), shape=(n, n))
-        m = sp.csr_matrix((self._m[2].astype(complex), self._m[:2]), shape=(n, n))
-        return g, m
+        """G and M separately (CSR, complex, duplicates summed), for batched sweeps."""
+        g, m = (self._compressed((e,), (None,), sp.csr_matrix) for e in (self._g, self._m))
+        return g.astype(complex), m.astype(complex)
 
     def rhs(self, net: str | None = None) -> np.ndarray:
         """A unit current into ``net`` (sources zeroed); ``None``: the port short at 1 V."""
@@ -626,7 +692,7 @@ def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | N
         a, bb = u[np.array([short[0]])], u[np.array([short[1]])]
         g.incidence(k, a, bb)
         g.voltage_row(k, a, bb)
-    return System(netlist, u, n_nodes, short_index, g.arrays(), m.arrays(), b)
+    return System(netlist, u, n_nodes, short_index, g.entries(), m.entries(), b)
 
 
 def _control_indices(netlist: Netlist, n_nodes: int) -> dict[str, np.ndarray]:

@@ -204,13 +204,23 @@ def netlist_of(columns: Columns, rows: np.ndarray | None = None) -> Netlist:
 
 def _keep(netlist: Netlist) -> Netlist:
     _RECENT.insert(0, netlist)
-    del _RECENT[_KEEP:]
+    _drop(_KEEP)
     return netlist
+
+
+def _drop(keep: int) -> None:
+    """Drop all but the first ``keep`` kept netlists. What their memos hold (systems,
+    matrices) refers back to them; clearing the memos frees that memory at once instead of at
+    the next cyclic garbage collection, which a first analysis would otherwise pay for in
+    fresh pages."""
+    for netlist in _RECENT[keep:]:
+        netlist.memo.clear()
+    del _RECENT[keep:]
 
 
 def forget_netlists() -> None:
     """Drop the kept netlists (benchmarks use it to time a first analysis)."""
-    _RECENT.clear()
+    _drop(0)
 
 
 def _region_names(region: Collection[str]) -> set[str]:
@@ -559,8 +569,13 @@ class Islands:
 
 def islands(netlist: Netlist, dc: bool, references: Sequence[str],
             short: tuple[int, int] | None = None) -> Islands:
-    """The :class:`Islands` of ``netlist`` (``short``: net ids of a port short to include)."""
-    return Islands(netlist, dc, references, short)
+    """The :class:`Islands` of ``netlist`` (``short``: net ids of a port short to include),
+    kept in its memo: they depend on which parts conduct where, not on their values."""
+    key = ("islands", dc, tuple(references), short)
+    found = netlist.memo.get(key)
+    if found is None:
+        found = netlist.memo[key] = Islands(netlist, dc, references, short)
+    return found
 
 
 # -- loops of voltage-defined branches ----------------------------------------------------------

@@ -15,7 +15,14 @@ from test_errors import REGION, divider
 
 from engine import GROUND, Circuit, CutError, SingularCircuitError, check_cut, equivalent
 from engine.mna import Netlist
-from engine.topology import check_voltage_loops, circuit_graph, cut, islands, netlist_of
+from engine.topology import (
+    check_voltage_loops,
+    circuit_graph,
+    cut,
+    forget_netlists,
+    islands,
+    netlist_of,
+)
 
 
 def transformer(grounded_secondary: bool) -> Circuit:
@@ -190,9 +197,13 @@ def test_a_value_edit_patches_the_kept_netlist() -> None:
     region = REGION | {"W1", "RW"}
     first = cut(c, region, ("a", GROUND)).netlist
     assert cut(c, region, ("a", GROUND)).netlist is first
+    found, _ = islands(first, False, (GROUND,)), first.branches()
     edited = c.replaced([replace(c["R2"], value="2k2"), replace(c["W1"], value=0)])
     patched = cut(edited, region, ("a", GROUND)).netlist
     assert patched is not first and patched.nets == first.nets
+    # which parts conduct where is kept; what the values decide is not
+    assert islands(patched, False, (GROUND,)) is found
+    assert "branches" not in patched.memo
     fresh = Netlist(list(edited.subcircuit(region)))
     for kind, group in fresh.groups.items():
         assert np.array_equal(patched[kind].values, group.values)
@@ -225,6 +236,26 @@ def test_a_region_netlist_from_the_columns_equals_one_built_from_its_parts() -> 
             assert kept[kind].values.dtype == group.values.dtype
             assert kept[kind].names == group.names and kept[kind].refs == group.refs
         assert kept.parts == built.parts and kept.controllers == built.controllers
+
+
+def test_dropped_netlists_free_what_they_kept_without_a_garbage_collection() -> None:
+    # A kept system refers back to its netlist; dropping the netlist must free it at once, not
+    # leave the cycle (and its arrays) to a later collection.
+    import gc
+    import weakref
+
+    c = divider()
+    equivalent(c, REGION, ("a", GROUND))
+    netlist = cut(c, REGION, ("a", GROUND)).netlist
+    kept = [weakref.ref(v) for k, v in netlist.memo.items() if isinstance(k, tuple)
+            and k[0] == "port"]
+    assert kept
+    gc.disable()
+    try:
+        forget_netlists()
+        assert all(ref() is None for ref in kept)
+    finally:
+        gc.enable()
 
 
 def test_the_docstring_examples_run() -> None:
