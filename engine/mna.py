@@ -95,6 +95,7 @@ _NO_ROWS = np.zeros(0, dtype=np.intp)
 _EMPTY = Group(Columns.of(()), _NO_ROWS, np.zeros((0, 4), dtype=np.int32), np.zeros(0))
 #: Net ids per part of each kind (``Part.nets``: the op-amp's ground return included).
 _WIDTH = [len(roles) + (kind == "opamp") for kind, roles in KINDS.items()]
+_KIND_NAMES = list(KINDS)
 #: Kinds whose parts name other parts (``refs``).
 _REFERRING = ("ccvs", "cccs", "coupling")
 
@@ -154,17 +155,17 @@ class Netlist:
         local[used] = np.arange(used.size)
         table = np.take(local, listed).reshape(-1, NET_COLUMNS)
         values = np.take(columns.values, grouped)
-        complex_valued = np.take(columns.complex_valued, grouped)
+        spans = [(kind, start, end, width) for kind, start, end, width
+                 in zip(KINDS, [0, *ends[:-1]], ends, _WIDTH, strict=True) if end > start]
+        # per kind: real values unless one was given as complex
+        complex_kinds = np.logical_or.reduceat(np.take(columns.complex_valued, grouped),
+                                               [start for _, start, _, _ in spans]) \
+            if spans else []
+        real = values.real.copy()
         self.groups: dict[str, Group] = {}
-        start = 0
-        for kind, end, width in zip(KINDS, ends, _WIDTH, strict=True):
-            if end > start:
-                group_values = values[start:end]
-                if not complex_valued[start:end].any():
-                    group_values = group_values.real.copy()
-                self.groups[kind] = Group(columns, grouped[start:end], table[start:end, :width],
-                                          group_values)
-            start = end
+        for (kind, start, end, width), complex_kind in zip(spans, complex_kinds, strict=True):
+            self.groups[kind] = Group(columns, grouped[start:end], table[start:end, :width],
+                                      (values if complex_kind else real)[start:end])
         self.columns, self.rows, self.net_ids = columns, rows, used
         self.table, self.codes = table, np.take(kinds, order)
         self.index: Mapping[str, int] = _NetIndex(columns, local, used)
@@ -278,7 +279,7 @@ class Netlist:
                     _span(1 / np.abs(self["capacitor"].values)),    # times 1/w
                     _span(np.abs(self["inductor"].values)))         # times w
         fixed, per_farad, per_henry = spans
-        with np.errstate(divide="ignore"):
+        with np.errstate(divide="ignore", over="ignore"):  # absurd frequencies: inf, not noise
             ac = w > 0
             lo = np.full(w.shape, fixed[0])
             hi = np.full(w.shape, fixed[1])
@@ -355,7 +356,7 @@ class Branches:
     a branch current (``where``) and the offset of the first among the branch unknowns
     (``first``); ``offset_of`` maps a part name to its offset."""
 
-    __slots__ = ("_offsets", "count", "first", "netlist", "offset_by_row", "where")
+    __slots__ = ("_offsets", "count", "first", "netlist", "where")
 
     def __init__(self, netlist: Netlist) -> None:
         self.netlist = netlist
@@ -377,20 +378,25 @@ class Branches:
                 self.where[kind], self.first[kind] = where, count
                 count += where.size
         self.count = count
-        #: per row of the netlist's columns: the offset of that part's branch current, or -1
-        self.offset_by_row = np.full(len(netlist.columns), -1, dtype=np.intp)
-        for kind, where in self.where.items():
-            self.offset_by_row[netlist[kind].rows[where]] = np.arange(
-                self.first[kind], self.first[kind] + where.size)
         self._offsets: dict[str, int] | None = None
 
     def offset(self, name: str) -> int | None:
-        """The branch-current offset of part ``name``; None where it has none."""
-        row = self.netlist.columns.row_of(name)
+        """The branch-current offset of part ``name``; None where it has none (or is not in the
+        netlist). A group's rows and ``where`` ascend, so two binary searches find it."""
+        columns = self.netlist.columns
+        row = columns.row_of(name)
         if row is None:
             return None
-        found = int(self.offset_by_row[row])
-        return found if found >= 0 else None
+        kind = _KIND_NAMES[int(columns.kinds[row])]
+        where = self.where.get(kind)
+        if where is None:
+            return None
+        rows = self.netlist[kind].rows
+        at = int(np.searchsorted(rows, row))
+        if at == rows.size or rows[at] != row:
+            return None
+        i = int(np.searchsorted(where, at))
+        return self.first[kind] + i if i < where.size and where[i] == at else None
 
     def plain(self, kind: str) -> np.ndarray | slice:
         """Selector of the parts of ``kind`` without a branch current."""
@@ -546,10 +552,11 @@ class System:
         """The sum of ``entries``, each times its scale (None: 1), in ``form``."""
         keys, touched, rows, cols = self._layout(*entries)
         weights, vals = [], []
-        for e, scale in zip(entries, scales, strict=True):
-            weights.append(e.weights if scale is None else scale * e.weights)
-            vals.append(e.vals if scale is None else scale * e.vals)
-        diagonal = _summed(keys, np.concatenate(weights), self.size)[touched]
+        with np.errstate(over="ignore", invalid="ignore"):  # inf at absurd frequencies
+            for e, scale in zip(entries, scales, strict=True):
+                weights.append(e.weights if scale is None else scale * e.weights)
+                vals.append(e.vals if scale is None else scale * e.vals)
+            diagonal = _summed(keys, np.concatenate(weights), self.size)[touched]
         data = np.concatenate([diagonal, *vals])
         if np.iscomplexobj(data) or np.iscomplexobj(self.b):
             data = data.astype(complex, copy=False)
@@ -753,6 +760,9 @@ class Singular(SingularCircuitError):
 def _culprits(system: System, matrix: sp.spmatrix | None) -> str:
     """Undetermined unknowns (from a structural matching) and the parts that usually cause it."""
     hints = []
+    if matrix is not None and not np.isfinite(matrix.data).all():
+        return (": some part impedances overflow double precision at this frequency; "
+                "analyse at a frequency nearer the parts' own scale")
     if matrix is not None and matrix.shape[0]:
         rows, cols = matrix.nonzero()
         pattern = sp.csr_matrix((np.ones(rows.size), (rows, cols)), shape=matrix.shape)

@@ -429,8 +429,10 @@ def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
             parent[u] = u = parent[parent[u]]
         while parent[v] != v:
             parent[v] = v = parent[parent[v]]
-        if u != v:
-            parent[max(u, v)] = min(u, v)
+        if u < v:
+            parent[v] = u
+        elif v < u:
+            parent[u] = v
     # A parent is never above its child, so in increasing order each vertex's parent is
     # labelled before it; a root (its component's lowest vertex) opens the next label.
     labels = [0] * n

@@ -244,6 +244,17 @@ def test_nothing_but_circuit_errors_and_no_warnings() -> None:
                 sweep(c, REGION | {"U1", "RO"}, [freq, 2e3], ("a", GROUND))
 
 
+def test_impedances_overflowing_at_an_absurd_frequency() -> None:
+    # 2 pi f C overflows double precision (IEEE 754 binary64 tops out near 1.8e308) for a
+    # 10 GF capacitor at 1e300 Hz: a clear refusal, no overflow warning.
+    c = divider()
+    c.capacitor("C1", "a", GROUND, 1e10)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        with pytest.raises(SingularCircuitError, match="overflow double precision"):
+            equivalent(c, REGION | {"C1"}, ("a", GROUND), 1e300)
+
+
 # -- arguments ----------------------------------------------------------------------------------
 @pytest.mark.parametrize("freq", [-1, "fast", float("nan"), float("inf"), 1j])
 def test_bad_frequency(freq: object) -> None:
