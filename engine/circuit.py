@@ -138,9 +138,10 @@ class Circuit:
         """Rows (circuit order) of the parts named in ``names``, None where it names every
         part; names of no part are passed over."""
         parts = self._parts
-        if len(names) >= len(parts) and names.issuperset(parts):
+        # set against set compares stored hashes, without hashing each name again
+        if len(names) == len(parts) and names == self._store.named:
             return None
-        return np.flatnonzero(np.fromiter(map(names.__contains__, parts), bool, len(parts)))
+        return np.fromiter(map(names.__contains__, parts), bool, len(parts)).nonzero()[0]
 
     def columns(self) -> Columns:
         """The parts as arrays (see :class:`Columns`); kept until the next :meth:`add`."""
@@ -256,8 +257,8 @@ class Columns:
     with -1; ``values[i]`` its value as a complex number and ``complex_valued[i]`` whether the
     value was given as one. A net id indexes ``nets`` (``net_id`` maps a name back), a register
     that circuits derived from one another share and only ever extend, so it may name nets no
-    part of this circuit touches; ``row`` (a part name to its row) is shared the same way, so
-    :meth:`row_of` checks what it finds.
+    part of this circuit touches. ``row`` maps a part name to its row; it is the circuit's own
+    and grows as parts are added, so :meth:`row_of` ignores rows added after these columns.
     """
 
     kinds: np.ndarray
@@ -276,8 +277,7 @@ class Columns:
     def row_of(self, name: str) -> int | None:
         """The row of part ``name``, None where there is no such part."""
         row = self.row.get(name)
-        return row if row is not None and row < len(self.names) and \
-            self.names[row] == name else None
+        return row if row is not None and row < len(self.parts) else None
 
     @classmethod
     def of(cls, parts: Iterable[Part]) -> Columns:
@@ -290,7 +290,7 @@ class Columns:
 
     def rows_of(self, kinds: Iterable[str]) -> np.ndarray:
         """Rows of the parts of the given kinds, in circuit order."""
-        return np.flatnonzero(kind_mask(kinds)[self.kinds])
+        return kind_mask(kinds)[self.kinds].nonzero()[0]
 
 
 def kind_mask(kinds: Iterable[str]) -> np.ndarray:
@@ -307,11 +307,12 @@ class _Store:
     A store made by :meth:`replaced` starts from columns alone, sharing the unchanged arrays
     with the store it came from; it makes growing arrays only if parts are added to it. The net
     register (``net_id``, ``nets``) is shared with the stores made from this one: it only grows
-    and a name keeps its id, so sharing cannot make an id wrong. ``row`` (part name to row) is
-    shared the same way and copied before this store first appends to it.
+    and a name keeps its id, so sharing cannot make an id wrong. ``row`` (part name to row) and
+    ``named`` (the part names, as a set) are shared too, and copied by whichever store appends
+    first.
     """
 
-    __slots__ = ("_columns", "_growing", "_own_rows", "net_id", "nets", "row")
+    __slots__ = ("_columns", "_growing", "_owns", "named", "net_id", "nets", "row")
 
     def __init__(self) -> None:
         self._growing: _Growing | None = _Growing()
@@ -319,12 +320,14 @@ class _Store:
         self.net_id: dict[str, int] = {}
         self.nets: list[str] = []
         self.row: dict[str, int] = {}
-        self._own_rows = True
+        self.named: set[str] = set()
+        self._owns = True  # row and named are this store's alone
 
     def _derived(self, columns: Columns) -> _Store:
         new = _Store.__new__(_Store)
         new._growing, new._columns = None, columns
-        new.net_id, new.nets, new.row, new._own_rows = self.net_id, self.nets, self.row, False
+        new.net_id, new.nets, new.row, new.named = self.net_id, self.nets, self.row, self.named
+        new._owns = self._owns = False
         return new
 
     def copy(self, parts: dict[str, Part]) -> _Store:
@@ -364,18 +367,19 @@ class _Store:
 
     def append(self, part: Part) -> None:
         # one call per added part, kept lean: it is most of what add() spends here
-        if not self._own_rows:
-            self.row, self._own_rows = dict(self.row), True
+        if not self._owns:
+            self.row, self.named, self._owns = dict(self.row), set(self.named), True
         growing = self._growing
         if growing is None:
             assert self._columns is not None
             growing = self._growing = _Growing.of(self._columns)
         self.row[part.name] = len(growing.kinds)
+        self.named.add(part.name)
         growing.kinds.append(KIND_CODE[part.kind])
         ids = self._ids(part.nets)
-        growing.nodes.extend(ids + _PAD[len(ids)])
+        growing.nodes.fromlist(ids + _PAD[len(ids)])  # fromlist: the fastest way in
         value = part.value
-        growing.values.extend((value.real, value.imag))
+        growing.values.fromlist([value.real, value.imag])
         growing.flags.append(isinstance(value, complex))
         self._columns = None
 

@@ -30,7 +30,7 @@ from __future__ import annotations
 
 import math
 import warnings
-from collections.abc import Iterable, Iterator, Mapping, Sequence
+from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -95,7 +95,6 @@ _NO_ROWS = np.zeros(0, dtype=np.intp)
 _EMPTY = Group(Columns.of(()), _NO_ROWS, np.zeros((0, 4), dtype=np.int32), np.zeros(0))
 #: Net ids per part of each kind (``Part.nets``: the op-amp's ground return included).
 _WIDTH = [len(roles) + (kind == "opamp") for kind, roles in KINDS.items()]
-_KIND_NAMES = list(KINDS)
 #: Kinds whose parts name other parts (``refs``).
 _REFERRING = ("ccvs", "cccs", "coupling")
 
@@ -137,28 +136,29 @@ class Netlist:
 
     def _build(self, columns: Columns, rows: np.ndarray | None) -> None:
         # (np.take: row gathers several times faster than fancy indexing)
-        kinds = columns.kinds if rows is None else np.take(columns.kinds, rows)
-        order = np.argsort(kinds, kind="stable")
-        grouped = order if rows is None else np.take(rows, order)  # by kind, in circuit order
-        ends = np.cumsum(np.bincount(kinds, minlength=len(KINDS))).tolist()
+        # (array methods, not the numpy functions: a Python-level wrapper costs microseconds)
+        kinds = columns.kinds if rows is None else columns.kinds.take(rows)
+        order = kinds.argsort(kind="stable")
+        grouped = order if rows is None else rows.take(order)  # by kind, in circuit order
+        ends = np.bincount(kinds, minlength=len(KINDS)).cumsum().tolist()
         # Every part's net ids, kind by kind, part by part (-1 pads a row) is the order of first
         # use. A net's first position in that listing, then the nets by first position (a
         # counting sort: positions are distinct); the padding falls on a spare last slot.
-        listed = np.take(columns.nodes, grouped, axis=0).ravel()
+        listed = columns.nodes.take(grouped, axis=0).ravel()
         spare = len(columns.nets)
-        first = np.full(spare + 1, listed.size, dtype=np.int32)
+        first = _filled(spare + 1, listed.size, np.int32)
         np.minimum.at(first, listed, np.arange(listed.size, dtype=np.int32))
-        by_position = np.full(listed.size + 1, -1, dtype=np.int32)
+        by_position = _filled(listed.size + 1, -1, np.int32)
         by_position[first[:spare]] = np.arange(spare, dtype=np.int32)
         used = by_position[:-1][by_position[:-1] >= 0]
-        local = np.full(spare + 1, -1, dtype=np.int32)
+        local = _filled(spare + 1, -1, np.int32)
         local[used] = np.arange(used.size)
-        table = np.take(local, listed).reshape(-1, NET_COLUMNS)
-        values = np.take(columns.values, grouped)
+        table = local.take(listed).reshape(-1, NET_COLUMNS)
+        values = columns.values.take(grouped)
         spans = [(kind, start, end, width) for kind, start, end, width
                  in zip(KINDS, [0, *ends[:-1]], ends, _WIDTH, strict=True) if end > start]
         # per kind: real values unless one was given as complex
-        complex_kinds = np.logical_or.reduceat(np.take(columns.complex_valued, grouped),
+        complex_kinds = np.logical_or.reduceat(columns.complex_valued.take(grouped),
                                                [start for _, start, _, _ in spans]) \
             if spans else []
         real = values.real.copy()
@@ -167,7 +167,7 @@ class Netlist:
             self.groups[kind] = Group(columns, grouped[start:end], table[start:end, :width],
                                       (values if complex_kind else real)[start:end])
         self.columns, self.rows, self.net_ids = columns, rows, used
-        self.table, self.codes = table, np.take(kinds, order)
+        self.table, self.codes = table, kinds.take(order)
         self.index: Mapping[str, int] = _NetIndex(columns, local, used)
         self._nets: list[str] | None = None
         self.controllers: set[str] = {r[0] for kind in _CONTROLLED for r in self[kind].refs}
@@ -180,7 +180,7 @@ class Netlist:
         """Per net: True where a part has a node column marked in ``spec`` (a boolean per kind
         code and node column) on it."""
         found = np.zeros(self.net_count, dtype=bool)
-        found[self.table[np.take(spec, self.codes, axis=0)]] = True
+        found[self.table[spec.take(self.codes, axis=0)]] = True
         return found
 
     def controlling(self, kind: str) -> np.ndarray:
@@ -325,6 +325,13 @@ class _NetIndex(Mapping[str, int]):
         return self._used.size
 
 
+def _filled(size: int, value: object, dtype: type | np.dtype) -> np.ndarray:
+    """``np.full`` without its Python-level overhead (called for every stamp)."""
+    out = np.empty(size, dtype=dtype)
+    out.fill(value)
+    return out
+
+
 def _same_rows(a: np.ndarray | None, size_a: int, b: np.ndarray | None, size_b: int) -> bool:
     """Whether two selections of rows (None: all ``size`` rows) pick the same rows."""
     if a is None or b is None:
@@ -356,7 +363,7 @@ class Branches:
     a branch current (``where``) and the offset of the first among the branch unknowns
     (``first``); ``offset_of`` maps a part name to its offset."""
 
-    __slots__ = ("_offsets", "count", "first", "netlist", "where")
+    __slots__ = ("_by_row", "_offsets", "count", "first", "netlist", "where")
 
     def __init__(self, netlist: Netlist) -> None:
         self.netlist = netlist
@@ -373,37 +380,34 @@ class Branches:
                 mask = netlist.controlling(kind)
                 if kind == "resistor":
                     mask = mask | (group.values == 0)
-                where = np.flatnonzero(mask)
+                where = mask.nonzero()[0]
             if where.size:
                 self.where[kind], self.first[kind] = where, count
                 count += where.size
         self.count = count
         self._offsets: dict[str, int] | None = None
+        self._by_row: np.ndarray | None = None
 
     def offset(self, name: str) -> int | None:
         """The branch-current offset of part ``name``; None where it has none (or is not in the
-        netlist). A group's rows and ``where`` ascend, so two binary searches find it."""
-        columns = self.netlist.columns
-        row = columns.row_of(name)
+        netlist)."""
+        row = self.netlist.columns.row_of(name)
         if row is None:
             return None
-        kind = _KIND_NAMES[int(columns.kinds[row])]
-        where = self.where.get(kind)
-        if where is None:
-            return None
-        rows = self.netlist[kind].rows
-        at = int(np.searchsorted(rows, row))
-        if at == rows.size or rows[at] != row:
-            return None
-        i = int(np.searchsorted(where, at))
-        return self.first[kind] + i if i < where.size and where[i] == at else None
+        if self._by_row is None:  # per row of the columns: the branch offset there, or -1
+            self._by_row = np.full(len(self.netlist.columns), -1, dtype=np.intp)
+            for kind, where in self.where.items():
+                self._by_row[self.netlist[kind].rows[where]] = np.arange(
+                    self.first[kind], self.first[kind] + where.size)
+        found = int(self._by_row[row])
+        return found if found >= 0 else None
 
     def plain(self, kind: str) -> np.ndarray | slice:
         """Selector of the parts of ``kind`` without a branch current."""
         where = self.where.get(kind)
         if where is None:
             return slice(None)
-        keep = np.ones(len(self.netlist[kind]), dtype=bool)
+        keep = _filled(len(self.netlist[kind]), True, bool)
         keep[where] = False
         return keep
 
@@ -457,7 +461,7 @@ class _Triplets:
         for r, c, v in zip(rows, cols, vals, strict=True):
             self.rows.append(r)
             self.cols.append(c)
-            self.vals.append(v if isinstance(v, np.ndarray) else np.full(r.size, v))
+            self.vals.append(v if isinstance(v, np.ndarray) else _filled(r.size, v, float))
 
     def admittance(self, a: np.ndarray, b: np.ndarray, y: np.ndarray) -> None:
         """``y`` between a and b: its diagonal terms summed per unknown, the off-diagonal ones
@@ -541,7 +545,7 @@ class System:
         found = self._layouts.get(key)
         if found is None:
             keys = np.concatenate([e.keys for e in entries])
-            touched = np.flatnonzero(np.bincount(keys, minlength=self.size)).astype(np.int32)
+            touched = np.bincount(keys, minlength=self.size).nonzero()[0].astype(np.int32)
             rows = np.concatenate([touched, *(e.rows for e in entries)])
             cols = np.concatenate([touched, *(e.cols for e in entries)])
             found = self._layouts[key] = (keys, touched, rows, cols)
@@ -597,8 +601,8 @@ class System:
         return names
 
 
-def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | None = None
-             ) -> System:
+def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
+             short: tuple[int, int] | None = None) -> System:
     """Assemble the MNA system of ``netlist`` with the net ids in ``pinned`` as references.
 
     ``short``: net ids (plus, minus) joined by an ideal 0 V branch (the shorted port), whose
@@ -607,11 +611,11 @@ def assemble(netlist: Netlist, pinned: Iterable[int], short: tuple[int, int] | N
     that is not among the parts, or a coupling an inductor that is not.
     """
     n_nets = netlist.net_count
-    u = np.full(n_nets, -1, dtype=np.int32)  # unknown of each net id; -1 where pinned
-    is_node = np.ones(n_nets, dtype=bool)
-    is_node[np.fromiter(pinned, dtype=np.intp)] = False
+    u = _filled(n_nets, -1, np.int32)  # unknown of each net id; -1 where pinned
+    is_node = _filled(n_nets, True, bool)
+    is_node[np.asarray(pinned, dtype=np.intp)] = False
     n_nodes = int(is_node.sum())
-    u[is_node] = np.arange(n_nodes)
+    u[is_node] = np.arange(n_nodes, dtype=np.int32)
 
     branches = netlist.branches()
     size = n_nodes + branches.count

@@ -173,9 +173,9 @@ def _region_rows(circuit: Circuit, names: set[str]) -> np.ndarray | None:
 def _complement(rows: np.ndarray | None, size: int) -> np.ndarray:
     if rows is None:
         return np.zeros(0, dtype=np.intp)
-    keep = np.ones(size, dtype=bool)
-    keep[rows] = False
-    return np.flatnonzero(keep)
+    keep = np.zeros(size, dtype=bool)
+    keep[rows] = True
+    return (~keep).nonzero()[0]
 
 
 #: The netlists of the last few regions, each tied to the columns it was built from.
@@ -298,12 +298,12 @@ class _Sides:
         if not outside.size:  # the whole circuit: no boundary, nothing sensed across it
             return
         outer = np.zeros(len(columns.nets), dtype=bool)
-        kinds = np.take(columns.kinds, outside)
-        nodes = np.take(columns.nodes, outside, axis=0)
-        outer[nodes[np.take(_OUTER, kinds, axis=0)]] = True
+        kinds = columns.kinds.take(outside)
+        nodes = columns.nodes.take(outside, axis=0)
+        outer[nodes[_OUTER.take(kinds, axis=0)]] = True
         self.outer = outer[netlist.net_ids]
         carrying = _carrying(netlist)
-        self.boundary = {netlist.nets[i] for i in np.flatnonzero(carrying & self.outer)}
+        self.boundary = {netlist.nets[i] for i in (carrying & self.outer).nonzero()[0]}
         self._check_sensing_inside(carrying)
         sensing = outside[kind_mask(_SENSING)[kinds]]
         self._check_sensing_outside(carrying, [columns.parts[i] for i in sensing.tolist()])
@@ -311,7 +311,7 @@ class _Sides:
     def _check_sensing_inside(self, carrying: np.ndarray) -> None:
         netlist = self.netlist
         table = netlist.table
-        across = np.take(_SENSED_COLUMNS, netlist.codes, axis=0) & ~carrying[table] & \
+        across = _SENSED_COLUMNS.take(netlist.codes, axis=0) & ~carrying[table] & \
             self.outer[table]
         if across.any():  # the first in kind, part and column order
             i, col = np.unravel_index(int(np.argmax(across)), across.shape)
@@ -598,13 +598,8 @@ def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | Non
     a, b = _pairs(netlist, spec, masks)
     if short is not None:
         a, b = np.append(a, short[0]), np.append(b, short[1])
-    if not a.size:
+    if not _has_loop(a, b):
         return
-    used, local = np.unique(np.concatenate((a, b)), return_inverse=True)
-    la, lb = local[: a.size], local[a.size:]
-    n_components = int(_components(used.size, la, lb).max()) + 1
-    if a.size <= used.size - n_components:
-        return  # a forest: no loop
     names = [n for kind, _ in spec for n, keep in zip(netlist[kind].names, masks[kind].tolist(),
                                                       strict=True) if keep]
     if short is not None:
@@ -618,6 +613,31 @@ def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | Non
         f"{_listing(loop)} form a loop of voltage-defined branches{notes}: the current around "
         "it is undetermined and its voltages may contradict; break the loop (e.g. add a series "
         "resistance)")
+
+
+def _has_loop(a: np.ndarray, b: np.ndarray) -> bool:
+    """Whether the edges (a[i], b[i]) close a loop (a self-loop or a parallel pair counts)."""
+    if a.size > _SMALL_GRAPH:  # a forest has as many edges as vertices less components
+        used, local = np.unique(np.concatenate((a, b)), return_inverse=True)
+        n_components = int(_components(used.size, local[:a.size], local[a.size:]).max()) + 1
+        return a.size > used.size - n_components
+    parent: dict[int, int] = {}  # union-find on the edges' own vertices: the first edge whose
+    for u, v in zip(a.tolist(), b.tolist(), strict=True):  # ends are joined already closes one
+        u, v = _root(parent, u), _root(parent, v)
+        if u == v:
+            return True
+        parent[u] = v
+    return False
+
+
+def _root(parent: dict[int, int], x: int) -> int:
+    """The root of x, halving the path on the way (a vertex absent from ``parent`` is one)."""
+    while x in parent:
+        up = parent[x]
+        if up in parent:
+            parent[x] = parent[up]
+        x = up
+    return x
 
 
 def _free_current(netlist: Netlist, kind: str) -> np.ndarray:

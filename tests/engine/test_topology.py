@@ -144,6 +144,20 @@ def test_voltage_loops_name_their_parts() -> None:
         check_voltage_loops(netlist, dc=True)
 
 
+@pytest.mark.parametrize("wires", [5, 1200])  # a few, and more than the small-graph path takes
+def test_a_chain_of_wires_is_no_loop_until_it_closes(wires: int) -> None:
+    # graph theory: a path has one edge fewer than vertices; one more edge between its ends
+    # closes a cycle (common practice for loops of ideal wires)
+    c = Circuit()
+    c.voltage_source("V1", "w0", GROUND, 1)
+    for i in range(wires):
+        c.resistor(f"W{i}", f"w{i}", f"w{i + 1}", 0)
+    check_voltage_loops(Netlist(list(c)), dc=True)
+    c.resistor("WX", f"w{wires}", GROUND, 0)
+    with pytest.raises(SingularCircuitError, match=r"(?=.*V1)(?=.*WX).*loop of voltage-defined"):
+        check_voltage_loops(Netlist(list(c)), dc=True)
+
+
 def test_a_source_loop_whose_current_controls_another_source_is_allowed() -> None:
     # V(a) = 1 V is also set by DS1 = 2 Ω * I(V1): that fixes I(V1) = 0.5 A, so the parallel
     # pair has a unique solution (KCL at a then fixes I(DS1)).
