@@ -420,8 +420,9 @@ def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
     if n == 0:
         return np.zeros(0, dtype=np.intp)
     if a.size > _SMALL_GRAPH:
-        ends = (a.astype(np.int32, copy=False), b.astype(np.int32, copy=False))  # SciPy's own
-        graph = sp.csr_matrix((np.ones(a.size, dtype=np.int8), ends), shape=(n, n))
+        # SciPy's own index and value types: connected_components copies anything else
+        ends = (a.astype(np.int32, copy=False), b.astype(np.int32, copy=False))
+        graph = sp.csr_matrix((np.ones(a.size), ends), shape=(n, n))
         return connected_components(graph, directed=False)[1]
     parent = list(range(n))
     for u, v in zip(a.tolist(), b.tolist(), strict=True):
