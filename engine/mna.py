@@ -435,31 +435,6 @@ class _Entries:
     weights: np.ndarray
 
 
-#: Up to this many entries a matrix is compressed by a sort here: SciPy's own conversion has a
-#: fixed cost of about 0.1 ms, most of a small system's; beyond, its counting sort wins.
-_SMALL_MATRIX = 4096
-
-
-def _compress(data: np.ndarray, major: np.ndarray, minor: np.ndarray, size: int,
-              form: type[sp.spmatrix]) -> sp.spmatrix:
-    """The entries as ``form`` (CSC: ``major`` are the columns; CSR: the rows), duplicates
-    summed in the order given, as SciPy's conversion sums them."""
-    if data.size > _SMALL_MATRIX:
-        rows, cols = (minor, major) if form is sp.csc_matrix else (major, minor)
-        return form((data, (rows, cols)), shape=(size, size))
-    key = major.astype(np.int64) * size + minor
-    order = key.argsort(kind="stable")
-    key = key[order]
-    new = np.empty(key.size, dtype=bool)
-    new[:1] = True
-    np.not_equal(key[1:], key[:-1], out=new[1:])
-    unique = key[new]
-    summed = _summed(new.cumsum() - 1, data[order], unique.size)
-    indptr = np.zeros(size + 1, dtype=np.int32)
-    np.bincount(unique // size, minlength=size).cumsum(out=indptr[1:])
-    return form((summed, (unique % size).astype(np.int32), indptr), shape=(size, size))
-
-
 def _summed(keys: np.ndarray, weights: np.ndarray, size: int) -> np.ndarray:
     """Per unknown, the sum of its weights, added in the order given (as SciPy adds duplicate
     entries); complex sums part by part, which is exact."""
@@ -589,9 +564,7 @@ class System:
         data = np.concatenate([diagonal, *vals])
         if np.iscomplexobj(data) or np.iscomplexobj(self.b):
             data = data.astype(complex, copy=False)
-        if form is sp.csc_matrix:
-            return _compress(data, cols, rows, self.size, form)
-        return _compress(data, rows, cols, self.size, form)
+        return form((data, (rows, cols)), shape=(self.size, self.size))
 
     def _matrix(self, freq: float) -> sp.csc_matrix:
         if freq == 0 or not (self._m.vals.size or self._m.keys.size):

@@ -14,10 +14,9 @@ from fractions import Fraction
 
 import numpy as np
 import pytest
-import scipy.sparse as sp
 
 from engine import GROUND, Circuit, SingularCircuitError
-from engine.mna import EPS, Factor, Netlist, Singular, System, _compress, assemble
+from engine.mna import EPS, Factor, Netlist, Singular, System, assemble
 
 
 def build(c: Circuit, reference: str = GROUND) -> System:
@@ -217,22 +216,3 @@ def test_error_bound_covers_the_actual_error() -> None:
     bound = factor.error_bound(x, rhs, x)  # passive: A is symmetric, the adjoint is x itself
     assert abs(z - float(tail)) <= bound
     assert bound <= 1e6 * EPS * abs(z)
-
-
-@pytest.mark.parametrize("entries", [40, 6000])  # compressed here, and by SciPy beyond 4096
-def test_compressing_entries_matches_scipy(entries: int) -> None:
-    # SciPy's COO conversion (reference library) sums duplicate entries; so must ours, in CSC
-    # and CSR alike, with canonical (sorted, duplicate-free) indices.
-    rng = np.random.default_rng(7)
-    size = 30
-    rows = rng.integers(0, size, entries).astype(np.int32)
-    cols = rng.integers(0, size, entries).astype(np.int32)
-    data = rng.standard_normal(entries) + 1j * rng.standard_normal(entries)
-    for form, major, minor in ((sp.csc_matrix, cols, rows), (sp.csr_matrix, rows, cols)):
-        ours = _compress(data, major, minor, size, form)
-        theirs = form((data, (rows, cols)), shape=(size, size))
-        assert ours.format == theirs.format and ours.has_canonical_format
-        assert np.array_equal(ours.indptr, theirs.indptr)
-        assert np.array_equal(ours.indices, theirs.indices)
-        assert np.allclose(ours.data, theirs.data, rtol=1e-13, atol=0)
-
