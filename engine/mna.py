@@ -281,8 +281,7 @@ class Netlist:
         fixed, per_farad, per_henry = spans
         with np.errstate(divide="ignore", over="ignore"):  # absurd frequencies: inf, not noise
             ac = w > 0
-            lo = np.full(w.shape, fixed[0])
-            hi = np.full(w.shape, fixed[1])
+            lo, hi = _filled(w.size, fixed[0], float), _filled(w.size, fixed[1], float)
             for (a, b), scale in ((per_farad, 1 / w[ac]), (per_henry, w[ac])):
                 if a <= b:
                     lo[ac] = np.minimum(lo[ac], a * scale)
@@ -332,6 +331,15 @@ def _filled(size: int, value: object, dtype: type | np.dtype) -> np.ndarray:
     return out
 
 
+def _span(*arrays: np.ndarray) -> tuple[float, float]:
+    """(min, max) of the finite non-zero values, or (inf, 0) where there are none."""
+    values = np.concatenate(arrays)
+    values = values[(values > 0) & np.isfinite(values)]
+    if values.size == 0:
+        return math.inf, 0.0
+    return float(values.min()), float(values.max())
+
+
 def _same_rows(a: np.ndarray | None, size_a: int, b: np.ndarray | None, size_b: int) -> bool:
     """Whether two selections of rows (None: all ``size`` rows) pick the same rows."""
     if a is None or b is None:
@@ -349,13 +357,6 @@ def _picked(items: list[str], rows: np.ndarray | None) -> list[str]:
     return items if rows is None else [items[i] for i in rows.tolist()]
 
 
-def _span(*arrays: np.ndarray) -> tuple[float, float]:
-    """(min, max) of the finite non-zero values, or (inf, 0) where there are none."""
-    values = np.concatenate(arrays)
-    values = values[(values > 0) & np.isfinite(values)]
-    if values.size == 0:
-        return math.inf, 0.0
-    return float(values.min()), float(values.max())
 
 
 class Branches:
