@@ -14,6 +14,7 @@ Sign conventions (kept by every module and stated in docs/method.md):
 from __future__ import annotations
 
 import cmath
+import functools
 import math
 from array import array
 from collections.abc import Iterable, Iterator
@@ -288,15 +289,18 @@ class Columns:
             store.append(part)
         return store.columns(listed)
 
-    def rows_of(self, kinds: Iterable[str]) -> np.ndarray:
+    def rows_of(self, kinds: tuple[str, ...]) -> np.ndarray:
         """Rows of the parts of the given kinds, in circuit order."""
         return kind_mask(kinds)[self.kinds].nonzero()[0]
 
 
-def kind_mask(kinds: Iterable[str]) -> np.ndarray:
-    """A boolean per kind code, True for the given kinds (index it with an array of codes)."""
+@functools.cache
+def kind_mask(kinds: tuple[str, ...]) -> np.ndarray:
+    """A boolean per kind code, True for the given kinds (index it with an array of codes);
+    made once per tuple of kinds, read-only."""
     mask = np.zeros(len(KINDS), dtype=bool)
     mask[[KIND_CODE[k] for k in kinds]] = True
+    mask.flags.writeable = False
     return mask
 
 
