@@ -27,6 +27,7 @@ from .model import (
     PlacedPart,
     Region,
     Wire,
+    port_problem,
 )
 
 __all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
@@ -292,6 +293,9 @@ class Document:
             if unknown:
                 raise DocumentError(f"{where}: members {', '.join(unknown)} are not in the "
                                     "document")
+            problem = port_problem(element)
+            if problem:
+                raise DocumentError(f"{where}: {problem}")
 
     def check(self, element: Element) -> None:
         """Raise DocumentError (naming the field) if ``element`` could not be added, or could

@@ -32,6 +32,7 @@ from .model import (
     PlacedPart,
     Region,
     Wire,
+    port_problem,
 )
 
 __all__ = [
@@ -39,6 +40,7 @@ __all__ = [
     "FORMAT",
     "MAX_BLOCK_NESTING",
     "MAX_FILE_BYTES",
+    "PORT_VERSION",
     "VERSION",
     "dumps",
     "load",
@@ -48,7 +50,10 @@ __all__ = [
 
 FORMAT = "portcut-schematic"
 #: The newest file version this program writes and reads.
-VERSION = 1
+VERSION = 2
+#: The first version whose regions may hold a chosen port; a file without one is written as
+#: version 1, which older programs read.
+PORT_VERSION = 2
 #: Largest grid coordinate (in either direction) a file may hold.
 COORD_LIMIT = 1_000_000
 #: Deepest nesting of collapsed blocks inside collapsed blocks.
@@ -61,7 +66,7 @@ _WIDTH = 120  # characters per line of the file: one element a line, mostly
 _PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
                   "couples": []}
 _LABEL_DEFAULTS = {"rotation": 0, "style": "label"}
-_REGION_DEFAULTS = {"outline": [], "swap": False}
+_REGION_DEFAULTS = {"outline": [], "swap": False, "port": None}
 _BLOCK_DEFAULTS = {"rotation": 0, "mirror": False, "stubs": []}
 _ANALYSIS_DEFAULTS = {"frequency": "DC", "form": "thevenin", "basis": "peak"}
 
@@ -91,9 +96,16 @@ def _document_data(doc: Document) -> Data:
     contents = _contents_data(doc.parts(), doc.wires(), doc.junctions(), doc.labels(),
                               doc.blocks())
     a = doc.analysis
-    return {"format": FORMAT, "version": VERSION, "title": doc.title,
+    return {"format": FORMAT, "version": _version_needed(doc), "title": doc.title,
             "analysis": {"frequency": a.freq, "form": a.form, "basis": a.basis},
             **contents, "regions": [_region_data(r) for r in doc.regions()]}
+
+
+def _version_needed(doc: Document) -> int:
+    """The lowest file version that holds ``doc``: 1 unless a region (on the sheet or inside
+    a collapsed block) has a chosen port."""
+    regions = (*doc.regions(), *(e for e in doc.collapsed() if isinstance(e, Region)))
+    return PORT_VERSION if any(r.port is not None for r in regions) else 1
 
 
 def _trimmed(data: Data, defaults: Data) -> Data:
@@ -120,8 +132,10 @@ def _contents_data(parts, wires, junctions, labels, blocks) -> Data:
 
 
 def _region_data(r: Region) -> Data:
+    port = None if r.port is None else {"plus": r.port[0], "minus": r.port[1]}
     return _trimmed({"id": r.id, "name": r.name, "members": sorted(r.members),
-                     "outline": _points(r.outline), "swap": r.swap}, _REGION_DEFAULTS)
+                     "outline": _points(r.outline), "swap": r.swap, "port": port},
+                    _REGION_DEFAULTS)
 
 
 def _block_data(b: Block) -> Data:
@@ -226,9 +240,9 @@ def _read_document(data: Any) -> Document:
             optional=("title", "analysis", "parts", "wires", "junctions", "labels", "blocks",
                       "regions"))
     scope = _Scope(Document(_text(data.get("title", "Untitled"), "title")), {})
-    for path, element in _elements(data, "", 0, scope.designators):
+    for path, element in _elements(data, "", 0, scope.designators, version):
         scope.add(path, element)
-    for path, region in _each(data, "regions", _region):
+    for path, region in _each(data, "regions", lambda d, p: _region(d, p, version)):
         scope.add(path, region)
     scope.doc.set_analysis(_analysis(data.get("analysis", {}), "analysis"))
     return scope.doc
@@ -262,13 +276,14 @@ class _Scope:
             self.designators[designator] = path
 
 
-def _elements(data: Data, base: str, depth: int,
-              designators: dict[str, str]) -> Iterator[tuple[str, Element]]:
+def _elements(data: Data, base: str, depth: int, designators: dict[str, str],
+              version: int) -> Iterator[tuple[str, Element]]:
     yield from _each(data, "parts", _part, base)
     yield from _each(data, "wires", _wire, base)
     yield from _each(data, "junctions", _junction, base)
     yield from _each(data, "labels", _label, base)
-    yield from _each(data, "blocks", lambda d, p: _block(d, p, depth + 1, designators), base)
+    yield from _each(data, "blocks", lambda d, p: _block(d, p, depth + 1, designators, version),
+                     base)
 
 
 def _each(data: Data, key: str, read: Callable[[Any, str], Element],
@@ -328,23 +343,40 @@ def _label(data: Any, path: str) -> NetLabel:
                     _choice(d["style"], f"{path}.style", _LABEL_STYLES))
 
 
-def _region(data: Any, path: str) -> Region:
+def _region(data: Any, path: str, version: int) -> Region:
     d = _fields(data, path, required=("id", "name", "members"), defaults=_REGION_DEFAULTS)
     members = _list(d["members"], f"{path}.members")
     outline = _list(d["outline"], f"{path}.outline")
-    return Region(_id(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
-                  frozenset(_text(m, f"{path}.members[{i}]") for i, m in enumerate(members)),
-                  tuple(_outline_point(p, f"{path}.outline[{i}]") for i, p in enumerate(outline)),
-                  _bool(d["swap"], f"{path}.swap"))
+    region = Region(_id(d["id"], f"{path}.id"), _text(d["name"], f"{path}.name"),
+                    frozenset(_text(m, f"{path}.members[{i}]") for i, m in enumerate(members)),
+                    tuple(_outline_point(p, f"{path}.outline[{i}]")
+                          for i, p in enumerate(outline)),
+                    _bool(d["swap"], f"{path}.swap"),
+                    _region_port(d["port"], f"{path}.port", version))
+    problem = port_problem(region)
+    if problem:
+        raise DocumentError(f"{path}.{problem}")
+    return region
 
 
-def _block(data: Any, path: str, depth: int, designators: dict[str, str]) -> Block:
+def _region_port(data: Any, path: str, version: int) -> tuple[str, str] | None:
+    if data is None:
+        return None  # absent: the automatic port
+    if version < PORT_VERSION:
+        raise DocumentError(f"{path}: a chosen port needs file version {PORT_VERSION} or later; "
+                            f"this file says version {version}")
+    d = _fields(data, path, required=("plus", "minus"))
+    return (_text(d["plus"], f"{path}.plus"), _text(d["minus"], f"{path}.minus"))
+
+
+def _block(data: Any, path: str, depth: int, designators: dict[str, str],
+           version: int) -> Block:
     if depth > MAX_BLOCK_NESTING:
         raise DocumentError(f"{path}: collapsed blocks nest more than {MAX_BLOCK_NESTING} deep")
     d = _fields(data, path, required=("id", "designator", "form", "at", "region", "contents",
                                       "port"), defaults=_BLOCK_DEFAULTS)
-    contents = _contents(d["contents"], f"{path}.contents.", depth, designators)
-    region = _region(d["region"], f"{path}.region")
+    contents = _contents(d["contents"], f"{path}.contents.", depth, designators, version)
+    region = _region(d["region"], f"{path}.region", version)
     inside = {e.id for group in (contents.parts, contents.wires, contents.junctions,
                                  contents.labels, contents.blocks) for e in group}
     missing = sorted(region.members - inside)
@@ -364,12 +396,13 @@ def _block(data: Any, path: str, depth: int, designators: dict[str, str]) -> Blo
                  tuple(_text(s, f"{path}.stubs[{i}]") for i, s in enumerate(stubs)))
 
 
-def _contents(data: Any, base: str, depth: int, designators: dict[str, str]) -> Contents:
+def _contents(data: Any, base: str, depth: int, designators: dict[str, str],
+              version: int) -> Contents:
     _fields(data, base.rstrip("."), optional=("parts", "wires", "junctions", "labels", "blocks"))
     scope = _Scope(Document(), designators)
     groups: dict[type, list[Element]] = {PlacedPart: [], Wire: [], Junction: [], NetLabel: [],
                                          Block: []}
-    for path, element in _elements(data, base, depth, designators):
+    for path, element in _elements(data, base, depth, designators, version):
         scope.add(path, element)
         groups[type(element)].append(element)
     return Contents(*(tuple(groups[t]) for t in (PlacedPart, Wire, Junction, NetLabel, Block)))

@@ -22,6 +22,7 @@ __all__ = [
     "PlacedPart",
     "Region",
     "Wire",
+    "port_problem",
 ]
 
 #: Kinds a PlacedPart may have (engine.circuit.KINDS); ground and net names are NetLabels.
@@ -89,8 +90,11 @@ class NetLabel:
 class Region:
     """A named set of parts (by element id) and the outline the user drew around them.
 
-    ``outline`` is a closed polygon in grid units (floats allowed, not snapped). ``swap`` exchanges
-    the plus and minus port nets that the cut check chose.
+    ``outline`` is a closed polygon in grid units (floats allowed, not snapped). ``port`` is the
+    (plus, minus) pair of net names the user chose, as connectivity names the nets, or None for
+    the automatic port: the two nets where the region meets the rest, as the cut check chose
+    them. ``swap`` exchanges plus and minus of the automatic port; a chosen port gives its own
+    order, so it goes with ``swap`` False (:func:`port_problem`).
     """
 
     id: str
@@ -98,6 +102,7 @@ class Region:
     members: frozenset[str]
     outline: tuple[tuple[float, float], ...] = ()
     swap: bool = False
+    port: tuple[str, str] | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -146,4 +151,22 @@ class Analysis:
 
 
 Element = PlacedPart | Wire | Junction | NetLabel | Region | Block
+
+
+def port_problem(region: Region) -> str:
+    """What is wrong with the region's chosen port as a record ("" when nothing): it must be
+    two different, non-empty net names, and the automatic port's ``swap`` does not go with it.
+    Whether the nets exist on the sheet is the analysis's question, not the record's."""
+    port = region.port
+    if port is None:
+        return ""
+    if not (isinstance(port, tuple) and len(port) == 2
+            and all(isinstance(net, str) and net.strip() for net in port)):
+        return f"port: expected two net names (plus, minus), got {port!r}"
+    if port[0] == port[1]:
+        return f"port: plus and minus are both net {port[0]!r}; choose two different nets"
+    if region.swap:
+        return ("swap: a chosen port gives plus and minus in order; swap is for the automatic "
+                "port only")
+    return ""
 

@@ -11,6 +11,7 @@ import stat
 import string
 import sys
 from collections.abc import Iterator
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -125,6 +126,38 @@ def test_the_documented_example_is_read_and_written_back_verbatim() -> None:
     assert [b.designator for b in doc.blocks()] == ["EQ1"]
 
 
+def test_a_chosen_port_is_written_as_version_2_and_read_back() -> None:
+    doc = rich_document()
+    doc.replace_fields("r2", swap=False, port=("v_out", "0"))
+    text = dumps(doc)
+    data = json.loads(text)
+    assert data["version"] == fileformat.PORT_VERSION == 2
+    assert data["regions"][0]["port"] == {"plus": "v_out", "minus": "0"}
+    assert "swap" not in data["regions"][0]  # the default, left out
+    assert loads(text) == doc
+    doc.replace_fields("r2", port=None)  # back to automatic: a version 1 file again
+    assert json.loads(dumps(doc))["version"] == 1
+
+
+def test_a_chosen_port_kept_inside_a_collapsed_block_needs_version_2_too() -> None:
+    doc = rich_document()
+    block = doc.remove("b1")
+    doc.add(replace(block, region=replace(block.region, port=("R3.a", "0"))))
+    text = dumps(doc)
+    assert json.loads(text)["version"] == 2
+    assert loads(text).blocks()[0].region.port == ("R3.a", "0")
+
+
+def test_an_in_memory_region_with_a_bad_port_is_refused_by_name() -> None:
+    doc = rich_document()
+    with pytest.raises(DocumentError, match=r"^Region r2: swap: a chosen port gives plus and "
+                                            "minus in order"):
+        doc.replace_fields("r2", port=("v_out", "0"))  # r2 has swap set
+    with pytest.raises(DocumentError, match="plus and minus are both net 'x'"):
+        doc.replace_fields("r2", swap=False, port=("x", "x"))
+    assert doc.regions()[0].port is None
+
+
 # generated documents ----------------------------------------------------------------------------
 ident = st.text(string.ascii_letters + string.digits + "_-·Ω ", min_size=1, max_size=6)
 designator = st.from_regex(r"[A-Za-z][A-Za-z0-9_]{0,4}", fullmatch=True)
@@ -174,12 +207,18 @@ def scope_elements(draw, depth: int, numbers: Iterator[int]) -> list[Any]:
     return out
 
 
+net_name = st.text(min_size=1, max_size=5).filter(str.strip)
+chosen = st.none() | st.tuples(net_name, net_name).filter(lambda port: port[0] != port[1])
+
+
 @st.composite
 def regions(draw, members_from: list[Any], element_id: str | None = None) -> Region:
     ids = [e.id for e in members_from]
     members = draw(st.sets(st.sampled_from(ids))) if ids else set()
+    port = draw(chosen)
     return Region(element_id or draw(ident), draw(st.text(max_size=6)), frozenset(members),
-                  tuple(draw(st.lists(outline_point, max_size=4))), draw(st.booleans()))
+                  tuple(draw(st.lists(outline_point, max_size=4))),
+                  port is None and draw(st.booleans()), port)
 
 
 @st.composite
@@ -224,6 +263,14 @@ def deleter(*path: object):
         for key in path[:-1]:
             data = data[key]
         del data[path[-1]]
+    return change
+
+
+def chosen_port(port: object, swap: bool = False):
+    """A version 2 file whose first region has ``port`` (and ``swap``)."""
+    def change(data: Any) -> None:
+        data["version"] = 2
+        data["regions"][0].update(port=port, swap=swap)
     return change
 
 
@@ -295,9 +342,21 @@ REFUSALS = [
      'analysis.basis: expected one of "peak", "rms", got "average"'),
     (setter("parts", value={}), "parts: expected a list, got {}"),
     (setter("title", value=7), "title: expected text, got 7"),
-    (setter("version", value=2),
-     "written by a newer Portcut (version 2); this program reads up to version 1"),
-    (setter("version", value="1"), 'version: expected a whole number from 1 to 1, got "1"'),
+    (setter("version", value=3),
+     "written by a newer Portcut (version 3); this program reads up to version 2"),
+    (setter("version", value="1"), 'version: expected a whole number from 1 to 2, got "1"'),
+    (setter("regions", 0, "port", value={"plus": "v_out", "minus": "0"}),
+     "regions[0].port: a chosen port needs file version 2 or later; this file says version 1"),
+    (chosen_port({"plus": "v_out", "minus": "0"}, swap=True),
+     "regions[0].swap: a chosen port gives plus and minus in order; swap is for the automatic "
+     "port only"),
+    (chosen_port({"plus": "v_out", "minus": "v_out"}),
+     "regions[0].port: plus and minus are both net 'v_out'; choose two different nets"),
+    (chosen_port({"plus": "v_out"}), "regions[0].port: the field 'minus' is missing"),
+    (chosen_port({"plus": "v_out", "minus": 0}), "regions[0].port.minus: expected text, got 0"),
+    (chosen_port({"plus": "", "minus": "0"}),
+     "regions[0].port: expected two net names (plus, minus), got ('', '0')"),
+    (chosen_port(["v_out", "0"]), 'regions[0].port: expected an object, got ["v_out", "0"]'),
     (setter("format", value="something-else"),
      "format: expected 'portcut-schematic', got \"something-else\"; this is not a Portcut "
      "schematic"),
