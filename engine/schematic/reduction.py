@@ -34,6 +34,7 @@ from ..units import parse_frequency
 from .connectivity import Connectivity, build_circuit, extract, net_at
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Region, Wire
+from .ports import lost_port_nets, region_nets
 
 __all__ = [
     "Edit",
@@ -120,8 +121,14 @@ def analyse_region(doc: Document, region_id: str, *, conn: Connectivity | None =
     if not names:
         return RegionAnalysis(region_id, False, "the region holds no parts: draw the boundary "
                               "around the parts to reduce", freq=hz, circuit=circuit)
+    lost = lost_port_nets(region, region_nets(doc, region, conn))
+    if lost:
+        return RegionAnalysis(region_id, False, _lost_text(region, lost), freq=hz,
+                              bad_nets=frozenset(lost),
+                              bad_elements=_elements_of(doc, conn, lost, ()),
+                              circuit=circuit, part_names=names)
     try:
-        eq = equivalent(circuit, region=set(names), freq=hz)
+        eq = equivalent(circuit, region=set(names), port=region.port, freq=hz)
     except CutError as e:
         return RegionAnalysis(region_id, False, str(e), freq=hz,
                               bad_nets=frozenset(e.nets),
@@ -130,10 +137,21 @@ def analyse_region(doc: Document, region_id: str, *, conn: Connectivity | None =
     except CircuitError as e:
         return RegionAnalysis(region_id, False, str(e), freq=hz, circuit=circuit,
                               part_names=names)
-    if region.swap:
+    if region.swap and region.port is None:
         eq = swapped(eq)
     return RegionAnalysis(region_id, True, equivalent=eq, freq=hz, circuit=circuit,
                           part_names=names)
+
+
+def _lost_text(region: Region, lost: tuple[str, ...]) -> str:
+    """Which chosen port nets are gone, and the two ways on."""
+    roles = [role for role, net in zip(("plus", "minus"), region.port, strict=True)
+             if net in lost]
+    which = " and ".join(f"{role} net {net}" for role, net in zip(roles, lost, strict=True))
+    verb = "is" if len(lost) == 1 else "are"
+    return (f"the chosen port's {which} {verb} no longer a net of the region (a label or part "
+            "was renamed or removed, or an edit joined or split the net); choose the port "
+            "again, or go back to the automatic port")
 
 
 def equivalence(analysis: RegionAnalysis, form: str = "thevenin",
@@ -200,6 +218,14 @@ def collapse_region(doc: Document, region_id: str, form: str | None = None) -> E
     eq = analysis.equivalent
     if not (eq.has_thevenin or eq.has_norton):
         raise CircuitError("cannot collapse: the region has neither a Thevenin nor a Norton form")
+    used = {n for p in analysis.circuit if p.name not in analysis.part_names for n in p.nets}
+    for role, net in zip(("plus", "minus"), eq.port, strict=True):
+        if net not in used:
+            # a chosen port may take a net only the region uses: its pin would join nothing
+            raise CircuitError(f"cannot collapse: the port's {role} net {net} is used only "
+                               f"inside the region, so the block's {role} pin would join "
+                               "nothing; choose port nets that the rest of the circuit uses, "
+                               "or keep the region as it is")
     region: Region = doc[region_id]
     conn = extract(doc)
     members = _members(doc, region)

@@ -3,21 +3,24 @@
 from __future__ import annotations
 
 import cmath
+from dataclasses import replace
 
 import pytest
 
 import assets
-from engine import Circuit, CutError, check_equivalence
+from engine import Circuit, CircuitError, CutError, check_equivalence
 from engine.schematic import (
     Document,
     NetLabel,
     PlacedPart,
     Region,
     Wire,
+    block_equivalent,
     build_circuit,
     extract,
     fileformat,
 )
+from engine.schematic.ports import follow_renames
 from engine.schematic.reduction import (
     analyse_region,
     collapse_region,
@@ -244,3 +247,128 @@ def test_a_reloaded_sheet_never_hands_out_the_collapsed_regions_id():
     again.add(Region(fresh, "around the block", frozenset({block.id})))
     expand_block(again, block.id).apply(again)
     assert {r.id for r in again.regions()} == {region_id, fresh}
+
+
+# -- a chosen port --------------------------------------------------------------------------------
+def _chosen(doc: Document, port, members=None) -> str:
+    """Give the divider's region the chosen ``port`` (and ``members``); its id."""
+    region = doc.regions()[0]
+    doc.replace_fields(region.id, port=port,
+                       members=region.members if members is None else frozenset(members))
+    return region.id
+
+
+def test_a_chosen_port_fixes_the_polarity():
+    # common practice: seen the other way round, Voc and Isc change sign, Z does not
+    doc, _ = _divider()
+    eq = analyse_region(doc, _chosen(doc, ("0", "out"))).equivalent
+    assert eq.port == ("0", "out")
+    assert eq.voc == pytest.approx(-5.0, rel=1e-12)
+    assert eq.isc == pytest.approx(-0.01, rel=1e-12)
+    assert eq.z == pytest.approx(500.0, rel=1e-12)
+
+
+def test_the_whole_circuit_seen_between_two_of_its_own_nets():
+    # The region holds every part, so it meets the rest at no net and only a chosen port
+    # says where to look. Common practice (voltage divider, sources zeroed for Z):
+    # across R2 (out, 0): Voc = V (R2 || RL) / (R1 + R2 || RL) = 10 * 2/3k / (5/3k) = 4 V,
+    #   Z = R1 || R2 || RL = 400 Ω;
+    # across R1 (R1.a, out): Voc = V - 4 V = 6 V, Z = R1 || (R2 || RL) = 400 Ω (V1 shorted).
+    doc, ids = _divider()
+    region_id = _chosen(doc, None, members=ids.values())
+    assert "0 nets" in analyse_region(doc, region_id).message  # automatic: nothing to take
+    for port, voc in ((("out", "0"), 4.0), (("R1.a", "out"), 6.0)):
+        doc.replace_fields(region_id, port=port)
+        result = analyse_region(doc, region_id)
+        assert result.ok, result.message
+        eq = result.equivalent
+        assert eq.port == port
+        assert eq.voc == pytest.approx(voc, rel=1e-12)
+        assert eq.z == pytest.approx(400.0, rel=1e-12)
+        assert eq.voc == pytest.approx(eq.z * eq.isc, rel=1e-12)
+
+
+def _second_stage(doc: Document) -> None:
+    """Take RL away and draw a second circuit, V2 = 3 V across R3 = 1 kΩ, sharing only
+    ground with the divider: the divider's region then meets the rest at net 0 alone."""
+    with doc.batch():
+        doc.remove(doc.by_designator("RL").id)
+        doc.add(PlacedPart(doc.new_id(PlacedPart), "voltage_source", "V2", (24, 4), 90,
+                           value="3"))
+        doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", "R3", (28, 4), 90, value="1k"))
+        doc.add(Wire(doc.new_id(Wire), ((24, 2), (28, 2))))
+        doc.add(Wire(doc.new_id(Wire), ((24, 6), (28, 6))))
+        doc.add(NetLabel(doc.new_id(NetLabel), "0", (28, 6), style="ground"))
+
+
+def test_a_region_meeting_the_rest_at_one_net_is_seen_at_a_chosen_port():
+    doc, _ = _divider()
+    _second_stage(doc)
+    region_id = doc.regions()[0].id
+    result = analyse_region(doc, region_id)
+    assert not result.ok and "1 net: 0" in result.message
+    # common practice (voltage divider): R1 = R2 = 1 kΩ halve 10 V behind 500 Ω
+    doc.replace_fields(region_id, port=("out", "0"))
+    eq = analyse_region(doc, region_id).equivalent
+    assert eq.voc == pytest.approx(5.0, rel=1e-12) and eq.z == pytest.approx(500.0, rel=1e-12)
+    # the net it meets the rest at must be one of the port's
+    doc.replace_fields(region_id, port=("R1.a", "out"))
+    result = analyse_region(doc, region_id)
+    assert not result.ok
+    assert "net 0 besides its port (R1.a, out)" in result.message
+    assert result.bad_nets == {"0"}
+
+
+def test_a_chosen_net_that_goes_away_is_named_not_raised():
+    doc, _ = _divider()
+    region_id = _chosen(doc, ("out", "0"))
+    label = next(lab for lab in doc.labels() if lab.name == "out")
+    doc.remove(label.id)  # the net stays, its name becomes automatic (R1.b)
+    result = analyse_region(doc, region_id)
+    assert not result.ok and result.equivalent is None
+    assert result.message.startswith("the chosen port's plus net out is no longer a net of "
+                                     "the region")
+    assert "go back to the automatic port" in result.message
+    doc.replace_fields(region_id, port=None)
+    assert analyse_region(doc, region_id).equivalent.port == ("R1.b", "0")
+
+
+def test_collapse_with_a_chosen_port_keeps_its_polarity_and_expands_back():
+    doc, _ = _divider()
+    region_id = _chosen(doc, ("0", "out"))
+    original = fileformat.loads(fileformat.dumps(doc))
+    analysis = analyse_region(doc, region_id)
+    assert equivalence(analysis, "thevenin", loads=[100, 0]).within(1e-12)
+    collapse_region(doc, region_id).apply(doc)
+    (block,) = doc.blocks()
+    conn = extract(doc)
+    assert (conn.net_of_pin[block.id, 0], conn.net_of_pin[block.id, 1]) == ("0", "out")
+    # common practice: the block's plus pin on ground sees -5 V behind 500 Ω
+    eq = block_equivalent(block)
+    assert eq.voc == pytest.approx(-5.0, rel=1e-12) and eq.z == pytest.approx(500.0, rel=1e-12)
+    expand_block(doc, block.id).apply(doc)
+    assert doc == original and doc.regions()[0].port == ("0", "out")
+
+
+def test_collapse_refuses_a_port_net_only_the_region_uses():
+    doc, _ = _divider()
+    _second_stage(doc)
+    region_id = _chosen(doc, ("out", "0"))
+    assert analyse_region(doc, region_id).ok
+    with pytest.raises(CircuitError, match=r"^cannot collapse: the port's plus net out is used "
+                                           "only inside the region"):
+        collapse_region(doc, region_id)
+
+
+def test_renaming_a_label_or_a_part_carries_a_chosen_port_along():
+    doc, ids = _divider()
+    region_id = _chosen(doc, ("R1.a", "out"))
+    label = next(lab for lab in doc.labels() if lab.name == "out")
+    (followed,) = follow_renames(doc, [replace(label, name="vout")])
+    assert followed.port == ("R1.a", "vout")
+    (followed,) = follow_renames(doc, [replace(doc[ids["R1"]], designator="R7")])
+    assert followed.port == ("R7.a", "out")
+    # an edit that renames no net leaves the port alone, and so does a region without one
+    assert follow_renames(doc, [replace(doc[ids["RL"]], value="10k")]) == []
+    doc.replace_fields(region_id, port=None)
+    assert follow_renames(doc, [replace(label, name="vout")]) == []
