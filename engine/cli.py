@@ -121,8 +121,8 @@ def _add_selection(p: argparse.ArgumentParser) -> None:
     which.add_argument("--parts", metavar="R1,R2,...", type=_names,
                        help="reduce these parts (designators) instead of a drawn region")
     p.add_argument("--port", metavar="NET,NET", type=_port,
-                   help="the port nets, plus first (default: the two nets where the region "
-                        "meets the rest, ground as minus)")
+                   help="the port nets, plus first (default: the port chosen for the region, "
+                        "else the two nets where it meets the rest, ground as minus)")
 
 
 def _parser() -> tuple[_Parser, dict[str, _Parser]]:
@@ -243,12 +243,13 @@ class _Solved:
 
 def _solve(doc: Document, sel: _Selection, port: tuple[str, str] | None,
            freq: float) -> _Solved:
-    """The equivalent at ``freq`` hertz. Without a ``port`` the cut chooses it, exchanged where
-    the region says so."""
+    """The equivalent at ``freq`` hertz. Without a ``port`` the region's chosen port is taken,
+    and failing that the cut chooses it, exchanged where the region says so."""
     circuit = build_circuit(doc, freq=freq)
     names = region_part_names(doc, sel.region, circuit)
     if not names:
         raise CircuitError(f"{sel.label}: holds no parts to reduce")
+    port = port or sel.region.port
     eq = equivalent(circuit, region=set(names), port=port, freq=freq)
     return _Solved(swapped(eq) if port is None and sel.region.swap else eq, names, circuit)
 

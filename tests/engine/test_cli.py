@@ -352,3 +352,14 @@ def test_demo_reduces_without_qt():
     data = json.loads(run.stdout)
     assert data["has_thevenin"] or data["has_norton"]
     assert len(data["port"]) == 2
+
+
+def test_a_regions_chosen_port_is_used_unless_port_is_given(capsys, saved):
+    # common practice (voltage divider): seen with plus on ground, Voc changes sign
+    doc = _source_load(V10, R1K, R2K)
+    doc.replace_fields("r1", port=("0", "out"))
+    path = saved(doc)
+    chosen = _json(capsys, path)
+    assert chosen["port"] == ["0", "out"] and _c(chosen["voc"]) == pytest.approx(-5.0)
+    given = _json(capsys, path, "--port", "out,0")
+    assert given["port"] == ["out", "0"] and _c(given["voc"]) == pytest.approx(5.0)
