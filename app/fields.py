@@ -3,8 +3,9 @@ version of the element (or a clear refusal). Qt-free; the inspector shows these.
 
 A field's :meth:`Field.write` returns the new elements to put in the document: the edited one
 and any that follow it (renaming a part renames it where a controlled source or a coupling names
-it). A refusal is a CircuitError whose message names the part, the field and what is accepted;
-the document is never touched here.
+it; renaming a part or a net label carries a region's chosen port along to its nets' new
+names). A refusal is a CircuitError whose message names the part, the field and what is
+accepted; the document is never touched here.
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ from dataclasses import dataclass, replace
 from engine.captions import UNITS
 from engine.errors import DocumentError, ValueParseError
 from engine.schematic import Block, Document, Element, NetLabel, PlacedPart
+from engine.schematic.ports import follow_renames
 from engine.units import parse_value
 
 __all__ = ["QUANTITY", "Field", "fields_for"]
@@ -58,6 +60,8 @@ class Field:
 
 def _designator(doc: Document, element: Element, text: str) -> list[Element]:
     new = replace(element, designator=text.strip())
+    if new == element:
+        return [new]
     doc.check(new)
     out: list[Element] = [new]
     old_name = element.designator
@@ -68,7 +72,8 @@ def _designator(doc: Document, element: Element, text: str) -> list[Element]:
             out.append(replace(p, control=new.designator if p.control == old_name else p.control,
                                couples=tuple(new.designator if c == old_name else c
                                              for c in p.couples)))
-    return out
+    # automatic net names hold designators (R1.b): a chosen port follows its nets
+    return out + follow_renames(doc, out)
 
 
 def _value(doc: Document, part: PlacedPart, text: str) -> list[Element]:
@@ -130,7 +135,8 @@ def _name(doc: Document, label: NetLabel, text: str) -> list[Element]:
     name = text.strip()
     if not name:
         raise DocumentError("net label name: enter a name, e.g. vout")
-    return [replace(label, name=name)]
+    new = replace(label, name=name)
+    return [new] if new == label else [new, *follow_renames(doc, [new])]
 
 
 _DESIGNATOR = Field("designator", "Designator", "Reference designator, unique on the sheet: "

@@ -157,7 +157,8 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
                port: tuple[str, str]) -> tuple[PortMark, ...]:
     """A mark for each place a port net's wires cross the outline (plus first). A port net that
     no wire carries across (joined by a net label or a ground marker) gets one mark on the
-    outline next to the region's pin nearest to it."""
+    outline next to the region's pin nearest to it; a chosen port net that nothing outside
+    uses, on the region's pin on it nearest to the outline."""
     if len(region.outline) < 3:
         return ()
     edges = list(zip(region.outline, region.outline[1:] + region.outline[:1], strict=True))
@@ -169,12 +170,21 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
         if not points:
             pins = [pin for m in members for i, pin in enumerate(element_pins(m))
                     if conn.net_of_pin.get((m.id, i)) == net]
-            if pins:
+            if pins and _used_outside(doc, conn, region, net):
                 points = [min((_nearest(edges, p) for p in pins),
                               key=lambda q: q[0])[1]]
+            elif pins:
+                points = [min(pins, key=lambda p: (_nearest(edges, p)[0], p))]
         for pt in dict.fromkeys((round(x, 3), round(y, 3)) for x, y in points):
             marks.append(PortMark(pt, role, net))
     return tuple(marks)
+
+
+def _used_outside(doc: Document, conn: Connectivity, region: Region, net: str) -> bool:
+    """Does a part or block outside the region have a pin on ``net``?"""
+    return any(name == net and eid not in region.members
+               and isinstance(doc[eid], PlacedPart | Block)
+               for (eid, _), name in conn.net_of_pin.items())
 
 
 def _crossings(a: FPoint, b: FPoint, edges: list[tuple[FPoint, FPoint]]) -> list[FPoint]:

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
+from dataclasses import replace
 from typing import TYPE_CHECKING
 
 from PySide6.QtCore import QPointF, Qt
@@ -159,8 +160,7 @@ class BoundaryTool(Tool):
         else:
             change = outline_with
             members, verb = region.members | {element.id}, "Add {} to"
-        new = Region(region.id, region.name, members, change(region.outline, element, style),
-                     region.swap)
+        new = replace(region, members=members, outline=change(region.outline, element, style))
         text = f"{verb.format(element.designator)} region “{region.name}”"
         self.canvas.push(ReplaceElements(doc, [new], text))
 
