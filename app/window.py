@@ -1,8 +1,9 @@
 """The main window: canvas in the middle, docked panels, menus, toolbar, status bar, settings.
 
 Extension points for further features: :meth:`MainWindow.add_dock` (a panel, with a View menu
-toggle and its place kept between sessions) and :meth:`MainWindow.add_tool` (a canvas tool, with
-an action in the Tools menu and toolbar). The window holds no document state of its own: the
+toggle and its place kept between sessions), :meth:`MainWindow.add_tool` (a canvas tool, with
+an action in the Tools menu and toolbar) and :meth:`MainWindow.add_command` (an action in a
+menu). The window holds no document state of its own: the
 Workbench has the document, the undo stack and the path.
 """
 
@@ -91,6 +92,7 @@ class MainWindow(QMainWindow):
         self.recovery = Recovery(self.workbench, recovery_folder, parent=self) \
             if recovery_folder is not None else None
         self.actions: dict[str, QAction] = {}
+        self.menus: dict[str, QMenu] = {}
         self.docks: list[QDockWidget] = []
         self._safety_noted = False
         self._unsubscribe = lambda: None
@@ -139,6 +141,14 @@ class MainWindow(QMainWindow):
             self.toolbar.insertAction(self._tool_anchor, action)
         return action
 
+    def add_command(self, menu: str, name: str, text: str, slot: Callable[[], object],
+                    shortcut: Shortcut = None, tip: str = "") -> QAction:
+        """Offer a command in one of :attr:`menus` ("file", "edit", "view", "place", "tools",
+        "help"), with ``shortcut`` working wherever the window has the focus."""
+        action = self._action(name, text, slot, shortcut, tip)
+        self.menus[menu].addAction(action)
+        return action
+
     # -- building -----------------------------------------------------------------------------
     def _action(self, name: str, text: str, slot: Callable[[], object],
                 shortcut: Shortcut = None, tip: str = "", canvas_only: bool = False) -> QAction:
@@ -165,7 +175,7 @@ class MainWindow(QMainWindow):
         a, key, c = self._action, QKeySequence.StandardKey, self.canvas
         bar = self.menuBar()
 
-        file = bar.addMenu("&File")
+        file = self.menus["file"] = bar.addMenu("&File")
         file.addAction(a("new", "&New", self.files.new, key.New, "Start an empty sheet"))
         file.addAction(a("open", "&Open…", self.files.open_dialog, key.Open, "Open a sheet"))
         self._recent_menu = file.addMenu("Open &Recent")
@@ -184,7 +194,7 @@ class MainWindow(QMainWindow):
         file.addSeparator()
         file.addAction(a("quit", "&Quit", self.close, key.Quit, "Close the window"))
 
-        edit = bar.addMenu("&Edit")
+        edit = self.menus["edit"] = bar.addMenu("&Edit")
         undo = self.workbench.undo_stack.createUndoAction(self, "&Undo")
         undo.setShortcuts(key.Undo)
         redo = self.workbench.undo_stack.createRedoAction(self, "&Redo")
@@ -212,7 +222,7 @@ class MainWindow(QMainWindow):
         edit.addAction(a("edit_value", "Edit &Value", self._edit_value, "F2",
                          "Edit the selected part's value in the inspector", canvas_only=True))
 
-        view = bar.addMenu("&View")
+        view = self.menus["view"] = bar.addMenu("&View")
         v = c.view
         view.addAction(a("zoom_in", "Zoom &In", v.zoom_in, key.ZoomIn, "Zoom in"))
         view.addAction(a("zoom_out", "Zoom &Out", v.zoom_out, key.ZoomOut, "Zoom out"))
@@ -229,7 +239,7 @@ class MainWindow(QMainWindow):
                                                for s in GRID_STEPS],
                           self.settings.grid_step, self.set_grid)
 
-        place = bar.addMenu("&Place")
+        place = self.menus["place"] = bar.addMenu("&Place")
         for group in GROUPS:
             place.addSection(group)
             for e in ENTRIES:
@@ -238,13 +248,13 @@ class MainWindow(QMainWindow):
                     action.setToolTip(e.tip)
                     action.setStatusTip(e.tip)
 
-        self._tools_menu = bar.addMenu("&Tools")
+        self._tools_menu = self.menus["tools"] = bar.addMenu("&Tools")
         self._tool_group = QActionGroup(self)
         self._tool_group.setExclusionPolicy(QActionGroup.ExclusionPolicy.ExclusiveOptional)
         for spec in list(c.tools.values()):
             self.add_tool(spec)
 
-        help_menu = bar.addMenu("&Help")
+        help_menu = self.menus["help"] = bar.addMenu("&Help")
         help_menu.addAction(a("safety", "&Safety Note", lambda: self.banner.show_note(CAUTION),
                               None, "Show the electrical-safety note"))
         help_menu.addAction(a("about", "&About Portcut", lambda: show_about(self), None,

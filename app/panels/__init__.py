@@ -55,6 +55,9 @@ def install_reduction(window: MainWindow) -> None:
     window.equivalent_dock.raise_()
     window.sweep_dock.hide()
     window.equivalent_dock.sweep_button.clicked.connect(lambda: _show_sweep(window))
+    window.add_command("tools", "rename_region", "Re&name Region…",
+                       window.equivalent_dock.start_rename, "Shift+F2",
+                       "Rename the region the Equivalent panel shows")
 
 
 def _show_sweep(window: MainWindow) -> None:

@@ -1,6 +1,6 @@
 """The live equivalent panel: the current region's Thevenin and Norton equivalents as the user
-edits, the analysis settings, and the region's commands (swap polarity, collapse, expand,
-remove).
+edits, the analysis settings, and the region's own controls (its name, its port: automatic or
+plus and minus chosen from its nets) and commands (swap polarity, collapse, expand, remove).
 
 It reads the numbers from app.analysis.LiveAnalysis and writes only through undo commands; for
 an invalid cut it shows the reason in plain words (the canvas highlights what is named).
@@ -31,12 +31,14 @@ from engine.equivalent import EquivalenceReport, Equivalent
 from engine.errors import CircuitError
 from engine.mna import describe_freq
 from engine.schematic import Block, Change, Document, Region
+from engine.schematic.ports import region_nets
 from engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
 from engine.units import format_complex, format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas
 from ..commands import RemoveElements, ReplaceElements, SetAnalysis, edit_command
+from ..region_edits import ROLES, port_text, renamed, with_port_net
 from ..workbench import Workbench
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
@@ -197,6 +199,20 @@ class EquivalentDock(QDockWidget):
         self.region_box = QComboBox()
         self.region_box.setAccessibleName("Region shown")
         self.region_box.activated.connect(self._choose_region)
+        self.name = CheckedEntry(self._read_name, "", "Region name",
+                                 "The region's name, unique on the sheet (Shift+F2)")
+        self.name.accepted.connect(self._rename)
+        self.port_boxes: dict[str, QComboBox] = {}
+        for role, sign in zip(ROLES, ("+", "−"), strict=True):
+            box = QComboBox()
+            box.setAccessibleName(f"Port {role} net")
+            box.setToolTip(f"The net at the port's {sign}: automatic (where the region meets "
+                           "the rest), or any net of the region's parts")
+            box.activated.connect(lambda index, r=role: self._choose_port(r, index))
+            self.port_boxes[role] = box
+        self.automatic_button = _button("Use the automatic port", "Forget the chosen port and "
+                                        "take the two nets where the region meets the rest",
+                                        self.automatic_port)
         self.port = _label()
         self.frequency = CheckedEntry(parse_frequency, "DC", "Analysis frequency",
                                       "DC, or a frequency with SI prefixes: 50, 1k, 2.4 GHz")
@@ -240,6 +256,12 @@ class EquivalentDock(QDockWidget):
     def _build(self) -> None:
         settings = QFormLayout()
         settings.addRow("Region", self.region_box)
+        settings.addRow("Name", self.name)
+        ports = QHBoxLayout()
+        for sign, box in zip(("+", "−"), self.port_boxes.values(), strict=True):
+            ports.addWidget(QLabel(sign))
+            ports.addWidget(box, 1)
+        settings.addRow("Port", ports)
         settings.addRow("Frequency", self.frequency)
         forms = QHBoxLayout()
         forms.addWidget(self.thevenin)
@@ -256,8 +278,8 @@ class EquivalentDock(QDockWidget):
         body = QWidget()
         column = QVBoxLayout(body)
         column.addLayout(settings)
-        for widget in (self.port, self.message, self.values, self.forms, self.realisation,
-                       self.power, self.check):
+        for widget in (self.port, self.message, self.automatic_button, self.values, self.forms,
+                       self.realisation, self.power, self.check):
             column.addWidget(widget)
         column.addLayout(row1)
         column.addLayout(row2)
@@ -308,6 +330,11 @@ class EquivalentDock(QDockWidget):
         box.setCurrentIndex(box.findData(self.live.region_id))
         box.blockSignals(False)
         box.setEnabled(box.count() > 0)
+        region = self._region()
+        self.name.setEnabled(region is not None)
+        shown = region.name if region is not None else ""
+        if shown != self.name.text or not self.name.in_error:
+            self.name.set_text(shown)
 
     def _choose_region(self, index: int) -> None:
         self.live.set_region(self.region_box.itemData(index))
@@ -315,6 +342,7 @@ class EquivalentDock(QDockWidget):
     # -- showing ------------------------------------------------------------------------------
     def show_analysis(self, analysis: RegionAnalysis | None) -> None:
         self.notice.clear()
+        self._show_port(analysis)
         ok = analysis is not None and analysis.ok
         for widget in (self.forms, self.realisation, self.power, self.check):
             widget.setVisible(ok)
@@ -348,6 +376,30 @@ class EquivalentDock(QDockWidget):
         self.realisation.setText(realisation_text(eq))
         self.power.setText(power_text(eq, self.doc.analysis.basis))
         self.check.setEnabled(False)  # greyed until the check of these numbers arrives
+
+    def _show_port(self, analysis: RegionAnalysis | None) -> None:
+        """The port boxes: "automatic" (with the nets it found) and the region's nets; a chosen
+        net the region no longer has stays listed, marked gone."""
+        region, conn = self._region(), self.live.conn
+        usable = (region is not None and conn is not None and analysis is not None
+                  and analysis.region_id == region.id)
+        nets = region_nets(self.doc, region, conn) if usable else ()
+        automatic = analysis.equivalent.port if usable and analysis.ok and \
+            region.port is None else None
+        for i, (role, box) in enumerate(self.port_boxes.items()):
+            box.clear()
+            box.setEnabled(usable)
+            if not usable:
+                continue
+            box.addItem(f"automatic ({automatic[i]})" if automatic else "automatic", None)
+            for net in nets:
+                box.addItem(net, net)
+            chosen = region.port[i] if region.port is not None else None
+            if chosen is not None and chosen not in nets:
+                box.addItem(f"{chosen} (gone)", chosen)
+            box.setCurrentIndex(0 if chosen is None else box.findData(chosen))
+            box.setAccessibleDescription(f"{role}: {box.currentText()}")
+        self.automatic_button.setVisible(usable and region.port is not None and not analysis.ok)
 
     def show_check(self, result: EquivalenceReport | str) -> None:
         self.check.setEnabled(True)
@@ -401,9 +453,50 @@ class EquivalentDock(QDockWidget):
 
     def swap(self) -> None:
         region = self._region()
-        if region is not None:
-            self.workbench.push(ReplaceElements(self.doc, [replace(region, swap=not region.swap)],
-                                                f"Swap the port of “{region.name}”"))
+        if region is None:
+            return
+        new = replace(region, swap=not region.swap) if region.port is None else \
+            replace(region, port=region.port[::-1])
+        self.workbench.push(ReplaceElements(self.doc, [new], f"Swap the port of “{region.name}”"))
+
+    def _choose_port(self, role: str, index: int) -> None:
+        region, analysis = self._region(), self.live.analysis
+        if region is None or self.live.conn is None:
+            return
+        shown = region.port or (analysis.equivalent.port if analysis is not None and analysis.ok
+                                and analysis.region_id == region.id else None)
+        try:
+            new = with_port_net(region, shown, region_nets(self.doc, region, self.live.conn),
+                                role, self.port_boxes[role].itemData(index))
+        except CircuitError as exc:
+            self._refuse(str(exc))
+            return
+        if new != region:
+            self.workbench.push(ReplaceElements(self.doc, [new], port_text(new)))
+
+    def automatic_port(self) -> None:
+        region = self._region()
+        if region is not None and region.port is not None:
+            new = replace(region, port=None)
+            self.workbench.push(ReplaceElements(self.doc, [new], port_text(new)))
+
+    def _read_name(self, text: str) -> Region | None:
+        region = self._region()
+        return None if region is None else renamed(self.doc, region, text)
+
+    def _rename(self, text: str, new: Region | None) -> None:
+        region = self._region()
+        if new is not None and region is not None and new != region:
+            self.workbench.push(ReplaceElements(self.doc, [new], f"Rename region “{region.name}” "
+                                                             f"to “{new.name}”"))
+
+    def start_rename(self) -> None:
+        """Show the panel with the shown region's name ready to type over."""
+        self.show()
+        self.raise_()
+        if self._region() is not None:
+            self.name.edit.setFocus(Qt.FocusReason.ShortcutFocusReason)
+            self.name.edit.selectAll()
 
     def remove_region(self) -> None:
         region = self._region()

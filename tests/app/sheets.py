@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
-from PySide6.QtWidgets import QApplication, QWidget
+from PySide6.QtWidgets import QApplication, QComboBox, QWidget
 
 from engine.schematic import Document, NetLabel, PlacedPart, Wire
 
@@ -84,4 +84,20 @@ def type_into(line_edit: QWidget, text: str) -> None:
     QTest.keyClick(line_edit, Qt.Key.Key_A, Qt.KeyboardModifier.ControlModifier)
     QTest.keyClicks(line_edit, text)
     QTest.keyClick(line_edit, Qt.Key.Key_Return)
+    settle()
+
+
+def pick(box: QComboBox, data: object) -> None:
+    """Choose the item of ``box`` holding ``data`` with the mouse: click the box, then the item
+    in its list (once the list takes clicks: it ignores a release within a double-click
+    interval of opening)."""
+    QTest.mouseClick(box, Qt.MouseButton.LeftButton)
+    view = box.view()
+    QTest.qWait(QApplication.doubleClickInterval() + 50)
+    assert view.isVisible(), "the list did not open"
+    index = next(i for i in range(box.count()) if box.itemData(i) == data)
+    centre = view.visualRect(box.model().index(index, 0)).center()
+    QTest.mouseMove(view.viewport(), centre)
+    QTest.mouseClick(view.viewport(), Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                     centre)
     settle()

@@ -1,23 +1,27 @@
 """Edit planning without Qt: rigid maps carry pins with their parts, moves lose no connection
 (engine.schematic.connectivity.extract) and every wire orthogonal, deletes take dangling wires,
-pastes rename, and the fields refuse bad entries with the reason. Also the safety thresholds."""
+pastes rename, and the fields refuse bad entries with the reason. Also the safety thresholds and
+the region controls' choices (port nets, names)."""
 
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 from itertools import pairwise
 
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from sheets import divider
 
 import assets
 from app.editing import RigidMap, bend, moved, paste, plan_delete, plan_placement, simplify
 from app.fields import fields_for
+from app.region_edits import renamed, with_port_net
 from app.safety import above_extra_low_voltage
 from app.sheet import SheetIndex, element_pins
 from engine.errors import CircuitError, DocumentError, ValueParseError
-from engine.schematic import Analysis, Document, NetLabel, PlacedPart, Wire
+from engine.schematic import Analysis, Document, NetLabel, PlacedPart, Region, Wire
 from engine.schematic.connectivity import extract
 from engine.schematic.fileformat import load
 
@@ -166,3 +170,43 @@ def test_extra_low_voltage_limits(value, freq, basis, high):
     doc.set_analysis(Analysis(freq=freq, basis=basis))
     doc.add(PlacedPart("p1", "voltage_source", "V1", (0, 0), value=value))
     assert above_extra_low_voltage(doc) == (["V1"] if high else [])
+
+
+# -- region controls ------------------------------------------------------------------------------
+def test_choosing_one_port_net_completes_or_exchanges_the_other():
+    region = Region("r1", "stage", frozenset(), swap=True)
+    nets = ("0", "R1.a", "out")
+    # with the automatic port shown, the other side keeps its net; the swap goes
+    assert with_port_net(region, ("out", "0"), nets, "plus", "R1.a").port == ("R1.a", "0")
+    assert not with_port_net(region, ("out", "0"), nets, "plus", "R1.a").swap
+    # choosing the other side's net exchanges the two
+    assert with_port_net(region, ("out", "0"), nets, "minus", "out").port == ("0", "out")
+    # no port shown (the cut has none): ground where the region has it, else the first net
+    assert with_port_net(region, None, nets, "plus", "out").port == ("out", "0")
+    assert with_port_net(region, None, ("a", "b"), "minus", "a").port == ("b", "a")
+    chosen = replace(region, swap=False, port=("out", "0"))
+    assert with_port_net(chosen, chosen.port, nets, "plus", None).port is None
+    with pytest.raises(DocumentError, match="has no net besides out; a port needs two"):
+        with_port_net(region, None, ("out",), "plus", "out")
+
+
+def test_a_region_name_must_be_one_line_of_its_own():
+    doc = Document()
+    for rid, name in (("r1", "input"), ("r2", "output")):
+        doc.add(Region(rid, name, frozenset()))
+    assert renamed(doc, doc["r2"], " load ").name == "load"
+    assert renamed(doc, doc["r2"], "output").name == "output"  # its own name is no clash
+    for text, reason in (("", "enter a name"), ("in\nput", "one line of text"),
+                         ("input", "another region is already called “input”")):
+        with pytest.raises(DocumentError, match=reason):
+            renamed(doc, doc["r2"], text)
+
+
+def test_renaming_a_part_in_its_field_carries_a_chosen_port_along():
+    doc = divider()
+    r1 = doc.by_designator("R1")
+    doc.add(Region("r1", "src", frozenset({r1.id}), port=("R1.a", "out")))
+    (designator,) = [f for f in fields_for(r1) if f.name == "designator"]
+    new = designator.write(doc, r1, "R7")
+    assert [e.port for e in new if isinstance(e, Region)] == [("R7.a", "out")]
+    assert designator.write(doc, r1, "R1") == [r1]  # unchanged: nothing follows
