@@ -257,11 +257,8 @@ class EquivalentDock(QDockWidget):
         settings = QFormLayout()
         settings.addRow("Region", self.region_box)
         settings.addRow("Name", self.name)
-        ports = QHBoxLayout()
         for sign, box in zip(("+", "−"), self.port_boxes.values(), strict=True):
-            ports.addWidget(QLabel(sign))
-            ports.addWidget(box, 1)
-        settings.addRow("Port", ports)
+            settings.addRow(f"Port {sign}", box)
         settings.addRow("Frequency", self.frequency)
         forms = QHBoxLayout()
         forms.addWidget(self.thevenin)
