@@ -1,5 +1,5 @@
 """Renders the user guide's region screenshots offscreen: a valid region, an invalid one, a
-collapsed block and the sweep view, from the bundled examples.
+collapsed block, the sweep view and a port chosen by hand, from the bundled examples.
 
 Run from the repository root: ``python3 docs/images/make_region_screenshots.py``. Settings are
 throwaway; nothing of the user's is read or written.
@@ -17,10 +17,14 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 from PySide6.QtCore import QSettings
+from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QApplication
 
 import assets
+from app.commands import ReplaceElements
 from app.panels import _show_sweep
+from app.panels.sweep import FOLLOW_MS
+from app.region_edits import port_text
 from app.settings import Settings
 from app.window import MainWindow
 from engine.schematic import fileformat
@@ -41,6 +45,7 @@ def _window(app: QApplication, scratch: str) -> MainWindow:
 def _settle(app: QApplication) -> None:
     for _ in range(6):
         app.processEvents()
+    QTest.qWait(FOLLOW_MS + 100)  # the sweep view waits for edits to settle before sweeping
 
 
 def _shoot(app: QApplication, window: MainWindow, name: str) -> None:
@@ -76,6 +81,13 @@ def main() -> int:
     doc.replace(replace(region, members=region.members - {left_out.id}))
     window.workbench.replace_document(doc, None)
     _shoot(app, window, "region-invalid.png")
+
+    window = _window(app, scratch)
+    window.files.open_path(assets.example_path("strain_gauge_bridge"), as_copy=True)
+    doc = window.workbench.doc
+    region = replace(doc.regions()[0], swap=False, port=("adc_p", "adc_n"))
+    window.workbench.push(ReplaceElements(doc, [region], port_text(region)))
+    _shoot(app, window, "region-port.png")
     os._exit(0)  # no teardown: closing would ask about the unsaved sheets
 
 
