@@ -18,14 +18,14 @@ import functools
 import math
 from array import array
 from collections.abc import Iterable, Iterator
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
 from .errors import CircuitError
 from .units import parse_value
 
-__all__ = ["GROUND", "KINDS", "Circuit", "Columns", "Part"]
+__all__ = ["GROUND", "KINDS", "REFERRING", "Circuit", "Columns", "Part", "References"]
 
 GROUND = "0"
 
@@ -45,6 +45,8 @@ KINDS: dict[str, tuple[str, ...]] = {
     "coupling": (),
 }
 _CURRENT_CONTROLLED = frozenset({"ccvs", "cccs"})
+#: Kinds whose parts name other parts (``Part.refs``).
+REFERRING = ("ccvs", "cccs", "coupling")
 _SOURCES = frozenset({"voltage_source", "current_source"})
 #: Each kind's code in :class:`Columns` (its position in KINDS).
 KIND_CODE = {kind: code for code, kind in enumerate(KINDS)}
@@ -271,6 +273,7 @@ class Columns:
     nets: list[str]
     net_id: dict[str, int]
     row: dict[str, int]
+    _references: list[References] = field(default_factory=list)
 
     def __len__(self) -> int:
         return len(self.parts)
@@ -292,6 +295,41 @@ class Columns:
     def rows_of(self, kinds: tuple[str, ...]) -> np.ndarray:
         """Rows of the parts of the given kinds, in circuit order."""
         return kind_mask(kinds)[self.kinds].nonzero()[0]
+
+    def references(self) -> References:
+        """The rows of the parts that other parts name (made when first asked, then kept:
+        the columns never change)."""
+        if not self._references:
+            self._references.append(References(self))
+        return self._references[0]
+
+
+class References:
+    """Which part each referring part (CCVS, CCCS, coupling) names, as rows of ``columns``.
+
+    ``rows`` are the referring parts' rows (ascending), ``named[i]`` the rows of the parts the
+    i-th names (its controlling part; a coupling's two inductors), -1 where the circuit has no
+    part of that name (a controlling part not added yet) and, for a controlled source, in the
+    unused second column.
+    """
+
+    __slots__ = ("columns", "named", "rows")
+
+    def __init__(self, columns: Columns) -> None:
+        self.columns = columns
+        self.rows = columns.rows_of(REFERRING)
+        parts, row_of = columns.parts, columns.row_of
+        found = [[row_of(ref) for ref in parts[i].refs] for i in self.rows.tolist()]
+        self.named = np.array([[-1 if r is None else r for r in refs] + [-1] * (2 - len(refs))
+                               for refs in found], dtype=np.intp).reshape(-1, 2)
+
+    def of(self, rows: np.ndarray) -> np.ndarray:
+        """``named`` for the referring parts at ``rows`` (rows of the columns, ascending)."""
+        return self.named[np.searchsorted(self.rows, rows)]
+
+    def name(self, row: int, which: int) -> str:
+        """The name the part at ``row`` gives as its ``which``-th reference (for messages)."""
+        return self.columns.parts[row].refs[which]
 
 
 @functools.cache

@@ -288,7 +288,6 @@ class _Port:
     def values(self, freqs: np.ndarray) -> _Values:
         """Decide voc, isc, z at every frequency (all zero or all non-zero)."""
         out = _Values(freqs.size)
-        z_lo, z_hi = self.netlist.impedance_range(freqs)
         todo = np.ones(freqs.size, dtype=bool)
         failure: SingularCircuitError | None = None
         if self.open is not None:
@@ -298,18 +297,20 @@ class _Port:
             failure = solved.failure
             voc, z = solved.x[:, 0], solved.x[:, 1]
             resolved = solved.ok & (np.abs(z) > solved.bound)
-            # z unresolved from 0 while the bound is within the parts' impedances: z = 0
-            zero = solved.ok & ~resolved & (solved.bound <= z_hi)
             with np.errstate(all="ignore"):
                 out.put(resolved, voc[resolved], voc[resolved] / z[resolved], z[resolved],
                         True, True)
-            out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False)
-            todo = ~(resolved | zero)
+            todo = ~resolved
+            if (solved.ok & todo).any():
+                # z unresolved from 0 while the bound is within the parts' impedances: z = 0
+                zero = solved.ok & todo & (solved.bound <= self.netlist.impedance_range(freqs)[1])
+                out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False)
+                todo &= ~zero
         if todo.any():
-            self._from_short(freqs, todo, z_lo, out, failure)
+            self._from_short(freqs, todo, out, failure)
         return out
 
-    def _from_short(self, freqs: np.ndarray, todo: np.ndarray, z_lo: np.ndarray, out: _Values,
+    def _from_short(self, freqs: np.ndarray, todo: np.ndarray, out: _Values,
                     failure: SingularCircuitError | None) -> None:
         try:
             system = self.shorted()
@@ -320,7 +321,7 @@ class _Port:
             raise self._neither(failure, solved.failure)
         isc, y = solved.x[:, 0], -solved.x[:, 1]
         with np.errstate(divide="ignore"):
-            y_hi = 1 / z_lo[todo]
+            y_hi = 1 / self.netlist.impedance_range(freqs[todo])[0]
         resolved = np.abs(y) > solved.bound
         open_port = ~resolved & (solved.bound <= y_hi)
         if not (resolved | open_port).all():

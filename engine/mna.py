@@ -38,7 +38,7 @@ import scipy.sparse as sp
 from scipy.sparse.csgraph import maximum_bipartite_matching
 from scipy.sparse.linalg import splu
 
-from .circuit import KINDS, NET_COLUMNS, Columns, Part
+from .circuit import KINDS, NET_COLUMNS, REFERRING, Columns, Part, kind_mask
 from .errors import CircuitError, SingularCircuitError
 from .units import format_eng
 
@@ -54,9 +54,10 @@ EPS = float(np.finfo(float).eps)
 ORDERING = "MMD_AT_PLUS_A"
 
 _CONTROLLED = ("ccvs", "cccs")
+_SOURCES = ("voltage_source", "current_source")
+#: Group-2 parts (a branch-current unknown) always; any other part whose current controls a
+#: CCVS or CCCS, and a 0 Ω resistor, is one too.
 _ALWAYS_BRANCH = ("voltage_source", "vcvs", "ccvs", "inductor", "opamp")
-#: Parts that become group-2 (branch current unknown) only when they control a CCVS or CCCS.
-_BRANCH_IF_CONTROLLER = ("resistor", "capacitor", "impedance", "current_source", "vccs", "cccs")
 
 
 def describe_freq(freq: float) -> str:
@@ -66,14 +67,16 @@ def describe_freq(freq: float) -> str:
 
 class Group:
     """The parts of one kind: ``rows`` are their rows in the circuit's :class:`Columns`,
-    ``nodes[i]`` part i's net ids (``Part.nets`` order), ``values[i]`` its value; ``names``
-    and ``refs`` are read from the parts when first asked."""
+    ``nodes[i]`` part i's net ids (``Part.nets`` order), ``values[i]`` its value, ``span``
+    their place among the netlist's parts; ``names`` are read from the parts when first
+    asked."""
 
-    __slots__ = ("_names", "columns", "nodes", "rows", "values")
+    __slots__ = ("_names", "columns", "nodes", "rows", "span", "values")
 
     def __init__(self, columns: Columns, rows: np.ndarray, nodes: np.ndarray,
-                 values: np.ndarray) -> None:
+                 values: np.ndarray, span: slice) -> None:
         self.columns, self.rows, self.nodes, self.values = columns, rows, nodes, values
+        self.span = span
         self._names: list[str] | None = None
 
     def __len__(self) -> int:
@@ -85,18 +88,13 @@ class Group:
             self._names = _picked(self.columns.names, self.rows)
         return self._names
 
-    @property
-    def refs(self) -> list[tuple[str, ...]]:
-        parts = self.columns.parts
-        return [parts[i].refs for i in self.rows.tolist()]
-
 
 _NO_ROWS = np.zeros(0, dtype=np.intp)
-_EMPTY = Group(Columns.of(()), _NO_ROWS, np.zeros((0, 4), dtype=np.int32), np.zeros(0))
+_NO_REFERENCES = np.zeros((0, 2), dtype=np.intp)
+_EMPTY = Group(Columns.of(()), _NO_ROWS, np.zeros((0, 4), dtype=np.int32), np.zeros(0),
+               slice(0, 0))
 #: Net ids per part of each kind (``Part.nets``: the op-amp's ground return included).
 _WIDTH = [len(roles) + (kind == "opamp") for kind, roles in KINDS.items()]
-#: Kinds whose parts name other parts (``refs``).
-_REFERRING = ("ccvs", "cccs", "coupling")
 
 
 def _group_values(columns: Columns, rows: np.ndarray) -> np.ndarray:
@@ -110,10 +108,11 @@ class Netlist:
 
     ``nets[i]`` is the name of net id ``i`` (numbered in order of first use, kind by kind);
     ``index`` maps a name back and ``net_ids[i]`` is net i's id in the circuit's register.
-    ``rows`` are the parts' rows in ``columns`` (None: all of them). All parts kind by kind:
-    ``table[i]`` the net ids of the i-th (``Part.nets`` order, -1 beyond them) and ``codes[i]``
-    its kind code; the groups' node arrays are views of ``table``. Couplings are kept with
-    their inductor names in ``refs``. A netlist never changes after construction, so results
+    ``rows`` are the parts' rows in ``columns`` (None: all of them). All parts kind by kind (the
+    netlist's part order): ``part_rows[i]`` the row of the i-th in ``columns``, ``table[i]`` its
+    net ids (``Part.nets`` order, -1 beyond them) and ``codes[i]`` its kind code; the groups'
+    node arrays are views of ``table``. The parts that CCVS, CCCS and couplings name are read
+    with :meth:`referred`. A netlist never changes after construction, so results
     derived from it alone may be kept in ``memo``; those under a key tagged (the key, or its
     first item) with a name in ``STRUCTURAL`` depend on the parts' kinds, nets and references
     only, and outlive a value edit (:meth:`with_values`).
@@ -121,8 +120,8 @@ class Netlist:
 
     STRUCTURAL = frozenset({"carrying", "controlling", "islands"})
 
-    __slots__ = ("_nets", "codes", "columns", "controllers", "groups", "index", "memo",
-                 "net_ids", "rows", "table")
+    __slots__ = ("_nets", "codes", "columns", "groups", "index", "memo", "net_ids",
+                 "part_rows", "rows", "table")
 
     def __init__(self, parts: Sequence[Part]) -> None:
         self._build(Columns.of(parts), None)
@@ -165,12 +164,12 @@ class Netlist:
         self.groups: dict[str, Group] = {}
         for (kind, start, end, width), complex_kind in zip(spans, complex_kinds, strict=True):
             self.groups[kind] = Group(columns, grouped[start:end], table[start:end, :width],
-                                      (values if complex_kind else real)[start:end])
-        self.columns, self.rows, self.net_ids = columns, rows, used
+                                      (values if complex_kind else real)[start:end],
+                                      slice(start, end))
+        self.columns, self.rows, self.net_ids, self.part_rows = columns, rows, used, grouped
         self.table, self.codes = table, kinds.take(order)
         self.index: Mapping[str, int] = _NetIndex(columns, local, used)
         self._nets: list[str] | None = None
-        self.controllers: set[str] = {r[0] for kind in _CONTROLLED for r in self[kind].refs}
         self.memo: dict[object, object] = {}
 
     def __getitem__(self, kind: str) -> Group:
@@ -183,14 +182,27 @@ class Netlist:
         found[self.table[spec.take(self.codes, axis=0)]] = True
         return found
 
-    def controlling(self, kind: str) -> np.ndarray:
-        """Per part of ``kind``: True where its current controls a CCVS or CCCS."""
+    def controlling(self, kind: str | None = None) -> np.ndarray:
+        """Per part of ``kind`` (None: every part, in the netlist's order): True where its
+        current controls a CCVS or CCCS."""
         flags = self.memo.get("controlling")
         if flags is None:
             flags = self.memo["controlling"] = np.zeros(len(self.columns), dtype=bool)
-            found = [self.columns.row_of(name) for name in self.controllers]
-            flags[[row for row in found if row is not None]] = True
-        return flags[self[kind].rows]
+            for controlled in _CONTROLLED:
+                named = self.referred(controlled)[:, 0]
+                flags[named[named >= 0]] = True
+        return flags.take(self.part_rows if kind is None else self[kind].rows)
+
+    def referred(self, kind: str) -> np.ndarray:
+        """Per part of ``kind`` (CCVS, CCCS or coupling): the rows in ``columns`` of the parts
+        it names (:attr:`engine.circuit.References.named`)."""
+        rows = self[kind].rows
+        return self.columns.references().of(rows) if rows.size else _NO_REFERENCES
+
+    @property
+    def has_controlled(self) -> bool:
+        """True when a CCVS or CCCS is among the parts."""
+        return any(kind in self.groups for kind in _CONTROLLED)
 
     @property
     def net_count(self) -> int:
@@ -233,7 +245,7 @@ class Netlist:
                 and (columns.names is mine.names
                      or _picked(columns.names, rows) == _picked(mine.names, rows))):
             return None
-        referring = columns.rows_of(_REFERRING)
+        referring = columns.rows_of(REFERRING)
         if rows is not None:
             referring = np.intersect1d(referring, rows)
         if any(columns.parts[i].refs != mine.parts[i].refs for i in referring.tolist()):
@@ -243,9 +255,10 @@ class Netlist:
             return self
         netlist = Netlist.__new__(Netlist)
         netlist.columns, netlist.rows, netlist.net_ids = columns, rows, self.net_ids
-        netlist.table, netlist.codes = self.table, self.codes
-        netlist._nets, netlist.index, netlist.controllers = self._nets, self.index, self.controllers
-        netlist.groups = {kind: Group(columns, g.rows, g.nodes, _group_values(columns, g.rows))
+        netlist.table, netlist.codes, netlist.part_rows = self.table, self.codes, self.part_rows
+        netlist._nets, netlist.index = self._nets, self.index
+        netlist.groups = {kind: Group(columns, g.rows, g.nodes, _group_values(columns, g.rows),
+                                      g.span)
                           for kind, g in self.groups.items()}
         netlist.memo = {key: found for key, found in self.memo.items()
                         if (key[0] if isinstance(key, tuple) else key) in self.STRUCTURAL}
@@ -360,66 +373,47 @@ def _picked(items: list[str], rows: np.ndarray | None) -> list[str]:
 
 
 class Branches:
-    """Group-2 parts of a netlist: per kind, the positions in its group of the parts that carry
-    a branch current (``where``) and the offset of the first among the branch unknowns
-    (``first``); ``offset_of`` maps a part name to its offset."""
+    """Group-2 parts of a netlist (those with a branch-current unknown), numbered in the
+    netlist's part order: ``offset[i]`` is the i-th part's offset among the branch unknowns,
+    -1 where it has none; ``count`` how many there are."""
 
-    __slots__ = ("_by_row", "_offsets", "count", "first", "netlist", "where")
+    __slots__ = ("_offsets", "count", "netlist", "offset")
 
     def __init__(self, netlist: Netlist) -> None:
         self.netlist = netlist
-        self.where: dict[str, np.ndarray] = {}
-        self.first: dict[str, int] = {}
-        count = 0
-        for kind in (*_ALWAYS_BRANCH, *_BRANCH_IF_CONTROLLER):
-            group = netlist.groups.get(kind)
-            if group is None:
-                continue
-            if kind in _ALWAYS_BRANCH:
-                where = np.arange(len(group))
-            else:
-                mask = netlist.controlling(kind)
-                if kind == "resistor":
-                    mask = mask | (group.values == 0)
-                where = mask.nonzero()[0]
-            if where.size:
-                self.where[kind], self.first[kind] = where, count
-                count += where.size
-        self.count = count
+        flags = kind_mask(_ALWAYS_BRANCH).take(netlist.codes)
+        if netlist.has_controlled:
+            flags |= netlist.controlling()
+        wires = netlist["resistor"]
+        flags[wires.span] |= wires.values == 0
+        self.offset = np.where(flags, flags.cumsum() - 1, -1)
+        self.count = int(np.count_nonzero(flags))
         self._offsets: dict[str, int] | None = None
-        self._by_row: np.ndarray | None = None
 
-    def offset(self, name: str) -> int | None:
-        """The branch-current offset of part ``name``; None where it has none (or is not in the
-        netlist)."""
-        row = self.netlist.columns.row_of(name)
-        if row is None:
-            return None
-        if self._by_row is None:  # per row of the columns: the branch offset there, or -1
-            self._by_row = np.full(len(self.netlist.columns), -1, dtype=np.intp)
-            for kind, where in self.where.items():
-                self._by_row[self.netlist[kind].rows[where]] = np.arange(
-                    self.first[kind], self.first[kind] + where.size)
-        found = int(self._by_row[row])
-        return found if found >= 0 else None
+    def of(self, kind: str) -> np.ndarray:
+        """The offsets of the parts of ``kind`` (-1 where a part has no branch current)."""
+        return self.offset[self.netlist[kind].span]
 
-    def plain(self, kind: str) -> np.ndarray | slice:
-        """Selector of the parts of ``kind`` without a branch current."""
-        where = self.where.get(kind)
-        if where is None:
-            return slice(None)
-        keep = _filled(len(self.netlist[kind]), True, bool)
-        keep[where] = False
-        return keep
+    def plain(self, kind: str) -> np.ndarray:
+        """Per part of ``kind``: True where it has no branch current."""
+        return self.of(kind) < 0
+
+    def by_row(self) -> np.ndarray:
+        """Per row of the netlist's columns, and one more: the branch-current offset of the
+        part there, -1 where it has none or is not in the netlist. The spare last entry is -1
+        too, so a row of -1 (no such part) reads -1."""
+        by_row = _filled(len(self.netlist.columns) + 1, -1, np.intp)
+        by_row[self.netlist.part_rows] = self.offset
+        return by_row
 
     @property
     def offset_of(self) -> dict[str, int]:
+        """The offset of each group-2 part, by name."""
         if self._offsets is None:
-            self._offsets = {}
-            for kind, where in self.where.items():
-                names = self.netlist[kind].names
-                self._offsets.update((names[i], self.first[kind] + j)
-                                     for j, i in enumerate(where.tolist()))
+            found = (self.offset >= 0).nonzero()[0]
+            names = self.netlist.columns.names
+            self._offsets = dict(zip([names[i] for i in self.netlist.part_rows[found].tolist()],
+                                     self.offset[found].tolist(), strict=True))
         return self._offsets
 
 
@@ -434,6 +428,10 @@ class _Entries:
     vals: np.ndarray
     keys: np.ndarray
     weights: np.ndarray
+
+
+#: Up to this many entries (diagonal weights and triplets) a matrix is compressed here.
+_SMALL_MATRIX = 4096
 
 
 def _summed(keys: np.ndarray, weights: np.ndarray, size: int) -> np.ndarray:
@@ -552,15 +550,53 @@ class System:
             found = self._layouts[key] = (keys, touched, rows, cols)
         return found
 
+    def _slots(self, entries: Sequence[_Entries], form: type[sp.spmatrix]
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """For a small sum of ``entries`` in ``form``: the slot of each of their diagonal
+        weights and then of each triplet among the matrix's non-zeros, and the matrix's
+        ``indices`` and ``indptr`` (canonical: sorted, no duplicates)."""
+        key = (form, *(e is self._m for e in entries))
+        found = self._layouts.get(key)
+        if found is None:
+            rows = np.concatenate([e.keys for e in entries] + [e.rows for e in entries])
+            cols = np.concatenate([e.keys for e in entries] + [e.cols for e in entries])
+            major, minor = (cols, rows) if form is sp.csc_matrix else (rows, cols)
+            code = major.astype(np.int64) * self.size + minor
+            order = code.argsort(kind="stable")
+            code = code.take(order)
+            new = np.empty(code.size, dtype=bool)
+            new[:1] = True
+            np.not_equal(code[1:], code[:-1], out=new[1:])
+            slots = np.empty(code.size, dtype=np.intp)
+            slots[order] = new.cumsum() - 1
+            unique = code[new]
+            indptr = np.zeros(self.size + 1, dtype=np.int32)
+            np.bincount(unique // self.size, minlength=self.size).cumsum(out=indptr[1:])
+            found = self._layouts[key] = (slots, (unique % self.size).astype(np.int32), indptr)
+        return found
+
     def _compressed(self, entries: Sequence[_Entries], scales: Sequence[complex | None],
                     form: type[sp.spmatrix]) -> sp.spmatrix:
-        """The sum of ``entries``, each times its scale (None: 1), in ``form``."""
-        keys, touched, rows, cols = self._layout(*entries)
+        """The sum of ``entries``, each times its scale (None: 1), in ``form``.
+
+        Duplicates are summed in the order given, as SciPy's conversion sums them. Up to
+        ``_SMALL_MATRIX`` entries the compressed structure is worked out here once per form and
+        kept (SciPy's conversion costs more in fixed overhead than a small matrix's sort);
+        beyond, SciPy's counting sort converts each matrix.
+        """
         weights, vals = [], []
         with np.errstate(over="ignore", invalid="ignore"):  # inf at absurd frequencies
             for e, scale in zip(entries, scales, strict=True):
                 weights.append(e.weights if scale is None else scale * e.weights)
                 vals.append(e.vals if scale is None else scale * e.vals)
+        if sum(e.keys.size + e.rows.size for e in entries) <= _SMALL_MATRIX:
+            slots, indices, indptr = self._slots(entries, form)
+            data = _summed(slots, np.concatenate(weights + vals), indices.size)
+            if np.iscomplexobj(self.b):
+                data = data.astype(complex, copy=False)
+            return form((data, indices, indptr), shape=(self.size, self.size))
+        keys, touched, rows, cols = self._layout(*entries)
+        with np.errstate(over="ignore", invalid="ignore"):
             diagonal = _summed(keys, np.concatenate(weights), self.size)[touched]
         data = np.concatenate([diagonal, *vals])
         if np.iscomplexobj(data) or np.iscomplexobj(self.b):
@@ -609,14 +645,15 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
     ``short``: net ids (plus, minus) joined by an ideal 0 V branch (the shorted port), whose
     current (from plus through the short into minus) is the unknown ``System.short``.
     Raises :class:`~engine.errors.SingularCircuitError` where a CCVS/CCCS names a controller
-    that is not among the parts, or a coupling an inductor that is not.
+    that is not among the parts analysed, or a coupling an inductor that is not.
     """
     n_nets = netlist.net_count
-    u = _filled(n_nets, -1, np.int32)  # unknown of each net id; -1 where pinned
+    # unknown of each net id, -1 where pinned; the spare last -1 answers the table's padding
+    u = _filled(n_nets + 1, -1, np.int32)
     is_node = _filled(n_nets, True, bool)
     is_node[np.asarray(pinned, dtype=np.intp)] = False
-    n_nodes = int(is_node.sum())
-    u[is_node] = np.arange(n_nodes, dtype=np.int32)
+    n_nodes = int(np.count_nonzero(is_node))
+    u[:n_nets][is_node] = np.arange(n_nodes, dtype=np.int32)
 
     branches = netlist.branches()
     size = n_nodes + branches.count
@@ -625,78 +662,15 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
 
     g, m = _Triplets(), _Triplets()
     b = np.zeros(size, dtype=complex if _sources_complex(netlist) else float)
-    controls = _control_indices(netlist, n_nodes) if netlist.controllers else {}
-
-    def plain(kind: str) -> tuple[np.ndarray, np.ndarray]:
-        """Nodes (as unknowns) and values of the parts of ``kind`` without a branch current."""
-        group, keep = netlist[kind], branches.plain(kind)
-        return u[group.nodes[keep]], group.values[keep]
-
-    # Parts without a branch current: admittances, transconductances, source injections.
+    # Admittances (most entries of a large circuit) by kind; every other stamp by the table.
     for kind, target in (("resistor", g), ("impedance", g), ("capacitor", m)):
-        if kind in netlist.groups:
-            nodes, values = plain(kind)
-            if len(values):
-                target.admittance(nodes[:, 0], nodes[:, 1],
-                                  values if kind == "capacitor" else 1 / values)
-    if "current_source" in netlist.groups:
-        nodes, values = plain("current_source")
-        for col, sign in ((0, -1.0), (1, 1.0)):
-            k = nodes[:, col]
-            np.add.at(b, k[k >= 0], sign * values[k >= 0])
-    if "vccs" in netlist.groups:
-        nodes, gm = plain("vccs")
-        f, t, cp, cn = nodes.T
-        g.add((f, f, t, t), (cp, cn, cp, cn), (gm, -gm, -gm, gm))
-    if "cccs" in netlist.groups:
-        nodes, beta = plain("cccs")
-        kc = controls["cccs"][branches.plain("cccs")]
-        g.add((nodes[:, 0], nodes[:, 1]), (kc, kc), (beta, -beta))
-
-    # Group-2 parts: the incidence of their currents, then their branch rows.
-    rows = {}
-    for kind, where in branches.where.items():
         group = netlist[kind]
-        start = n_nodes + branches.first[kind]
-        rows[kind] = (np.arange(start, start + where.size), u[group.nodes[where]],
-                      group.values[where], where)
-    two_terminal = [r for kind, r in rows.items() if kind != "opamp"]
-    if two_terminal:
-        k = np.concatenate([r[0] for r in two_terminal])
-        nodes = np.concatenate([r[1][:, :2] for r in two_terminal])
-        g.incidence(k, nodes[:, 0], nodes[:, 1])
-    voltage_rows = [rows[kind] for kind in ("voltage_source", "vcvs", "ccvs", "inductor",
-                                            "resistor", "impedance") if kind in rows]
-    if voltage_rows:
-        k = np.concatenate([r[0] for r in voltage_rows])
-        nodes = np.concatenate([r[1][:, :2] for r in voltage_rows])
-        g.voltage_row(k, nodes[:, 0], nodes[:, 1])
-    for kind, (k, nodes, values, where) in rows.items():
-        if kind == "opamp":  # the output current enters ``out``; row V(inp) - V(inn) = 0
-            g.add((nodes[:, 2], nodes[:, 3]), (k, k), (-1.0, 1.0))
-            g.voltage_row(k, nodes[:, 0], nodes[:, 1])
-        elif kind == "voltage_source":
-            b[k] = values
-        elif kind == "vcvs":
-            g.add((k, k), (nodes[:, 2], nodes[:, 3]), (-values, values))
-        elif kind == "ccvs":
-            g.add((k,), (controls["ccvs"][where],), (-values,))
-        elif kind == "inductor":
-            m.add((k,), (k,), (-values,))
-        elif kind in ("resistor", "impedance"):   # V(a) - V(b) - R I = 0 (R = 0: a wire)
-            g.add((k,), (k,), (-values,))
-        elif kind == "capacitor":                 # s C (V(a) - V(b)) - I = 0
-            m.voltage_row(k, nodes[:, 0], nodes[:, 1], values)
-            g.add((k,), (k,), (-1.0,))
-        else:                                     # current-defined: I - value (...) = 0
-            g.add((k,), (k,), (1.0,))
-            if kind == "current_source":
-                b[k] = values
-            elif kind == "vccs":
-                g.add((k, k), (nodes[:, 2], nodes[:, 3]), (-values, values))
-            else:
-                g.add((k,), (controls["cccs"][where],), (-values,))
-
+        keep = branches.plain(kind)
+        if keep.any():
+            nodes, values = u.take(group.nodes[keep]), group.values[keep]
+            target.admittance(nodes[:, 0], nodes[:, 1],
+                              values if kind == "capacitor" else 1 / values)
+    _stamp_by_table(netlist, branches, u, n_nodes, g, m, b)
     if "coupling" in netlist.groups:
         _stamp_couplings(netlist, n_nodes, m)
     if short is not None:
@@ -704,24 +678,153 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
         a, bb = u[np.array([short[0]])], u[np.array([short[1]])]
         g.incidence(k, a, bb)
         g.voltage_row(k, a, bb)
-    return System(netlist, u, n_nodes, short_index, g.entries(), m.entries(), b)
+    return System(netlist, u[:n_nets], n_nodes, short_index, g.entries(), m.entries(), b)
+
+
+# -- the stamp table ----------------------------------------------------------------------------
+# A stamp entry reads its row and column from the part's operands: the unknowns of its nets
+# (node columns 0 to 3), its own branch current, its controlling part's branch current, or
+# none (-1: the entry drops out); its coefficient is 1, -1, the value or minus the value.
+_N0, _N1, _N2, _N3, _OWN, _CONTROL, _NONE = range(7)
+_OPERANDS = 7
+#: Coefficients as (multiple of 1, multiple of the value).
+_ONE, _MINUS_ONE, _VALUE, _MINUS_VALUE = (1, 0), (-1, 0), (0, 1), (0, -1)
+_G, _M = "G", "M"
+#: The branch current leaves the part's first net and enters its second.
+_INCIDENCE = ((_G, _N0, _OWN, _ONE), (_G, _N1, _OWN, _MINUS_ONE))
+#: Its row reads V(first) - V(second) - ... = ...
+_VOLTAGE_ROW = ((_G, _OWN, _N0, _ONE), (_G, _OWN, _N1, _MINUS_ONE))
+_SERIES = (*_INCIDENCE, *_VOLTAGE_ROW)
+#: A current-defined branch row: I - value (...) = ...
+_CURRENT_ROW = ((_G, _OWN, _OWN, _ONE),)
+#: (kind, has a branch current): matrix entries (matrix, row, column, coefficient), and the
+#: right-hand side's (row, coefficient). A VCVS/VCCS senses its node columns 2 and 3; an op-amp
+#: holds V(inp) = V(inn) in its row and drives its output (column 2) from ground (column 3).
+#: Resistors, impedances and capacitors without a branch current are admittances (assemble).
+_STAMPS: dict[tuple[str, bool], tuple[tuple[tuple, ...], tuple[tuple, ...]]] = {
+    ("resistor", True): ((*_SERIES, (_G, _OWN, _OWN, _MINUS_VALUE)), ()),
+    ("impedance", True): ((*_SERIES, (_G, _OWN, _OWN, _MINUS_VALUE)), ()),
+    ("capacitor", True): ((*_INCIDENCE, (_M, _OWN, _N0, _VALUE), (_M, _OWN, _N1, _MINUS_VALUE),
+                           (_G, _OWN, _OWN, _MINUS_ONE)), ()),
+    ("inductor", True): ((*_SERIES, (_M, _OWN, _OWN, _MINUS_VALUE)), ()),
+    ("voltage_source", True): (_SERIES, ((_OWN, _VALUE),)),
+    ("current_source", False): ((), ((_N0, _MINUS_VALUE), (_N1, _VALUE))),
+    ("current_source", True): ((*_INCIDENCE, *_CURRENT_ROW), ((_OWN, _VALUE),)),
+    ("vcvs", True): ((*_SERIES, (_G, _OWN, _N2, _MINUS_VALUE), (_G, _OWN, _N3, _VALUE)), ()),
+    ("vccs", False): (((_G, _N0, _N2, _VALUE), (_G, _N0, _N3, _MINUS_VALUE),
+                       (_G, _N1, _N2, _MINUS_VALUE), (_G, _N1, _N3, _VALUE)), ()),
+    ("vccs", True): ((*_INCIDENCE, *_CURRENT_ROW, (_G, _OWN, _N2, _MINUS_VALUE),
+                      (_G, _OWN, _N3, _VALUE)), ()),
+    ("ccvs", True): ((*_SERIES, (_G, _OWN, _CONTROL, _MINUS_VALUE)), ()),
+    ("cccs", False): (((_G, _N0, _CONTROL, _VALUE), (_G, _N1, _CONTROL, _MINUS_VALUE)), ()),
+    ("cccs", True): ((*_INCIDENCE, *_CURRENT_ROW, (_G, _OWN, _CONTROL, _MINUS_VALUE)), ()),
+    ("opamp", True): (((_G, _N2, _OWN, _MINUS_ONE), (_G, _N3, _OWN, _ONE), *_VOLTAGE_ROW), ()),
+}
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class _Layer:
+    """One destination of the stamps (G, M or the right-hand side), per variant (kind code *
+    2 + has a branch current) and entry, padded with entries that read no operand: the
+    operands of the row and column, and the coefficient as ``one + value * (the part's value)``.
+    """
+
+    rows: np.ndarray
+    cols: np.ndarray
+    one: np.ndarray
+    value: np.ndarray
+
+    @classmethod
+    def of(cls, entries: dict[int, list[tuple[int, int, tuple[int, int]]]]) -> _Layer:
+        width = max(1, max(map(len, entries.values()), default=0))
+        variants = 2 * len(KINDS)
+        rows, cols = np.full((variants, width), _NONE), np.full((variants, width), _NONE)
+        one, value = np.zeros((variants, width)), np.zeros((variants, width))
+        for v, listed in entries.items():
+            for j, (row, col, (a, k)) in enumerate(listed):
+                rows[v, j], cols[v, j], one[v, j], value[v, j] = row, col, a, k
+        return cls(rows, cols, one, value)
+
+    def gather(self, flat: np.ndarray, base: np.ndarray, variant: np.ndarray,
+               values: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Rows, columns and weights of every stamped part's entries (-1: none), flattened;
+        ``flat`` holds the parts' operands row by row, ``base`` each part's offset in it."""
+        rows = flat.take(base + self.rows.take(variant, axis=0)).ravel()
+        cols = flat.take(base + self.cols.take(variant, axis=0)).ravel()
+        weights = (self.one.take(variant, axis=0)
+                   + self.value.take(variant, axis=0) * values[:, None]).ravel()
+        return rows, cols, weights
+
+
+def _stamp_layers() -> tuple[np.ndarray, _Layer, _Layer, _Layer]:
+    """Whether each variant is stamped by the table, and its G, M and right-hand side layers."""
+    stamped = np.zeros(2 * len(KINDS), dtype=bool)
+    layers: dict[str, dict[int, list]] = {_G: {}, _M: {}, "b": {}}
+    codes = {kind: code for code, kind in enumerate(KINDS)}
+    for (kind, branch), (stamps, rhs) in _STAMPS.items():
+        v = 2 * codes[kind] + branch
+        stamped[v] = True
+        for which, row, col, coef in stamps:
+            layers[which].setdefault(v, []).append((row, col, coef))
+        layers["b"][v] = [(row, _NONE, coef) for row, coef in rhs]
+    return stamped, _Layer.of(layers[_G]), _Layer.of(layers[_M]), _Layer.of(layers["b"])
+
+
+_STAMPED, _G_LAYER, _M_LAYER, _B_LAYER = _stamp_layers()
+
+
+def _stamp_by_table(netlist: Netlist, branches: Branches, u: np.ndarray, n_nodes: int,
+                    g: _Triplets, m: _Triplets, b: np.ndarray) -> None:
+    """Stamp every part the table covers, all kinds at once: a few gathers, however many
+    kinds there are. Entries that read no operand or a pinned net keep a -1 and drop out
+    when the triplets are collected."""
+    variant = netlist.codes.astype(np.intp) * 2 + (branches.offset >= 0)
+    sel = _STAMPED.take(variant).nonzero()[0]
+    if not sel.size:
+        return
+    variant = variant.take(sel)
+    operands = np.empty((sel.size, _OPERANDS), dtype=np.int32)
+    operands[:, :4] = u.take(netlist.table.take(sel, axis=0))
+    own = branches.offset.take(sel)
+    operands[:, _OWN] = np.where(own >= 0, own + n_nodes, -1)
+    operands[:, _CONTROL:] = -1
+    if netlist.has_controlled:
+        controls = _control_indices(netlist, n_nodes)
+        for kind in _CONTROLLED:
+            span = netlist[kind].span
+            start = int(np.searchsorted(sel, span.start))
+            operands[start:start + span.stop - span.start, _CONTROL] = controls[kind]
+    part_rows = netlist.part_rows.take(sel)
+    values = netlist.columns.values.take(part_rows)
+    given_complex = netlist.columns.complex_valued.take(part_rows)
+    flat, base = operands.ravel(), np.arange(0, operands.size, _OPERANDS)[:, None]
+    sources = kind_mask(_SOURCES).take(netlist.codes.take(sel))
+    if sources.any():
+        targets, _, weights = _B_LAYER.gather(flat, base, variant, values)
+        spare = np.zeros(b.size + 1, dtype=b.dtype)  # where the -1 targets land
+        np.add.at(spare, targets, weights if np.iscomplexobj(b) else weights.real)
+        b += spare[:-1]
+    # a complex source phasor leaves the matrix real
+    matrix_values = values if (given_complex & ~sources).any() else values.real
+    for layer, target in ((_G_LAYER, g), (_M_LAYER, m)):
+        rows, cols, weights = layer.gather(flat, base, variant, matrix_values)
+        target.add((rows,), (cols,), (weights,))
 
 
 def _control_indices(netlist: Netlist, n_nodes: int) -> dict[str, np.ndarray]:
     """For the CCVS and the CCCS, the branch unknown of each one's controlling part."""
-    branches = netlist.branches()
+    by_row = netlist.branches().by_row()
     result = {}
     for kind in _CONTROLLED:
-        group = netlist[kind]
-        ids = []
-        for name, (control,) in zip(group.names, group.refs, strict=True):
-            offset = branches.offset(control)
-            if offset is None:
-                raise SingularCircuitError(
-                    f"{name} is controlled by the current in {control}, which is not among the "
-                    "parts analysed; add it or change the controlling part")
-            ids.append(n_nodes + offset)
-        result[kind] = np.array(ids, dtype=np.intp)
+        offsets = by_row[netlist.referred(kind)[:, 0]]
+        if (offsets < 0).any():
+            group = netlist[kind]
+            i = int(np.argmax(offsets < 0))
+            control = netlist.columns.references().name(int(group.rows[i]), 0)
+            raise SingularCircuitError(
+                f"{group.names[i]} is controlled by the current in {control}, which is not "
+                "among the parts analysed; add it or change the controlling part")
+        result[kind] = n_nodes + offsets
     return result
 
 
@@ -732,15 +835,15 @@ def _sources_complex(netlist: Netlist) -> bool:
 
 def _stamp_couplings(netlist: Netlist, n_nodes: int, m: _Triplets) -> None:
     group, inductors = netlist["coupling"], netlist["inductor"]
-    position = dict(zip(inductors.names, range(len(inductors)), strict=True))
-    pairs = []
-    for name, refs in zip(group.names, group.refs, strict=True):
-        for ref in refs:
-            if ref not in position:
-                raise SingularCircuitError(f"{name} couples {ref}, which is not among the parts "
-                                           "analysed")
-        pairs.append([position[ref] for ref in refs])
-    at = np.array(pairs, dtype=np.intp)
+    # per row of the columns (and a spare -1 for a missing part): position among the inductors
+    position = _filled(len(netlist.columns) + 1, -1, np.intp)
+    position[inductors.rows] = np.arange(len(inductors))
+    at = position[netlist.referred("coupling")]
+    if (at < 0).any():
+        i, j = np.argwhere(at < 0)[0].tolist()
+        ref = netlist.columns.references().name(int(group.rows[i]), j)
+        raise SingularCircuitError(f"{group.names[i]} couples {ref}, which is not among the "
+                                   "parts analysed")
     henries = inductors.values[at]
     product = henries[:, 0] * henries[:, 1]
     if (product < 0).any():
@@ -748,8 +851,7 @@ def _stamp_couplings(netlist: Netlist, n_nodes: int, m: _Triplets) -> None:
         raise CircuitError(f"{name} couples inductors of opposite signs; M = k sqrt(L1 L2) needs "
                            "both inductances of one sign")
     mutual = -group.values * np.sqrt(product)
-    # every inductor carries a branch current, in its group's order
-    k1, k2 = (n_nodes + netlist.branches().first["inductor"] + at[:, i] for i in (0, 1))
+    k1, k2 = (n_nodes + netlist.branches().of("inductor").take(at[:, i]) for i in (0, 1))
     m.add((k1, k2), (k2, k1), (mutual, mutual))
 
 
@@ -817,13 +919,11 @@ class Factor:
         if np.iscomplexobj(data) and not np.iscomplexobj(self.matrix.data):
             # SuperLU solves in the factor's own dtype: real factor, complex rhs in two parts
             return self.solve(data.real, transposed) + 1j * self.solve(data.imag, transposed)
-        try:
-            with warnings.catch_warnings(), np.errstate(all="ignore"):
-                warnings.simplefilter("error")
-                x = self._lu.solve(data, trans="T" if transposed else "N")
-        except (RuntimeError, ValueError, ArithmeticError, Warning):
+        try:  # (SuperLU's solve raises; it neither warns nor heeds NumPy's error state)
+            x = self._lu.solve(data, trans="T" if transposed else "N")
+        except (RuntimeError, ValueError, ArithmeticError):
             raise Singular(self.system, self.freq, self.matrix) from None
-        if not np.all(np.isfinite(x)):
+        if not np.isfinite(x).all():
             raise Singular(self.system, self.freq, self.matrix)
         return x
 

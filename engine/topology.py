@@ -56,8 +56,42 @@ def _column_table(spec: Iterable[tuple[str, tuple[int, ...]]]) -> np.ndarray:
     return table
 
 
+@dataclass(frozen=True, slots=True, eq=False)
+class _Edges:
+    """Branches as graph edges, per kind code: whether the kind has one (``used``) and the two
+    node columns it joins (``first``, ``second``)."""
+
+    used: np.ndarray
+    first: np.ndarray
+    second: np.ndarray
+
+    @classmethod
+    def of(cls, spec: Iterable[tuple[str, tuple[int, int]]]) -> _Edges:
+        used = np.zeros(len(KINDS), dtype=bool)
+        first, second = np.zeros(len(KINDS), dtype=np.intp), np.zeros(len(KINDS), dtype=np.intp)
+        for kind, (i, j) in spec:
+            code = KIND_CODE[kind]
+            used[code], first[code], second[code] = True, i, j
+        return cls(used, first, second)
+
+
 _CARRYING_COLUMNS = _column_table(_CARRYING)
 _SENSED_COLUMNS = _column_table(_SENSES)
+_CARRYING_EDGES, _SENSE_EDGES = _Edges.of(_CARRYING), _Edges.of(_SENSES)
+_CURRENT_EDGES = _Edges.of(_CURRENT_TYPE)
+#: Conducting branches at any frequency but DC, and at DC (capacitors open).
+_CONDUCTING = (("resistor", (0, 1)), ("inductor", (0, 1)), ("impedance", (0, 1)),
+               ("voltage_source", (0, 1)), ("ccvs", (0, 1)), ("vcvs", (0, 1)), ("opamp", (2, 3)))
+_CONDUCTING_EDGES = {False: _Edges.of((*_CONDUCTING, ("capacitor", (0, 1)))),
+                     True: _Edges.of(_CONDUCTING)}
+#: Branches that fix a voltage but not their current (inductors: at DC only).
+_VOLTAGE_DEFINED = (("voltage_source", (0, 1)), ("vcvs", (0, 1)), ("ccvs", (0, 1)),
+                    ("opamp", (2, 3)), ("resistor", (0, 1)))
+_VOLTAGE_EDGES = {False: _Edges.of(_VOLTAGE_DEFINED),
+                  True: _Edges.of((*_VOLTAGE_DEFINED, ("inductor", (0, 1))))}
+#: Per kind code: its place in a loop's message (sources first).
+_LOOP_RANK = {KIND_CODE[kind]: i for i, (kind, _) in
+              enumerate((*_VOLTAGE_DEFINED, ("inductor", (0, 1))))}
 SHORT = "the port short"
 
 
@@ -236,6 +270,13 @@ def _region_names(region: Collection[str]) -> set[str]:
     return names
 
 
+def _referring(columns: Columns, *kinds: str) -> list[Part]:
+    """The parts of ``kinds`` (kinds that name other parts), in circuit order."""
+    parts = columns.parts
+    return [p for p in map(parts.__getitem__, columns.references().rows.tolist())
+            if p.kind in kinds]
+
+
 def _inside_first(parts: list[Part], names: set[str]) -> list[Part]:
     return [p for p in parts if p.name in names] + [p for p in parts if p.name not in names]
 
@@ -243,7 +284,7 @@ def _inside_first(parts: list[Part], names: set[str]) -> list[Part]:
 def _coupling_sides(columns: Columns, names: set[str]) -> set[str]:
     """Couplings that must change side to follow their inductors; refuse one spanning it."""
     flipped: set[str] = set()
-    couplings = [columns.parts[i] for i in columns.rows_of(("coupling",)).tolist()]
+    couplings = _referring(columns, "coupling")
     for k in _inside_first(couplings, names):
         l1, l2 = k.refs
         if (l1 in names) != (l2 in names):
@@ -258,7 +299,7 @@ def _coupling_sides(columns: Columns, names: set[str]) -> set[str]:
 
 def _check_controls(circuit: Circuit, columns: Columns, names: set[str]) -> None:
     """A CCVS/CCCS and its controlling part lie on the same side, and the part exists."""
-    controlled = [columns.parts[i] for i in columns.rows_of(_CONTROLLED).tolist()]
+    controlled = _referring(columns, *_CONTROLLED)
     for p in _inside_first(controlled, names):
         control, inside = p.refs[0], p.name in names
         if control not in circuit:
@@ -344,7 +385,7 @@ class _Sides:
         net) meets the rest at a single net; KCL for the piece forbids any current there.
         """
         netlist = self.netlist
-        a, b = _pairs(netlist, _CARRYING)
+        a, b, _ = _pairs(netlist, _CARRYING_EDGES)
         labels = _components(netlist.net_count, a, b)
         pieces: dict[int, set[str]] = {}
         for net in chain(self.boundary, port):
@@ -395,19 +436,24 @@ def _port_from(terminals: set[str]) -> tuple[str, str]:
 
 
 # -- connectivity on index arrays ---------------------------------------------------------------
-def _pairs(netlist: Netlist, spec: Iterable[tuple[str, tuple[int, int]]],
-           masks: dict[str, np.ndarray] | None = None) -> tuple[np.ndarray, np.ndarray]:
-    a, b = [], []
-    for kind, (i, j) in spec:
-        nodes = netlist[kind].nodes
-        if masks and kind in masks:
-            nodes = nodes[masks[kind]]
-        if len(nodes):
-            a.append(nodes[:, i])
-            b.append(nodes[:, j])
-    if not a:
-        return np.zeros(0, dtype=np.intp), np.zeros(0, dtype=np.intp)
-    return np.concatenate(a), np.concatenate(b)
+def _pairs(netlist: Netlist, edges: _Edges, keep: np.ndarray | None = None
+           ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The ends (net ids) of the netlist's branches of the kinds in ``edges`` (and, where given,
+    ``keep`` per part), and which parts they are (positions in the netlist's part order)."""
+    codes = netlist.codes
+    chosen = edges.used.take(codes)
+    if keep is not None:
+        chosen &= keep
+    parts = chosen.nonzero()[0]
+    kinds = codes.take(parts)
+    table = netlist.table
+    return table[parts, edges.first.take(kinds)], table[parts, edges.second.take(kinds)], parts
+
+
+def _part_names(netlist: Netlist, parts: np.ndarray) -> list[str]:
+    """Names of the parts at ``parts`` (positions in the netlist's part order)."""
+    names = netlist.columns.names
+    return [names[i] for i in netlist.part_rows.take(parts).tolist()]
 
 
 #: Up to this many edges a union-find in Python beats building a SciPy sparse graph (whose
@@ -446,15 +492,6 @@ def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
     return np.array(labels, dtype=np.intp)
 
 
-def _conducting(netlist: Netlist, dc: bool) -> tuple[tuple[str, tuple[int, int]], ...]:
-    """Branches that conduct at the analysis frequency (capacitors open at DC)."""
-    kinds = [("resistor", (0, 1)), ("inductor", (0, 1)), ("impedance", (0, 1)),
-             ("voltage_source", (0, 1)), ("ccvs", (0, 1)), ("vcvs", (0, 1)), ("opamp", (2, 3))]
-    if not dc:
-        kinds.append(("capacitor", (0, 1)))
-    return tuple(kinds)
-
-
 class Islands:
     """The galvanically separate islands of a netlist at one frequency class (DC or not).
 
@@ -472,7 +509,7 @@ class Islands:
                  short: tuple[int, int] | None = None) -> None:
         self.netlist, self.dc = netlist, dc
         n = netlist.net_count
-        a, b = _pairs(netlist, _conducting(netlist, dc))
+        a, b, _ = _pairs(netlist, _CONDUCTING_EDGES[dc])
         if short is not None:
             a, b = np.append(a, short[0]), np.append(b, short[1])
         self.labels = labels = _components(n, a, b)
@@ -484,10 +521,9 @@ class Islands:
         if count <= 1:
             self.pinned = np.array([ref_net] if n else [], dtype=np.intp)
             return
-        ca, cb = _pairs(netlist, _CURRENT_TYPE)
-        controlled = np.concatenate([np.full(len(netlist[k]), k != "current_source")
-                                     for k, _ in _CURRENT_TYPE])
-        sa, sb = _pairs(netlist, _SENSES)
+        ca, cb, current = _pairs(netlist, _CURRENT_EDGES)
+        controlled = netlist.codes.take(current) != KIND_CODE["current_source"]
+        sa, sb, _ = _pairs(netlist, _SENSE_EDGES)
         self._crossing = labels[ca] != labels[cb]
         self._sensing = labels[sa] != labels[sb]
         crossed = self._touches(labels[ca], labels[cb], self._crossing, count)
@@ -542,8 +578,8 @@ class Islands:
         netlist, labels = self.netlist, self.labels
         members = np.flatnonzero(labels == label)
         nets = _listing([netlist.nets[i] for i in members], 5)
-        ca, cb = _pairs(netlist, _CURRENT_TYPE)
-        current_names = [n for k, _ in _CURRENT_TYPE for n in netlist[k].names]
+        ca, cb, current = _pairs(netlist, _CURRENT_EDGES)
+        current_names = _part_names(netlist, current)
         on_edge = self._crossing & ((labels[ca] == label) | (labels[cb] == label))
         sources = [current_names[i] for i in np.flatnonzero(on_edge)]
         dc_note = ""
@@ -560,8 +596,8 @@ class Islands:
                     f"{_listing(sources, 4)}{dc_note}: that current has no return path, so the "
                     "circuit has no solution; add a conducting path (e.g. a resistor) from there "
                     "to the rest")
-        sa, sb = _pairs(netlist, _SENSES)
-        sense_names = [n for k, _ in _SENSES for n in netlist[k].names]
+        sa, sb, sensing = _pairs(netlist, _SENSE_EDGES)
+        sense_names = _part_names(netlist, sensing)
         on_edge = self._sensing & ((labels[sa] == label) | (labels[sb] == label))
         i = int(np.flatnonzero(on_edge)[0])
         return (f"{sense_names[i]} senses the voltage between nets {netlist.nets[sa[i]]} and "
@@ -591,22 +627,20 @@ def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | Non
     whose current controls a CCVS/CCCS are left out (their current enters another equation).
     Raises SingularCircuitError naming the loop's parts.
     """
-    spec = [("voltage_source", (0, 1)), ("vcvs", (0, 1)), ("ccvs", (0, 1)), ("opamp", (2, 3)),
-            ("resistor", (0, 1))]
-    if dc:
-        spec.append(("inductor", (0, 1)))
-    masks = {kind: _free_current(netlist, kind) for kind, _ in spec}
-    a, b = _pairs(netlist, spec, masks)
+    a, b, parts = _pairs(netlist, _VOLTAGE_EDGES[dc], _free_current(netlist))
     if short is not None:
         a, b = np.append(a, short[0]), np.append(b, short[1])
     if not _has_loop(a, b):
         return
-    names = [n for kind, _ in spec for n, keep in zip(netlist[kind].names, masks[kind].tolist(),
-                                                      strict=True) if keep]
+    names = _part_names(netlist, parts)
     if short is not None:
         names.append(SHORT)
+    # sources before wires and inductors, so that the message names the loop's sources first
+    rank = [_LOOP_RANK[code] for code in netlist.codes.take(parts).tolist()] + [len(_LOOP_RANK)]
+    ends = list(zip(a.tolist(), b.tolist(), strict=True))
     graph = nx.MultiGraph()
-    graph.add_edges_from(zip(a.tolist(), b.tolist(), names, strict=True))
+    graph.add_edges_from((*ends[i], names[i]) for i in sorted(range(len(names)),
+                                                              key=rank.__getitem__))
     loop = [key for _u, _v, key in nx.find_cycle(graph)]
     notes = " (inductors are shorts at DC)" if dc and any(
         n in netlist["inductor"].names for n in loop) else ""
@@ -641,9 +675,13 @@ def _root(parent: dict[int, int], x: int) -> int:
     return x
 
 
-def _free_current(netlist: Netlist, kind: str) -> np.ndarray:
-    keep = ~netlist.controlling(kind)
-    return keep & (netlist[kind].values == 0) if kind == "resistor" else keep
+def _free_current(netlist: Netlist) -> np.ndarray:
+    """Per part: its current enters no other equation (it controls no CCVS/CCCS) and, for a
+    resistor, it is a 0 Ω wire."""
+    keep = ~netlist.controlling()
+    resistors = netlist["resistor"]
+    keep[resistors.span] &= resistors.values == 0
+    return keep
 
 
 # -- a readable graph ---------------------------------------------------------------------------

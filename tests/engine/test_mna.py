@@ -15,7 +15,8 @@ from fractions import Fraction
 import numpy as np
 import pytest
 
-from engine import GROUND, Circuit, SingularCircuitError
+from engine import GROUND, Circuit, SingularCircuitError, mna
+from engine.bench import mixed_circuit
 from engine.mna import EPS, Factor, Netlist, Singular, System, assemble
 
 
@@ -216,3 +217,22 @@ def test_error_bound_covers_the_actual_error() -> None:
     bound = factor.error_bound(x, rhs, x)  # passive: A is symmetric, the adjoint is x itself
     assert abs(z - float(tail)) <= bound
     assert bound <= 1e6 * EPS * abs(z)
+
+
+@pytest.mark.parametrize("freq", [0.0, 1e3])
+def test_small_matrices_compressed_here_equal_scipys_conversion(monkeypatch: pytest.MonkeyPatch,
+                                                                freq: float) -> None:
+    # SciPy's COO conversion (reference library) sums duplicate entries; the compression done
+    # here for small matrices must give the same matrix, in canonical CSC and CSR form.
+    c, region, _ = mixed_circuit(4)
+    netlist = Netlist([p for p in c if p.name in region])
+    pinned = [netlist.index[GROUND]] + [netlist.index[f"t{i}"] for i in range(4)]
+    here = assemble(netlist, pinned)
+    monkeypatch.setattr(mna, "_SMALL_MATRIX", -1)
+    by_scipy = assemble(netlist, pinned)
+    for mine, theirs in ((here.matrix(freq), by_scipy.matrix(freq)),
+                         *zip(here.parts(), by_scipy.parts(), strict=True)):
+        assert mine.format == theirs.format and mine.has_canonical_format
+        assert np.array_equal(mine.indptr, theirs.indptr)
+        assert np.array_equal(mine.indices, theirs.indices)
+        assert np.array_equal(mine.data, theirs.data)
