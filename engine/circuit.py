@@ -296,9 +296,15 @@ class Columns:
         """Rows of the parts of the given kinds, in circuit order."""
         return kind_mask(kinds)[self.kinds].nonzero()[0]
 
+    def shares_references(self, other: Columns) -> bool:
+        """True when ``other`` shares these columns' references: made by replacing parts
+        that name none, its referring parts are the very same."""
+        return other._references is self._references
+
     def references(self) -> References:
         """The rows of the parts that other parts name (made when first asked, then kept:
-        the columns never change)."""
+        the columns never change; columns made by replacing parts that name none share
+        them)."""
         if not self._references:
             self._references.append(References(self))
         return self._references[0]
@@ -393,8 +399,10 @@ class _Store:
             listed[i] = part
         for a in (nodes, values, flags):
             a.flags.writeable = False
+        # what the referring parts name is unchanged unless one of them is replaced
+        references = [] if any(part.kind in REFERRING for part in new) else base._references
         return self._derived(Columns(base.kinds, nodes, values, flags, base.names, listed,
-                                     self.nets, self.net_id, self.row))
+                                     self.nets, self.net_id, self.row, references))
 
     def _ids(self, nets: tuple[str, ...]) -> list[int]:
         """Register ids of ``nets``; a new name takes the next."""

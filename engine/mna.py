@@ -245,11 +245,12 @@ class Netlist:
                 and (columns.names is mine.names
                      or _picked(columns.names, rows) == _picked(mine.names, rows))):
             return None
-        referring = columns.rows_of(REFERRING)
-        if rows is not None:
-            referring = np.intersect1d(referring, rows)
-        if any(columns.parts[i].refs != mine.parts[i].refs for i in referring.tolist()):
-            return None
+        if not columns.shares_references(mine):
+            referring = columns.rows_of(REFERRING)
+            if rows is not None:
+                referring = np.intersect1d(referring, rows)
+            if any(columns.parts[i].refs != mine.parts[i].refs for i in referring.tolist()):
+                return None
         if same(columns.values, mine.values) and same(columns.complex_valued,
                                                       mine.complex_valued):
             return self

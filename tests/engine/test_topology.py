@@ -240,6 +240,27 @@ def referred_names(netlist: Netlist, kind: str) -> list[list[str | None]]:
             for pair in netlist.referred(kind).tolist()]
 
 
+def test_an_edit_of_what_a_controlled_source_senses_is_not_taken_for_a_value_edit() -> None:
+    # A 3 V source across R1 = 1 kOhm and R2 = 3 kOhm in parallel: 3 mA in R1, 1 mA in R2. A
+    # CCCS senses one of them and drives the load RL at the port, so with the port open
+    # voc = gain * I(sensed) * RL (common practice: Ohm's law). Edits of plain values keep the
+    # references; pointing the CCCS at the other resistor must not, and must give its answer.
+    c = Circuit()
+    c.voltage_source("V1", "s", GROUND, 3)
+    c.resistor("R1", "s", GROUND, "1k")
+    c.resistor("R2", "s", GROUND, "3k")
+    c.cccs("F1", GROUND, "o", "R1", 2)
+    c.resistor("RL", "o", GROUND, "500")
+    region = set(c.names)
+    assert equivalent(c, region, ("o", GROUND)).voc == pytest.approx(2 * 3e-3 * 500)
+    valued = c.replaced([replace(c["RL"], value=250)])
+    assert valued.columns().shares_references(c.columns())
+    assert equivalent(valued, region, ("o", GROUND)).voc == pytest.approx(2 * 3e-3 * 250)
+    resensed = valued.replaced([replace(valued["F1"], refs=("R2",), value=3)])
+    assert not resensed.columns().shares_references(valued.columns())
+    assert equivalent(resensed, region, ("o", GROUND)).voc == pytest.approx(3 * 1e-3 * 250)
+
+
 def test_a_region_netlist_from_the_columns_equals_one_built_from_its_parts() -> None:
     # The netlist of a region is read from the circuit's columns; it must number the nets and
     # group the parts exactly as one built part by part from the same parts.
