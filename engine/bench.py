@@ -239,7 +239,7 @@ def bench_small(repeat: int) -> list[Row]:
         c = current[0]
         current[0] = c.replaced([replace(c["RB0"], value=c["RB0"].value * 1.001)])
 
-    label = f"equivalent(), {len(circuit)}-part circuit of every kind"
+    label = f"equivalent(), {len(circuit)} parts of every kind"
     first = _paired(engine, floor, repeat, before=forget_netlists)
     edited = _paired(engine, floor, repeat, before=edit)
     again = _paired(engine, floor, repeat)
@@ -280,14 +280,15 @@ def run(quick: bool = False) -> list[Row]:
 
 def format_table(rows: Sequence[Row]) -> str:
     """The rows as a text table; the last column is SuperLU's default ordering, for context."""
-    lines = [f"{'case':<56} {'engine':>10} {'floor':>10} {'ratio':>7} {'target':>8}  met"
-             f"  {'default order':>13}", "-" * 116]
+    width = max(len(r.case) for r in rows)
+    lines = [f"{'case':<{width}} {'engine':>10} {'floor':>10} {'ratio':>7} {'target':>8}  met"
+             f"  {'default order':>13}", "-" * (width + 60)]
     for r in rows:
         floor = f"{r.floor * 1e3:8.2f} ms" if r.floor else f"{'-':>10}"
         ratio = f"{r.ratio:6.2f}x" if r.ratio is not None else f"{'-':>7}"
         target = f"<={r.target:.1f}x" if r.unit == "x" else f"<{r.target:.1f}ms"
         reference = f"{r.reference * 1e3:10.2f} ms" if r.reference else ""
-        lines.append(f"{r.case:<56} {r.engine * 1e3:8.2f} ms {floor} {ratio} {target:>8}  "
+        lines.append(f"{r.case:<{width}} {r.engine * 1e3:8.2f} ms {floor} {ratio} {target:>8}  "
                      f"{'yes' if r.met else 'NO ':<3}  {reference}")
     return "\n".join(lines)
 

@@ -647,7 +647,8 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
                       anchors: Sequence[str], nets: list[str], what: str
                       ) -> tuple[np.ndarray, complex, float, float]:
     """Voltages of ``nets`` and the port current, with ``inner`` fed through the probe, and the
-    largest magnitudes of any net voltage and of any branch current in the whole solution."""
+    scales of the whole solution: the largest net voltage (at least the largest current times
+    the smallest part impedance) and the largest current (a branch's or a current source's)."""
     moved = [replace(p, nodes=tuple(probe.side if n == probe.net else n for n in p.nodes))
              for p in inner]
     wire = Part(probe.name, "resistor", (probe.net, probe.side), 0.0)
@@ -665,5 +666,11 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
     volts = np.where(ids >= 0, x[np.maximum(ids, 0)], 0)
     current = probe.sign * complex(x[system.branch_of[probe.name]])
     node_part, branch_part = x[:system.n_nodes], x[system.n_nodes:]
-    return (volts, current, float(np.abs(node_part).max(initial=0)),
-            max(float(np.abs(branch_part).max(initial=0)), abs(current)))
+    # a current source's current is part of the solution too (it has no branch unknown)
+    sources = np.abs(netlist["current_source"].values)
+    peak_i = max(float(np.abs(branch_part).max(initial=0)), abs(current),
+                 float(sources.max(initial=0)))
+    # a current circulating in wires leaves every voltage at rounding level: the voltages
+    # such a current makes across the smallest part impedance are the scale of that noise
+    smallest = float(netlist.impedance_range(np.array([f]))[0][0])
+    return volts, current, max(float(np.abs(node_part).max(initial=0)), peak_i * smallest), peak_i

@@ -464,13 +464,12 @@ class _Triplets:
             self.vals.append(v if isinstance(v, np.ndarray) else _filled(r.size, v, float))
 
     def admittance(self, a: np.ndarray, b: np.ndarray, y: np.ndarray) -> None:
-        """``y`` between a and b: its diagonal terms summed per unknown, the off-diagonal ones
-        only where both ends are unknowns (not pinned)."""
+        """``y`` between a and b: its diagonal terms summed per unknown (those of pinned nets,
+        -1, drop out like every entry that names one)."""
         self.keys += [a, b]
         self.weights += [y, y]
-        both = (a >= 0) & (b >= 0)
-        a, b, y = (a, b, -y) if both.all() else (a[both], b[both], -y[both])
-        self.add((a, b), (b, a), (y, y))
+        minus = -y
+        self.add((a, b), (b, a), (minus, minus))
 
     def incidence(self, k: np.ndarray, a: np.ndarray, b: np.ndarray) -> None:
         """Branch current k leaves net a and enters net b."""
@@ -663,14 +662,14 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
 
     g, m = _Triplets(), _Triplets()
     b = np.zeros(size, dtype=complex if _sources_complex(netlist) else float)
-    # Admittances (most entries of a large circuit) by kind; every other stamp by the table.
-    for kind, target in (("resistor", g), ("impedance", g), ("capacitor", m)):
-        group = netlist[kind]
-        keep = branches.plain(kind)
-        if keep.any():
-            nodes, values = u.take(group.nodes[keep]), group.values[keep]
-            target.admittance(nodes[:, 0], nodes[:, 1],
-                              values if kind == "capacitor" else 1 / values)
+    # Admittances (most entries of a large circuit); every other stamp by the table.
+    plain = branches.offset < 0
+    for kinds, target in ((("resistor", "impedance"), g), (("capacitor",), m)):
+        parts = (kind_mask(kinds).take(netlist.codes) & plain).nonzero()[0]
+        if parts.size:
+            nodes = u.take(netlist.table.take(parts, axis=0)[:, :2])
+            values = _values_at(netlist, parts)
+            target.admittance(nodes[:, 0], nodes[:, 1], values if target is m else 1 / values)
     _stamp_by_table(netlist, branches, u, n_nodes, g, m, b)
     if "coupling" in netlist.groups:
         _stamp_couplings(netlist, n_nodes, m)
@@ -772,6 +771,14 @@ def _stamp_layers() -> tuple[np.ndarray, _Layer, _Layer, _Layer]:
 
 
 _STAMPED, _G_LAYER, _M_LAYER, _B_LAYER = _stamp_layers()
+
+
+def _values_at(netlist: Netlist, parts: np.ndarray) -> np.ndarray:
+    """Values of the parts at ``parts`` (positions in the netlist's part order): real unless
+    one of them was given as complex."""
+    rows = netlist.part_rows.take(parts)
+    values = netlist.columns.values.take(rows)
+    return values if netlist.columns.complex_valued.take(rows).any() else values.real
 
 
 def _stamp_by_table(netlist: Netlist, branches: Branches, u: np.ndarray, n_nodes: int,

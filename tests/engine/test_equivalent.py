@@ -360,6 +360,23 @@ def test_the_check_sees_a_wrong_reduction() -> None:
     assert report.voltage_abs > 0.01 and report.current_abs > 1e-6
 
 
+
+def test_a_current_circulating_in_a_wire_is_no_deviation() -> None:
+    # A current source shorted by a 0 Ohm wire delivers nothing outside (common practice):
+    # voc = 0 and z = 10 Ohm || 2.2 kOhm. Both whole solutions leave every voltage at
+    # rounding level; that noise must not read as a deviation of the reduced circuit.
+    c = Circuit()
+    c.resistor("R3", "n3", GROUND, 10)
+    c.resistor("R4", "n4", GROUND, "2k2")
+    c.current_source("I5", "n3", "n4", 3e-3j)
+    c.resistor("W6", "n3", "n4", 0)
+    c.resistor("LOAD", "n3", GROUND, "1k")
+    region = {"R3", "R4", "I5", "W6"}
+    eq = equivalent(c, region, ("n3", GROUND))
+    assert abs(eq.voc) < 1e-15 and close(eq.z, 10 * 2200 / 2210)
+    reduced = collapse(c, region, port=("n3", GROUND))
+    assert check_equivalence(c, reduced, region, port=("n3", GROUND), loads=[10]).within(1e-9)
+
 def test_the_check_across_a_galvanically_separate_winding() -> None:
     c = Circuit()
     c.voltage_source("V1", "in", GROUND, 10)
