@@ -162,7 +162,7 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
     if len(region.outline) < 3:
         return ()
     edges = list(zip(region.outline, region.outline[1:] + region.outline[:1], strict=True))
-    members = [doc[m] for m in region.members if m in doc]
+    members = [doc[m] for m in sorted(region.members) if m in doc]  # sorted: marks repeatable
     marks: list[PortMark] = []
     for role, net in zip(("plus", "minus"), port, strict=True):
         points = [pt for wire in doc.wires() if conn.net_of_wire.get(wire.id) == net
@@ -171,8 +171,7 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
             pins = [pin for m in members for i, pin in enumerate(element_pins(m))
                     if conn.net_of_pin.get((m.id, i)) == net]
             if pins and _used_outside(doc, conn, region, net):
-                points = [min((_nearest(edges, p) for p in pins),
-                              key=lambda q: q[0])[1]]
+                points = [min(_nearest(edges, p) for p in pins)[1]]  # ties: the lower point
             elif pins:
                 points = [min(pins, key=lambda p: (_nearest(edges, p)[0], p))]
         for pt in dict.fromkeys((round(x, 3), round(y, 3)) for x, y in points):

@@ -4,6 +4,10 @@ the error style with the named nets and parts highlighted."""
 
 from __future__ import annotations
 
+import os
+import subprocess
+import sys
+
 import pytest
 from PySide6.QtCore import QPointF, Qt
 from PySide6.QtGui import QColor, QPolygonF
@@ -207,3 +211,27 @@ def test_marks_and_numbers_survive_opening_another_sheet(window, drive):
     assert window.analysis.analysis.equivalent.voc == pytest.approx(5.0, rel=1e-12)
     ports = window.cut_marks.items()[1]
     assert ports.scene() is window.canvas.scene and len(ports.marks) == 2
+
+
+_MARKS_OF_THE_DEMO = """
+from assets import example_path
+from engine.schematic import extract, load
+from engine.schematic.reduction import analyse_region
+from app.regions import port_marks
+doc = load(example_path())
+conn = extract(doc)
+for region in doc.regions():
+    port = analyse_region(doc, region.id, conn=conn).equivalent.port
+    print(port_marks(doc, conn, region, port))
+"""
+
+
+def test_port_marks_do_not_depend_on_set_order():
+    # A region's members are a set, whose order changes with the interpreter's hash seed; the
+    # marks of the demo (a port net joined by a label, with pins at equal distances from the
+    # outline) must come out the same in every interpreter.
+    seen = {subprocess.run([sys.executable, "-c", _MARKS_OF_THE_DEMO], capture_output=True,
+                           text=True, check=True,
+                           env={**os.environ, "PYTHONHASHSEED": str(seed)}).stdout
+            for seed in range(4)}
+    assert len(seen) == 1 and "PortMark" in seen.pop()
