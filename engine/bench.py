@@ -166,13 +166,32 @@ class Row:
         return self.figure <= self.target if self.unit == "x" else self.figure < self.target
 
 
+def _three_ways(circuit: Circuit, region: set[str], port: tuple[str, str], resistor: str,
+               floor: Callable[[], object], repeat: int, label: str, target: float, unit: str,
+               reference: float | None = None) -> list[Row]:
+    """The region's equivalent beside ``floor`` at its first analysis (nothing kept), after a
+    value edit of ``resistor`` (as a live view sees one), and analysed again unchanged."""
+    current = [circuit]
+
+    def engine() -> None:
+        equivalent(current[0], region, port, FREQ)
+
+    def edit() -> None:
+        c = current[0]
+        current[0] = c.replaced([replace(c[resistor], value=c[resistor].value * 1.001)])
+
+    timed = {"first": _paired(engine, floor, repeat, before=forget_netlists),
+             "after a value edit": _paired(engine, floor, repeat, before=edit),
+             "again": _paired(engine, floor, repeat)}
+    return [Row(f"{label}, {case}", *figures, target, unit, reference)
+            for case, figures in timed.items()]
+
+
 def bench_mesh(nets: int, repeat: int) -> list[Row]:
-    """The mesh at its first analysis (nothing kept), after a value edit of one resistor (as a
-    live view sees it), and analysed again unchanged."""
+    """The mesh three ways (:func:`_three_ways`) against SciPy on the same system; SuperLU's
+    default ordering is timed alongside, for context."""
     side = round(math.sqrt(nets))
-    current = [mesh(side, side)]
-    region = set(current[0].names)
-    port = (f"m{side - 1}_{side - 1}", GROUND)
+    circuit = mesh(side, side)
     matrix, rhs = _mesh_floor_system(side, side, FREQ)
 
     def floor() -> None:
@@ -181,21 +200,10 @@ def bench_mesh(nets: int, repeat: int) -> list[Row]:
     def default_floor() -> None:
         splu(matrix).solve(rhs)
 
-    def engine() -> None:
-        equivalent(current[0], region, port, FREQ)
-
-    def edit() -> None:
-        c = current[0]
-        current[0] = c.replaced([replace(c["RH0_0"], value=c["RH0_0"].value * 1.001)])
-
-    label = f"equivalent(), RC mesh of {side * side:,} nets"
-    first = _paired(engine, floor, repeat, before=forget_netlists)
-    edited = _paired(engine, floor, repeat, before=edit)
-    again = _paired(engine, floor, repeat)
     default = _paired(default_floor, floor, max(3, repeat // 2))[0]
-    return [Row(f"{label}, first", *first, 1.3, "x", default),
-            Row(f"{label}, after a value edit", *edited, 1.3, "x", default),
-            Row(f"{label}, again", *again, 1.3, "x", default)]
+    return _three_ways(circuit, set(circuit.names), (f"m{side - 1}_{side - 1}", GROUND),
+                       "RH0_0", floor, repeat, f"equivalent(), RC mesh of {side * side:,} nets",
+                       1.3, "x", default)
 
 
 def bench_sweep(points: int, repeat: int) -> Row:
@@ -218,11 +226,10 @@ def bench_sweep(points: int, repeat: int) -> Row:
 
 
 def bench_small(repeat: int) -> list[Row]:
-    """Median times of a first analysis (as after an edit), of one after a value edit and of
-    a repeated one; the floor is SciPy's own work on the same equations (the engine's open-port
-    matrix at the same frequency): one factorization and the solves, plain and transposed."""
+    """The mixed circuit three ways (:func:`_three_ways`); the floor is SciPy's own work on
+    the same equations (the engine's open-port matrix at the same frequency): one
+    factorization and the solves, plain and transposed."""
     circuit, region, port = mixed_circuit()
-    current = [circuit]
     system = _SOLVERS._port_of(topology.cut(circuit, region, port), False).open
     matrix = system.matrix(FREQ).copy()
     both = np.column_stack((system.b, system.rhs(port[0]))).astype(complex)
@@ -232,20 +239,8 @@ def bench_small(repeat: int) -> list[Row]:
         lu.solve(both)
         lu.solve(both[:, 1].copy(), trans="T")
 
-    def engine() -> None:
-        equivalent(current[0], region, port, FREQ)
-
-    def edit() -> None:
-        c = current[0]
-        current[0] = c.replaced([replace(c["RB0"], value=c["RB0"].value * 1.001)])
-
-    label = f"equivalent(), {len(circuit)} parts of every kind"
-    first = _paired(engine, floor, repeat, before=forget_netlists)
-    edited = _paired(engine, floor, repeat, before=edit)
-    again = _paired(engine, floor, repeat)
-    return [Row(f"{label}, first", *first, 2.0, "ms"),
-            Row(f"{label}, after a value edit", *edited, 2.0, "ms"),
-            Row(f"{label}, again", *again, 2.0, "ms")]
+    return _three_ways(circuit, region, port, "RB0", floor, repeat,
+                       f"equivalent(), {len(circuit)} parts of every kind", 2.0, "ms")
 
 
 def crossover(sizes: Sequence[int] = (10, 20, 40, 60, 80, 100, 120, 160, 200, 300),
