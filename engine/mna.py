@@ -395,10 +395,6 @@ class Branches:
         """The offsets of the parts of ``kind`` (-1 where a part has no branch current)."""
         return self.offset[self.netlist[kind].span]
 
-    def plain(self, kind: str) -> np.ndarray:
-        """Per part of ``kind``: True where it has no branch current."""
-        return self.of(kind) < 0
-
     def by_row(self) -> np.ndarray:
         """Per row of the netlist's columns, and one more: the branch-current offset of the
         part there, -1 where it has none or is not in the netlist. The spare last entry is -1
@@ -447,7 +443,7 @@ def _summed(keys: np.ndarray, weights: np.ndarray, size: int) -> np.ndarray:
 
 
 class _Triplets:
-    """COO entries collected stamp by stamp, concatenated once; a scalar value is repeated."""
+    """COO entries collected stamp by stamp, concatenated once."""
 
     def __init__(self) -> None:
         self.rows: list[np.ndarray] = []
@@ -457,11 +453,10 @@ class _Triplets:
         self.weights: list[np.ndarray] = []
 
     def add(self, rows: Sequence[np.ndarray], cols: Sequence[np.ndarray],
-            vals: Sequence[np.ndarray | float]) -> None:
-        for r, c, v in zip(rows, cols, vals, strict=True):
-            self.rows.append(r)
-            self.cols.append(c)
-            self.vals.append(v if isinstance(v, np.ndarray) else _filled(r.size, v, float))
+            vals: Sequence[np.ndarray]) -> None:
+        self.rows += rows
+        self.cols += cols
+        self.vals += vals
 
     def admittance(self, a: np.ndarray, b: np.ndarray, y: np.ndarray) -> None:
         """``y`` between a and b: its diagonal terms summed per unknown (those of pinned nets,
@@ -471,14 +466,6 @@ class _Triplets:
         minus = -y
         self.add((a, b), (b, a), (minus, minus))
 
-    def incidence(self, k: np.ndarray, a: np.ndarray, b: np.ndarray) -> None:
-        """Branch current k leaves net a and enters net b."""
-        self.add((a, b), (k, k), (1.0, -1.0))
-
-    def voltage_row(self, k: np.ndarray, a: np.ndarray, b: np.ndarray,
-                    scale: np.ndarray | float = 1.0) -> None:
-        """``scale * (V(a) - V(b))`` in row k."""
-        self.add((k, k), (a, b), (scale, -scale))
 
     def entries(self) -> _Entries:
         empty = np.zeros(0, dtype=np.int32)
@@ -673,11 +660,11 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
     _stamp_by_table(netlist, branches, u, n_nodes, g, m, b)
     if "coupling" in netlist.groups:
         _stamp_couplings(netlist, n_nodes, m)
-    if short is not None:
-        k = np.array([short_index])
-        a, bb = u[np.array([short[0]])], u[np.array([short[1]])]
-        g.incidence(k, a, bb)
-        g.voltage_row(k, a, bb)
+    if short is not None:  # a 0 V branch from plus to minus, stamped as a voltage source's
+        operands = [int(u[short[0]]), int(u[short[1]]), -1, -1, short_index, -1, -1]
+        for _, row, col, (one, _) in _SERIES:
+            g.add((np.array([operands[row]]),), (np.array([operands[col]]),),
+                  (np.array([float(one)]),))
     return System(netlist, u[:n_nets], n_nodes, short_index, g.entries(), m.entries(), b)
 
 
