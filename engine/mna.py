@@ -38,7 +38,7 @@ import scipy.sparse as sp
 from scipy.sparse.csgraph import maximum_bipartite_matching
 from scipy.sparse.linalg import splu
 
-from .circuit import KINDS, NET_COLUMNS, REFERRING, Columns, Part, kind_mask
+from .circuit import KIND_CODE, KINDS, NET_COLUMNS, REFERRING, Columns, Part, kind_mask
 from .errors import CircuitError, SingularCircuitError
 from .units import format_eng
 
@@ -198,6 +198,10 @@ class Netlist:
         it names (:attr:`engine.circuit.References.named`)."""
         rows = self[kind].rows
         return self.columns.references().of(rows) if rows.size else _NO_REFERENCES
+
+    def part_names(self, parts: np.ndarray) -> list[str]:
+        """Names of the parts at ``parts`` (positions in the netlist's part order)."""
+        return _picked(self.columns.names, self.part_rows.take(parts))
 
     @property
     def has_controlled(self) -> bool:
@@ -408,9 +412,8 @@ class Branches:
         """The offset of each group-2 part, by name."""
         if self._offsets is None:
             found = (self.offset >= 0).nonzero()[0]
-            names = self.netlist.columns.names
-            self._offsets = dict(zip([names[i] for i in self.netlist.part_rows[found].tolist()],
-                                     self.offset[found].tolist(), strict=True))
+            self._offsets = dict(zip(self.netlist.part_names(found), self.offset[found].tolist(),
+                                     strict=True))
         return self._offsets
 
 
@@ -655,7 +658,7 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
         parts = (kind_mask(kinds).take(netlist.codes) & plain).nonzero()[0]
         if parts.size:
             nodes = u.take(netlist.table.take(parts, axis=0)[:, :2])
-            values = _values_at(netlist, parts)
+            values = _group_values(netlist.columns, netlist.part_rows.take(parts))
             target.admittance(nodes[:, 0], nodes[:, 1], values if target is m else 1 / values)
     _stamp_by_table(netlist, branches, u, n_nodes, g, m, b)
     if "coupling" in netlist.groups:
@@ -747,9 +750,8 @@ def _stamp_layers() -> tuple[np.ndarray, _Layer, _Layer, _Layer]:
     """Whether each variant is stamped by the table, and its G, M and right-hand side layers."""
     stamped = np.zeros(2 * len(KINDS), dtype=bool)
     layers: dict[str, dict[int, list]] = {_G: {}, _M: {}, "b": {}}
-    codes = {kind: code for code, kind in enumerate(KINDS)}
     for (kind, branch), (stamps, rhs) in _STAMPS.items():
-        v = 2 * codes[kind] + branch
+        v = 2 * KIND_CODE[kind] + branch
         stamped[v] = True
         for which, row, col, coef in stamps:
             layers[which].setdefault(v, []).append((row, col, coef))
@@ -758,14 +760,6 @@ def _stamp_layers() -> tuple[np.ndarray, _Layer, _Layer, _Layer]:
 
 
 _STAMPED, _G_LAYER, _M_LAYER, _B_LAYER = _stamp_layers()
-
-
-def _values_at(netlist: Netlist, parts: np.ndarray) -> np.ndarray:
-    """Values of the parts at ``parts`` (positions in the netlist's part order): real unless
-    one of them was given as complex."""
-    rows = netlist.part_rows.take(parts)
-    values = netlist.columns.values.take(rows)
-    return values if netlist.columns.complex_valued.take(rows).any() else values.real
 
 
 def _stamp_by_table(netlist: Netlist, branches: Branches, u: np.ndarray, n_nodes: int,

@@ -450,12 +450,6 @@ def _pairs(netlist: Netlist, edges: _Edges, keep: np.ndarray | None = None
     return table[parts, edges.first.take(kinds)], table[parts, edges.second.take(kinds)], parts
 
 
-def _part_names(netlist: Netlist, parts: np.ndarray) -> list[str]:
-    """Names of the parts at ``parts`` (positions in the netlist's part order)."""
-    names = netlist.columns.names
-    return [names[i] for i in netlist.part_rows.take(parts).tolist()]
-
-
 #: Up to this many edges a union-find in Python beats building a SciPy sparse graph (whose
 #: construction costs some 0.2 ms); measured, see docs/performance.md.
 _SMALL_GRAPH = 800
@@ -579,7 +573,7 @@ class Islands:
         members = np.flatnonzero(labels == label)
         nets = _listing([netlist.nets[i] for i in members], 5)
         ca, cb, current = _pairs(netlist, _CURRENT_EDGES)
-        current_names = _part_names(netlist, current)
+        current_names = netlist.part_names(current)
         on_edge = self._crossing & ((labels[ca] == label) | (labels[cb] == label))
         sources = [current_names[i] for i in np.flatnonzero(on_edge)]
         dc_note = ""
@@ -597,7 +591,7 @@ class Islands:
                     "circuit has no solution; add a conducting path (e.g. a resistor) from there "
                     "to the rest")
         sa, sb, sensing = _pairs(netlist, _SENSE_EDGES)
-        sense_names = _part_names(netlist, sensing)
+        sense_names = netlist.part_names(sensing)
         on_edge = self._sensing & ((labels[sa] == label) | (labels[sb] == label))
         i = int(np.flatnonzero(on_edge)[0])
         return (f"{sense_names[i]} senses the voltage between nets {netlist.nets[sa[i]]} and "
@@ -632,7 +626,7 @@ def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | Non
         a, b = np.append(a, short[0]), np.append(b, short[1])
     if not _has_loop(a, b):
         return
-    names = _part_names(netlist, parts)
+    names = netlist.part_names(parts)
     if short is not None:
         names.append(SHORT)
     # sources before wires and inductors, so that the message names the loop's sources first
