@@ -16,7 +16,12 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
-FORBIDDEN = frozenset({"PySide6", "shiboken6", "pyqtgraph", "app"})
+FORBIDDEN = frozenset({"PySide6", "shiboken6", "pyqtgraph"})
+APP = "portcut.app"
+
+
+def _forbidden(module: str) -> bool:
+    return module.split(".")[0] in FORBIDDEN or module == APP or module.startswith(f"{APP}.")
 
 _LINT = (
     "import sys\n"
@@ -25,15 +30,17 @@ _LINT = (
 )
 _IMPORT_ALL = (
     "import importlib, pkgutil, sys\n"
-    "import engine\n"
-    "for info in pkgutil.walk_packages(engine.__path__, 'engine.'):\n"
+    "import portcut.engine as engine\n"
+    "for info in pkgutil.walk_packages(engine.__path__, 'portcut.engine.'):\n"
     "    importlib.import_module(info.name)\n"
-    f"print(sorted(m for m in sys.modules if m.split('.')[0] in {sorted(FORBIDDEN)!r}))\n"
+    f"print(sorted(m for m in sys.modules if m.split('.')[0] in {sorted(FORBIDDEN)!r}\n"
+    f"             or m == {APP!r} or m.startswith({APP + '.'!r})))\n"
 )
 
 
 def _run(code: str, cwd: Path) -> subprocess.CompletedProcess[str]:
-    # A fresh interpreter with cwd first on sys.path, so ``engine`` is the tree under test.
+    # A fresh interpreter with cwd first on sys.path, so ``portcut`` is the tree under test (in
+    # the repository the package mapping of the editable install supplies portcut.engine).
     return subprocess.run([sys.executable, "-c", code], cwd=cwd, capture_output=True, text=True,
                           timeout=120, check=False)
 
@@ -51,11 +58,14 @@ def forbidden_imports(package_dir: Path) -> list[str]:
             if isinstance(node, ast.Import):
                 modules = [alias.name for alias in node.names]
             elif isinstance(node, ast.ImportFrom) and node.level == 0:
-                modules = [node.module or ""]
+                # ``from portcut import app`` names the forbidden module among the names
+                module = node.module or ""
+                modules = [module] if _forbidden(module) else [f"{module}.{a.name}"
+                                                                for a in node.names]
             else:
                 continue
             found += [f"{path.relative_to(base)}:{node.lineno} {module}" for module in modules
-                      if module.split(".")[0] in FORBIDDEN]
+                      if _forbidden(module)]
     return found
 
 
@@ -63,18 +73,32 @@ def forbidden_imports(package_dir: Path) -> list[str]:
 def bad_tree(tmp_path: Path) -> Path:
     """A copy of the project's contract with a tiny engine that breaks it (engine -> app)."""
     shutil.copy(ROOT / "pyproject.toml", tmp_path / "pyproject.toml")
-    (tmp_path / "engine" / "sub").mkdir(parents=True)
-    (tmp_path / "engine" / "__init__.py").write_text("")
-    (tmp_path / "engine" / "sub" / "__init__.py").write_text("")
-    (tmp_path / "engine" / "sub" / "view.py").write_text("from app import window\n")
-    (tmp_path / "app").mkdir()
-    (tmp_path / "app" / "__init__.py").write_text("")
-    (tmp_path / "app" / "window.py").write_text("")
+    top = tmp_path / "portcut"
+    (top / "engine" / "sub").mkdir(parents=True)
+    (top / "__init__.py").write_text("")
+    (top / "engine" / "__init__.py").write_text("")
+    (top / "engine" / "sub" / "__init__.py").write_text("")
+    (top / "engine" / "sub" / "view.py").write_text("from portcut.app import window\n")
+    (top / "app").mkdir()
+    (top / "app" / "__init__.py").write_text("")
+    (top / "app" / "window.py").write_text("")
     return tmp_path
 
 
-def test_import_linter_contract_is_kept() -> None:
-    result = _run(_LINT, ROOT)
+def installed_layout(target: Path) -> Path:
+    """The tree as installed (portcut/engine, portcut/app, portcut/assets), copied under
+    ``target``: the import graph is read from files, and the repository keeps the sub-packages
+    at its top level, which only the package mapping joins."""
+    shutil.copy(ROOT / "pyproject.toml", target / "pyproject.toml")
+    shutil.copytree(ROOT / "portcut", target / "portcut")
+    for name in ("engine", "app", "assets"):
+        shutil.copytree(ROOT / name, target / "portcut" / name,
+                        ignore=shutil.ignore_patterns("__pycache__"))
+    return target
+
+
+def test_import_linter_contract_is_kept(tmp_path: Path) -> None:
+    result = _run(_LINT, installed_layout(tmp_path))
     assert result.returncode == 0, result.stdout + result.stderr
     assert "engine is independent of Qt and of the app KEPT" in result.stdout
 
@@ -90,13 +114,16 @@ def test_no_engine_file_imports_qt_plotting_or_app() -> None:
 
 
 def test_scan_finds_every_forbidden_import(bad_tree: Path) -> None:
-    (bad_tree / "engine" / "plot.py").write_text("import os\nfrom . import sub\n"
-                                                 "import numpy, pyqtgraph as pg\n"
-                                                 "from PySide6.QtCore import QObject\n")
-    assert forbidden_imports(bad_tree / "engine") == [
+    engine = bad_tree / "portcut" / "engine"
+    (engine / "plot.py").write_text("import os\nfrom . import sub\n"
+                                    "import numpy, pyqtgraph as pg\n"
+                                    "from PySide6.QtCore import QObject\n"
+                                    "from portcut import app\n")
+    assert forbidden_imports(engine) == [
         "engine/plot.py:3 pyqtgraph",
         "engine/plot.py:4 PySide6.QtCore",
-        "engine/sub/view.py:1 app",
+        "engine/plot.py:5 portcut.app",
+        "engine/sub/view.py:1 portcut.app",
     ]
 
 
@@ -109,4 +136,4 @@ def test_importing_every_engine_module_loads_no_qt() -> None:
 def test_import_check_sees_a_module_that_pulls_in_the_app(bad_tree: Path) -> None:
     result = _run(_IMPORT_ALL, bad_tree)
     assert result.returncode == 0, result.stderr
-    assert "'app'" in result.stdout
+    assert "'portcut.app'" in result.stdout
