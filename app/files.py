@@ -23,9 +23,11 @@ from . import dialogs
 from .settings import Settings
 from .workbench import Workbench
 
-__all__ = ["SHEET_FILTER", "FileActions"]
+__all__ = ["SHEET_FILTER", "SHEET_SUFFIX", "FileActions"]
 
-SHEET_FILTER = "Portcut sheets (*.json);;All files (*)"
+#: The file type of our own for sheets; any .json sheet still opens.
+SHEET_SUFFIX = ".portcut.json"
+SHEET_FILTER = "Portcut schematic (*.portcut.json);;JSON files (*.json);;All files (*)"
 
 
 class FileActions(QObject):
@@ -52,6 +54,10 @@ class FileActions(QObject):
     def name(self) -> str:
         path = self.workbench.path
         return path.name if path else self.workbench.doc.title
+
+    def _stem(self) -> str:
+        """The sheet's name without its file type, to name a saved or exported copy."""
+        return self.name().removesuffix(SHEET_SUFFIX).removesuffix(".json")
 
     def _folder(self) -> str:
         path = self.workbench.path or next(iter(self.settings.recent_files), None)
@@ -100,12 +106,12 @@ class FileActions(QObject):
         return self.save_as() if path is None else self.save_to(path)
 
     def save_as(self) -> bool:
-        start = os.path.join(self._folder(), f"{self.name().removesuffix('.json')}.json")
+        start = os.path.join(self._folder(), f"{self._stem()}{SHEET_SUFFIX}")
         path, _ = QFileDialog.getSaveFileName(self.window, "Save sheet as", start, SHEET_FILTER)
         if not path:
             return False
         path = Path(path)
-        return self.save_to(path if path.suffix else path.with_suffix(".json"))
+        return self.save_to(path if path.suffix else path.with_name(path.name + SHEET_SUFFIX))
 
     def save_to(self, path: Path) -> bool:
         try:
@@ -120,7 +126,7 @@ class FileActions(QObject):
         return True
 
     def export_svg(self) -> bool:
-        start = os.path.join(self._folder(), f"{self.name().removesuffix('.json')}.svg")
+        start = os.path.join(self._folder(), f"{self._stem()}.svg")
         path, _ = QFileDialog.getSaveFileName(self.window, "Export SVG", start,
                                               "SVG drawings (*.svg)")
         return bool(path) and self.export_svg_to(Path(path))

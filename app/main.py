@@ -57,7 +57,8 @@ def _size(text: str) -> tuple[int, int]:
 
 def run(argv: list[str]) -> int:
     """Open the window (or render a screenshot); returns the process exit code."""
-    args = _parser().parse_args(argv)
+    parser = _parser()
+    args, qt_args = parser.parse_known_args(argv)  # the rest is Qt's own (-style, -platform …)
     if args.screenshot is not None:
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
     elif not _has_display():
@@ -71,9 +72,13 @@ def run(argv: list[str]) -> int:
 
     from portcut import assets
 
-    app = QApplication.instance() or QApplication(["portcut"])
-    app.setOrganizationName("Portcut")
-    app.setApplicationName("Portcut")
+    app = QApplication.instance()
+    if app is None:
+        app = QApplication([sys.argv[0] or "portcut", *qt_args])
+        qt_args = app.arguments()[1:]  # what Qt did not take as its own
+    if qt_args:
+        parser.error(f"unrecognized arguments: {' '.join(qt_args)}")
+    _identify(app)
     from .settings import Settings
     from .window import MainWindow
 
@@ -94,6 +99,22 @@ def run(argv: list[str]) -> int:
         elif assets.example_path().exists():
             window.files.open_path(assets.example_path(), as_copy=True)
     return app.exec()
+
+
+def _identify(app) -> None:
+    """Name, version, settings location and icon of the application (the domain is a reserved
+    one: Portcut has none of its own, and settings only need a unique folder)."""
+    from PySide6.QtGui import QIcon
+
+    import portcut
+    from portcut import assets
+
+    app.setOrganizationName("Portcut")
+    app.setOrganizationDomain("portcut.invalid")
+    app.setApplicationName("Portcut")
+    app.setApplicationVersion(portcut.__version__)
+    app.setDesktopFileName("portcut")
+    app.setWindowIcon(QIcon(str(assets.icon_path())))
 
 
 def _apply_looks(window, args: argparse.Namespace) -> None:

@@ -13,7 +13,7 @@ import argparse
 import cmath
 import json
 import sys
-from collections.abc import Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any, TextIO
@@ -37,21 +37,24 @@ from .svg import document_svg
 from .tables import sweep_csv
 from .units import format_complex, format_eng, parse_frequency
 
-__all__ = ["COMMANDS", "main"]
+__all__ = ["COMMANDS", "COMMAND_SUMMARIES", "Writer", "main"]
 
-COMMANDS = frozenset({"reduce", "sweep", "export", "bench"})
+#: Each headless command with its one-line summary, in the order help lists them.
+COMMAND_SUMMARIES = {
+    "reduce": "the equivalent of a region seen from its two port nets, at one frequency",
+    "sweep": "the same over a log-spaced frequency range, as a table or a CSV file",
+    "export": "the sheet as an SVG drawing (or PNG, where the window's libraries are installed)",
+    "bench": "the performance benchmark",
+}
+COMMANDS = frozenset(COMMAND_SUMMARIES)
 
-_DESCRIPTION = """\
-Portcut: Thevenin and Norton equivalents of a region of a schematic.
+#: Writes a drawing's SVG text to a path in another format (``-`` is standard output).
+Writer = Callable[[str, Path], None]
 
-commands:
-  reduce   the equivalent of a region seen from its two port nets, at one frequency
-  sweep    the same over a log-spaced frequency range, as a table or a CSV file
-  export   the document as an SVG drawing
-  bench    the performance benchmark
-
+_DESCRIPTION = "Portcut: Thevenin and Norton equivalents of a region of a schematic.\n\n" \
+    "commands:\n" + "".join(f"  {n:<8} {s}\n" for n, s in COMMAND_SUMMARIES.items()) + """
 Run "portcut COMMAND --help" for a command's options. Without FILE a command reads the
-bundled demo document.
+bundled demo sheet (and says so on stderr). Results go to stdout; status lines to stderr.
 """
 
 
@@ -158,13 +161,15 @@ def _parser() -> tuple[_Parser, dict[str, _Parser]]:
                           help="number of frequencies, log-spaced, both ends included "
                                "(default 31)")
     sweeping.add_argument("--csv", metavar="OUT", type=Path,
-                          help="write a CSV file instead of printing a table")
+                          help="write a CSV file instead of printing a table; - for stdout")
 
     exporting = commands.add_parser("export", help="SVG drawing of the document",
-                                    description="Write the document as an SVG 1.1 drawing.")
+                                    description="Write the document as an SVG 1.1 drawing, or "
+                                                "as a PNG image where the window's libraries "
+                                                "are installed.")
     _add_file(exporting)
     exporting.add_argument("-o", "--output", metavar="OUT.svg", type=Path, required=True,
-                           help="the SVG file to write")
+                           help="the file to write: .svg, or .png; - writes SVG to stdout")
     exporting.add_argument("--style", choices=("iec", "ieee"), default="iec",
                            help="symbol style: IEC 60617 (default) or IEEE 315")
     exporting.add_argument("--no-regions", dest="regions", action="store_false",
@@ -196,7 +201,15 @@ class _Selection:
 
 
 def _document(path: Path | None) -> Document:
-    return load(assets.example_path() if path is None else path)
+    if path is not None:
+        return load(path)
+    demo = assets.example_path()
+    sys.stderr.write(f"portcut: no FILE given, so this is the bundled demo ({demo.name})\n")
+    return load(demo)
+
+
+def _is_stdout(path: Path) -> bool:
+    return str(path) == "-"
 
 
 def _drawn_region(doc: Document, name: str | None) -> Region:
@@ -373,9 +386,12 @@ def _run_sweep(args: argparse.Namespace, out: TextIO) -> int:
     _caution(circuit, rows, doc.analysis.basis, sys.stderr)
     port = rows[0].port
     if args.csv is not None:
+        if _is_stdout(args.csv):
+            out.write(sweep_csv(rows))
+            return 0
         write_atomically(args.csv, sweep_csv(rows))
-        out.write(f"wrote {len(rows)} frequencies for port ({port[0]}, {port[1]}) "
-                  f"to {args.csv}\n")
+        sys.stderr.write(f"wrote {len(rows)} frequencies for port ({port[0]}, {port[1]}) "
+                         f"to {args.csv}\n")
         return 0
     out.write(f"{sel.label} seen from port ({port[0]}, {port[1]}), plus first\n\n")
     out.write(f"{'f':>10}  {'Voc':<22}  {'Isc':<22}  Z\n")
@@ -387,24 +403,46 @@ def _run_sweep(args: argparse.Namespace, out: TextIO) -> int:
 
 
 # -- export --------------------------------------------------------------------------------------
-def _run_export(args: argparse.Namespace, out: TextIO) -> int:
+def _output_writer(path: Path, writers: Mapping[str, Writer]) -> Writer | None:
+    """How ``path`` is written: None for SVG text, else a writer for its suffix."""
+    suffix = path.suffix.lower()
+    if _is_stdout(path) or suffix == ".svg":
+        return None
+    if suffix in writers:
+        return writers[suffix]
+    formats = ", ".join([".svg", *sorted(writers)])
+    raise _UsageError(f"portcut export: -o {path}: cannot write {suffix or 'suffix-less'} "
+                      f"files; give a file name ending in {formats} (or - for SVG on stdout)")
+
+
+def _run_export(args: argparse.Namespace, out: TextIO,
+                writers: Mapping[str, Writer]) -> int:
     if not args.reduced and (args.region is not None or args.form is not None):
         raise _UsageError("portcut export: --region and --form go with --reduced")
+    writer = _output_writer(args.output, writers)
     doc = _document(args.file)
     if args.reduced:
         region = _drawn_region(doc, args.region)
         collapse_region(doc, region.id, args.form).apply(doc)
     text = document_svg(doc, style=args.style, show_regions=args.regions, freq=args.freq)
-    write_atomically(args.output, text)
-    out.write(f"wrote {args.output}\n")
+    if writer is not None:
+        writer(text, args.output)
+    elif _is_stdout(args.output):
+        out.write(text)
+        return 0
+    else:
+        write_atomically(args.output, text)
+    if not _is_stdout(args.output):
+        sys.stderr.write(f"wrote {args.output}\n")
     return 0
 
 
-_RUN = {"reduce": _run_reduce, "sweep": _run_sweep, "export": _run_export}
+_RUN = {"reduce": _run_reduce, "sweep": _run_sweep}
 
 
-def main(argv: Sequence[str]) -> int:
-    """Run one command (``argv[0]``) with its arguments; returns the exit code."""
+def main(argv: Sequence[str], writers: Mapping[str, Writer] | None = None) -> int:
+    """Run one command (``argv[0]``) with its arguments; returns the exit code. ``writers`` adds
+    export formats by suffix (the window's libraries add PNG)."""
     argv = list(argv)
     if argv and argv[0] == "bench":
         from . import bench
@@ -415,6 +453,8 @@ def main(argv: Sequence[str]) -> int:
         args, extra = top.parse_known_args(argv)
         if extra:
             commands[args.command].error(f"unrecognized arguments: {' '.join(extra)}")
+        if args.command == "export":
+            return _run_export(args, sys.stdout, writers or {})
         return _RUN[args.command](args, sys.stdout)
     except _Exit as e:
         return e.status

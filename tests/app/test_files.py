@@ -129,3 +129,23 @@ def test_svg_export_renders_with_qt(window, tmp_path: Path):
     ink = sum(1 for y in range(0, image.height(), 2) for x in range(0, image.width(), 2)
               if QColor(image.pixel(x, y)).lightness() < 120)
     assert ink > 200
+
+
+def test_save_as_gives_a_name_without_a_type_our_own_sheet_type(window, drive, tmp_path,
+                                                                 monkeypatch):
+    from PySide6.QtWidgets import QFileDialog
+
+    from portcut.app.files import SHEET_FILTER
+
+    offered = []
+
+    def answer(parent, caption, start, filters):
+        offered.append(filters)
+        return str(tmp_path / "bridge"), ""
+
+    monkeypatch.setattr(QFileDialog, "getSaveFileName", answer)
+    _draw(drive)
+    assert window.files.save_as()
+    assert (tmp_path / "bridge.portcut.json").exists()
+    assert offered == [SHEET_FILTER] and "(*.portcut.json)" in SHEET_FILTER.split(";;")[0]
+    assert window.files.open_path(tmp_path / "bridge.portcut.json")

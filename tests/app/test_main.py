@@ -7,6 +7,7 @@ from pathlib import Path
 
 from PySide6.QtGui import QColor, QImage
 
+import portcut
 from portcut import assets
 from portcut.app.main import run
 
@@ -51,3 +52,14 @@ def test_no_display_says_what_to_do(monkeypatch, capsys):
     assert "no display" in err and "--screenshot" in err
     # the bundled demo's equivalent is printed instead of the window
     assert "adc_p" in out and "Ω" in out
+
+
+def test_the_application_says_who_it_is(qapp):
+    from portcut.app.main import _identify
+
+    _identify(qapp)
+    assert qapp.applicationName() == "Portcut"
+    assert qapp.applicationVersion() == portcut.__version__
+    assert qapp.organizationDomain() == "portcut.invalid"
+    assert not qapp.windowIcon().isNull()
+    assert not qapp.windowIcon().pixmap(32, 32).toImage().isNull()
