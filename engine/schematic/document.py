@@ -54,9 +54,16 @@ class Change:
     title: bool = False
 
     def merged(self, other: Change) -> Change:
-        return Change(self.added | other.added, self.removed | other.removed,
-                      self.updated | other.updated, self.analysis or other.analysis,
-                      self.title or other.title)
+        """The net effect of this change followed by ``other``: an element added and then
+        removed was never there, one removed and then added again was replaced, one replaced
+        and then removed is removed, one added and then replaced is added."""
+        transient = self.added & other.removed
+        returned = self.removed & other.added
+        added = (self.added | other.added) - transient - returned
+        removed = (self.removed | other.removed) - transient - returned
+        updated = (self.updated | other.updated | returned) - added - removed - transient
+        return Change(frozenset(added), frozenset(removed), frozenset(updated),
+                      self.analysis or other.analysis, self.title or other.title)
 
 
 @dataclass

@@ -180,3 +180,20 @@ def test_canvas_dots_match_the_svg_writers_rule_on_every_example(window, drive):
     drive.key(Qt.Key.Key_R)
     drive.key(Qt.Key.Key_Delete)
     assert drive.canvas.scene.dot_points() == set(junction_points(doc)) - explicit
+
+
+def test_the_canvas_follows_batches_that_undo_their_own_steps(window, drive):
+    """A batch is told as its net effect, so views never look up an element that is gone."""
+    from portcut.engine.schematic import Junction
+
+    drive.place("resistor", (0, 0))
+    doc = drive.doc
+    (part,) = doc.parts()
+    with doc.batch():
+        doc.replace_fields(part.id, value="2k2")
+        doc.remove(part.id)
+    with doc.batch():
+        doc.add(Junction("j9", (6, 6)))
+        doc.remove("j9")
+    assert len(doc) == 0
+    assert window.canvas.scene.item(part.id) is None and window.canvas.scene.item("j9") is None

@@ -105,6 +105,33 @@ def test_batch_merges_into_one_notification_after_the_outermost(doc: Document,
                                    updated=frozenset({"p1"}), title=True)]
 
 
+def test_a_batch_that_replaces_then_removes_notifies_a_removal(doc: Document,
+                                                              seen: Recorder) -> None:
+    with doc.batch():
+        doc.replace_fields("p1", value="1k")
+        doc.remove("p1")
+    assert seen.changes == [Change(removed=frozenset({"p1"}))]
+
+
+def test_a_batch_that_adds_then_removes_notifies_nothing_of_it(doc: Document,
+                                                              seen: Recorder) -> None:
+    with doc.batch():
+        doc.add(Junction("j1", (2, 4)))
+        doc.remove("j1")
+        doc.set_title("Edited")
+    assert seen.changes == [Change(title=True)]
+
+
+def test_a_batch_that_removes_then_adds_back_notifies_a_replacement(doc: Document,
+                                                                   seen: Recorder) -> None:
+    with doc.batch():
+        wire = doc.remove("w1")
+        doc.add(wire)
+        doc.add(Junction("j1", (2, 4)))
+        doc.replace_fields("j1", at=(4, 4))
+    assert seen.changes == [Change(added=frozenset({"j1"}), updated=frozenset({"w1"}))]
+
+
 def test_empty_batch_tells_nobody(doc: Document, seen: Recorder) -> None:
     with doc.batch():
         pass
