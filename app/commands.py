@@ -107,15 +107,19 @@ class RemoveElements(DocumentCommand):
 
 
 class ReplaceElements(DocumentCommand):
-    """Put new versions of existing elements; undo restores the versions seen at creation."""
+    """Put new versions of existing elements; undo restores the versions the first redo found
+    (so a command that runs after its siblings restores what they left, not what was there when
+    it was built)."""
 
     def __init__(self, doc: Document, elements: Iterable[Element], text: str,
                  parent: DocumentCommand | None = None) -> None:
         super().__init__(doc, text, parent)
         self.after = {e.id: e for e in elements}
-        self.before = {i: doc[i] for i in self.after}
+        self.before: dict[str, Element] = {}
 
     def _apply(self) -> None:
+        if not self.before:
+            self.before = {i: self.doc[i] for i in self.after}
         for e in self.after.values():
             self.doc.replace(e)
 
@@ -215,7 +219,6 @@ def edit_command(doc: Document, edit: Edit, text: str) -> DocumentCommand:
     ApplyEdit(doc, edit, text, parent)
     held = frozenset(e.id for e in edit.added if isinstance(e, PlacedPart | Block))
     if shrunk and held:
-        regrown = ReplaceElements(doc, [replace(r, members=r.members | held) for r in shrunk],
-                                  "Update regions", parent)
-        regrown.before = {r.id: r for r in shrunk}  # what it finds when it runs, not now
+        ReplaceElements(doc, [replace(r, members=r.members | held) for r in shrunk],
+                        "Update regions", parent)
     return parent

@@ -197,3 +197,24 @@ def test_the_canvas_follows_batches_that_undo_their_own_steps(window, drive):
         doc.remove("j9")
     assert len(doc) == 0
     assert window.canvas.scene.item(part.id) is None and window.canvas.scene.item("j9") is None
+
+
+def test_a_replacement_inside_a_composite_restores_what_it_found_when_it_ran(window):
+    """The replacement is built before its sibling adds the element it replaces; one undo
+    takes both away and one redo puts the replaced version back."""
+    from dataclasses import replace
+
+    from portcut.app.commands import AddElements, DocumentCommand, ReplaceElements
+    from portcut.engine.schematic import PlacedPart
+
+    doc = window.workbench.doc
+    part = PlacedPart("p77", "resistor", "R77", (0, 0), value="1k")
+    parent = DocumentCommand(doc, "Add and set")
+    AddElements(doc, [part], "Add", parent)
+    ReplaceElements(doc, [replace(part, value="2k2")], "Set value", parent)
+    window.workbench.push(parent)
+    assert doc["p77"].value == "2k2"
+    window.workbench.undo_stack.undo()
+    assert "p77" not in doc
+    window.workbench.undo_stack.redo()
+    assert doc["p77"].value == "2k2"
