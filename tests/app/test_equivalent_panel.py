@@ -78,6 +78,7 @@ def test_the_frequency_field_changes_a_capacitor_regions_z(window, drive):
 
 def test_a_bad_frequency_shows_why_and_keeps_the_old_one(window, drive):
     panel = _drawn(window, drive, divider())
+    steps = window.workbench.undo_stack.count()
     type_into(panel.frequency.edit, "1 kHzz")
     assert drive.doc.analysis.freq == "DC"
     assert panel.frequency.in_error and panel.frequency.edit.property("error") is True
@@ -86,8 +87,7 @@ def test_a_bad_frequency_shows_why_and_keeps_the_old_one(window, drive):
     assert "0 or more" in panel.frequency.error.text()
     QTest.keyClick(panel.frequency.edit, Qt.Key.Key_Escape)
     assert panel.frequency.edit.text() == "DC" and not panel.frequency.in_error
-    assert not window.workbench.undo_stack.canUndo() or \
-        window.workbench.undo_stack.undoText().startswith("Draw region")
+    assert window.workbench.undo_stack.count() == steps  # a refused value is no edit
 
 
 def test_thevenin_norton_toggle_is_an_undoable_setting(window, drive):
