@@ -23,9 +23,9 @@ from dataclasses import fields, replace
 import numpy as np
 from PySide6.QtCore import QObject, QTimer, Signal
 
-from engine import Circuit, Sweep, sweep
-from engine.errors import CircuitError
-from engine.schematic import (
+from portcut.engine import Circuit, Sweep, sweep
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import (
     Block,
     Change,
     Connectivity,
@@ -35,14 +35,14 @@ from engine.schematic import (
     build_circuit,
     extract,
 )
-from engine.schematic.reduction import (
+from portcut.engine.schematic.reduction import (
     RegionAnalysis,
     analyse_region,
     equivalence,
     expand_block,
     region_part_names,
 )
-from engine.units import parse_frequency
+from portcut.engine.units import parse_frequency
 
 from .workbench import Workbench
 

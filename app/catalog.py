@@ -6,8 +6,8 @@ from __future__ import annotations
 import itertools
 from dataclasses import dataclass
 
-from engine.schematic import Document, Element, Junction, NetLabel, PlacedPart
-from engine.symbols import Point
+from portcut.engine.schematic import Document, Element, Junction, NetLabel, PlacedPart
+from portcut.engine.symbols import Point
 
 __all__ = ["ENTRIES", "GROUPS", "Entry", "entry", "next_label_name", "prototype"]
 

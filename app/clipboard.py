@@ -14,9 +14,9 @@ from functools import cache
 from PySide6.QtCore import QMimeData
 from PySide6.QtWidgets import QApplication
 
-from engine.errors import CircuitError
-from engine.schematic import Block, Document, Element, Region
-from engine.schematic.fileformat import dumps, loads
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import Block, Document, Element, Region
+from portcut.engine.schematic.fileformat import dumps, loads
 
 __all__ = ["MIME", "copyable", "elements_from", "mime_for", "put"]
 

@@ -13,8 +13,8 @@ from dataclasses import replace
 
 from PySide6.QtGui import QUndoCommand
 
-from engine.schematic import Analysis, Block, Document, Element, PlacedPart, Region
-from engine.schematic.reduction import Edit
+from portcut.engine.schematic import Analysis, Block, Document, Element, PlacedPart, Region
+from portcut.engine.schematic.reduction import Edit
 
 from .editing import Deletion
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass, replace
 
-from engine.schematic import (
+from portcut.engine.schematic import (
     Block,
     Document,
     Element,
@@ -21,7 +21,7 @@ from engine.schematic import (
     Region,
     Wire,
 )
-from engine.symbols import Point
+from portcut.engine.symbols import Point
 
 from .sheet import SheetIndex, element_pins
 

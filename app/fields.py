@@ -14,11 +14,11 @@ import re
 from collections.abc import Callable
 from dataclasses import dataclass, replace
 
-from engine.captions import UNITS
-from engine.errors import DocumentError, ValueParseError
-from engine.schematic import Block, Document, Element, NetLabel, PlacedPart
-from engine.schematic.ports import follow_renames
-from engine.units import parse_value
+from portcut.engine.captions import UNITS
+from portcut.engine.errors import DocumentError, ValueParseError
+from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart
+from portcut.engine.schematic.ports import follow_renames
+from portcut.engine.units import parse_value
 
 __all__ = ["QUANTITY", "Field", "fields_for"]
 

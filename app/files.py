@@ -13,11 +13,11 @@ from pathlib import Path
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtWidgets import QFileDialog, QWidget
 
-from engine.atomic import write_atomically
-from engine.errors import CircuitError
-from engine.schematic import Document
-from engine.schematic.fileformat import load, save
-from engine.svg import document_svg
+from portcut.engine.atomic import write_atomically
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import Document
+from portcut.engine.schematic.fileformat import load, save
+from portcut.engine.svg import document_svg
 
 from . import dialogs
 from .settings import Settings

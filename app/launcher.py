@@ -12,11 +12,11 @@ import sys
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the console script; returns the process exit code."""
     args = sys.argv[1:] if argv is None else list(argv)
-    from engine import cli
+    from portcut.engine import cli
 
     if args and args[0] in cli.COMMANDS:
         return cli.main(args)
-    from app.main import run
+    from portcut.app.main import run
 
     return run(args)
 

@@ -62,14 +62,14 @@ def run(argv: list[str]) -> int:
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
     elif not _has_display():
         print(_NO_DISPLAY, file=sys.stderr)
-        from engine import cli
+        from portcut.engine import cli
 
         return cli.main(["reduce", *([str(args.file)] if args.file is not None else [])])
 
     from PySide6.QtCore import QSettings, QStandardPaths
     from PySide6.QtWidgets import QApplication
 
-    import assets
+    from portcut import assets
 
     app = QApplication.instance() or QApplication(["portcut"])
     app.setOrganizationName("Portcut")
@@ -106,7 +106,7 @@ def _apply_looks(window, args: argparse.Namespace) -> None:
 def _screenshot(args: argparse.Namespace, window) -> int:
     from PySide6.QtWidgets import QApplication
 
-    import assets
+    from portcut import assets
 
     _apply_looks(window, args)
     window.files.report = lambda *message: None  # nobody is watching: the reason goes to stderr

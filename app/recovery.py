@@ -18,10 +18,10 @@ from pathlib import Path
 
 from PySide6.QtCore import QLockFile, QObject, QTimer, Signal
 
-from engine.atomic import write_atomically
-from engine.errors import CircuitError
-from engine.schematic import Document
-from engine.schematic.fileformat import load, save
+from portcut.engine.atomic import write_atomically
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import Document
+from portcut.engine.schematic.fileformat import load, save
 
 from .workbench import Workbench
 

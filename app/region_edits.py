@@ -8,9 +8,9 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import replace
 
-from engine.circuit import GROUND
-from engine.errors import DocumentError
-from engine.schematic import Document, Region
+from portcut.engine.circuit import GROUND
+from portcut.engine.errors import DocumentError
+from portcut.engine.schematic import Document, Region
 
 __all__ = ["ROLES", "port_text", "renamed", "with_port_net"]
 

@@ -16,8 +16,8 @@ from itertools import pairwise
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QPainterPath, QPolygonF
 
-from engine.schematic import Block, Connectivity, Document, PlacedPart, Region
-from engine.symbols import placed_bounds
+from portcut.engine.schematic import Block, Connectivity, Document, PlacedPart, Region
+from portcut.engine.symbols import placed_bounds
 
 from .sheet import element_pins
 

@@ -5,11 +5,11 @@ from __future__ import annotations
 
 from collections.abc import Iterable
 
-from engine.captions import ELV_AC_RMS, ELV_DC, SAFETY_CAUTION
-from engine.captions import above_extra_low_voltage as _above
-from engine.errors import CircuitError
-from engine.schematic import Document, Element, PlacedPart
-from engine.units import parse_frequency, parse_value
+from portcut.engine.captions import ELV_AC_RMS, ELV_DC, SAFETY_CAUTION
+from portcut.engine.captions import above_extra_low_voltage as _above
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import Document, Element, PlacedPart
+from portcut.engine.units import parse_frequency, parse_value
 
 __all__ = ["AC_RMS_LIMIT", "CAUTION", "DC_LIMIT", "above_extra_low_voltage"]
 

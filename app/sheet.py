@@ -13,8 +13,8 @@ from collections import Counter, defaultdict
 from collections.abc import Iterable, Iterator
 from itertools import pairwise
 
-from engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Wire
-from engine.symbols import Point, pin_positions
+from portcut.engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Wire
+from portcut.engine.symbols import Point, pin_positions
 
 __all__ = ["SheetIndex", "element_pins", "segments"]
 

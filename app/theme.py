@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 from PySide6.QtGui import QColor
 
-from engine.palette import PALETTE
+from portcut.engine.palette import PALETTE
 
 __all__ = ["DARK", "LIGHT", "THEMES", "Theme", "qcolor"]
 

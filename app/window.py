@@ -27,9 +27,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-import assets
-from engine.errors import CircuitError
-from engine.schematic import Change, Document
+from portcut import assets
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import Change, Document
 
 from . import clipboard, dialogs, panels
 from .about import show_about

@@ -11,7 +11,7 @@ from pathlib import Path
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
-from engine.schematic import Document
+from portcut.engine.schematic import Document
 
 __all__ = ["Workbench"]
 

@@ -39,13 +39,13 @@ from PySide6.QtWidgets import (
     QGraphicsView,
 )
 
-from app.canvas import Canvas, Look
-from app.commands import MoveElements
-from app.editing import RigidMap, plan_placement
-from app.workbench import Workbench
-from engine.schematic import Document, NetLabel, PlacedPart, Wire
-from engine.schematic.connectivity import extract
-from engine.schematic.fileformat import dumps, loads
+from portcut.app.canvas import Canvas, Look
+from portcut.app.commands import MoveElements
+from portcut.app.editing import RigidMap, plan_placement
+from portcut.app.workbench import Workbench
+from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire
+from portcut.engine.schematic.connectivity import extract
+from portcut.engine.schematic.fileformat import dumps, loads
 
 VIEW_SIZE = (1400, 900)
 CELL = 8   # grid units per ladder cell

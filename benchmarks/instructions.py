@@ -19,9 +19,9 @@ import shutil
 import subprocess
 from dataclasses import replace
 
-from engine.bench import FREQ, mixed_circuit
-from engine.equivalent import equivalent
-from engine.topology import forget_netlists
+from portcut.engine.bench import FREQ, mixed_circuit
+from portcut.engine.equivalent import equivalent
+from portcut.engine.topology import forget_netlists
 
 
 def main() -> None:

@@ -36,12 +36,12 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 from PySide6.QtCore import QSettings
 from PySide6.QtWidgets import QApplication
 
-from app.commands import MoveElements, ReplaceElements
-from app.settings import Settings
-from app.window import MainWindow
-from engine import equivalent
-from engine.schematic import Analysis, Document, NetLabel, PlacedPart, Region, Wire
-from engine.topology import forget_netlists
+from portcut.app.commands import MoveElements, ReplaceElements
+from portcut.app.settings import Settings
+from portcut.app.window import MainWindow
+from portcut.engine import equivalent
+from portcut.engine.schematic import Analysis, Document, NetLabel, PlacedPart, Region, Wire
+from portcut.engine.topology import forget_netlists
 
 CELLS, PER_ROW, INSIDE = 250, 25, 200
 CELL, ROW = 6, 8  # grid units per cell and per row

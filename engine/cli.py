@@ -20,7 +20,7 @@ from typing import Any, TextIO
 
 import numpy as np
 
-import assets
+from portcut import assets
 
 from .atomic import write_atomically
 from .captions import SAFETY_CAUTION, above_extra_low_voltage

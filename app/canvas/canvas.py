@@ -12,8 +12,8 @@ from collections.abc import Iterable
 from PySide6.QtCore import QMimeData, QObject, QPointF, Qt, Signal
 from PySide6.QtGui import QUndoCommand
 
-from engine.schematic import Block, Document, Element, NetLabel, PlacedPart, Region
-from engine.symbols import Point
+from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart, Region
+from portcut.engine.symbols import Point
 
 from ..clipboard import copyable, elements_from, mime_for
 from ..commands import AddElements, MoveElements, delete_command

@@ -22,11 +22,11 @@ from PySide6.QtWidgets import (
     QGraphicsSimpleTextItem,
 )
 
-from engine.captions import block_caption, value_caption
-from engine.errors import CircuitError
-from engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
-from engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point
-from engine.units import parse_value
+from portcut.engine.captions import block_caption, value_caption
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
+from portcut.engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point
+from portcut.engine.units import parse_value
 
 from ..theme import LIGHT, Theme
 from .grid import UNIT, to_scene
@@ -329,7 +329,7 @@ class BlockItem(SymbolItem):
         return theme.accent
 
     def texts(self) -> dict[str, list[str]]:
-        from engine.schematic.connectivity import block_equivalent
+        from portcut.engine.schematic.connectivity import block_equivalent
 
         block: Block = self.element
         try:

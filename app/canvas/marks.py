@@ -14,9 +14,9 @@ from PySide6.QtGui import QBrush, QColor, QFont, QPainter, QPainterPath, QPen, Q
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 from shiboken6 import isValid
 
-from engine.schematic import Block, PlacedPart, Region, Wire
-from engine.schematic.reduction import RegionAnalysis
-from engine.symbols import MARK_FONT_SIZE, MARK_TEXT, STROKE_WIDTH
+from portcut.engine.schematic import Block, PlacedPart, Region, Wire
+from portcut.engine.schematic.reduction import RegionAnalysis
+from portcut.engine.symbols import MARK_FONT_SIZE, MARK_TEXT, STROKE_WIDTH
 
 from ..analysis import LiveAnalysis
 from ..regions import PortMark, body_bounds, port_marks

@@ -13,7 +13,7 @@ from functools import cache
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QFont, QFontMetricsF, QPainterPath, QTransform
 
-from engine.symbols import (
+from portcut.engine.symbols import (
     COUPLING_DOT_RADIUS,
     MARK_FONT_SIZE,
     MARK_TEXT,

@@ -13,10 +13,10 @@ from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import QPainter, QPen
 from PySide6.QtWidgets import QGraphicsScene
 
-from engine.errors import CircuitError
-from engine.schematic import Change, Document, Element, PlacedPart
-from engine.symbols import Point
-from engine.units import parse_frequency
+from portcut.engine.errors import CircuitError
+from portcut.engine.schematic import Change, Document, Element, PlacedPart
+from portcut.engine.symbols import Point
+from portcut.engine.units import parse_frequency
 
 from ..sheet import SheetIndex
 from ..theme import qcolor

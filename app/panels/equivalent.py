@@ -27,13 +27,13 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine.equivalent import EquivalenceReport, Equivalent
-from engine.errors import CircuitError
-from engine.mna import describe_freq
-from engine.schematic import Block, Change, Document, Region
-from engine.schematic.ports import region_nets
-from engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
-from engine.units import format_complex, format_eng, parse_frequency
+from portcut.engine.equivalent import EquivalenceReport, Equivalent
+from portcut.engine.errors import CircuitError
+from portcut.engine.mna import describe_freq
+from portcut.engine.schematic import Block, Change, Document, Region
+from portcut.engine.schematic.ports import region_nets
+from portcut.engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
+from portcut.engine.units import format_complex, format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas

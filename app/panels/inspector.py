@@ -15,7 +15,7 @@ from PySide6.QtCore import Qt
 from PySide6.QtGui import QUndoCommand
 from PySide6.QtWidgets import QDockWidget, QFormLayout, QLabel, QVBoxLayout, QWidget
 
-from engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
+from portcut.engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
 
 from ..canvas import Canvas
 from ..catalog import entry

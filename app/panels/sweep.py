@@ -25,14 +25,14 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine import Sweep
-from engine.atomic import write_atomically
-from engine.errors import CircuitError, ValueParseError
-from engine.mna import describe_freq
-from engine.palette import PALETTE
-from engine.tables import SWEEP_COLUMNS
-from engine.tables import sweep_csv as rows_csv
-from engine.units import format_eng, parse_frequency
+from portcut.engine import Sweep
+from portcut.engine.atomic import write_atomically
+from portcut.engine.errors import CircuitError, ValueParseError
+from portcut.engine.mna import describe_freq
+from portcut.engine.palette import PALETTE
+from portcut.engine.tables import SWEEP_COLUMNS
+from portcut.engine.tables import sweep_csv as rows_csv
+from portcut.engine.units import format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from .entry import ERROR_STYLE, CheckedEntry, mark_error

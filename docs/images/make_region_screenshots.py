@@ -20,14 +20,14 @@ from PySide6.QtCore import QSettings
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QApplication
 
-import assets
-from app.commands import ReplaceElements
-from app.panels import _show_sweep
-from app.panels.sweep import FOLLOW_MS
-from app.region_edits import port_text
-from app.settings import Settings
-from app.window import MainWindow
-from engine.schematic import fileformat
+from portcut import assets
+from portcut.app.commands import ReplaceElements
+from portcut.app.panels import _show_sweep
+from portcut.app.panels.sweep import FOLLOW_MS
+from portcut.app.region_edits import port_text
+from portcut.app.settings import Settings
+from portcut.app.window import MainWindow
+from portcut.engine.schematic import fileformat
 
 HERE = Path(__file__).resolve().parent
 SIZE = (1400, 900)

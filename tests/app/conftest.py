@@ -14,10 +14,10 @@ from PySide6.QtCore import QPoint, QSettings, QStandardPaths, Qt
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QMessageBox
 
-from app import dialogs
-from app.canvas.grid import to_scene
-from app.settings import Settings
-from app.window import MainWindow
+from portcut.app import dialogs
+from portcut.app.canvas.grid import to_scene
+from portcut.app.settings import Settings
+from portcut.app.window import MainWindow
 
 QStandardPaths.setTestModeEnabled(True)
 

@@ -10,7 +10,7 @@ from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QApplication, QComboBox, QWidget
 
-from engine.schematic import Document, NetLabel, PlacedPart, Wire
+from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire
 
 #: A lasso around the source side of :func:`divider` (V1, R1, R2), drawn clockwise.
 SOURCE_SIDE = [(-3, -1), (4, -1), (11, -1), (11, 4), (11, 9), (4, 9), (-3, 9), (-3, 4),
@@ -42,7 +42,7 @@ def divider(r1: str = "1k", r2: str = "3k", load: str = "2k", second: str = "res
 
 def open_sheet(window, doc: Document) -> None:
     """Edit ``doc`` in the window, at actual size around grid point (8, 4)."""
-    from app.canvas.grid import to_scene
+    from portcut.app.canvas.grid import to_scene
 
     window.workbench.replace_document(doc, None)
     window.canvas.view.actual_size()

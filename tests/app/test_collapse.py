@@ -14,9 +14,9 @@ from PySide6.QtSvg import QSvgRenderer
 from PySide6.QtWidgets import QFileDialog
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
-from engine.palette import PALETTE
-from engine.schematic.fileformat import dumps, loads
-from engine.units import format_complex
+from portcut.engine.palette import PALETTE
+from portcut.engine.schematic.fileformat import dumps, loads
+from portcut.engine.units import format_complex
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 

@@ -9,11 +9,11 @@ from itertools import pairwise
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QKeySequence
 
-import assets
-from engine.schematic.connectivity import extract
-from engine.schematic.fileformat import dumps, loads
-from engine.svg import junction_points
-from engine.symbols import pin_positions
+from portcut import assets
+from portcut.engine.schematic.connectivity import extract
+from portcut.engine.schematic.fileformat import dumps, loads
+from portcut.engine.svg import junction_points
+from portcut.engine.symbols import pin_positions
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 

@@ -14,9 +14,9 @@ from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
-from app.commands import AddElements, ReplaceElements, SetAnalysis
-from engine.schematic import Analysis, PlacedPart, Wire, build_circuit, extract
-from engine.units import format_complex, format_eng, parse_frequency
+from portcut.app.commands import AddElements, ReplaceElements, SetAnalysis
+from portcut.engine.schematic import Analysis, PlacedPart, Wire, build_circuit, extract
+from portcut.engine.units import format_complex, format_eng, parse_frequency
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 

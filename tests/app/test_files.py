@@ -11,12 +11,12 @@ from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor, QImage, QPainter
 from PySide6.QtSvg import QSvgRenderer
 
-import assets
-from app import dialogs
-from app.recovery import left_over
-from app.window import MainWindow
-from engine.errors import DocumentError
-from engine.schematic.fileformat import dumps, load, loads
+from portcut import assets
+from portcut.app import dialogs
+from portcut.app.recovery import left_over
+from portcut.app.window import MainWindow
+from portcut.engine.errors import DocumentError
+from portcut.engine.schematic.fileformat import dumps, load, loads
 
 
 def _draw(drive) -> None:

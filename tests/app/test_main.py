@@ -7,8 +7,8 @@ from pathlib import Path
 
 from PySide6.QtGui import QColor, QImage
 
-import assets
-from app.main import run
+from portcut import assets
+from portcut.app.main import run
 
 
 def _distinct_colours(path: Path) -> int:

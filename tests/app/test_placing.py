@@ -5,9 +5,9 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 
-from app.catalog import ENTRIES
-from engine.schematic import Junction, NetLabel, PlacedPart
-from engine.symbols import pin_positions
+from portcut.app.catalog import ENTRIES
+from portcut.engine.schematic import Junction, NetLabel, PlacedPart
+from portcut.engine.symbols import pin_positions
 
 
 def test_every_entry_places_where_clicked(drive):
@@ -73,7 +73,7 @@ def test_drag_from_palette_drops_a_part(drive):
     from PySide6.QtGui import QDragEnterEvent, QDragMoveEvent, QDropEvent
     from PySide6.QtWidgets import QApplication
 
-    from app.canvas import ENTRY_MIME
+    from portcut.app.canvas import ENTRY_MIME
 
     data = QMimeData()
     data.setData(ENTRY_MIME, b"capacitor")

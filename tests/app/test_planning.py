@@ -14,16 +14,16 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from sheets import divider
 
-import assets
-from app.editing import RigidMap, bend, moved, paste, plan_delete, plan_placement, simplify
-from app.fields import fields_for
-from app.region_edits import renamed, with_port_net
-from app.safety import above_extra_low_voltage
-from app.sheet import SheetIndex, element_pins
-from engine.errors import CircuitError, DocumentError, ValueParseError
-from engine.schematic import Analysis, Document, NetLabel, PlacedPart, Region, Wire
-from engine.schematic.connectivity import extract
-from engine.schematic.fileformat import load
+from portcut import assets
+from portcut.app.editing import RigidMap, bend, moved, paste, plan_delete, plan_placement, simplify
+from portcut.app.fields import fields_for
+from portcut.app.region_edits import renamed, with_port_net
+from portcut.app.safety import above_extra_low_voltage
+from portcut.app.sheet import SheetIndex, element_pins
+from portcut.engine.errors import CircuitError, DocumentError, ValueParseError
+from portcut.engine.schematic import Analysis, Document, NetLabel, PlacedPart, Region, Wire
+from portcut.engine.schematic.connectivity import extract
+from portcut.engine.schematic.fileformat import load
 
 KINDS = ("resistor", "vcvs", "opamp")
 _EXAMPLES = {name: load(assets.example_path(name)) for name in assets.example_names()}

@@ -11,7 +11,7 @@ from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, divider, lasso, open_sheet, pick, settle, type_into
 
-from engine.schematic.fileformat import load
+from portcut.engine.schematic.fileformat import load
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 SHIFT = Qt.KeyboardModifier.ShiftModifier

@@ -11,8 +11,8 @@ import pytest
 from PySide6.QtCore import Qt
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, pick, settle, type_into
 
-from engine.schematic import extract
-from engine.schematic.connectivity import block_equivalent
+from portcut.engine.schematic import extract
+from portcut.engine.schematic.connectivity import block_equivalent
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 #: A lasso around the whole divider, load RL included: it meets the rest at no net at all.

@@ -14,8 +14,8 @@ from PySide6.QtGui import QColor, QPolygonF
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, WITHOUT_SOURCE, divider, lasso, open_sheet, settle
 
-from app.canvas.grid import to_scene
-from engine.schematic import Region
+from portcut.app.canvas.grid import to_scene
+from portcut.engine.schematic import Region
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 SHIFT = Qt.KeyboardModifier.ShiftModifier
@@ -214,10 +214,10 @@ def test_marks_and_numbers_survive_opening_another_sheet(window, drive):
 
 
 _MARKS_OF_THE_DEMO = """
-from assets import example_path
-from engine.schematic import extract, load
-from engine.schematic.reduction import analyse_region
-from app.regions import port_marks
+from portcut.assets import example_path
+from portcut.engine.schematic import extract, load
+from portcut.engine.schematic.reduction import analyse_region
+from portcut.app.regions import port_marks
 doc = load(example_path())
 conn = extract(doc)
 for region in doc.regions():

@@ -15,8 +15,8 @@ from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QFileDialog
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
-from app.panels.sweep import CSV_COLUMNS
-from engine.units import format_eng
+from portcut.app.panels.sweep import CSV_COLUMNS
+from portcut.engine.units import format_eng
 
 R, C, V = 1e3, 100e-9, 10.0
 SHIFT = Qt.KeyboardModifier.ShiftModifier

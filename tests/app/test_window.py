@@ -7,8 +7,8 @@ from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QDockWidget, QLabel
 
-from app.canvas import Tool, ToolSpec
-from app.window import MainWindow
+from portcut.app.canvas import Tool, ToolSpec
+from portcut.app.window import MainWindow
 
 
 def test_safety_note_shows_once_without_blocking(window, drive):

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 
-from engine.schematic.connectivity import extract
+from portcut.engine.schematic.connectivity import extract
 
 
 def _net(drive, designator: str, pin: int) -> str:

@@ -7,7 +7,7 @@ import math
 
 import pytest
 
-from engine import GROUND, KINDS, Circuit, CircuitError, Part, ValueParseError
+from portcut.engine import GROUND, KINDS, Circuit, CircuitError, Part, ValueParseError
 
 
 @pytest.fixture

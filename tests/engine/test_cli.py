@@ -19,10 +19,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from engine import cli
-from engine.schematic import Document, NetLabel, PlacedPart, Region
-from engine.schematic.fileformat import save
-from engine.schematic.reduction import collapse_region
+from portcut.engine import cli
+from portcut.engine.schematic import Document, NetLabel, PlacedPart, Region
+from portcut.engine.schematic.fileformat import save
+from portcut.engine.schematic.reduction import collapse_region
 
 ROOT = Path(__file__).resolve().parents[2]
 
@@ -319,7 +319,7 @@ def test_usage_and_help(capsys):
 
 
 def test_bench_is_handed_its_arguments(monkeypatch):
-    from engine import bench
+    from portcut.engine import bench
 
     seen = []
     monkeypatch.setattr(bench, "main", lambda argv: seen.append(argv) or 0)
@@ -339,7 +339,7 @@ def test_demo_reduces_without_qt():
         "import runpy, sys\n"
         "sys.argv = ['portcut', 'reduce', '--json']\n"
         "try:\n"
-        "    runpy.run_module('app.launcher', run_name='__main__')\n"
+        "    runpy.run_module('portcut.app.launcher', run_name='__main__')\n"
         "except SystemExit as e:\n"
         "    code = e.code\n"
         "print('qt-loaded' if 'PySide6' in sys.modules else 'qt-free', file=sys.stderr)\n"

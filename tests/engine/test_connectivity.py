@@ -16,9 +16,9 @@ from drawing_strategies import orthogonal_polylines
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from engine import CircuitError
-from engine.equivalent import equivalent
-from engine.schematic import (
+from portcut.engine import CircuitError
+from portcut.engine.equivalent import equivalent
+from portcut.engine.schematic import (
     Block,
     Contents,
     Document,
@@ -32,7 +32,7 @@ from engine.schematic import (
     extract,
     net_at,
 )
-from engine.symbols import pin_positions
+from portcut.engine.symbols import pin_positions
 
 
 def sheet(*elements) -> Document:

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import pytest
 
-from engine import DocumentError
-from engine.schematic import (
+from portcut.engine import DocumentError
+from portcut.engine.schematic import (
     Analysis,
     Block,
     Change,

@@ -13,7 +13,7 @@ import math
 import numpy as np
 import pytest
 
-from engine import (
+from portcut.engine import (
     GROUND,
     Circuit,
     CircuitError,
@@ -24,7 +24,7 @@ from engine import (
 )
 
 REL = 1e-12  # systems of a few nets with values within six decades
-EQUIVALENT = importlib.import_module("engine.equivalent")  # the module, not the function
+EQUIVALENT = importlib.import_module("portcut.engine.equivalent")  # the module, not the function
 
 
 def close(got: complex, want: complex) -> bool:

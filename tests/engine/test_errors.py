@@ -11,7 +11,7 @@ import warnings
 
 import pytest
 
-from engine import (
+from portcut.engine import (
     GROUND,
     Circuit,
     CircuitError,

@@ -14,11 +14,11 @@ import math
 import pytest
 import sympy
 
-import assets
-from engine import Circuit
-from engine.equivalent import Equivalent, equivalent
-from engine.schematic import Document, Region, build_circuit, extract, load
-from engine.units import parse_frequency
+from portcut import assets
+from portcut.engine import Circuit
+from portcut.engine.equivalent import Equivalent, equivalent
+from portcut.engine.schematic import Document, Region, build_circuit, extract, load
+from portcut.engine.units import parse_frequency
 
 EXAMPLES = ["audio_crossover", "ce_stage_output", "opamp_stage_output", "rc_antialias",
             "strain_gauge_bridge", "transformer_coupling"]

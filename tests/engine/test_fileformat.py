@@ -20,9 +20,9 @@ from drawing_strategies import orthogonal_polylines
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import assets
-from engine import DocumentError
-from engine.schematic import (
+from portcut import assets
+from portcut.engine import DocumentError
+from portcut.engine.schematic import (
     Analysis,
     Block,
     Contents,
@@ -38,7 +38,7 @@ from engine.schematic import (
     loads,
     save,
 )
-from engine.schematic.model import PART_KINDS
+from portcut.engine.schematic.model import PART_KINDS
 
 
 def divider_contents() -> Contents:

@@ -15,9 +15,9 @@ from fractions import Fraction
 import numpy as np
 import pytest
 
-from engine import GROUND, Circuit, SingularCircuitError, mna
-from engine.bench import mixed_circuit
-from engine.mna import EPS, Factor, Netlist, Singular, System, assemble
+from portcut.engine import GROUND, Circuit, SingularCircuitError, mna
+from portcut.engine.bench import mixed_circuit
+from portcut.engine.mna import EPS, Factor, Netlist, Singular, System, assemble
 
 
 def build(c: Circuit, reference: str = GROUND) -> System:

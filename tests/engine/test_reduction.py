@@ -7,9 +7,9 @@ from dataclasses import replace
 
 import pytest
 
-import assets
-from engine import Circuit, CircuitError, CutError, check_equivalence
-from engine.schematic import (
+from portcut import assets
+from portcut.engine import Circuit, CircuitError, CutError, check_equivalence
+from portcut.engine.schematic import (
     Document,
     NetLabel,
     PlacedPart,
@@ -20,8 +20,8 @@ from engine.schematic import (
     extract,
     fileformat,
 )
-from engine.schematic.ports import follow_renames
-from engine.schematic.reduction import (
+from portcut.engine.schematic.ports import follow_renames
+from portcut.engine.schematic.reduction import (
     analyse_region,
     collapse_region,
     equivalence,

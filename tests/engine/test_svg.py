@@ -17,10 +17,10 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
-from engine.captions import above_extra_low_voltage, block_caption, drawn_form, value_caption
-from engine.errors import ValueParseError
-from engine.palette import PALETTE
-from engine.schematic import (
+from portcut.engine.captions import above_extra_low_voltage, block_caption, drawn_form, value_caption
+from portcut.engine.errors import ValueParseError
+from portcut.engine.palette import PALETTE
+from portcut.engine.schematic import (
     Analysis,
     Document,
     Junction,
@@ -29,9 +29,9 @@ from engine.schematic import (
     Region,
     Wire,
 )
-from engine.schematic.reduction import collapse_region
-from engine.svg import SCALE, document_svg, junction_points
-from engine.symbols import pin_positions, symbol
+from portcut.engine.schematic.reduction import collapse_region
+from portcut.engine.svg import SCALE, document_svg, junction_points
+from portcut.engine.symbols import pin_positions, symbol
 
 NS = {"s": "http://www.w3.org/2000/svg"}
 

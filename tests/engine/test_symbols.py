@@ -13,7 +13,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from engine.symbols import (
+from portcut.engine.symbols import (
     ALIGNS,
     BLOCK_FORMS,
     PINS,

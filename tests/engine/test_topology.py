@@ -13,10 +13,10 @@ import numpy as np
 import pytest
 from test_errors import REGION, divider
 
-from engine import GROUND, Circuit, CutError, SingularCircuitError, check_cut, equivalent
-from engine.circuit import REFERRING
-from engine.mna import Netlist
-from engine.topology import (
+from portcut.engine import GROUND, Circuit, CutError, SingularCircuitError, check_cut, equivalent
+from portcut.engine.circuit import REFERRING
+from portcut.engine.mna import Netlist
+from portcut.engine.topology import (
     check_voltage_loops,
     circuit_graph,
     cut,

@@ -19,8 +19,8 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from engine import CircuitError, ValueParseError
-from engine.units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
+from portcut.engine import CircuitError, ValueParseError
+from portcut.engine.units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
 
 MICRO_SIGN = "\u00b5"
 GREEK_MU = "\u03bc"

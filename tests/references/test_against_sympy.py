@@ -17,7 +17,7 @@ import pytest
 import sympy
 from sympy_nodal import PortReference, port_reference
 
-from engine import Circuit, Equivalent, equivalent, sweep
+from portcut.engine import Circuit, Equivalent, equivalent, sweep
 
 RTOL = 1e-9
 Case = tuple[Circuit, set[str], tuple[str, str], sympy.Expr]
@@ -315,7 +315,7 @@ def test_engine_matches_the_exact_reference(name: str) -> None:
 
 def test_every_part_kind_is_covered() -> None:
     # The cases above exercise every kind the netlist knows (and the 0 Ω wire).
-    from engine import KINDS
+    from portcut.engine import KINDS
 
     parts = [p for build in CASES.values() for p in build()[0]]
     assert {p.kind for p in parts} == set(KINDS)

@@ -17,7 +17,7 @@ import pytest
 import sympy
 from sympy_nodal import port_reference
 
-from engine import Circuit, CircuitError, equivalent
+from portcut.engine import Circuit, CircuitError, equivalent
 
 RTOL = 1e-9
 

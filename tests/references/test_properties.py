@@ -25,7 +25,7 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from sympy_nodal import port_reference
 
-from engine import (
+from portcut.engine import (
     KINDS,
     Circuit,
     CircuitError,

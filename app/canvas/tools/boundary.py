@@ -19,7 +19,7 @@ from PySide6.QtCore import QPointF, Qt
 from PySide6.QtGui import QColor, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QApplication, QGraphicsPathItem
 
-from engine.schematic import Block, PlacedPart, Region
+from portcut.engine.schematic import Block, PlacedPart, Region
 
 from ...commands import AddElements, ReplaceElements
 from ...regions import enclosed, outline_with, outline_without, region_name

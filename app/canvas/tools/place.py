@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING
 
 from PySide6.QtCore import Qt
 
-from engine.schematic import PlacedPart
+from portcut.engine.schematic import PlacedPart
 
 from ...catalog import entry, prototype
 from ...commands import AddElements

@@ -13,8 +13,8 @@ from typing import TYPE_CHECKING
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QKeyEvent
 
-from engine.schematic import Wire
-from engine.symbols import Point
+from portcut.engine.schematic import Wire
+from portcut.engine.symbols import Point
 
 from ...commands import AddElements
 from ...editing import bend, simplify

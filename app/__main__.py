@@ -1,5 +1,0 @@
-import sys
-
-from app.launcher import main
-
-sys.exit(main())
