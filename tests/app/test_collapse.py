@@ -40,13 +40,30 @@ def test_collapse_then_expand_gives_back_the_exact_document(window, drive):
     doc = drive.doc
     assert not doc.regions() and doc.by_designator("R1") is None
     panel = window.equivalent_dock
-    assert panel.message.isVisible() and "No region yet" in panel.message.text()
     assert window.canvas.scene.selected_ids() == [block.id]
+    # the selected block stands in for the region: its values, frequency and form are shown
+    # (divider closed form: Voc = 10 V * 3k / (1k + 3k) = 7.5 V, Z = 1k || 3k = 750 Ω)
+    assert panel.message.isVisible() and "No region yet" not in panel.message.text()
+    assert "EQ1" in panel.message.text() and "Thevenin form" in panel.message.text()
+    assert panel.values.isVisible() and panel.values.text("voc", "rectangular") == "7.5 V"
+    assert panel.values.text("z", "rectangular") == "750 Ω"
+    assert "at DC" in panel.port.text()
     assert panel.expand_button.isEnabled() and panel.expand_button.text() == "Expand EQ1"
     click_button(panel.expand_button)
     assert drive.doc == before
     # the restored region is the one shown again
     assert window.analysis.region_id == doc.regions()[0].id and window.analysis.analysis.ok
+
+
+def test_the_inspector_shows_a_selected_block_and_expands_it(window, drive):
+    before, block = _collapsed(window, drive, divider())
+    inspector = window.inspector
+    # divider closed form, as above: Voc = 7.5 V, Z = 750 Ω at DC
+    assert "Voc = 7.5 V, Z = 750 Ω at DC" in inspector.details.text()
+    assert inspector.expand_button.isVisible()
+    assert inspector.expand_button.text() == "Expand EQ1"
+    click_button(inspector.expand_button)
+    assert drive.doc == before
 
 
 def test_undo_and_redo_of_a_collapse(window, drive):
