@@ -17,6 +17,7 @@ directions, testing points is enough to keep a whole lead segment out of it.
 from __future__ import annotations
 
 import heapq
+import math
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass, field
 from itertools import count, pairwise
@@ -137,6 +138,7 @@ class Obstacles:
 
     boxes: list[Bounds] = field(default_factory=list)
     taken: dict[Point, set[str]] = field(default_factory=dict)
+    _wall_cache: tuple = field(default=(), repr=False, compare=False)
 
     @classmethod
     def of(cls, doc: Document, conn: Connectivity, *, style: str = "iec",
@@ -185,7 +187,18 @@ class Obstacles:
             return False
         if pt in self.taken:
             return True
-        return boxes and any(_holds(grown(b, CLEAR), pt) for b in self.boxes)
+        return boxes and pt in self._walls()
+
+    def _walls(self) -> set[Point]:
+        """Grid points within :data:`CLEAR` of a box, worked out again when boxes are added."""
+        if len(self._wall_cache) != 2 or self._wall_cache[0] != len(self.boxes):
+            walls: set[Point] = set()
+            for box in self.boxes:
+                x0, y0, x1, y1 = grown(box, CLEAR)
+                walls.update((x, y) for x in range(math.ceil(x0), math.floor(x1) + 1)
+                             for y in range(math.ceil(y0), math.floor(y1) + 1))
+            self._wall_cache = (len(self.boxes), walls)
+        return self._wall_cache[1]
 
 
 def _pin(doc: Document, key: tuple[str, int]) -> Point:
@@ -203,6 +216,9 @@ def place_block(obstacles: Obstacles, centre: Point, boxes_at, area: Bounds) -> 
     (``boxes_at(point)``) are free and lie inside ``area`` where they can; None when no spot
     is free."""
     cx, cy = centre
+    reach = union([grown(b, REACH + 1.0) for b in boxes_at(centre)])
+    obstacles = Obstacles([b for b in obstacles.boxes if _meet(b, reach)],
+                          {p: n for p, n in obstacles.taken.items() if _holds(reach, p)})
     spots = sorted(((x, y) for x in range(cx - REACH, cx + REACH + 1)
                     for y in range(cy - REACH, cy + REACH + 1)),
                    key=lambda p: (abs(p[0] - cx) + abs(p[1] - cy), p))
