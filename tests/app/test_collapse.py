@@ -14,8 +14,10 @@ from PySide6.QtSvg import QSvgRenderer
 from PySide6.QtWidgets import QFileDialog
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
+from app.canvas.grid import UNIT
 from engine.palette import PALETTE
 from engine.schematic.fileformat import dumps, loads
+from engine.symbols import STROKE_WIDTH
 from engine.units import format_complex
 
 CTRL = Qt.KeyboardModifier.ControlModifier
@@ -56,7 +58,7 @@ def test_collapse_then_expand_gives_back_the_exact_document(window, drive):
 
 
 def test_the_inspector_shows_a_selected_block_and_expands_it(window, drive):
-    before, block = _collapsed(window, drive, divider())
+    before, _ = _collapsed(window, drive, divider())
     inspector = window.inspector
     # divider closed form, as above: Voc = 7.5 V, Z = 750 Ω at DC
     assert "Voc = 7.5 V, Z = 750 Ω at DC" in inspector.details.text()
@@ -64,6 +66,22 @@ def test_the_inspector_shows_a_selected_block_and_expands_it(window, drive):
     assert inspector.expand_button.text() == "Expand EQ1"
     click_button(inspector.expand_button)
     assert drive.doc == before
+
+
+def test_a_click_inside_the_frame_selects_the_block_and_marks_the_frame(window, drive):
+    _, block = _collapsed(window, drive, divider())
+    window.canvas.scene.clearSelection()
+    x, y = block.at
+    drive.key(Qt.Key.Key_S)  # the select tool, after the boundary tool's lasso
+    drive.click((x - 3.0, y + 2.6))  # inside the dashed frame, away from every stroke
+    assert window.canvas.scene.selected_ids() == [block.id]
+    item = window.canvas.scene.item(block.id)
+    frame = item.mapRectToScene(item._dash.path().boundingRect())
+    mark = item.mapRectToScene(item._frame)
+    # the selection mark is the frame grown by half a stroke, nothing else
+    pad = STROKE_WIDTH * UNIT / 2
+    assert mark == frame.adjusted(-pad, -pad, pad, pad)
+    assert item.mapRectToScene(item.boundingRect()).contains(mark)
 
 
 def test_undo_and_redo_of_a_collapse(window, drive):
