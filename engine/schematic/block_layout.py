@@ -211,10 +211,10 @@ def _pin(doc: Document, key: tuple[str, int]) -> Point:
     return pin_positions(kind, element.at, element.rotation, element.mirror)[key[1]]
 
 
-def place_block(obstacles: Obstacles, centre: Point, boxes_at, area: Bounds) -> Point | None:
+def place_block(obstacles: Obstacles, centre: Point, boxes_at, area: Bounds) -> Point:
     """The grid point nearest to ``centre`` (within :data:`REACH`) where the block's boxes
-    (``boxes_at(point)``) are free and lie inside ``area`` where they can; None when no spot
-    is free."""
+    (``boxes_at(point)``) are free and lie inside ``area`` where they can; ``centre`` itself
+    when no spot is free (the block then overlaps what crowds it, rather than not collapsing)."""
     cx, cy = centre
     reach = union([grown(b, REACH + 1.0) for b in boxes_at(centre)])
     obstacles = Obstacles([b for b in obstacles.boxes if _meet(b, reach)],
@@ -230,7 +230,7 @@ def place_block(obstacles: Obstacles, centre: Point, boxes_at, area: Bounds) -> 
                    for b in boxes):
                 return spot
             outside = outside or spot
-    return outside
+    return outside or centre
 
 
 _STEPS = ((1, 0), (-1, 0), (0, 1), (0, -1))

@@ -395,8 +395,6 @@ def _connect(doc: Document, conn: Connectivity, after: Document, block: Block,
         return block_boxes(at, form, caption, block.designator)
 
     spot = place_block(obstacles, block.at, boxes_at, area)
-    if spot is None:
-        return None
     block = replace(block, at=spot)
     boxes = boxes_at(spot)
     keep_out = grown(union(boxes), CLEAR)

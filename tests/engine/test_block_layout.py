@@ -17,12 +17,22 @@ from itertools import combinations, pairwise
 import pytest
 
 import assets
-from engine.schematic import extract, load
+from engine.circuit import GROUND
+from engine.schematic import Document, Region, Wire, extract, load
 from engine.schematic.block_layout import Obstacles, grid_walk, place_marker, route
 from engine.schematic.model import Block, NetLabel, PlacedPart
 from engine.schematic.reduction import collapse_region
 from engine.svg import SCALE, document_svg
-from engine.symbols import CHAR_WIDTH, STROKE_WIDTH, STYLES, placed_bounds
+from engine.symbols import (
+    CHAR_WIDTH,
+    STROKE_WIDTH,
+    STYLES,
+    Polygon,
+    place,
+    placed_bounds,
+    shape_bounds,
+    symbol,
+)
 
 NS = {"svg": "http://www.w3.org/2000/svg"}
 
@@ -115,7 +125,11 @@ def _bodies(doc):
 @pytest.mark.parametrize("style", STYLES)
 @pytest.mark.parametrize("path", _examples(), ids=lambda p: p.stem)
 def test_collapsed_examples_draw_clear_leads_and_apart_nets(path, style):
-    doc = _collapsed(path)
+    _check_sheet(_collapsed(path), style)
+
+
+def _check_sheet(doc, style: str) -> None:
+    """Every check of the module docstring on ``doc`` drawn in ``style``."""
     conn = extract(doc)
     wires, texts = _svg_geometry(document_svg(doc, style=style))
     net_of = dict(conn.net_of_wire)
@@ -152,12 +166,55 @@ def test_collapsed_examples_draw_clear_leads_and_apart_nets(path, style):
             if net_of[wid] != net_of[label.id]:
                 assert not any(_enters(s, box, -STROKE_WIDTH) for s in _segments(points)), \
                     f"wire {wid} ({net_of[wid]}) touches marker {label.id} ({label.name})"
-    # grounds and labels keep off the block's frame
-    frame = bodies[block.id]
+    # grounds and labels keep off the block's dashed frame by more than a stroke
+    (dashed,) = [s for s in symbol("block", style, block.form).shapes
+                 if isinstance(s, Polygon) and s.dashed]
+    frame = shape_bounds(place(dashed, block.at, block.rotation, block.mirror))
     for label in doc.labels():
         x0, y0, x1, y1 = bodies[label.id]
-        assert x0 > frame[2] or x1 < frame[0] or y0 > frame[3] or y1 < frame[1], \
-            f"marker {label.name} touches {block.designator}'s frame"
+        gap = max(x0 - frame[2], frame[0] - x1, y0 - frame[3], frame[1] - y1)
+        assert gap > STROKE_WIDTH, f"marker {label.name} touches {block.designator}'s frame"
+
+
+def _ladder(pitch: int, sections: int, inside: int, labelled: bool) -> Document:
+    """A source and an R ladder drawn at ``pitch`` grid units (series parts on row 0, shunts
+    down to the ground bus on row 4, a label on each node when ``labelled``), with a region
+    around the source and the first ``inside`` sections."""
+    doc = Document("ladder")
+
+    def part(designator: str, at, rotation: int, kind: str = "resistor") -> None:
+        doc.add(PlacedPart(doc.new_id(PlacedPart), kind, designator, at, rotation, value="1k"))
+
+    part("V1", (0, 2), 90, "voltage_source")
+    for i in range(sections):
+        x = i * pitch
+        part(f"R{2 * i + 1}", (x + pitch // 2, 0), 0)
+        for a, b in (((x, 0), (x + pitch // 2 - 2, 0)), ((x + pitch // 2 + 2, 0),
+                                                         (x + pitch, 0))):
+            if a != b:
+                doc.add(Wire(doc.new_id(Wire), (a, b)))
+        part(f"R{2 * i + 2}", (x + pitch, 2), 90)
+        if labelled:
+            doc.add(NetLabel(doc.new_id(NetLabel), f"n{i}", (x + pitch, 0), rotation=270))
+    doc.add(Wire(doc.new_id(Wire), ((0, 4), (sections * pitch, 4))))
+    doc.add(NetLabel(doc.new_id(NetLabel), GROUND, (0, 4), style="ground"))
+    members = frozenset(p.id for p in doc.parts()
+                        if p.designator == "V1" or int(p.designator[1:]) <= 2 * inside)
+    right = pitch * inside + 0.5
+    doc.add(Region(doc.new_id(Region), "source side", members,
+                   ((-3.0, -2.0), (right, -2.0), (right, 5.0), (-3.0, 5.0))))
+    return doc
+
+
+@pytest.mark.parametrize("labelled", [False, True])
+@pytest.mark.parametrize("inside", [1, 2, 3])
+@pytest.mark.parametrize("pitch", [4, 5, 6])
+def test_collapsed_ladders_at_every_pitch_draw_clear_leads(pitch, inside, labelled):
+    doc = _ladder(pitch, 5, inside, labelled)
+    (region,) = doc.regions()
+    collapse_region(doc, region.id).apply(doc)
+    for style in STYLES:
+        _check_sheet(doc, style)
 
 
 def test_route_goes_round_a_box_and_never_through_another_net():
