@@ -295,14 +295,15 @@ def corners(path: list[Point]) -> tuple[Point, ...]:
 
 
 def place_marker(obstacles: Obstacles, style: str, name: str, pin: Point,
-                 lead: tuple[Point, ...], keep_out: Bounds
+                 along: list[Point], keep_out: Bounds
                  ) -> tuple[NetLabel, tuple[Point, ...]] | None:
-    """A ground or label named ``name`` (``style`` "ground" or "label") on the lead, or at the
-    end of a short stub straight out of ``pin`` to the right; its body and name clear of every box,
-    every occupied point (the leads' included) and the block's ``keep_out``. Returns the marker
-    (id left empty) and the stub's points (empty when it sits on the lead), or None."""
+    """A ground or label named ``name`` (``style`` "ground" or "label") at one of the grid
+    points ``along`` the pin's leads, or at the end of a short stub straight out of ``pin`` to
+    the right; its body and name clear of every box, every occupied point (the leads' included)
+    and the block's ``keep_out``. Returns the marker (id left empty) and the stub's points
+    (empty when it sits on a lead), or None."""
     turns = (0,) if style == "ground" else (0, 270, 90, 180)
-    on_lead = [pt for pt in grid_walk(lead)[1:] if not _holds(keep_out, pt)]
+    on_lead = [pt for pt in along if pt != pin and not _holds(keep_out, pt)]
     stubs = [(pin[0] + k, pin[1]) for k in range(1, 7)]
     for at, stub in [*((pt, ()) for pt in on_lead), *((pt, (pin, pt)) for pt in stubs)]:
         if stub and any(obstacles.blocked(p, frozenset()) or _holds(keep_out, p)

@@ -418,7 +418,7 @@ def _connect(doc: Document, conn: Connectivity, after: Document, block: Block,
             if by_name and (net == GROUND or not targets):
                 joined_by_name = True  # the piece carries the net's name: a marker joins it
                 continue
-            lead = _lead(obstacles, leads, targets or near[:4], extent)
+            lead = _lead(obstacles, leads, targets or near[:4], extent, keep_out)
             if lead is None:
                 return None
             stubs.append(Wire(doc.new_id(Wire), lead))
@@ -427,8 +427,7 @@ def _connect(doc: Document, conn: Connectivity, after: Document, block: Block,
         wants_marker = joined_by_name or (net in named and not _named_on_sheet(after, net))
         if wants_marker:
             style = "ground" if net == GROUND else "label"
-            lead = tuple(leads[:1] + leads[1:])
-            placed = place_marker(obstacles, style, net, pin, lead, keep_out)
+            placed = place_marker(obstacles, style, net, pin, leads, keep_out)
             if placed is None:
                 return None
             marker, stub = placed
@@ -451,12 +450,19 @@ def _named_on_sheet(after: Document, net: str) -> bool:
 
 
 def _lead(obstacles: Obstacles, sources: list[Point], targets: list[Point],
-          extent: Bounds) -> tuple[Point, ...] | None:
+          extent: Bounds, keep_out: Bounds) -> tuple[Point, ...] | None:
     """The lead from the block's pin (or a lead of the same net already drawn) to the nearest
-    target: clear of every box where it can be, otherwise clear of every other net's point."""
+    target: clear of every box where it can be, otherwise clear of the block (``keep_out``)
+    and of every point taken."""
     goals = frozenset(targets)
+    x0, y0, x1, y1 = keep_out
+
+    def in_block(p: Point) -> bool:
+        return x0 <= p[0] <= x1 and y0 <= p[1] <= y1 and p not in goals
+
     for boxes in (True, False):
-        path = route(sources, goals, lambda p, b=boxes: obstacles.blocked(p, goals, b), extent)
+        path = route(sources, goals,
+                     lambda p, b=boxes: obstacles.blocked(p, goals, b) or in_block(p), extent)
         if path is not None and len(path) >= 2:
             return path
     return None

@@ -239,7 +239,7 @@ def test_route_refuses_when_walled_in():
 
 def test_a_ground_marker_moves_out_along_its_stub_until_it_is_clear():
     obstacles = Obstacles(boxes=[(0.0, 1.2, 1.5, 4.0)])  # something just below right of the pin
-    marker, stub = place_marker(obstacles, "ground", "0", (0, 0), ((0, 0),),
+    marker, stub = place_marker(obstacles, "ground", GROUND, (0, 0), [(0, 0)],
                                 keep_out=(-5.0, -1.0, -0.5, 1.0))
     assert marker.style == "ground" and stub[0] == (0, 0) and stub[-1] == marker.at
     assert marker.at[0] - 1 > 1.5  # its bars start right of the box
