@@ -22,7 +22,8 @@ from collections.abc import Iterable, Iterator
 from dataclasses import dataclass, field
 from itertools import count, pairwise
 
-from ..captions import value_caption
+from ..captions import block_caption, drawn_form, value_caption
+from ..errors import CircuitError
 from ..symbols import (
     FONT_SIZE,
     MARK_FONT_SIZE,
@@ -30,13 +31,14 @@ from ..symbols import (
     Bounds,
     Point,
     TextAnchor,
+    pin_positions,
     place,
     placed_bounds,
     shape_bounds,
     symbol,
     text_bounds,
 )
-from .connectivity import Connectivity
+from .connectivity import Connectivity, block_equivalent
 from .document import Document
 from .model import Block, NetLabel, PlacedPart
 
@@ -142,12 +144,14 @@ class Obstacles:
 
     @classmethod
     def of(cls, doc: Document, conn: Connectivity, *, style: str = "iec",
-           ac: bool = False) -> Obstacles:
-        """The drawing of ``doc`` (blocks are placed separately, see :func:`block_boxes`)."""
+           freq: float = 0.0) -> Obstacles:
+        """The drawing of ``doc``, its captions as they read at ``freq`` hertz."""
         found = cls()
         for element in doc:
             if isinstance(element, PlacedPart | NetLabel):
-                found.boxes += element_boxes(element, style, ac)
+                found.boxes += element_boxes(element, style, freq > 0)
+            elif isinstance(element, Block):
+                found.boxes += _drawn_block(element, style, freq)
         for key, net in conn.net_of_pin.items():
             element = doc[key[0]]
             if isinstance(element, PlacedPart | Block | NetLabel):
@@ -201,9 +205,20 @@ class Obstacles:
         return self._wall_cache[1]
 
 
-def _pin(doc: Document, key: tuple[str, int]) -> Point:
-    from ..symbols import pin_positions
+def _drawn_block(block: Block, style: str, freq: float) -> list[Bounds]:
+    """A block already on the sheet, with the caption it shows (or the reason it has none)."""
+    try:
+        eq = block_equivalent(block, freq)
+    except CircuitError as exc:
+        form, caption = block.form, ("no equivalent:", str(exc))
+    else:
+        form = drawn_form(eq, block.form)
+        caption = block_caption(eq, form, freq)
+    return block_boxes(block.at, form, caption, block.designator, style, block.rotation,
+                       block.mirror)
 
+
+def _pin(doc: Document, key: tuple[str, int]) -> Point:
     element = doc[key[0]]
     if isinstance(element, NetLabel):
         return element.at

@@ -280,7 +280,7 @@ def collapse_region(doc: Document, region_id: str, form: str | None = None) -> E
             after.add(piece)
         reach = [_Reach(points, [e for e in extra if net_of[e.id] == net])
                  for net, points in zip(port, port_points, strict=True)]
-        laid = _connect(doc, conn, after, block, port, reach, caption, area)
+        laid = _connect(doc, conn, after, block, port, reach, caption, area, analysis.freq)
         if laid is not None:
             block, stubs = laid
             added = (*pieces, *stubs)
@@ -377,7 +377,7 @@ def _scratch(doc: Document, drop: set[str]) -> Document:
 
 def _connect(doc: Document, conn: Connectivity, after: Document, block: Block,
              port: tuple[str, str], reach: list[_Reach], caption: tuple[str, ...],
-             area: Bounds) -> tuple[Block, list[Wire | NetLabel]] | None:
+             area: Bounds, freq: float) -> tuple[Block, list[Wire | NetLabel]] | None:
     """The block moved to the free spot nearest where the region stood (inside ``area``, the
     outline's bounds, where it fits) with the leads (wires, grounds, labels) joining each pin
     to every piece of its port net left on the sheet, clear of every body, caption and other
@@ -388,7 +388,7 @@ def _connect(doc: Document, conn: Connectivity, after: Document, block: Block,
                 for net in set(conn.net_of_pin.values())} - {frozenset()}
     staying = [frozenset(k for k, n in conn.net_of_pin.items() if n == net and k[0] in after)
                for net in port]
-    obstacles = Obstacles.of(after, after_conn)
+    obstacles = Obstacles.of(after, after_conn, freq=freq)
     form = block.form
 
     def boxes_at(at: Point) -> list[Bounds]:

@@ -135,26 +135,10 @@ def _check_sheet(doc, style: str) -> None:
     net_of = dict(conn.net_of_wire)
     for label in doc.labels():
         net_of[label.id] = conn.net_of_pin[label.id, 0]
-    (block,) = doc.blocks()
-    leads = [s for s in block.stubs if s in wires]
-    assert leads, "the block's pins are wired to the sheet"
     bodies = dict(_bodies(doc))
-    for lead in leads:
-        for segment in _segments(wires[lead]):
-            for eid, box in bodies.items():
-                assert not _enters(segment, box), f"lead {lead} crosses the body of {eid}"
-            for eid, role, box in texts:
-                assert not _enters(segment, box, 0.0), f"lead {lead} crosses {role} of {eid}"
-            for other, points in wires.items():
-                if net_of[other] != net_of[lead]:
-                    assert all(_gap(segment, t) > STROKE_WIDTH for t in _segments(points)), \
-                        f"lead {lead} ({net_of[lead]}) touches wire {other} ({net_of[other]})"
-    # the block's own texts stand clear of every wire
-    for eid, role, box in texts:
-        if eid == block.id:
-            for wid, points in wires.items():
-                assert not any(_enters(s, box, 0.0) for s in _segments(points)), \
-                    f"wire {wid} runs through the block's {role}"
+    assert doc.blocks()
+    for block in doc.blocks():
+        _check_block(doc, block, style, wires, texts, net_of, bodies)
     # no two distinct nets' strokes touch: wires against wires, markers against wires
     for (w1, p1), (w2, p2) in combinations(wires.items(), 2):
         if net_of[w1] != net_of[w2]:
@@ -166,6 +150,28 @@ def _check_sheet(doc, style: str) -> None:
             if net_of[wid] != net_of[label.id]:
                 assert not any(_enters(s, box, -STROKE_WIDTH) for s in _segments(points)), \
                     f"wire {wid} ({net_of[wid]}) touches marker {label.id} ({label.name})"
+
+
+def _check_block(doc, block, style, wires, texts, net_of, bodies) -> None:
+    """One block: its leads clear of bodies, texts and other nets, its texts clear of every
+    wire, and every marker off its frame."""
+    leads = [s for s in block.stubs if s in wires]
+    assert leads, "the block's pins are wired to the sheet"
+    for lead in leads:
+        for segment in _segments(wires[lead]):
+            for eid, box in bodies.items():
+                assert not _enters(segment, box), f"lead {lead} crosses the body of {eid}"
+            for eid, role, box in texts:
+                assert not _enters(segment, box, 0.0), f"lead {lead} crosses {role} of {eid}"
+            for other, points in wires.items():
+                if net_of[other] != net_of[lead]:
+                    assert all(_gap(segment, t) > STROKE_WIDTH for t in _segments(points)), \
+                        f"lead {lead} ({net_of[lead]}) touches wire {other} ({net_of[other]})"
+    for eid, role, box in texts:
+        if eid == block.id:
+            for wid, points in wires.items():
+                assert not any(_enters(s, box, 0.0) for s in _segments(points)), \
+                    f"wire {wid} runs through the block's {role}"
     # grounds and labels keep off the block's dashed frame by more than a stroke
     (dashed,) = [s for s in symbol("block", style, block.form).shapes
                  if isinstance(s, Polygon) and s.dashed]
@@ -174,6 +180,16 @@ def _check_sheet(doc, style: str) -> None:
         x0, y0, x1, y1 = bodies[label.id]
         gap = max(x0 - frame[2], frame[0] - x1, y0 - frame[3], frame[1] - y1)
         assert gap > STROKE_WIDTH, f"marker {label.name} touches {block.designator}'s frame"
+    # and no other element's text overlaps this block or its texts
+    mine = [b for eid, _, b in texts if eid == block.id] + [bodies[block.id]]
+    for eid, role, box in texts:
+        if eid != block.id:
+            assert not any(_overlap(box, b) for b in mine), \
+                f"{role} of {eid} overlaps {block.designator}"
+
+
+def _overlap(a, b) -> bool:
+    return a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3]
 
 
 def _ladder(pitch: int, sections: int, inside: int, labelled: bool) -> Document:
@@ -182,10 +198,11 @@ def _ladder(pitch: int, sections: int, inside: int, labelled: bool) -> Document:
     around the source and the first ``inside`` sections."""
     doc = Document("ladder")
 
-    def part(designator: str, at, rotation: int, kind: str = "resistor") -> None:
-        doc.add(PlacedPart(doc.new_id(PlacedPart), kind, designator, at, rotation, value="1k"))
+    def part(designator: str, at, rotation: int, kind: str = "resistor",
+             value: str = "1k") -> None:
+        doc.add(PlacedPart(doc.new_id(PlacedPart), kind, designator, at, rotation, value=value))
 
-    part("V1", (0, 2), 90, "voltage_source")
+    part("V1", (0, 2), 90, "voltage_source", "5")
     for i in range(sections):
         x = i * pitch
         part(f"R{2 * i + 1}", (x + pitch // 2, 0), 0)
@@ -213,6 +230,20 @@ def test_collapsed_ladders_at_every_pitch_draw_clear_leads(pitch, inside, labell
     doc = _ladder(pitch, 5, inside, labelled)
     (region,) = doc.regions()
     collapse_region(doc, region.id).apply(doc)
+    for style in STYLES:
+        _check_sheet(doc, style)
+
+
+def test_a_second_block_keeps_clear_of_the_first():
+    doc = _ladder(6, 5, 2, labelled=True)
+    (source_side,) = doc.regions()
+    collapse_region(doc, source_side.id).apply(doc)
+    # the last section (R9 in series, R10 across) seen from node n3 and ground
+    tail = frozenset(p.id for p in doc.parts() if p.designator in ("R9", "R10"))
+    doc.add(Region(doc.new_id(Region), "load end", tail,
+                   ((25.0, -2.0), (31.5, -2.0), (31.5, 5.0), (25.0, 5.0))))
+    collapse_region(doc, doc.regions()[0].id).apply(doc)
+    assert len(doc.blocks()) == 2
     for style in STYLES:
         _check_sheet(doc, style)
 
