@@ -329,8 +329,6 @@ class EquivalentDock(QDockWidget):
         if any(i not in doc or isinstance(doc[i], Region | Block) for i in ids):
             self._fill_regions()
             self._update_expand()
-        if change.analysis or ids:
-            self._show_idle_block()
 
     def _on_selection(self) -> None:
         self._update_expand()

@@ -57,6 +57,15 @@ def test_collapse_then_expand_gives_back_the_exact_document(window, drive):
     assert window.analysis.region_id == doc.regions()[0].id and window.analysis.analysis.ok
 
 
+def test_a_shown_block_follows_the_analysis_frequency(window, drive):
+    _collapsed(window, drive, divider())
+    panel = window.equivalent_dock
+    type_into(panel.frequency.edit, "1k")
+    assert "at 1 kHz" in panel.port.text() and "at 1 kHz" in panel.message.text()
+    assert "at 1 kHz" in window.inspector.details.text()
+    assert panel.values.text("z", "rectangular") == "750 Ω"  # resistive: the same at 1 kHz
+
+
 def test_the_inspector_shows_a_selected_block_and_expands_it(window, drive):
     before, _ = _collapsed(window, drive, divider())
     inspector = window.inspector
