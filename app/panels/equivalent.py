@@ -421,9 +421,7 @@ class EquivalentDock(QDockWidget):
         except CircuitError:
             self.values.show_equivalent(None)
             return True
-        conn = self.live.conn
-        if conn is None or (block.id, 0) not in conn.net_of_pin:
-            conn = extract(self.doc)  # no region is followed, so nothing keeps one up to date
+        conn = extract(self.doc)  # no region is followed, so the live one is not kept up
         if (block.id, 0) in conn.net_of_pin:
             plus, minus = conn.net_of_pin[block.id, 0], conn.net_of_pin[block.id, 1]
             self.port.setText(f"{block.designator} port <b>{plus}</b> (+) / <b>{minus}</b> (−) "
