@@ -52,6 +52,8 @@ __all__ = ["EquivalentDock", "block_text", "boundary_text", "equivalence_text", 
 MATCH_RTOL = 1e-9
 _NO_REGION = ("No region yet. Choose Tools > Boundary (B) and drag a lasso around the parts to "
               "reduce; their Thevenin and Norton equivalents appear here as you edit.")
+_PICK_BLOCK = ("Select a collapsed block to see its values and expand it, or choose Tools > "
+               "Boundary (B) and drag a lasso around parts to reduce them.")
 
 
 # -- texts ----------------------------------------------------------------------------------------
@@ -385,7 +387,7 @@ class EquivalentDock(QDockWidget):
             self.message.show()
             block = self._block()
             if block is None or not self._show_block(block):
-                self.message.setText(_NO_REGION)
+                self.message.setText(_PICK_BLOCK if self.doc.blocks() else _NO_REGION)
                 self.values.show_equivalent(None)
             return
         if not analysis.ok:

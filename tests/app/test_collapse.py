@@ -16,7 +16,9 @@ from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle
 
 from app.canvas.grid import UNIT
 from engine.palette import PALETTE
+from engine.schematic import Region
 from engine.schematic.fileformat import dumps, loads
+from engine.schematic.reduction import collapse_region
 from engine.symbols import STROKE_WIDTH
 from engine.units import format_complex
 
@@ -55,6 +57,31 @@ def test_collapse_then_expand_gives_back_the_exact_document(window, drive):
     assert drive.doc == before
     # the restored region is the one shown again
     assert window.analysis.region_id == doc.regions()[0].id and window.analysis.analysis.ok
+
+
+def test_with_several_blocks_the_panel_shows_the_one_selected(window, drive):
+    doc = divider()
+    for names in (("V1", "R1", "R2"), ("RL",)):
+        members = frozenset(p.id for p in doc.parts() if p.designator in names)
+        region = Region(doc.new_id(Region), " ".join(names), members, ())
+        doc.add(region)
+        collapse_region(doc, region.id).apply(doc)
+    open_sheet(window, doc)
+    panel = window.equivalent_dock
+    assert "Select a collapsed block" in panel.message.text()
+    first, second = doc.blocks()
+    drive.key(Qt.Key.Key_S)
+    drive.click(first.at)
+    assert window.canvas.scene.selected_ids() == [first.id]
+    settle()
+    # divider closed form: Voc = 10 V * 3k / (1k + 3k) = 7.5 V
+    assert first.designator in panel.message.text()
+    assert panel.values.text("voc", "rectangular") == "7.5 V"
+    drive.click(second.at)
+    settle()
+    # a lone resistor seen across its pins: no source, Z = 2 kΩ (common practice)
+    assert second.designator in panel.message.text()
+    assert panel.values.text("z", "rectangular") == "2 kΩ"
 
 
 def test_a_shown_block_follows_the_analysis_frequency(window, drive):
