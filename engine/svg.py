@@ -51,6 +51,7 @@ from .symbols import (
     placed_bounds,
     symbol,
     text_baselines,
+    text_bounds,
     transform,
 )
 from .units import parse_frequency
@@ -63,7 +64,6 @@ SCALE = 10.0
 MARGIN = 2.0  # grid units around the drawing
 TITLE_SIZE = 1.6
 FONT_FAMILY = "DejaVu Sans, Helvetica, Arial, sans-serif"
-CHAR_WIDTH = 0.6  # average advance of a character, in font sizes, for the extent estimate
 
 
 def _n(value: float) -> str:
@@ -110,9 +110,7 @@ class _Sheet:
             attrs["font-weight"] = "bold"
         for line, (x, y) in zip(lines, baselines, strict=True):
             ET.SubElement(parent, "text", {"x": _n(x), "y": _n(y), **attrs}).text = line
-            width = CHAR_WIDTH * size * len(line)
-            left = {"start": x, "middle": x - width / 2, "end": x - width}[anchor]
-            self.grow((left, y - size, left + width, y + 0.3 * size))
+        self.grow(text_bounds(at, align, lines, size))
 
 
 def _shape_node(parent: ET.Element, shape: Shape, colour: str) -> ET.Element:

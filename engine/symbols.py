@@ -31,6 +31,7 @@ from functools import cache
 __all__ = [
     "ALIGNS",
     "BLOCK_FORMS",
+    "CHAR_WIDTH",
     "COUPLING_DOT_RADIUS",
     "FONT_SIZE",
     "JUNCTION_RADIUS",
@@ -55,6 +56,7 @@ __all__ = [
     "shape_bounds",
     "symbol",
     "text_baselines",
+    "text_bounds",
     "transform",
 ]
 
@@ -314,6 +316,25 @@ def text_baselines(at: FPoint, align: str, lines: int,
     return h, [(x + dx, first + i * pitch) for i in range(lines)]
 
 
+#: Average advance of a character, in font sizes: the text-width estimate that the SVG writer's
+#: extent and the block layout's clearances share.
+CHAR_WIDTH = 0.6
+
+
+def text_bounds(at: FPoint, align: str, lines: tuple[str, ...] | list[str],
+                font_size: float) -> Bounds:
+    """Estimated box of upright ``lines`` set at an anchor by :func:`text_baselines` (same
+    units as ``at``): each line :data:`CHAR_WIDTH` font sizes per character wide, from a font
+    size above its baseline to 0.3 below."""
+    how, baselines = text_baselines(at, align, len(lines), font_size)
+    boxes = []
+    for line, (x, y) in zip(lines, baselines, strict=True):
+        width = CHAR_WIDTH * font_size * len(line)
+        left = {"start": x, "middle": x - width / 2, "end": x - width}[how]
+        boxes.append((left, y - font_size, left + width, y + 0.3 * font_size))
+    return _union(boxes)
+
+
 # -- building blocks of symbols -----------------------------------------------------------------
 def _tidy(v: float) -> float:
     r = round(v, 6)
@@ -466,12 +487,16 @@ def _label(style: str) -> Body:
 
 def _block(style: str, form: str) -> Body:
     """The equivalent of a collapsed region, framed by a dashed outline; plus at (3, -2),
-    minus at (3, 2). Thevenin: source (+ at top) in series with an impedance box on the upper
-    rail. Norton: source driving upwards into plus, in parallel with a vertical impedance box."""
+    minus at (3, 2). Thevenin: source (+ at top) in series with the impedance on the upper
+    rail. Norton: source driving upwards into plus, in parallel with a vertical impedance. The
+    impedance is a box in IEC style and a zigzag in IEEE style; the designator stands above the
+    frame and the values to its left."""
     frame = _box(-3.4, -3.0, 2.4, 3.0, dashed=True)
     port = (_line((2.4, -2), (3, -2)), _line((2.4, 2), (3, 2)))
+    # the values stand left of the frame, away from the pins, so the leads, grounds and labels
+    # that leave the pins to the right, up or down never meet them
     anchors = (TextAnchor("designator", (-0.5, -3.4), "n"),
-               TextAnchor("value", (-0.5, 3.4), "s"),
+               TextAnchor("value", (-3.8, 0.0), "w"),
                *_marks((2.75, -2.6), (2.75, 2.6)))
     source = symbol("voltage_source" if form == "thevenin" else "current_source", style)
     # the source stands upright at x = -2. Thevenin: its first pin (p) turned 90 degrees goes
@@ -481,7 +506,8 @@ def _block(style: str, form: str) -> Body:
     at = (-2.0, 0.0)
     drawn = tuple(place(s, at, turn) for s in source.shapes)
     marks = tuple(place(a, at, turn) for a in source.anchors if a.role in MARK_TEXT)
-    box = symbol("impedance", style).shapes
+    # IEC draws the impedance as a box; IEEE 315 as the resistor's zigzag
+    box = symbol("impedance" if style == "iec" else "resistor", style).shapes
     if form == "thevenin":
         z = tuple(place(s, (0.4, -2.0)) for s in box)  # leads from x = -1.6 to 2.4
         rails = (_line((-2, -2), (-1.6, -2)), _line((-2, 2), (2.4, 2)))

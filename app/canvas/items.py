@@ -14,12 +14,15 @@ from dataclasses import dataclass, field
 from functools import cache
 
 from PySide6.QtCore import QPointF, QRectF, Qt
-from PySide6.QtGui import QBrush, QColor, QPainterPath, QPen, QPolygonF
+from PySide6.QtGui import QBrush, QColor, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import (
     QGraphicsItem,
     QGraphicsPathItem,
     QGraphicsPolygonItem,
     QGraphicsSimpleTextItem,
+    QStyle,
+    QStyleOptionGraphicsItem,
+    QWidget,
 )
 
 from portcut.engine.captions import block_caption, value_caption
@@ -322,11 +325,38 @@ class BlockItem(SymbolItem):
     """A collapsed region drawn as its equivalent, in the accent colour, with its values at the
     document's analysis frequency (or the reason it has none)."""
 
+    def __init__(self, element: Element, look: Look, preview: bool = False) -> None:
+        self._frame = QRectF()
+        super().__init__(element, look, preview)
+
     def symbol_key(self) -> tuple[str, str]:
         return "block", self.element.form
 
     def base_colour(self, theme: Theme) -> str:
         return theme.accent
+
+    def relayout(self) -> None:
+        super().relayout()
+        frame = self._dash.path().boundingRect() if self._dash is not None else QRectF()
+        pad = STROKE_WIDTH * UNIT / 2
+        self.prepareGeometryChange()
+        self._frame = frame.adjusted(-pad, -pad, pad, pad)
+        self._body = self._body.united(frame)  # a click anywhere inside the frame picks it
+
+    def boundingRect(self) -> QRectF:
+        return super().boundingRect().united(self._frame)
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
+              widget: QWidget | None = None) -> None:
+        """The strokes, and when selected the selection mark on the dashed frame itself rather
+        than around the strokes' bounds, so the mark and the block coincide."""
+        plain = QStyleOptionGraphicsItem(option)
+        plain.state &= ~QStyle.StateFlag.State_Selected
+        super().paint(painter, plain, widget)
+        if option.state & QStyle.StateFlag.State_Selected:
+            painter.setPen(QPen(_colour(self.look.theme.selection), 0, Qt.PenStyle.DashLine))
+            painter.setBrush(Qt.BrushStyle.NoBrush)
+            painter.drawRect(self._frame)
 
     def texts(self) -> dict[str, list[str]]:
         from portcut.engine.schematic.connectivity import block_equivalent

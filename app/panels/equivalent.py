@@ -12,6 +12,7 @@ import html
 from dataclasses import replace
 
 from PySide6.QtCore import Qt
+from PySide6.QtGui import QUndoCommand
 from PySide6.QtWidgets import (
     QButtonGroup,
     QComboBox,
@@ -27,10 +28,12 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from portcut.engine.captions import block_caption, drawn_form
 from portcut.engine.equivalent import EquivalenceReport, Equivalent
 from portcut.engine.errors import CircuitError
 from portcut.engine.mna import describe_freq
 from portcut.engine.schematic import Block, Change, Document, Region
+from portcut.engine.schematic.connectivity import block_equivalent, extract
 from portcut.engine.schematic.ports import region_nets
 from portcut.engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
 from portcut.engine.units import format_complex, format_eng, parse_frequency
@@ -42,13 +45,15 @@ from ..region_edits import ROLES, port_text, renamed, with_port_net
 from ..workbench import Workbench
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
-__all__ = ["EquivalentDock", "boundary_text", "equivalence_text", "forms_text", "power_text",
-           "realisation_text"]
+__all__ = ["EquivalentDock", "block_text", "boundary_text", "equivalence_text", "expand_command",
+           "forms_text", "power_text", "realisation_text"]
 
 #: Relative deviation below which the reduced circuit counts as reproducing the original.
 MATCH_RTOL = 1e-9
 _NO_REGION = ("No region yet. Choose Tools > Boundary (B) and drag a lasso around the parts to "
               "reduce; their Thevenin and Norton equivalents appear here as you edit.")
+_PICK_BLOCK = ("Select a collapsed block to see its values and expand it, or choose Tools > "
+               "Boundary (B) and drag a lasso around parts to reduce them.")
 
 
 # -- texts ----------------------------------------------------------------------------------------
@@ -73,6 +78,25 @@ def boundary_text(analysis: RegionAnalysis) -> list[str]:
         inside, outside = (sorted(side) for side in sides)
         lines.append(f"On {net}: {_names(inside)} inside, {_names(outside)} outside")
     return lines
+
+
+def block_text(block: Block, freq: float) -> list[str]:
+    """What a collapsed block stands for: the region it replaced, the form drawn and its values
+    at ``freq`` hertz (as the canvas captions them), or why it has none."""
+    try:
+        eq = block_equivalent(block, freq)
+    except CircuitError as exc:
+        return [f"{block.designator} has no equivalent: {exc}"]
+    form = drawn_form(eq, block.form)
+    source, z, at = block_caption(eq, form, freq)
+    return [f"{block.designator} stands for the collapsed region “{block.region.name}”, "
+            f"drawn in {form.title()} form.", f"{source}, {z} {at}."]
+
+
+def expand_command(doc: Document, block: Block) -> QUndoCommand:
+    """The undo command that puts the parts ``block`` stands for back exactly (raises
+    CircuitError saying why it cannot)."""
+    return edit_command(doc, expand_block(doc, block.id), f"Expand {block.designator}")
 
 
 def forms_text(eq: Equivalent, form: str) -> list[str]:
@@ -248,7 +272,7 @@ class EquivalentDock(QDockWidget):
         live.analysed.connect(self.show_analysis)
         live.checked.connect(self.show_check)
         live.currentChanged.connect(lambda _: self._fill_regions())
-        canvas.selectionChanged.connect(lambda _: self._update_expand())
+        canvas.selectionChanged.connect(lambda _: self._on_selection())
         live.documentChanged.connect(self._on_change)
         workbench.documentReplaced.connect(lambda _: self._show_document())
         self._show_document()
@@ -308,6 +332,15 @@ class EquivalentDock(QDockWidget):
             self._fill_regions()
             self._update_expand()
 
+    def _on_selection(self) -> None:
+        self._update_expand()
+        self._show_idle_block()
+
+    def _show_idle_block(self) -> None:
+        """With no region shown, the selected (or only) block's equivalent stands in."""
+        if self.live.region_id is None or self._region() is None:
+            self.show_analysis(None)
+
     def _show_settings(self) -> None:
         a = self.doc.analysis
         if a.freq != self.frequency.text or not self.frequency.in_error:
@@ -350,10 +383,12 @@ class EquivalentDock(QDockWidget):
         self.collapse_button.setEnabled(ok)
         self.remove_button.setEnabled(analysis is not None)
         if analysis is None:
-            self.message.setText(_NO_REGION)
             mark_error(self.message, False)
             self.message.show()
-            self.values.show_equivalent(None)
+            block = self._block()
+            if block is None or not self._show_block(block):
+                self.message.setText(_PICK_BLOCK if self.doc.blocks() else _NO_REGION)
+                self.values.show_equivalent(None)
             return
         if not analysis.ok:
             lines = [analysis.message[0].upper() + analysis.message[1:], *boundary_text(analysis)]
@@ -373,6 +408,35 @@ class EquivalentDock(QDockWidget):
         self.realisation.setText(realisation_text(eq))
         self.power.setText(power_text(eq, self.doc.analysis.basis))
         self.check.setEnabled(False)  # greyed until the check of these numbers arrives
+
+    def _show_block(self, block: Block) -> bool:
+        """The block's values, port, forms, realisation and power at the analysis frequency,
+        with Expand at hand; False (nothing shown) where the frequency cannot be read."""
+        try:
+            freq = parse_frequency(self.doc.analysis.freq)
+        except CircuitError:
+            return False
+        self.message.setText("<br>".join(html.escape(line) for line in (
+            *block_text(block, freq), f"Expand {block.designator} puts its parts back.")))
+        try:
+            eq = block_equivalent(block, freq)
+        except CircuitError:
+            self.values.show_equivalent(None)
+            return True
+        conn = extract(self.doc)  # no region is followed, so the live one is not kept up
+        if (block.id, 0) in conn.net_of_pin:
+            plus, minus = conn.net_of_pin[block.id, 0], conn.net_of_pin[block.id, 1]
+            self.port.setText(f"{block.designator} port <b>{plus}</b> (+) / <b>{minus}</b> (−) "
+                              f"at {describe_freq(freq)}")
+            self.port.show()
+        self.values.show_equivalent(eq)
+        self.values.show()
+        self.forms.setText("<br>".join(forms_text(eq, block.form)))
+        self.realisation.setText(realisation_text(eq))
+        self.power.setText(power_text(eq, self.doc.analysis.basis))
+        for widget in (self.forms, self.realisation, self.power):
+            widget.show()
+        return True
 
     def _show_port(self, analysis: RegionAnalysis | None) -> None:
         """The port boxes: "automatic" (with the nets it found) and the region's nets; a chosen
@@ -520,11 +584,11 @@ class EquivalentDock(QDockWidget):
         if block is None:
             return
         try:
-            edit = expand_block(self.doc, block.id)
+            command = expand_command(self.doc, block)
         except CircuitError as exc:
             self._refuse(str(exc))
             return
-        self.workbench.push(edit_command(self.doc, edit, f"Expand {block.designator}"))
+        self.workbench.push(command)
         self.live.set_region(block.region.id)
 
     def _refuse(self, reason: str) -> None:

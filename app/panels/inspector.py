@@ -13,9 +13,11 @@ from dataclasses import dataclass
 
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QUndoCommand
-from PySide6.QtWidgets import QDockWidget, QFormLayout, QLabel, QVBoxLayout, QWidget
+from PySide6.QtWidgets import QDockWidget, QFormLayout, QLabel, QPushButton, QVBoxLayout, QWidget
 
+from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
+from portcut.engine.units import parse_frequency
 
 from ..canvas import Canvas
 from ..catalog import entry
@@ -23,6 +25,7 @@ from ..commands import ReplaceElements, SetTitle
 from ..fields import Field, fields_for
 from ..workbench import Workbench
 from .entry import CheckedEntry
+from .equivalent import block_text, expand_command
 
 __all__ = ["FieldEditor", "InspectorDock"]
 
@@ -90,11 +93,16 @@ class InspectorDock(QDockWidget):
         self.heading.setWordWrap(True)
         self.details = QLabel()
         self.details.setWordWrap(True)
+        self.details.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.expand_button = QPushButton("Expand")
+        self.expand_button.clicked.connect(self.expand)
+        self.expand_button.hide()
         self.form = QFormLayout()
         outer = QVBoxLayout(body)
         outer.addWidget(self.heading)
         outer.addLayout(self.form)
         outer.addWidget(self.details)
+        outer.addWidget(self.expand_button)
         outer.addStretch(1)
         self.setWidget(body)
         self._unsubscribe = workbench.doc.subscribe(self._on_change)
@@ -115,6 +123,9 @@ class InspectorDock(QDockWidget):
         shown = self._shown
         if shown == "" and (change.added or change.removed):
             self.details.setText(self._sheet_summary())
+        doc = self.workbench.doc
+        if shown and change.analysis and shown in doc and isinstance(doc[shown], Block):
+            self.show_selection([shown], force=True)  # its values follow the frequency
         if shown == "" and change.title:
             self.editors["title"].show_element(_Sheet(self.workbench.doc.title))
         elif shown and (shown in change.updated or shown in change.removed):
@@ -166,6 +177,33 @@ class InspectorDock(QDockWidget):
             for field in fields_for(element):
                 self._add_editor(field, element)
             self.details.setText(self._placement(element))
+            if isinstance(element, Block):
+                self._show_block(element)
+
+    def _show_block(self, block: Block) -> None:
+        """A block's form and values at the analysis frequency, and Expand."""
+        try:
+            lines = block_text(block, parse_frequency(self.workbench.doc.analysis.freq))
+        except CircuitError as exc:
+            lines = [str(exc)]
+        self.details.setText("\n".join((*lines, self._placement(block))))
+        self.expand_button.setText(f"Expand {block.designator}")
+        self.expand_button.setToolTip(f"Put the parts {block.designator} stands for back "
+                                      "exactly")
+        self.expand_button.show()
+
+    def expand(self) -> None:
+        """Expand the block shown; a refusal says why in the details."""
+        doc = self.workbench.doc
+        block = doc[self._shown] if self._shown and self._shown in doc else None
+        if not isinstance(block, Block):
+            return
+        try:
+            command = expand_command(doc, block)
+        except CircuitError as exc:
+            self.details.setText(str(exc)[0].upper() + str(exc)[1:])
+            return
+        self.workbench.push(command)
 
     def _placement(self, element: Element) -> str:
         at = getattr(element, "at", None)
@@ -183,6 +221,7 @@ class InspectorDock(QDockWidget):
         self.form.addRow(label, editor)
 
     def _clear(self) -> None:
+        self.expand_button.hide()
         while self.form.rowCount():
             self.form.removeRow(0)
         self.editors.clear()

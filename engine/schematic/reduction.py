@@ -18,8 +18,9 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 from dataclasses import dataclass, replace
-from itertools import islice, pairwise, product
+from itertools import pairwise
 
+from ..captions import block_caption, drawn_form
 from ..circuit import GROUND, Circuit
 from ..equivalent import (
     EquivalenceReport,
@@ -29,8 +30,22 @@ from ..equivalent import (
     equivalent,
 )
 from ..errors import CircuitError, CutError, DocumentError
-from ..symbols import Point, pin_positions, placed_bounds
+from ..symbols import Bounds, Point, pin_positions, placed_bounds
 from ..units import parse_frequency
+from .block_layout import (
+    CLEAR,
+    MARGIN,
+    Obstacles,
+    block_boxes,
+    corners,
+    grid_walk,
+    grown,
+    marker_body,
+    place_block,
+    place_marker,
+    route,
+    union,
+)
 from .connectivity import Connectivity, build_circuit, extract, net_at
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Region, Wire
@@ -188,8 +203,7 @@ def _elements_of(doc: Document, conn: Connectivity, nets: Iterable[str],
 # -- collapse -------------------------------------------------------------------------------------
 
 def _pins(element: PlacedPart | Block) -> tuple[Point, ...]:
-    kind = "block" if isinstance(element, Block) else element.kind
-    return pin_positions(kind, element.at, element.rotation, element.mirror)
+    return pin_positions(_kind(element), element.at, element.rotation, element.mirror)
 
 
 def _members(doc: Document, region: Region) -> list[PlacedPart | Block]:
@@ -241,7 +255,11 @@ def collapse_region(doc: Document, region_id: str, form: str | None = None) -> E
     on_port = [e for e in drawn if net_of[e.id] in port]
     within = [e for e in on_port if all(map(inside, _points_of(e)))]
     crossing = {w.id: _outside_runs(w, inside) for w in on_port
-                if isinstance(w, Wire) and w not in within and any(map(inside, _grid_walk(w)))}
+                if isinstance(w, Wire) and w not in within
+                and any(map(inside, grid_walk(w.points)))}
+    drawn_as = drawn_form(eq, form or doc.analysis.form)
+    caption = block_caption(eq, drawn_as, analysis.freq)
+    area = _outline_bounds(region.outline, members)
     layouts = [(within + [w for w in on_port if w.id in crossing], True), (within, False)]
     for extra, trim in [*(layouts if within or crossing else []), ([], False)]:
         taken = (*inner, *extra)
@@ -262,8 +280,9 @@ def collapse_region(doc: Document, region_id: str, form: str | None = None) -> E
             after.add(piece)
         reach = [_Reach(points, [e for e in extra if net_of[e.id] == net])
                  for net, points in zip(port, port_points, strict=True)]
-        stubs = _connect(doc, conn, after, block, port, reach, fresh={p.id for p in pieces})
-        if stubs is not None:
+        laid = _connect(doc, conn, after, block, port, reach, caption, area, analysis.freq)
+        if laid is not None:
+            block, stubs = laid
             added = (*pieces, *stubs)
             block = replace(block, stubs=tuple(s.id for s in added))
             return Edit(removed=removed, added=(block, *added))
@@ -272,27 +291,17 @@ def collapse_region(doc: Document, region_id: str, form: str | None = None) -> E
                        "region and try again")
 
 
-def _grid_walk(wire: Wire) -> list[Point]:
-    """Every grid point along the wire, in order."""
-    walk: list[Point] = [wire.points[0]]
-    for (x0, y0), (x1, y1) in pairwise(wire.points):
-        steps = max(abs(x1 - x0), abs(y1 - y0))
-        sx, sy = (x1 > x0) - (x1 < x0), (y1 > y0) - (y1 < y0)
-        walk.extend((x0 + sx * i, y0 + sy * i) for i in range(1, steps + 1))
-    return walk
-
-
 def _outside_runs(wire: Wire, inside) -> list[tuple[Point, ...]]:
     """The stretches of a wire that lie outside the outline, as polylines (of two points or
     more)."""
     runs: list[list[Point]] = [[]]
-    for pt in _grid_walk(wire):
+    for pt in grid_walk(wire.points):
         if inside(pt):
             if runs[-1]:
                 runs.append([])
         else:
             runs[-1].append(pt)
-    return [tuple(_simplified(run)) for run in runs if len(set(run)) >= 2]
+    return [corners(run) for run in runs if len(set(run)) >= 2]
 
 
 @dataclass(frozen=True)
@@ -339,6 +348,18 @@ def _inside(outline: tuple[tuple[float, float], ...]):
     return test
 
 
+def _outline_bounds(outline: tuple[tuple[float, float], ...],
+                    members: list[PlacedPart | Block]) -> Bounds:
+    """Where the region stood: its outline's bounds, or its members' where it has none."""
+    if len(outline) >= 3:
+        return union([(x, y, x, y) for x, y in outline])
+    return union([placed_bounds(_kind(m), m.at, m.rotation, m.mirror) for m in members])
+
+
+def _kind(element: PlacedPart | Block) -> str:
+    return "block" if isinstance(element, Block) else element.kind
+
+
 def _centre(members: list[PlacedPart | Block]) -> Point:
     placed = [m for m in members if not (isinstance(m, PlacedPart) and m.kind == "coupling")]
     xs = [m.at[0] for m in placed or members]
@@ -354,111 +375,96 @@ def _scratch(doc: Document, drop: set[str]) -> Document:
     return copy
 
 
-def _routes(start: Point, end: Point, keep_out: tuple[float, float, float, float]
-            ) -> list[tuple[Point, ...]]:
-    """Orthogonal routes from a block pin to ``end``, best first: straight, the two L shapes,
-    and a Z that first steps one unit right, away from the block; routes that cross the
-    ``keep_out`` box (the block and its captions) come last."""
-    (x0, y0), (x1, y1) = start, end
-    shapes = [(start, (x1, y0), end), (start, (x0, y1), end),
-              (start, (x0 + 1, y0), (x0 + 1, y1), end)]
-    if x0 == x1 or y0 == y1:
-        shapes.insert(0, (start, end))
-    routes = {tuple(_simplified(r)) for r in shapes}
-    return sorted(routes, key=lambda r: (_crosses(r, keep_out), _length(r), r))
-
-
-def _simplified(route: tuple[Point, ...]) -> list[Point]:
-    out: list[Point] = []
-    for pt in route:
-        if out and pt == out[-1]:
-            continue
-        (ax, ay), (bx, by) = out[-2:] if len(out) >= 2 else ((None, None), (None, None))
-        if ax == bx == pt[0] or ay == by == pt[1]:  # collinear: extend the last segment
-            out[-1] = pt
-        else:
-            out.append(pt)
-    return out
-
-
-def _length(route: tuple[Point, ...]) -> float:
-    return sum(math.dist(a, b) for a, b in pairwise(route))
-
-
-def _crosses(route: tuple[Point, ...], box: tuple[float, float, float, float]) -> bool:
-    """Does any segment of the route pass through the inside of ``box``? A vertical run along
-    its right edge, where the block's pins sit, counts as crossing."""
-    x0, y0, x1, y1 = box
-    for (ax, ay), (bx, by) in pairwise(route):
-        if ax == bx and x0 < ax <= x1 and min(ay, by) < y1 and max(ay, by) > y0:
-            return True
-        if ay == by and y0 < ay < y1 and min(ax, bx) < x1 and max(ax, bx) > x0:
-            return True
-    return False
-
-
 def _connect(doc: Document, conn: Connectivity, after: Document, block: Block,
-             port: tuple[str, str], reach: list[_Reach], fresh: set[str]
-             ) -> list[Wire | NetLabel] | None:
-    """Stub wires (or a net label, for a named net that no wire reaches) joining each block pin
-    to every piece of its port net left on the sheet, or None where no tried layout keeps every
-    net exactly as it was. Checked by re-extraction, so a stub never joins a foreign net."""
+             port: tuple[str, str], reach: list[_Reach], caption: tuple[str, ...],
+             area: Bounds, freq: float) -> tuple[Block, list[Wire | NetLabel]] | None:
+    """The block moved to the free spot nearest where the region stood (inside ``area``, the
+    outline's bounds, where it fits) with the leads (wires, grounds, labels) joining each pin
+    to every piece of its port net left on the sheet, clear of every body, caption and other
+    net (engine.schematic.block_layout); None where no layout keeps every net exactly as it
+    was. Checked by re-extraction, so a lead never joins a foreign net."""
     after_conn = extract(after)
     expected = {frozenset(k for k, n in conn.net_of_pin.items() if n == net and k[0] in after)
                 for net in set(conn.net_of_pin.values())} - {frozenset()}
-    # ``fresh`` elements (cut-back wires) are new: the nets are judged on the pins that stay
+    staying = [frozenset(k for k, n in conn.net_of_pin.items() if n == net and k[0] in after)
+               for net in port]
+    obstacles = Obstacles.of(after, after_conn, freq=freq)
+    form = block.form
+
+    def boxes_at(at: Point) -> list[Bounds]:
+        return block_boxes(at, form, caption, block.designator)
+
+    spot = place_block(obstacles, block.at, boxes_at, area)
+    block = replace(block, at=spot)
+    boxes = boxes_at(spot)
+    keep_out = grown(union(boxes), CLEAR)
+    obstacles.boxes += boxes
+    pins = _pins(block)
+    for pin, net in zip(pins, port, strict=True):
+        obstacles.occupy([pin], net)
+    extent = union([grown(obstacles.extent(), MARGIN), grown(keep_out, MARGIN)])
     labels = {lab.name for lab in after.labels()}
     named = {lab.name for lab in doc.labels()}
-    bx0, by0, bx1, by1 = placed_bounds("block", block.at, block.rotation, block.mirror,
-                                       form=block.form)
-    keep_out = (bx0 - 0.5, by0 - 1.5, bx1, by1 + 3.5)  # designator above, values below
-    choices: list[list[tuple[Point, ...] | str]] = []
-    staying: list[frozenset[tuple[str, int]]] = []
-    for pin, net, points in zip(_pins(block), port, reach, strict=True):
-        keys = frozenset(k for k, n in conn.net_of_pin.items() if n == net and k[0] in after)
-        staying.append(keys)
-        for piece in {after_conn.net_of_pin[k] for k in keys}:
-            near = sorted(after_conn.nets[piece], key=lambda pt: math.dist(pt, pin))
+    stubs: list[Wire | NetLabel] = []
+    for pin, net, points, keys in zip(pins, port, reach, staying, strict=True):
+        leads: list[Point] = [pin]
+        joined_by_name = False
+        for piece in sorted({after_conn.net_of_pin[k] for k in keys}):
+            near = sorted(after_conn.nets[piece], key=lambda pt: (math.dist(pt, pin), pt))
             targets = [pt for pt in near if points.touches(pt)]
-            options: list[tuple[Point, ...] | str] = [r for t in targets[:2]
-                                                      for r in _routes(pin, t, keep_out)]
             if pin in targets:
-                options = [()]
-            elif net == GROUND:
-                options = [GROUND, *options]  # a ground marker at the pin, as drawn by hand
-            elif not options:
-                # a named net is joined by name; any other by a wire to its nearest point
-                options = [net] if net in labels else [r for t in near[:2]
-                                                      for r in _routes(pin, t, keep_out)]
-            if not options:
-                return None
-            choices.append(options)
-    for combo in islice(product(*choices), 64):
-        stubs: list[Wire | NetLabel] = []
-        trial = _scratch(after, drop=set())
-        for option in combo:
-            if isinstance(option, str):
-                stub = NetLabel(doc.new_id(NetLabel), option, _pins(block)[port.index(option)],
-                                style="ground" if option == GROUND else "label")
-            elif option:
-                stub = Wire(doc.new_id(Wire), option)
-            else:
                 continue
-            stubs.append(stub)
-            trial.add(stub)
-        trial.add(block)
-        if not _keeps_nets(extract(trial), block.id, {s.id for s in stubs}, expected, staying):
-            continue
-        # a named net keeps its name: where the collapse took all its labels, one goes on the pin
-        trial_conn = extract(trial)
-        for i, (pin, net) in enumerate(zip(_pins(block), port, strict=True)):
-            if net in named and trial_conn.net_of_pin[block.id, i] != net:
-                label = NetLabel(doc.new_id(NetLabel), net, pin,
-                                 style="ground" if net == GROUND else "label")
-                stubs.append(label)
-                trial.add(label)
-        if _keeps_nets(extract(trial), block.id, {s.id for s in stubs}, expected, staying):
-            return stubs
+            by_name = piece == net and (net == GROUND or net in labels)
+            if by_name and (net == GROUND or not targets):
+                joined_by_name = True  # the piece carries the net's name: a marker joins it
+                continue
+            lead = _lead(obstacles, leads, targets or near[:4], extent, keep_out)
+            if lead is None:
+                return None
+            stubs.append(Wire(doc.new_id(Wire), lead))
+            obstacles.occupy(grid_walk(stubs[-1].points), net)
+            leads += grid_walk(stubs[-1].points)
+        wants_marker = joined_by_name or (net in named and not _named_on_sheet(after, net))
+        if wants_marker:
+            style = "ground" if net == GROUND else "label"
+            placed = place_marker(obstacles, style, net, pin, leads, keep_out)
+            if placed is None:
+                return None
+            marker, stub = placed
+            if stub:
+                stubs.append(Wire(doc.new_id(Wire), stub))
+                obstacles.occupy(grid_walk(stubs[-1].points), net)
+            stubs.append(replace(marker, id=doc.new_id(NetLabel)))
+            obstacles.boxes.append(marker_body(style, marker.at, marker.rotation, net))
+            obstacles.occupy([marker.at], net)
+    trial = _scratch(after, drop=set())
+    for stub in (block, *stubs):
+        trial.add(stub)
+    if not _keeps_nets(extract(trial), block.id, {s.id for s in stubs}, expected, staying):
+        return None
+    return block, stubs
+
+
+def _named_on_sheet(after: Document, net: str) -> bool:
+    return any(lab.name == net for lab in after.labels())
+
+
+def _lead(obstacles: Obstacles, sources: list[Point], targets: list[Point],
+          extent: Bounds, keep_out: Bounds) -> tuple[Point, ...] | None:
+    """The lead from the block's pin (or a lead of the same net already drawn) to the nearest
+    target: clear of every box where it can be, otherwise clear of the block (``keep_out``)
+    and of every point taken."""
+    goals = frozenset(targets)
+    x0, y0, x1, y1 = keep_out
+
+    def in_block(p: Point) -> bool:
+        return x0 <= p[0] <= x1 and y0 <= p[1] <= y1 and p not in goals
+
+    for boxes in (True, False):
+        path = route(sources, goals,
+                     lambda p, b=boxes: obstacles.blocked(p, goals, b) or in_block(p), extent)
+        if path is not None and len(path) >= 2:
+            return path
     return None
 
 

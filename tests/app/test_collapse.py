@@ -14,8 +14,12 @@ from PySide6.QtSvg import QSvgRenderer
 from PySide6.QtWidgets import QFileDialog
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
+from portcut.app.canvas.grid import UNIT
 from portcut.engine.palette import PALETTE
+from portcut.engine.schematic import Region
 from portcut.engine.schematic.fileformat import dumps, loads
+from portcut.engine.schematic.reduction import collapse_region
+from portcut.engine.symbols import STROKE_WIDTH
 from portcut.engine.units import format_complex
 
 CTRL = Qt.KeyboardModifier.ControlModifier
@@ -40,13 +44,80 @@ def test_collapse_then_expand_gives_back_the_exact_document(window, drive):
     doc = drive.doc
     assert not doc.regions() and doc.by_designator("R1") is None
     panel = window.equivalent_dock
-    assert panel.message.isVisible() and "No region yet" in panel.message.text()
     assert window.canvas.scene.selected_ids() == [block.id]
+    # the selected block stands in for the region: its values, frequency and form are shown
+    # (divider closed form: Voc = 10 V * 3k / (1k + 3k) = 7.5 V, Z = 1k || 3k = 750 Ω)
+    assert panel.message.isVisible() and "No region yet" not in panel.message.text()
+    assert "EQ1" in panel.message.text() and "Thevenin form" in panel.message.text()
+    assert panel.values.isVisible() and panel.values.text("voc", "rectangular") == "7.5 V"
+    assert panel.values.text("z", "rectangular") == "750 Ω"
+    assert "at DC" in panel.port.text()
     assert panel.expand_button.isEnabled() and panel.expand_button.text() == "Expand EQ1"
     click_button(panel.expand_button)
     assert drive.doc == before
     # the restored region is the one shown again
     assert window.analysis.region_id == doc.regions()[0].id and window.analysis.analysis.ok
+
+
+def test_with_several_blocks_the_panel_shows_the_one_selected(window, drive):
+    doc = divider()
+    for names in (("V1", "R1", "R2"), ("RL",)):
+        members = frozenset(p.id for p in doc.parts() if p.designator in names)
+        region = Region(doc.new_id(Region), " ".join(names), members, ())
+        doc.add(region)
+        collapse_region(doc, region.id).apply(doc)
+    open_sheet(window, doc)
+    panel = window.equivalent_dock
+    assert "Select a collapsed block" in panel.message.text()
+    first, second = doc.blocks()
+    drive.key(Qt.Key.Key_S)
+    drive.click(first.at)
+    assert window.canvas.scene.selected_ids() == [first.id]
+    settle()
+    # divider closed form: Voc = 10 V * 3k / (1k + 3k) = 7.5 V
+    assert first.designator in panel.message.text()
+    assert panel.values.text("voc", "rectangular") == "7.5 V"
+    drive.click(second.at)
+    settle()
+    # a lone resistor seen across its pins: no source, Z = 2 kΩ (common practice)
+    assert second.designator in panel.message.text()
+    assert panel.values.text("z", "rectangular") == "2 kΩ"
+
+
+def test_a_shown_block_follows_the_analysis_frequency(window, drive):
+    _collapsed(window, drive, divider())
+    panel = window.equivalent_dock
+    type_into(panel.frequency.edit, "1k")
+    assert "at 1 kHz" in panel.port.text() and "at 1 kHz" in panel.message.text()
+    assert "at 1 kHz" in window.inspector.details.text()
+    assert panel.values.text("z", "rectangular") == "750 Ω"  # resistive: the same at 1 kHz
+
+
+def test_the_inspector_shows_a_selected_block_and_expands_it(window, drive):
+    before, _ = _collapsed(window, drive, divider())
+    inspector = window.inspector
+    # divider closed form, as above: Voc = 7.5 V, Z = 750 Ω at DC
+    assert "Voc = 7.5 V, Z = 750 Ω at DC" in inspector.details.text()
+    assert inspector.expand_button.isVisible()
+    assert inspector.expand_button.text() == "Expand EQ1"
+    click_button(inspector.expand_button)
+    assert drive.doc == before
+
+
+def test_a_click_inside_the_frame_selects_the_block_and_marks_the_frame(window, drive):
+    _, block = _collapsed(window, drive, divider())
+    window.canvas.scene.clearSelection()
+    x, y = block.at
+    drive.key(Qt.Key.Key_S)  # the select tool, after the boundary tool's lasso
+    drive.click((x - 3.0, y + 2.6))  # inside the dashed frame, away from every stroke
+    assert window.canvas.scene.selected_ids() == [block.id]
+    item = window.canvas.scene.item(block.id)
+    frame = item.mapRectToScene(item._dash.path().boundingRect())
+    mark = item.mapRectToScene(item._frame)
+    # the selection mark is the frame grown by half a stroke, nothing else
+    pad = STROKE_WIDTH * UNIT / 2
+    assert mark == frame.adjusted(-pad, -pad, pad, pad)
+    assert item.mapRectToScene(item.boundingRect()).contains(mark)
 
 
 def test_undo_and_redo_of_a_collapse(window, drive):

@@ -16,6 +16,7 @@ from hypothesis import strategies as st
 from portcut.engine.symbols import (
     ALIGNS,
     BLOCK_FORMS,
+    FONT_SIZE,
     PINS,
     ROLES,
     STYLES,
@@ -30,6 +31,7 @@ from portcut.engine.symbols import (
     shape_bounds,
     symbol,
     text_baselines,
+    text_bounds,
     transform,
 )
 
@@ -74,14 +76,28 @@ def test_leads_end_exactly_at_the_pins(kind, style, form):
         assert any(_close(pin, e, 0.0) for e in ends), f"{kind}/{style}: no lead ends at {pin}"
 
 
-@pytest.mark.parametrize("kind", [k for k in PINS if k not in ("ground", "label", "coupling")])
-def test_parts_and_blocks_carry_designator_and_value_on_opposite_sides(kind):
+@pytest.mark.parametrize("kind", [k for k in PINS
+                                  if k not in ("ground", "label", "coupling", "block")])
+def test_parts_carry_designator_and_value_on_opposite_sides(kind):
     sym = symbol(kind)
     d, v = sym.anchor("designator"), sym.anchor("value")
     assert d is not None and v is not None
     # opposite sides stay opposite under any rotation, so the two texts never stack up
     vectors = {"n": (0, -1), "s": (0, 1), "e": (1, 0), "w": (-1, 0)}
     assert tuple(-c for c in vectors[d.align]) == vectors[v.align]
+
+
+@pytest.mark.parametrize("form", BLOCK_FORMS)
+def test_block_texts_stand_clear_of_its_frame_and_away_from_its_pins(form):
+    sym = symbol("block", "iec", form)
+    x0, y0, x1, _ = sym.bounds
+    lines = ["Voc = 846.7 mV ∠ -32.14°", "Z = 717 Ω - j 450.5 Ω", "at 10 kHz"]
+    value = text_bounds(sym.anchor("value").at, sym.anchor("value").align, lines, FONT_SIZE)
+    name = text_bounds(sym.anchor("designator").at, sym.anchor("designator").align, ["EQ1"],
+                       FONT_SIZE)
+    assert value[2] < x0 and name[3] < y0  # values left of the frame, designator above it
+    # the pins sit on the right edge, so leads leave away from both texts
+    assert all(px == x1 for px, _ in sym.pins)
 
 
 def test_net_label_shows_its_name_and_ground_has_no_text():
@@ -154,9 +170,9 @@ def test_thevenin_block_is_a_voltage_source_in_series_with_a_box(style):
     assert any(p[1] < rings[0].center[1] and p[0] < 0 for p in plus)
     assert len([a for a in sym.anchors if a.role == "plus"]) == 1 + sum(
         a.role == "plus" for a in source.anchors)
-    # the impedance box sits on the upper rail (series): its centre has y = -2
-    boxes = [s for s in sym.shapes if isinstance(s, Polygon) and not s.dashed and not s.filled]
-    assert any(abs(sum(p[1] for p in b.points) / len(b.points) + 2) < EPS for b in boxes)
+    # the impedance sits on the upper rail (series): a box in IEC style, the resistor's zigzag
+    # in IEEE 315 style, centred on y = -2
+    assert any(abs((b[1] + b[3]) / 2 + 2) < EPS for b in _impedance_bounds(sym, style))
 
 
 @pytest.mark.parametrize("style", STYLES)
@@ -164,10 +180,21 @@ def test_norton_block_drives_into_plus_with_a_box_across_the_port(style):
     sym = symbol("block", style, "norton")
     tip, _ = _arrow_tip(sym, sym.pins[0])
     assert tip[1] < 0  # the arrow points up, towards the plus rail: isc leaves by plus
-    boxes = [s for s in sym.shapes if isinstance(s, Polygon) and not s.dashed and not s.filled]
-    assert any(b.points[0][1] != b.points[2][1] and
-               abs(b.points[0][0] - b.points[2][0]) < abs(b.points[0][1] - b.points[2][1])
-               for b in boxes)  # taller than wide: across the rails
+    # taller than wide: across the rails
+    assert any(b[2] - b[0] < b[3] - b[1] for b in _impedance_bounds(sym, style))
+
+
+def _impedance_bounds(sym, style):
+    """Bounds of the block's impedance drawing: IEC boxes, or IEEE zigzags (a Line of more
+    than six points)."""
+    if style == "iec":
+        return [shape_bounds(s) for s in sym.shapes
+                if isinstance(s, Polygon) and not s.dashed and not s.filled]
+    zigzags = [shape_bounds(s) for s in sym.shapes if isinstance(s, Line) and len(s.points) > 6]
+    assert zigzags, "IEEE 315 draws the block's impedance as a zigzag"
+    assert not [s for s in sym.shapes if isinstance(s, Polygon) and not s.dashed
+                and not s.filled], "no box left in IEEE style"
+    return zigzags
 
 
 def test_symbol_is_cached_and_rejects_unknown_names():
