@@ -302,12 +302,3 @@ def test_dropped_netlists_free_what_they_kept_without_a_garbage_collection() -> 
         assert all(ref() is None for ref in kept)
     finally:
         gc.enable()
-
-
-def test_the_docstring_examples_run() -> None:
-    import doctest
-
-    import engine.topology
-
-    result = doctest.testmod(engine.topology)
-    assert result.attempted > 0 and result.failed == 0
