@@ -45,3 +45,20 @@ def test_every_package_data_pattern_matches_a_file() -> None:
 def test_version_is_the_distributions() -> None:
     assert SETUPTOOLS["dynamic"]["version"] == {"attr": "portcut.__version__"}
     assert portcut.__version__.count(".") == 2
+
+
+def test_nothing_imports_the_repository_folders_by_their_own_names() -> None:
+    """Only the package mapping joins engine/, app/ and assets/ under portcut; imported as
+    top-level names they would be second copies of every module (and absent when installed)."""
+    import ast
+
+    found = []
+    for folder in ("engine", "app", "assets", "portcut", "tests", "benchmarks", "docs"):
+        for path in sorted((ROOT / folder).rglob("*.py")):
+            for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+                names = ([a.name for a in node.names] if isinstance(node, ast.Import) else
+                         [node.module or ""] if isinstance(node, ast.ImportFrom)
+                         and node.level == 0 else [])
+                found += [f"{path.relative_to(ROOT)}:{node.lineno} {n}" for n in names
+                          if n.split(".")[0] in ("engine", "app", "assets")]
+    assert found == []
