@@ -130,8 +130,24 @@ class MoveElements(ReplaceElements):
 
     def __init__(self, doc: Document, key: Iterable[str], elements: Iterable[Element],
                  text: str) -> None:
-        super().__init__(doc, elements, text)
+        elements = list(elements)
+        # link wires that keep a moved pin joined to what stayed behind are new
+        self.added = frozenset(e.id for e in elements if e.id not in doc)
+        super().__init__(doc, [e for e in elements if e.id not in self.added], text)
+        self.after.update((e.id, e) for e in elements if e.id in self.added)
         self.key = frozenset(key)
+
+    def _apply(self) -> None:
+        for e in self.after.values():
+            if e.id in self.added:
+                self.doc.add(e)
+            else:
+                self.doc.replace(e)
+
+    def _revert(self) -> None:
+        for element_id in self.added:
+            self.doc.remove(element_id)
+        super()._revert()
 
     def id(self) -> int:
         return MOVE_ID
@@ -140,8 +156,10 @@ class MoveElements(ReplaceElements):
         if not isinstance(other, MoveElements) or other.key != self.key:
             return False
         for element_id, old in other.before.items():
-            self.before.setdefault(element_id, old)
+            if element_id not in self.added:
+                self.before.setdefault(element_id, old)
         self.after.update(other.after)
+        self.added |= other.added
         return True
 
 

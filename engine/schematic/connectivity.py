@@ -56,6 +56,7 @@ __all__ = [
     "build_circuit",
     "contents_document",
     "extract",
+    "joined_nets",
     "net_at",
 ]
 
@@ -336,9 +337,11 @@ class _Sheet:
         return _Pin(e.id, index, at, e.designator, _roles(e)[index])
 
 
-def extract(doc: Document, previous: Connectivity | None = None) -> Connectivity:
-    """Derive the nets of ``doc`` (rules and naming in the module docstring); never raises on
-    a drawing problem, which comes back in ``warnings`` instead.
+def extract(doc: Document | Iterable[Element],
+            previous: Connectivity | None = None) -> Connectivity:
+    """Derive the nets of ``doc`` (a document, or the elements of one planned but not yet
+    applied; rules and naming in the module docstring); never raises on a drawing problem,
+    which comes back in ``warnings`` instead.
 
     ``previous``, an earlier result (of any document), is a head start: what it worked out for
     each element that is still the same object is reused, since elements are immutable. A
@@ -677,6 +680,19 @@ def _missing(designator: str, blocks: list[Block]) -> str:
                 return f"is inside the collapsed block {block.designator}; expand the block"
             stack.extend(b.contents for b in contents.blocks)
     return "is not on the sheet"
+
+
+def joined_nets(before: Connectivity, after: Connectivity) -> dict[str, tuple[str, ...]]:
+    """Nets of ``after`` that hold pins of two or more nets of ``before``: each such net's name
+    mapped to the ``before`` names it joins (natural order). Pins in only one of the two are
+    left out, so a part added or removed joins nothing by itself."""
+    sources: dict[str, set[str]] = defaultdict(set)
+    for key, net in after.net_of_pin.items():
+        old = before.net_of_pin.get(key)
+        if old is not None:
+            sources[net].add(old)
+    return {net: tuple(sorted(olds, key=_natural_key)) for net, olds in sources.items()
+            if len(olds) > 1}
 
 
 def net_at(doc: Document, conn: Connectivity, at: Point) -> str | None:

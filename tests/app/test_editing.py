@@ -8,8 +8,12 @@ from itertools import pairwise
 
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QKeySequence
+from PySide6.QtTest import QTest
+from PySide6.QtWidgets import QGraphicsEllipseItem
+from sheets import divider, open_sheet
 
 import assets
+from engine.circuit import GROUND
 from engine.schematic.connectivity import extract
 from engine.schematic.fileformat import dumps, loads
 from engine.svg import junction_points
@@ -180,3 +184,39 @@ def test_canvas_dots_match_the_svg_writers_rule_on_every_example(window, drive):
     drive.key(Qt.Key.Key_R)
     drive.key(Qt.Key.Key_Delete)
     assert drive.canvas.scene.dot_points() == set(junction_points(doc)) - explicit
+
+
+def test_dragging_a_part_with_taps_keeps_its_nets_in_one_undo_step(window, drive):
+    # R2 of the divider has both pins in the middle of wires (taps)
+    open_sheet(window, divider())
+    doc = drive.doc
+    start, before = _snapshot(doc), _partition(doc)
+    steps = window.workbench.undo_stack.count()
+    drive.drag((8, 4), (11, 5))
+    assert drive.by("R2").at == (11, 5)
+    assert _partition(doc) == before
+    assert window.workbench.undo_stack.count() == steps + 1
+    _undo(drive)
+    assert doc == start
+
+
+def test_a_drag_that_would_join_nets_says_so_before_the_drop(window, drive):
+    # lifting R2 by its length drops its lower pin onto the "out" wire, so ground joins "out"
+    open_sheet(window, divider())
+    doc = drive.doc
+    view = drive.viewport
+    drive.move((8, 4))
+    QTest.mousePress(view, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                     drive.at((8, 4)))
+    for y in (3.5, 2, 0):
+        QTest.mouseMove(view, drive.at((8, y)))
+    status = window.canvas.tool.status
+    assert f"joins nets {GROUND} and out" in status
+    rings = [i for i in drive.canvas.scene.items() if isinstance(i, QGraphicsEllipseItem)]
+    assert rings
+    QTest.mouseRelease(view, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                       drive.at((8, 0)))
+    assert not [i for i in drive.canvas.scene.items() if isinstance(i, QGraphicsEllipseItem)]
+    conn = extract(doc)
+    r2 = drive.by("R2")
+    assert conn.net_of_pin[(r2.id, 0)] == conn.net_of_pin[(r2.id, 1)]  # dropped as shown

@@ -3,7 +3,8 @@ from a pin to draw a wire; arrows nudge the selection, Tab steps through element
 
 A rubber band dragged to the right selects what lies wholly inside it; dragged to the left, what
 it touches (common practice in drawing tools). A move shows a preview while dragging and becomes
-one undo step on release.
+one undo step on release. Where the drop would join nets (a pin landing on another net's wire)
+the preview rings the pins concerned and the status line names the nets before the release.
 """
 
 from __future__ import annotations
@@ -13,6 +14,8 @@ from typing import TYPE_CHECKING
 from PySide6.QtCore import QRectF, Qt
 from PySide6.QtGui import QBrush, QColor, QKeyEvent, QPen
 from PySide6.QtWidgets import QApplication, QGraphicsRectItem
+
+from engine.schematic import Connectivity, extract
 
 from ...theme import qcolor
 from ..grid import snap
@@ -42,6 +45,8 @@ class SelectTool(Tool):
         self._band: QGraphicsRectItem | None = None
         self._draft: WireDraft | None = None
         self._pin = (0, 0)
+        self._nets_before: Connectivity | None = None  # the document's nets while dragging
+        self._joins = ""
 
     @property
     def status(self) -> str:
@@ -50,6 +55,8 @@ class SelectTool(Tool):
         if self._mode == "wire":
             return "Wire: release on a pin or a wire to join it"
         if self._mode == "move":
+            if self._joins:
+                return f"Move: {self._joins} · release to drop anyway · Esc puts it back"
             return "Move: release to drop · Esc puts it back"
         if self.canvas.scene.selected_ids():
             return ("Drag to move · arrows nudge · R rotates · M mirrors · Delete removes · "
@@ -116,6 +123,7 @@ class SelectTool(Tool):
             self.canvas.scene.select_ids([item.element_id] if item else [], add=ev.adds)
         self._origin = None
         self._offset = (0, 0)
+        self._nets_before, self._joins = None, ""
         self.announce()
 
     def double_click(self, ev: CanvasEvent) -> None:
@@ -145,10 +153,21 @@ class SelectTool(Tool):
     def _preview_move(self, ev: CanvasEvent) -> None:
         step = self.canvas.scene.grid_step
         start, now = self._origin.at, ev.at
-        self._offset = snap((now[0] - start[0], now[1] - start[1]), step)
-        plan = self.canvas.plan_move(self._offset)
-        self.canvas.scene.end_preview()
-        self.canvas.scene.show_preview(plan)
+        offset = snap((now[0] - start[0], now[1] - start[1]), step)
+        if offset == self._offset and self.canvas.scene.previewing():
+            return
+        self._offset = offset
+        plan = self.canvas.plan_move(offset)
+        scene = self.canvas.scene
+        scene.end_preview()
+        scene.show_preview(plan)
+        if self._nets_before is None:
+            self._nets_before = extract(self.canvas.doc)
+        joins, points = self.canvas.move_joins(plan, self._nets_before)
+        scene.show_join_marks(points)
+        if joins != self._joins:
+            self._joins = joins
+            self.announce()
 
     # -- rubber band --------------------------------------------------------------------------
     def _start_band(self, ev: CanvasEvent) -> None:
@@ -206,6 +225,7 @@ class SelectTool(Tool):
     def cancel(self) -> bool:
         mode, self._mode = self._mode, ""
         self._origin = None
+        self._nets_before, self._joins = None, ""
         if mode == "move":
             self.canvas.scene.end_preview()
         elif mode == "band":
