@@ -82,12 +82,14 @@ _QUANTITY: dict[str, tuple[str, str]] = {
 class ConnectivityWarning:
     """Something drawn that will not connect or compute as the user probably meant.
 
-    ``element_id`` is the element to select; ``at`` the grid point to show, where there is one.
+    ``element_id`` is the element to select; ``at`` the grid point to show, where there is one;
+    ``kind`` what sort of fault it is ("unconnected", "shorted", or "" for the rest).
     """
 
     message: str
     element_id: str
     at: Point | None = None
+    kind: str = ""
 
 
 @dataclass(frozen=True)
@@ -580,14 +582,14 @@ def _pin_warnings(sheet: _Sheet, net: np.ndarray, names: list[str]) -> list[Conn
         pin = sheet.pin(k)
         out.append(ConnectivityWarning(
             f"{pin.designator} pin {pin.role} at {_fmt(pin.at)} is not connected",
-            pin.element_id, pin.at))
+            pin.element_id, pin.at, "unconnected"))
     first = np.array(sheet.first_pin[:sheet.designated + 1], dtype=np.int64)
     two = first[:-1][np.diff(first) == 2]
     for k in two[pin_net[two] == pin_net[two + 1]].tolist():
         pin = sheet.pin(k)
         out.append(ConnectivityWarning(
             f"{pin.designator} has both pins on net {names[pin_net[k]]}, so it is shorted out",
-            pin.element_id, pin.at))
+            pin.element_id, pin.at, "shorted"))
     return out
 
 
