@@ -1,0 +1,93 @@
+"""The checks panel: every wiring fault of the sheet (engine.schematic.checks), one line each,
+and a warning triangle on the canvas where each one is. A click on a line selects the element
+at fault and centres the view on it. Lines and marks follow every edit, on a zero timer, so a
+burst of changes costs one check.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt, QTimer
+from PySide6.QtWidgets import QDockWidget, QListWidget, QListWidgetItem, QWidget
+from shiboken6 import isValid
+
+from engine.errors import CircuitError
+from engine.schematic import Change, Connectivity, Document, extract
+from engine.schematic.checks import SheetCheck, sheet_checks
+from engine.units import parse_frequency
+
+from ..canvas import Canvas
+from ..canvas.grid import to_scene
+from ..canvas.marks import CheckMarksItem
+from ..workbench import Workbench
+
+__all__ = ["ChecksDock"]
+
+#: What each kind of check is called at the head of its line.
+_HEADS = {"unconnected": "Unconnected", "shorted": "Shorted", "floating": "Floating",
+          "sources": "Ideal sources", "drawing": "Drawing"}
+
+
+class ChecksDock(QDockWidget):
+    """The list of failed checks over the workbench's document, and their marks on the canvas."""
+
+    def __init__(self, workbench: Workbench, canvas: Canvas,
+                 parent: QWidget | None = None) -> None:
+        super().__init__("Checks", parent)
+        self.setObjectName("checks")
+        self.workbench, self.canvas = workbench, canvas
+        self.list = QListWidget()
+        self.list.setAccessibleName("Wiring checks")
+        self.list.setWordWrap(True)
+        self.list.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self.list.itemClicked.connect(self._show)
+        self.list.itemActivated.connect(self._show)
+        self.setWidget(self.list)
+        self.checks: list[SheetCheck] = []
+        self._conn: Connectivity | None = None
+        self._marks: CheckMarksItem | None = None
+        self._timer = QTimer(self, singleShot=True, interval=0)
+        self._timer.timeout.connect(self.refresh)
+        self._unsubscribe = lambda: None
+        workbench.documentReplaced.connect(self._follow)
+        self._follow(workbench.doc)
+
+    def _follow(self, doc: Document) -> None:
+        self._unsubscribe()
+        self._unsubscribe = doc.subscribe(self._on_change)
+        self._timer.start()
+
+    def _on_change(self, change: Change) -> None:
+        if change.added or change.removed or change.updated or change.analysis:
+            self._timer.start()
+
+    def refresh(self) -> None:
+        """Check the sheet now (the timer calls this once per burst of changes)."""
+        self._timer.stop()
+        doc = self.workbench.doc
+        self._conn = extract(doc, previous=self._conn)
+        try:
+            freq = parse_frequency(doc.analysis.freq)
+        except CircuitError:
+            freq = 0.0  # the equivalent panel says what is wrong with the frequency
+        self.checks = sheet_checks(doc, self._conn, freq)
+        self.list.clear()
+        for check in self.checks:
+            line = QListWidgetItem(f"{_HEADS[check.kind]}: {check.message}")
+            line.setToolTip(check.message)
+            self.list.addItem(line)
+        self.setWindowTitle(f"Checks ({len(self.checks)})" if self.checks else "Checks")
+        self._marks_item().show_points(tuple(dict.fromkeys(c.at for c in self.checks)))
+
+    def _marks_item(self) -> CheckMarksItem:
+        """The canvas item, made again where the scene was cleared (a document replaced)."""
+        if self._marks is None or not isValid(self._marks) or \
+                self._marks.scene() is not self.canvas.scene:
+            self._marks = CheckMarksItem(self.canvas.scene.look)
+            self.canvas.scene.addItem(self._marks)
+        return self._marks
+
+    def _show(self, line: QListWidgetItem) -> None:
+        check = self.checks[self.list.row(line)]
+        if check.element_id in self.workbench.doc:
+            self.canvas.scene.select_ids([check.element_id])
+        self.canvas.view.centerOn(to_scene(check.at))
