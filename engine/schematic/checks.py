@@ -50,7 +50,9 @@ def sheet_checks(doc: Document, conn: Connectivity, freq: float = 0.0) -> list[S
         return out
     netlist = mna.Netlist(list(circuit))
     dc = freq == 0
-    out += _floating(doc, circuit, netlist, dc)
+    # a part joined to nothing is listed by its loose pins already
+    loose = {c.element_id for c in out if c.kind == "unconnected"}
+    out += [c for c in _floating(doc, circuit, netlist, dc) if c.element_id not in loose]
     try:
         topology.check_voltage_loops(netlist, dc)
     except SingularCircuitError as exc:

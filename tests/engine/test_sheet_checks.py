@@ -72,3 +72,9 @@ def test_two_ideal_sources_in_parallel_are_named():
     _loop(doc, "voltage_source", "V2", 3, "3")  # its pins sit on V1's two wires
     kinds = _kinds(doc)
     assert kinds[-1][0] == "sources" and kinds[-1][1] in {"V1", "V2"}
+
+
+def test_a_part_joined_to_nothing_is_listed_by_its_pins_only():
+    doc = _source_and_load()
+    _loop(doc, "resistor", "R6", 20)
+    assert _kinds(doc) == [("unconnected", "R6"), ("unconnected", "R6")]
