@@ -29,6 +29,10 @@ __all__ = ["ChecksDock", "EquivalentDock", "FieldEditor", "HistoryDock", "Inspec
            "PaletteDock", "SweepDock", "entry_icon", "install"]
 
 
+#: The share of the window's height the sweep panel opens at: the sheet stays the main view.
+SWEEP_SHARE = 0.25
+
+
 def install(window: MainWindow) -> None:
     """The standard panels: palette on the left, inspector, history and checks on the
     right."""
@@ -69,5 +73,5 @@ def _show_sweep(window: MainWindow) -> None:
     dock = window.sweep_dock
     if dock.isHidden():
         dock.show()
-        window.resizeDocks([dock], [int(window.height() * 0.4)], Qt.Orientation.Vertical)
+        window.resizeDocks([dock], [int(window.height() * SWEEP_SHARE)], Qt.Orientation.Vertical)
     dock.raise_()
