@@ -18,6 +18,7 @@ from PySide6.QtWidgets import (
     QComboBox,
     QDockWidget,
     QFormLayout,
+    QFrame,
     QGridLayout,
     QHBoxLayout,
     QLabel,
@@ -330,23 +331,30 @@ class EquivalentDock(QDockWidget):
         column = QVBoxLayout(body)
         column.addLayout(settings)
         for widget in (self.port, self.message, self.automatic_button, self.values, self.forms,
-                       self.realisation, self.power, self.check):
+                       self.realisation, self.power, self.check, self.notice):
             column.addWidget(widget)
-        column.addLayout(row1)
-        column.addLayout(row2)
-        column.addWidget(self.notice)
         column.addStretch(1)
         body.setStyleSheet(ERROR_STYLE)
         scroll = QScrollArea()
         scroll.setWidgetResizable(True)
-        # the panel is never narrower than its widest row of buttons (below), so a sideways
-        # scroll would only hide the first letters of the texts, which wrap instead
+        scroll.setFrameShape(QFrame.Shape.NoFrame)
+        # the panel is never narrower than its widest row (below), so a sideways scroll would
+        # only hide the first letters of the texts, which wrap instead
         scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         scroll.setWidget(body)
-        self.setWidget(scroll)
+        # the commands stay below the scrolled texts, always in sight
+        outer = QWidget()
+        frame = QVBoxLayout(outer)
+        frame.setContentsMargins(0, 0, 0, 0)
+        frame.addWidget(scroll, 1)
+        buttons = QVBoxLayout()
+        buttons.setContentsMargins(9, 0, 9, 6)
+        buttons.addLayout(row1)
+        buttons.addLayout(row2)
+        frame.addLayout(buttons)
+        self.setWidget(outer)
         scroll.setMinimumWidth(body.minimumSizeHint().width()
-                               + scroll.verticalScrollBar().sizeHint().width()
-                               + 2 * scroll.frameWidth())
+                               + scroll.verticalScrollBar().sizeHint().width())
 
     @property
     def doc(self) -> Document:
