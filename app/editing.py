@@ -254,7 +254,9 @@ def _links(doc: Document, index: SheetIndex, moving: list[Element], out: dict[st
     to the pin's new point."""
     moving_ids = frozenset(out)
     old_pins = {p for e in moving for p in element_pins(e)}
-    new_pins = {m.point(p) for p in old_pins}
+    # what a link must not touch on its way: the new pins, the links already laid, and any
+    # pin, junction or wire that stays
+    avoid = {m.point(p) for p in old_pins}
     links: list[Wire] = []
     taken: set[str] = set()
     for p in sorted(old_pins):
@@ -269,10 +271,13 @@ def _links(doc: Document, index: SheetIndex, moving: list[Element], out: dict[st
         def blocked(t: Point, p=p, q=q) -> bool:
             if t in (p, q):
                 return False
-            return (t in new_pins or (t not in old_pins and index.is_connection(t))
+            return (t in avoid or index.junction_at(t)
+                    or bool({eid for eid, _ in index.pins_at(t)} - moving_ids)
                     or bool(index.wires_through(t) - moving_ids))
 
-        links.append(Wire(wid, link_route(p, q, blocked)))
+        route = link_route(p, q, blocked)
+        avoid.update(t for a, b in pairwise(route) for t in _grid_points(a, b))
+        links.append(Wire(wid, route))
     return links
 
 
