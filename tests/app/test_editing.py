@@ -9,7 +9,7 @@ from itertools import pairwise
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QKeySequence
 from PySide6.QtTest import QTest
-from PySide6.QtWidgets import QGraphicsEllipseItem
+from PySide6.QtWidgets import QGraphicsEllipseItem, QToolTip
 from sheets import divider, open_sheet
 
 import assets
@@ -212,6 +212,7 @@ def test_a_drag_that_would_join_nets_says_so_before_the_drop(window, drive):
         QTest.mouseMove(view, drive.at((8, y)))
     status = window.canvas.tool.status
     assert f"joins nets {GROUND} and out" in status
+    assert f"joins nets {GROUND} and out" in QToolTip.text()
     rings = [i for i in drive.canvas.scene.items() if isinstance(i, QGraphicsEllipseItem)]
     assert rings
     QTest.mouseRelease(view, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,

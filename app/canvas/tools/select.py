@@ -13,7 +13,7 @@ from typing import TYPE_CHECKING
 
 from PySide6.QtCore import QRectF, Qt
 from PySide6.QtGui import QBrush, QColor, QKeyEvent, QPen
-from PySide6.QtWidgets import QApplication, QGraphicsRectItem
+from PySide6.QtWidgets import QApplication, QGraphicsRectItem, QToolTip
 
 from engine.schematic import Connectivity, extract
 
@@ -123,6 +123,8 @@ class SelectTool(Tool):
             self.canvas.scene.select_ids([item.element_id] if item else [], add=ev.adds)
         self._origin = None
         self._offset = (0, 0)
+        if self._joins:
+            QToolTip.hideText()
         self._nets_before, self._joins = None, ""
         self.announce()
 
@@ -168,6 +170,13 @@ class SelectTool(Tool):
         if joins != self._joins:
             self._joins = joins
             self.announce()
+            # beside the pointer too, where the eye is during a drag
+            view = self.canvas.view
+            where = view.viewport().mapToGlobal(view.mapFromScene(ev.scene_pos))
+            if joins:
+                QToolTip.showText(where, joins[0].upper() + joins[1:], view)
+            else:
+                QToolTip.hideText()
 
     # -- rubber band --------------------------------------------------------------------------
     def _start_band(self, ev: CanvasEvent) -> None:
@@ -225,6 +234,8 @@ class SelectTool(Tool):
     def cancel(self) -> bool:
         mode, self._mode = self._mode, ""
         self._origin = None
+        if self._joins:
+            QToolTip.hideText()
         self._nets_before, self._joins = None, ""
         if mode == "move":
             self.canvas.scene.end_preview()
