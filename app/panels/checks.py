@@ -1,7 +1,7 @@
 """The checks panel: every wiring fault of the sheet (engine.schematic.checks), one line each,
 and a warning triangle on the canvas where each one is. A click on a line selects the element
-at fault and centres the view on it. Lines and marks follow every edit, on a zero timer, so a
-burst of changes costs one check.
+at fault and centres the view on it. Lines and marks follow every edit: the drawing's checks on a
+zero timer, so a burst of changes costs one check, the circuit's once the edits pause.
 """
 
 from __future__ import annotations
@@ -12,7 +12,7 @@ from shiboken6 import isValid
 
 from engine.errors import CircuitError
 from engine.schematic import Change, Connectivity, Document, extract
-from engine.schematic.checks import SheetCheck, sheet_checks
+from engine.schematic.checks import SheetCheck, circuit_checks, drawing_checks
 from engine.units import parse_frequency
 
 from ..canvas import Canvas
@@ -22,6 +22,9 @@ from ..workbench import Workbench
 
 __all__ = ["ChecksDock"]
 
+#: How long (ms) the edits must pause before the circuit is checked again: building it costs
+#: about half a second on a sheet of 2,000 parts, too long to run after every nudge.
+CIRCUIT_PAUSE_MS = 250
 #: What each kind of check is called at the head of its line.
 _HEADS = {"unconnected": "Unconnected", "shorted": "Shorted", "floating": "Floating",
           "sources": "Ideal sources", "drawing": "Drawing"}
@@ -39,14 +42,18 @@ class ChecksDock(QDockWidget):
         self.list.setAccessibleName("Wiring checks")
         self.list.setWordWrap(True)
         self.list.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
-        self.list.itemClicked.connect(self._show)
-        self.list.itemActivated.connect(self._show)
+        self.list.itemClicked.connect(self._go_to)
+        self.list.itemActivated.connect(self._go_to)
         self.setWidget(self.list)
         self.checks: list[SheetCheck] = []
         self._conn: Connectivity | None = None
         self._marks: CheckMarksItem | None = None
+        self._drawn: list[SheetCheck] = []
+        self._circuit: list[SheetCheck] = []
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
+        self._circuit_timer = QTimer(self, singleShot=True, interval=CIRCUIT_PAUSE_MS)
+        self._circuit_timer.timeout.connect(self.refresh_circuit)
         self._unsubscribe = lambda: None
         workbench.documentReplaced.connect(self._follow)
         self._follow(workbench.doc)
@@ -61,22 +68,37 @@ class ChecksDock(QDockWidget):
             self._timer.start()
 
     def refresh(self) -> None:
-        """Check the sheet now (the timer calls this once per burst of changes)."""
+        """Check the drawing now (the timer calls this once per burst of changes); the
+        circuit's checks, which cost a circuit build, follow once the edits pause."""
         self._timer.stop()
         doc = self.workbench.doc
         self._conn = extract(doc, previous=self._conn)
+        self._drawn = drawing_checks(doc, self._conn)
+        # until the circuit is checked again, its last findings stay where their parts do
+        self._show(self._drawn + [c for c in self._circuit if c.element_id in doc])
+        self._circuit_timer.start()
+
+    def refresh_circuit(self) -> None:
+        """Check the circuit the drawing makes (islands, ideal loops) at the analysis
+        frequency."""
+        self._circuit_timer.stop()
+        doc = self.workbench.doc
         try:
             freq = parse_frequency(doc.analysis.freq)
         except CircuitError:
             freq = 0.0  # the equivalent panel says what is wrong with the frequency
-        self.checks = sheet_checks(doc, self._conn, freq)
+        self._circuit = circuit_checks(doc, self._conn, freq, self._drawn)
+        self._show(self._drawn + self._circuit)
+
+    def _show(self, checks: list[SheetCheck]) -> None:
+        self.checks = checks
         self.list.clear()
-        for check in self.checks:
+        for check in checks:
             line = QListWidgetItem(f"{_HEADS[check.kind]}: {check.message}")
             line.setToolTip(check.message)
             self.list.addItem(line)
-        self.setWindowTitle(f"Checks ({len(self.checks)})" if self.checks else "Checks")
-        self._marks_item().show_points(tuple(dict.fromkeys(c.at for c in self.checks)))
+        self.setWindowTitle(f"Checks ({len(checks)})" if checks else "Checks")
+        self._marks_item().show_points(tuple(dict.fromkeys(c.at for c in checks)))
 
     def _marks_item(self) -> CheckMarksItem:
         """The canvas item, made again where the scene was cleared (a document replaced)."""
@@ -86,7 +108,7 @@ class ChecksDock(QDockWidget):
             self.canvas.scene.addItem(self._marks)
         return self._marks
 
-    def _show(self, line: QListWidgetItem) -> None:
+    def _go_to(self, line: QListWidgetItem) -> None:
         check = self.checks[self.list.row(line)]
         if check.element_id in self.workbench.doc:
             self.canvas.scene.select_ids([check.element_id])

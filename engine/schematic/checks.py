@@ -15,14 +15,14 @@ import re
 from dataclasses import dataclass
 
 from .. import mna, topology
-from ..circuit import GROUND, Circuit
+from ..circuit import GROUND, Part
 from ..errors import CircuitError, SingularCircuitError
 from ..symbols import Point
 from .connectivity import Connectivity, build_circuit
 from .document import Document
 from .model import Block, PlacedPart
 
-__all__ = ["SheetCheck", "sheet_checks"]
+__all__ = ["SheetCheck", "circuit_checks", "drawing_checks", "sheet_checks"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -39,20 +39,34 @@ class SheetCheck:
 def sheet_checks(doc: Document, conn: Connectivity, freq: float = 0.0) -> list[SheetCheck]:
     """Every check that fails on ``doc`` (nets ``conn``) at ``freq`` hertz, drawing faults
     first, in a stable order."""
-    out = [SheetCheck(w.kind or "drawing", w.message, w.element_id,
-                      w.at if w.at is not None else _anchor(doc, w.element_id))
-           for w in conn.warnings if w.element_id in doc]
+    drawn = drawing_checks(doc, conn)
+    return drawn + circuit_checks(doc, conn, freq, drawn)
+
+
+def drawing_checks(doc: Document, conn: Connectivity) -> list[SheetCheck]:
+    """The faults extraction found: cheap, ready with the nets."""
+    return [SheetCheck(w.kind or "drawing", w.message, w.element_id,
+                       w.at if w.at is not None else _anchor(doc, w.element_id))
+            for w in conn.warnings if w.element_id in doc]
+
+
+def circuit_checks(doc: Document, conn: Connectivity, freq: float = 0.0,
+                   drawn: list[SheetCheck] | None = None) -> list[SheetCheck]:
+    """The existence faults of the circuit at ``freq`` hertz (it is built, so this costs about
+    a circuit build). A part that ``drawn`` lists with loose pins is not listed again as a
+    floating island. Nothing when the values do not read (the inspector says why)."""
     try:
         circuit = build_circuit(doc, conn, freq)
     except CircuitError:
-        return out
-    if not list(circuit):
-        return out
-    netlist = mna.Netlist(list(circuit))
+        return []
+    parts = list(circuit)
+    if not parts:
+        return []
+    netlist = mna.Netlist(parts)
     dc = freq == 0
     # a part joined to nothing is listed by its loose pins already
-    loose = {c.element_id for c in out if c.kind == "unconnected"}
-    out += [c for c in _floating(doc, circuit, netlist, dc) if c.element_id not in loose]
+    loose = {c.element_id for c in drawn or () if c.kind == "unconnected"}
+    out = [c for c in _floating(doc, parts, netlist, dc) if c.element_id not in loose]
     try:
         topology.check_voltage_loops(netlist, dc)
     except SingularCircuitError as exc:
@@ -71,7 +85,7 @@ def _anchor(doc: Document, element_id: str) -> Point:
     return (round(points[0][0]), round(points[0][1]))
 
 
-def _floating(doc: Document, circuit: Circuit, netlist: mna.Netlist,
+def _floating(doc: Document, parts: list[Part], netlist: mna.Netlist,
               dc: bool) -> list[SheetCheck]:
     """Islands apart from the ground island: the ones the equations cannot solve (in the
     engine's words), and those joined to the rest by nothing at all; an island that a coupling
@@ -80,24 +94,27 @@ def _floating(doc: Document, circuit: Circuit, netlist: mna.Netlist,
     labels = found.labels.tolist()
     if len(set(labels)) <= 1:
         return []
-    coupled = {ref for part in circuit if part.kind == "coupling" for ref in part.refs}
-    ties = {part.name for part in circuit if part.kind != "coupling" and len(part.nets) > 2}
+    island_of = dict(zip(netlist.nets, labels, strict=True))
+    coupled = {ref for part in parts if part.kind == "coupling" for ref in part.refs}
+    members: dict[int, list[Part]] = {}
+    for part in parts:
+        for label in {island_of[n] for n in part.nets if n in island_of}:
+            members.setdefault(label, []).append(part)
     out = []
     for label in sorted(set(labels) - {found.reference}):
-        nets = {netlist.nets[i] for i, lab in enumerate(labels) if lab == label}
-        parts = sorted((p for p in circuit if set(p.nets) & nets), key=lambda p: p.name)
-        owner = next((doc.by_designator(p.name) for p in parts
+        nets = sorted(n for n, lab in island_of.items() if lab == label)
+        on = sorted(members.get(label, ()), key=lambda p: p.name)
+        owner = next((doc.by_designator(p.name) for p in on
                       if doc.by_designator(p.name) is not None), None)
         if owner is None:
             continue
         message = found.problem(label)
         if message is None:
-            if label in found.solved or any(p.name in coupled or p.name in ties
-                                            for p in parts):
+            if label in found.solved or any(p.name in coupled or len(p.nets) > 2 for p in on):
                 continue
-            listed = ", ".join(sorted(nets))
-            message = (f"{'net' if len(nets) == 1 else 'nets'} {listed} "
-                       f"{'floats' if len(nets) == 1 else 'float'}: nothing joins "
+            several = len(nets) > 1
+            message = (f"{'nets' if several else 'net'} {', '.join(nets)} "
+                       f"{'float' if several else 'floats'}: nothing joins "
                        f"{owner.designator} and its neighbours to ground or to the rest, so "
                        "their voltages to ground are undefined; wire the island to the rest")
         out.append(SheetCheck("floating", message, owner.id, owner.at))

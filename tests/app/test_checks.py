@@ -9,7 +9,7 @@ from PySide6.QtTest import QTest
 from sheets import divider, open_sheet, settle
 
 from app.canvas.marks import CheckMarksItem
-from engine.schematic import PlacedPart
+from engine.schematic import PlacedPart, Wire
 
 
 def _marks(window) -> tuple:
@@ -47,3 +47,20 @@ def test_a_shorted_part_is_marked_listed_and_selected_from_its_line(window, driv
     drive.key(Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
     settle()
     assert dock.list.count() == 1 and _marks(window) == (dock.checks[0].at,)
+
+
+def test_a_floating_island_is_listed_once_the_edits_pause(window, drive, qtbot):
+    # R7 and R8 form a loop of their own, joined to nothing else: an island with no path to
+    # ground, whose potential nodal analysis cannot fix (common practice)
+    doc = divider()
+    for designator, x in (("R7", 24), ("R8", 28)):
+        doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", designator, (x, 4), 90,
+                           value="1k"))
+    doc.add(Wire(doc.new_id(Wire), ((24, 2), (28, 2))))
+    doc.add(Wire(doc.new_id(Wire), ((24, 6), (28, 6))))
+    open_sheet(window, doc)
+    dock = window.checks_dock
+    qtbot.waitUntil(lambda: dock.list.count() == 1, timeout=3000)
+    assert dock.list.item(0).text().startswith("Floating: ")
+    assert dock.checks[0].element_id == drive.by("R7").id
+    assert len(_marks(window)) == 1
