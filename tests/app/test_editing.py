@@ -200,7 +200,7 @@ def test_dragging_a_part_with_taps_keeps_its_nets_in_one_undo_step(window, drive
     assert doc == start
 
 
-def test_a_drag_that_would_join_nets_says_so_before_the_drop(window, drive):
+def test_a_drag_that_would_join_nets_says_so_before_the_drop(window, drive, qtbot):
     # lifting R2 by its length drops its lower pin onto the "out" wire, so ground joins "out"
     open_sheet(window, divider())
     doc = drive.doc
@@ -210,6 +210,8 @@ def test_a_drag_that_would_join_nets_says_so_before_the_drop(window, drive):
                      drive.at((8, 4)))
     for y in (3.5, 2, 0):
         QTest.mouseMove(view, drive.at((8, y)))
+    # the pointer rests: the drop's joins are worked out
+    qtbot.waitUntil(lambda: "joins" in window.canvas.tool.status, timeout=2000)
     status = window.canvas.tool.status
     assert f"joins nets {GROUND} and out" in status
     assert f"joins nets {GROUND} and out" in QToolTip.text()

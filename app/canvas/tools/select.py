@@ -4,18 +4,19 @@ from a pin to draw a wire; arrows nudge the selection, Tab steps through element
 A rubber band dragged to the right selects what lies wholly inside it; dragged to the left, what
 it touches (common practice in drawing tools). A move shows a preview while dragging and becomes
 one undo step on release. Where the drop would join nets (a pin landing on another net's wire)
-the preview rings the pins concerned and the status line names the nets before the release.
+the preview rings the pins concerned and the status line names the nets before the release (once
+the pointer rests a moment).
 """
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from PySide6.QtCore import QRectF, Qt
+from PySide6.QtCore import QPointF, QRectF, Qt, QTimer
 from PySide6.QtGui import QBrush, QColor, QKeyEvent, QPen
 from PySide6.QtWidgets import QApplication, QGraphicsRectItem, QToolTip
 
-from engine.schematic import Connectivity, extract
+from engine.schematic import Connectivity, Element, extract
 
 from ...theme import qcolor
 from ..grid import snap
@@ -27,6 +28,10 @@ if TYPE_CHECKING:
     from ..canvas import Canvas
 
 __all__ = ["SelectTool"]
+
+#: How long (ms) the pointer must rest during a drag before the drop's net joins are worked
+#: out (a re-extraction of the sheet: tens of milliseconds at 2,000 parts).
+JOIN_PAUSE_MS = 40
 
 _ARROWS = {Qt.Key.Key_Left: (-1, 0), Qt.Key.Key_Right: (1, 0), Qt.Key.Key_Up: (0, -1),
            Qt.Key.Key_Down: (0, 1)}
@@ -47,6 +52,10 @@ class SelectTool(Tool):
         self._pin = (0, 0)
         self._nets_before: Connectivity | None = None  # the document's nets while dragging
         self._joins = ""
+        self._plan: list[Element] = []
+        self._pointer = QPointF()
+        self._join_timer = QTimer(canvas, singleShot=True, interval=JOIN_PAUSE_MS)
+        self._join_timer.timeout.connect(self._check_joins)
 
     @property
     def status(self) -> str:
@@ -123,9 +132,7 @@ class SelectTool(Tool):
             self.canvas.scene.select_ids([item.element_id] if item else [], add=ev.adds)
         self._origin = None
         self._offset = (0, 0)
-        if self._joins:
-            QToolTip.hideText()
-        self._nets_before, self._joins = None, ""
+        self._forget_joins()
         self.announce()
 
     def double_click(self, ev: CanvasEvent) -> None:
@@ -163,20 +170,34 @@ class SelectTool(Tool):
         scene = self.canvas.scene
         scene.end_preview()
         scene.show_preview(plan)
+        # which nets the drop would join: a re-extraction of the planned sheet, run once the
+        # pointer rests so that a long drag on a large sheet stays fluid
+        self._plan, self._pointer = plan, ev.scene_pos
+        self._join_timer.start()
+
+    def _check_joins(self) -> None:
+        if self._mode != "move":
+            return
         if self._nets_before is None:
             self._nets_before = extract(self.canvas.doc)
-        joins, points = self.canvas.move_joins(plan, self._nets_before)
-        scene.show_join_marks(points)
+        joins, points = self.canvas.move_joins(self._plan, self._nets_before)
+        self.canvas.scene.show_join_marks(points)
         if joins != self._joins:
             self._joins = joins
             self.announce()
             # beside the pointer too, where the eye is during a drag
             view = self.canvas.view
-            where = view.viewport().mapToGlobal(view.mapFromScene(ev.scene_pos))
+            where = view.viewport().mapToGlobal(view.mapFromScene(self._pointer))
             if joins:
                 QToolTip.showText(where, joins[0].upper() + joins[1:], view)
             else:
                 QToolTip.hideText()
+
+    def _forget_joins(self) -> None:
+        self._join_timer.stop()
+        if self._joins:
+            QToolTip.hideText()
+        self._nets_before, self._joins, self._plan = None, "", []
 
     # -- rubber band --------------------------------------------------------------------------
     def _start_band(self, ev: CanvasEvent) -> None:
@@ -234,9 +255,7 @@ class SelectTool(Tool):
     def cancel(self) -> bool:
         mode, self._mode = self._mode, ""
         self._origin = None
-        if self._joins:
-            QToolTip.hideText()
-        self._nets_before, self._joins = None, ""
+        self._forget_joins()
         if mode == "move":
             self.canvas.scene.end_preview()
         elif mode == "band":
