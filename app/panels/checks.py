@@ -60,11 +60,13 @@ class ChecksDock(QDockWidget):
 
     def _follow(self, doc: Document) -> None:
         self._unsubscribe()
+        self._circuit_timer.stop()
         self._unsubscribe = doc.subscribe(self._on_change)
         self._timer.start()
 
     def _on_change(self, change: Change) -> None:
         if change.added or change.removed or change.updated or change.analysis:
+            self._circuit_timer.stop()  # the drawing's checks come first, then the circuit's
             self._timer.start()
 
     def refresh(self) -> None:
@@ -83,6 +85,7 @@ class ChecksDock(QDockWidget):
         frequency."""
         self._circuit_timer.stop()
         doc = self.workbench.doc
+        self._conn = extract(doc, previous=self._conn)  # the same object when nothing changed
         try:
             freq = parse_frequency(doc.analysis.freq)
         except CircuitError:
