@@ -160,6 +160,13 @@ class MoveElements(ReplaceElements):
                 self.before.setdefault(element_id, old)
         self.after.update(other.after)
         self.added |= other.added
+        # a link that a later step folded back onto its start joins nothing: it goes
+        folded = [i for i in self.added if len(set(self.after[i].points)) < 2]
+        with self.doc.batch():
+            for element_id in folded:
+                self.doc.remove(element_id)
+                del self.after[element_id]
+        self.added -= set(folded)
         return True
 
 

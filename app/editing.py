@@ -261,7 +261,8 @@ def _links(doc: Document, index: SheetIndex, moving: list[Element], out: dict[st
     taken: set[str] = set()
     for p in sorted(old_pins):
         q = m.point(p)
-        if q == p or not _held(doc, index, p, out, moving_ids):
+        if q == p or not _held(doc, index, p, out, moving_ids) \
+                or _still_on(doc, index, p, q, out, moving_ids):
             continue
         wid = doc.new_id(Wire)
         while wid in taken:
@@ -292,6 +293,16 @@ def _held(doc: Document, index: SheetIndex, p: Point, out: dict[str, Element],
     for wid in index.wires_through(p):
         wire = out.get(wid, doc[wid])
         if any(_between(p, a, b) for a, b in pairwise(wire.points)):
+            return True
+    return False
+
+
+def _still_on(doc: Document, index: SheetIndex, p: Point, q: Point, out: dict[str, Element],
+              moving_ids: frozenset[str]) -> bool:
+    """Whether a staying wire through ``p`` also runs through ``q`` (a tap slid along its
+    wire needs no link)."""
+    for wid in index.wires_through(p) - moving_ids:
+        if any(_between(q, a, b) for a, b in pairwise(doc[wid].points)):
             return True
     return False
 

@@ -223,3 +223,16 @@ def test_a_drag_that_would_join_nets_says_so_before_the_drop(window, drive, qtbo
     conn = extract(doc)
     r2 = drive.by("R2")
     assert conn.net_of_pin[(r2.id, 0)] == conn.net_of_pin[(r2.id, 1)]  # dropped as shown
+
+
+def test_nudging_a_tapped_part_away_and_back_leaves_no_stray_link(window, drive):
+    open_sheet(window, divider())
+    doc = drive.doc
+    start = _snapshot(doc)
+    drive.click((8, 4))
+    drive.key(Qt.Key.Key_Down)                     # off the wires: links hold the taps
+    assert len(doc.wires()) == len(start.wires()) + 2
+    drive.key(Qt.Key.Key_Up)                       # back: the links fold away
+    assert doc == start
+    drive.key(Qt.Key.Key_Left)                     # along the wires: the taps slide, no link
+    assert len(doc.wires()) == len(start.wires())
