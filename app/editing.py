@@ -299,12 +299,13 @@ def _held(doc: Document, index: SheetIndex, p: Point, out: dict[str, Element],
 
 def _still_on(doc: Document, index: SheetIndex, p: Point, q: Point, out: dict[str, Element],
               moving_ids: frozenset[str]) -> bool:
-    """Whether a staying wire through ``p`` also runs through ``q`` (a tap slid along its
-    wire needs no link)."""
-    for wid in index.wires_through(p) - moving_ids:
-        if any(_between(q, a, b) for a, b in pairwise(doc[wid].points)):
-            return True
-    return False
+    """Whether what stays at ``p`` is only wires that also run through ``q`` (a tap slid along
+    its wire needs no link; one at a crossing, where it joins both wires, does)."""
+    if index.junction_at(p) or {eid for eid, _ in index.pins_at(p)} - moving_ids:
+        return False
+    wires = index.wires_through(p) - moving_ids
+    return bool(wires) and all(any(_between(q, a, b) for a, b in pairwise(doc[wid].points))
+                               for wid in wires)
 
 
 def _between(p: Point, a: Point, b: Point) -> bool:
