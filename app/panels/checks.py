@@ -41,6 +41,7 @@ class ChecksDock(QDockWidget):
         self.list = QListWidget()
         self.list.setAccessibleName("Wiring checks")
         self.list.setWordWrap(True)
+        self.list.setSpacing(2)
         self.list.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         self.list.itemClicked.connect(self._go_to)
         self.list.itemActivated.connect(self._go_to)
