@@ -117,9 +117,13 @@ class ReplaceElements(DocumentCommand):
         self.after = {e.id: e for e in elements}
         self.before: dict[str, Element] = {}
 
-    def _apply(self) -> None:
+    def _take_before(self, ids: Iterable[str]) -> None:
+        """Keep the versions of ``ids`` that the first redo finds."""
         if not self.before:
-            self.before = {i: self.doc[i] for i in self.after}
+            self.before = {i: self.doc[i] for i in ids}
+
+    def _apply(self) -> None:
+        self._take_before(self.after)
         for e in self.after.values():
             self.doc.replace(e)
 
@@ -134,8 +138,25 @@ class MoveElements(ReplaceElements):
 
     def __init__(self, doc: Document, key: Iterable[str], elements: Iterable[Element],
                  text: str) -> None:
-        super().__init__(doc, elements, text)
+        elements = list(elements)
+        # link wires that keep a moved pin joined to what stayed behind are new
+        self.added = frozenset(e.id for e in elements if e.id not in doc)
+        super().__init__(doc, [e for e in elements if e.id not in self.added], text)
+        self.after.update((e.id, e) for e in elements if e.id in self.added)
         self.key = frozenset(key)
+
+    def _apply(self) -> None:
+        self._take_before(i for i in self.after if i not in self.added)
+        for e in self.after.values():
+            if e.id in self.added:
+                self.doc.add(e)
+            else:
+                self.doc.replace(e)
+
+    def _revert(self) -> None:
+        for element_id in self.added:
+            self.doc.remove(element_id)
+        super()._revert()
 
     def id(self) -> int:
         return MOVE_ID
@@ -144,8 +165,17 @@ class MoveElements(ReplaceElements):
         if not isinstance(other, MoveElements) or other.key != self.key:
             return False
         for element_id, old in other.before.items():
-            self.before.setdefault(element_id, old)
+            if element_id not in self.added:
+                self.before.setdefault(element_id, old)
         self.after.update(other.after)
+        self.added |= other.added
+        # a link that a later step folded back onto its start joins nothing: it goes
+        folded = [i for i in self.added if len(set(self.after[i].points)) < 2]
+        with self.doc.batch():
+            for element_id in folded:
+                self.doc.remove(element_id)
+                del self.after[element_id]
+        self.added -= set(folded)
         return True
 
 

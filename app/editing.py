@@ -1,15 +1,18 @@
 """Edit planning: the new elements a gesture produces, computed without Qt.
 
 A move, rotation or mirror is a :class:`RigidMap` applied to the chosen elements; wires attached
-to them follow (the attached end moves and the wire bends to stay orthogonal). A delete takes the
-wires left joining nothing with it. A paste gets fresh ids and designators. app/commands.py wraps
-the results in undo commands; nothing here touches the document.
+to them follow (the attached end moves and the wire bends to stay orthogonal), and a pin that
+leaves something staying behind (a tap in the middle of a wire, a pin or junction that holds
+the wire end) gets a new orthogonal link wire back to it, so no connection is lost. A delete
+takes the wires left joining nothing with it. A paste gets fresh ids and designators.
+app/commands.py wraps the results in undo commands; nothing here touches the document.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass, replace
+from itertools import pairwise
 
 from portcut.engine.schematic import (
     Block,
@@ -31,6 +34,7 @@ __all__ = [
     "anchor_points",
     "bend",
     "center_of",
+    "link_route",
     "moved",
     "paste",
     "plan_delete",
@@ -197,7 +201,9 @@ def plan_placement(doc: Document, index: SheetIndex, ids: Iterable[str],
 
     A net marker (label, ground) whose pin sits on a moving pin moves along. A wire end follows
     when it sits on a pin, junction or wire that moves, unless a pin or junction that stays
-    holds it there. A wire with both ends following moves whole.
+    holds it there. A wire with both ends following moves whole. A moving pin that leaves a
+    staying pin, junction or wire at its old point gets a new wire (an id not in ``doc``) from
+    there to its new point.
     """
     moving = [doc[i] for i in dict.fromkeys(ids) if i in doc]
     out: dict[str, Element] = {e.id: moved(e, m) for e in moving}
@@ -239,7 +245,85 @@ def plan_placement(doc: Document, index: SheetIndex, ids: Iterable[str],
                 points = _drag_end(Wire(wid, points), at_start, m.point(end), index)
         if points != wire.points:
             out[wid] = replace(wire, points=points)
-    return list(out.values())
+    return list(out.values()) + _links(doc, index, moving, out, m)
+
+
+def _links(doc: Document, index: SheetIndex, moving: list[Element], out: dict[str, Element],
+           m: RigidMap) -> list[Wire]:
+    """New wires from each moving pin's old point, where something staying still touches it,
+    to the pin's new point."""
+    moving_ids = frozenset(out)
+    old_pins = {p for e in moving for p in element_pins(e)}
+    # what a link must not touch on its way: the new pins, the links already laid, and any
+    # pin, junction or wire that stays
+    avoid = {m.point(p) for p in old_pins}
+    links: list[Wire] = []
+    taken: set[str] = set()
+    for p in sorted(old_pins):
+        q = m.point(p)
+        if q == p or not _held(doc, index, p, out, moving_ids) \
+                or _still_on(doc, index, p, q, out, moving_ids):
+            continue
+        wid = doc.new_id(Wire)
+        while wid in taken:
+            wid = doc.new_id(Wire)
+        taken.add(wid)
+
+        def blocked(t: Point, p=p, q=q) -> bool:
+            if t in (p, q):
+                return False
+            return (t in avoid or index.junction_at(t)
+                    or bool({eid for eid, _ in index.pins_at(t)} - moving_ids)
+                    or bool(index.wires_through(t) - moving_ids))
+
+        route = link_route(p, q, blocked)
+        avoid.update(t for a, b in pairwise(route) for t in _grid_points(a, b))
+        links.append(Wire(wid, route))
+    return links
+
+
+def _held(doc: Document, index: SheetIndex, p: Point, out: dict[str, Element],
+          moving_ids: frozenset[str]) -> bool:
+    """Whether a pin, junction or wire that stays (in its planned version) touches ``p``."""
+    if {eid for eid, _ in index.pins_at(p)} - moving_ids:
+        return True
+    if index.junction_at(p) and any(j.at == p and j.id not in moving_ids
+                                    for j in doc.junctions()):
+        return True
+    for wid in index.wires_through(p):
+        wire = out.get(wid, doc[wid])
+        if any(_between(p, a, b) for a, b in pairwise(wire.points)):
+            return True
+    return False
+
+
+def _still_on(doc: Document, index: SheetIndex, p: Point, q: Point, out: dict[str, Element],
+              moving_ids: frozenset[str]) -> bool:
+    """Whether what stays at ``p`` is only wires that also run through ``q`` (a tap slid along
+    its wire needs no link; one at a crossing, where it joins both wires, does)."""
+    if index.junction_at(p) or {eid for eid, _ in index.pins_at(p)} - moving_ids:
+        return False
+    wires = index.wires_through(p) - moving_ids
+    return bool(wires) and all(any(_between(q, a, b) for a, b in pairwise(doc[wid].points))
+                               for wid in wires)
+
+
+def _between(p: Point, a: Point, b: Point) -> bool:
+    return (min(a[0], b[0]) <= p[0] <= max(a[0], b[0])
+            and min(a[1], b[1]) <= p[1] <= max(a[1], b[1]) and (a[0] == b[0] or a[1] == b[1]))
+
+
+def link_route(p: Point, q: Point, blocked: Callable[[Point], bool]) -> tuple[Point, ...]:
+    """An orthogonal path from ``p`` to ``q``: the first of a straight run, the two L bends and
+    the two Z doglegs whose grid points avoid ``blocked`` ones (the straight or first L when
+    none does; the caller's net check then says what joins)."""
+    candidates = [bend(p, q, True), bend(p, q, False), _dogleg(p, q, True),
+                  _dogleg(p, q, False)]
+    for tail in candidates:
+        route = (p, *tail)
+        if not any(blocked(t) for a, b in pairwise(route) for t in _grid_points(a, b)):
+            return simplify(route)
+    return simplify((p, *candidates[0]))
 
 
 @dataclass(frozen=True)

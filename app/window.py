@@ -171,6 +171,26 @@ class MainWindow(QMainWindow):
         self.actions[name] = action
         return action
 
+    def _stack_action(self, name: str, text: str, slot: Callable[[], object],
+                      shortcut: QKeySequence.StandardKey, can, changed,
+                      current: Callable[[], str]) -> QAction:
+        """Undo or Redo: a fixed label, so the toolbar never shifts; the step it would take
+        goes in the tooltip and the status tip (the History panel lists them all)."""
+        action = self._action(name, text, slot, shortcut)
+        plain = text.replace("&", "")
+        keys = action.shortcut().toString(QKeySequence.SequenceFormat.NativeText)
+
+        def describe(step: str) -> None:
+            what = f"{plain} {step}" if step else f"Nothing to {plain.lower()}"
+            action.setToolTip(f"{what} ({keys})" if keys else what)
+            action.setStatusTip(what)
+
+        can.connect(action.setEnabled)
+        changed.connect(describe)
+        action.setEnabled(False)
+        describe(current())
+        return action
+
     def _build_menus(self) -> None:
         a, key, c = self._action, QKeySequence.StandardKey, self.canvas
         bar = self.menuBar()
@@ -195,11 +215,11 @@ class MainWindow(QMainWindow):
         file.addAction(a("quit", "&Quit", self.close, key.Quit, "Close the window"))
 
         edit = self.menus["edit"] = bar.addMenu("&Edit")
-        undo = self.workbench.undo_stack.createUndoAction(self, "&Undo")
-        undo.setShortcuts(key.Undo)
-        redo = self.workbench.undo_stack.createRedoAction(self, "&Redo")
-        redo.setShortcuts(key.Redo)
-        self.actions.update(undo=undo, redo=redo)
+        stack = self.workbench.undo_stack
+        undo = self._stack_action("undo", "&Undo", stack.undo, key.Undo, stack.canUndoChanged,
+                                  stack.undoTextChanged, stack.undoText)
+        redo = self._stack_action("redo", "&Redo", stack.redo, key.Redo, stack.canRedoChanged,
+                                  stack.redoTextChanged, stack.redoText)
         edit.addActions([undo, redo])
         edit.addSeparator()
         edit.addAction(a("cut", "Cu&t", self.cut, key.Cut, "Cut the selection"))

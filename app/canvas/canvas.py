@@ -12,12 +12,23 @@ from collections.abc import Iterable
 from PySide6.QtCore import QMimeData, QObject, QPointF, Qt, Signal
 from PySide6.QtGui import QUndoCommand
 
-from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart, Region
+from portcut.engine.schematic import (
+    Block,
+    Connectivity,
+    Document,
+    Element,
+    NetLabel,
+    PlacedPart,
+    Region,
+    extract,
+)
+from portcut.engine.schematic.connectivity import joined_nets
 from portcut.engine.symbols import Point
 
 from ..clipboard import copyable, elements_from, mime_for
 from ..commands import AddElements, MoveElements, delete_command
 from ..editing import RigidMap, anchor_points, center_of, paste, plan_delete, plan_placement
+from ..sheet import element_pins
 from ..workbench import Workbench
 from .grid import UNIT, snap, to_grid, to_scene
 from .items import Look
@@ -144,6 +155,25 @@ class Canvas(QObject):
     def plan_move(self, offset: Point) -> list[Element]:
         return plan_placement(self.doc, self.scene.index, self.scene.selected_ids(),
                               RigidMap(offset=offset))
+
+    def move_joins(self, plan: list[Element],
+                   before: Connectivity | None = None) -> tuple[str, list[Point]]:
+        """What applying ``plan`` (a move) would join: a sentence naming the nets ("" when the
+        move changes no net) and the points to mark (the moved pins on a joined net).
+        ``before``, the document's nets, saves extracting them again during a drag."""
+        before = before or extract(self.doc)
+        planned = {e.id: e for e in plan}
+        elements = [planned.pop(e.id, e) for e in self.doc]
+        after = extract([*elements, *planned.values()], previous=before)
+        joins = joined_nets(before, after)
+        if not joins:
+            return "", []
+        moved = {e.id: e for e in plan}
+        points = sorted({p for (eid, k), net in after.net_of_pin.items()
+                         if net in joins and eid in moved
+                         for p in element_pins(moved[eid])[k:k + 1]})
+        text = "; ".join(" and ".join(names) for names in joins.values())
+        return f"dropping here joins nets {text}", points
 
     def move_selection(self, offset: Point) -> None:
         self._transform_selection(RigidMap(offset=offset), "Move")

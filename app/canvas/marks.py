@@ -1,6 +1,7 @@
 """What the live analysis says about the current region, drawn over the sheet: + and − where the
 two port nets cross the outline for a valid cut; for an invalid one the outline in the error
-style and a glow under the nets and parts at fault.
+style and a glow under the nets and parts at fault. Also a warning triangle at each failed
+sheet check (the checks panel keeps it up to date).
 
 Two items the canvas owns beside the element items (they show no element): one under the wires
 for the fault glow, one over the symbols for the port marks. Both are rebuilt from each analysis
@@ -24,10 +25,12 @@ from ..theme import qcolor
 from .grid import UNIT
 from .items import Z_DOT, Z_REGION, Z_WIRE, Look
 
-__all__ = ["CutMarks", "FaultItem", "PortMarksItem"]
+__all__ = ["CheckMarksItem", "CutMarks", "FaultItem", "PortMarksItem"]
 
 #: Radius of a port mark, grid units.
 MARK_RADIUS = 0.6
+#: Half the base of a check's warning triangle, grid units.
+CHECK_MARK_SIZE = 0.55
 _GLOW_WIDTH = 0.7 * UNIT
 
 
@@ -137,6 +140,50 @@ class PortMarksItem(QGraphicsItem):
             painter.setPen(qcolor(theme.accent))
             painter.drawText(QRectF(centre.x() - r, centre.y() - r, 2 * r, 2 * r),
                              Qt.AlignmentFlag.AlignCenter, MARK_TEXT[m.role])
+
+
+class CheckMarksItem(QGraphicsItem):
+    """A warning triangle at each point where a sheet check fails (app/panels/checks.py)."""
+
+    def __init__(self, look: Look) -> None:
+        super().__init__()
+        self.look = look
+        self.setZValue(Z_DOT + 0.6)
+        self.points: tuple[tuple[int, int], ...] = ()
+        self._bounds = QRectF()
+
+    def show_points(self, points: tuple[tuple[int, int], ...]) -> None:
+        self.prepareGeometryChange()
+        self.points = points
+        r = (CHECK_MARK_SIZE + 0.3) * UNIT
+        bounds = QRectF()
+        for x, y in points:
+            bounds |= QRectF(x * UNIT - r, y * UNIT - 2 * r, 2 * r, 2 * r)
+        self._bounds = bounds
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
+              widget: QWidget | None = None) -> None:
+        theme = self.look.theme
+        s = CHECK_MARK_SIZE * UNIT
+        font = QFont(painter.font())
+        font.setPixelSize(max(1, round(s)))
+        font.setBold(True)
+        painter.setFont(font)
+        for x, y in self.points:
+            # the triangle stands just above and right of the point, clear of the pin itself
+            cx, base = x * UNIT + 0.5 * s, y * UNIT - 0.3 * s
+            triangle = QPolygonF([QPointF(cx, base - 1.6 * s), QPointF(cx + s, base),
+                                  QPointF(cx - s, base)])
+            painter.setPen(QPen(qcolor(theme.error), STROKE_WIDTH * UNIT))
+            painter.setBrush(_tinted(theme.error, 200))
+            painter.drawPolygon(triangle)
+            painter.setPen(qcolor(theme.sheet))
+            painter.drawText(QRectF(cx - s, base - 1.25 * s, 2 * s, 1.25 * s),
+                             Qt.AlignmentFlag.AlignCenter, "!")
 
 
 class CutMarks(QObject):

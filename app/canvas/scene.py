@@ -10,8 +10,8 @@ from __future__ import annotations
 from collections.abc import Iterable
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
-from PySide6.QtGui import QPainter, QPen
-from PySide6.QtWidgets import QGraphicsScene
+from PySide6.QtGui import QColor, QPainter, QPen
+from PySide6.QtWidgets import QGraphicsEllipseItem, QGraphicsItem, QGraphicsScene
 
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Change, Document, Element, PlacedPart
@@ -21,7 +21,7 @@ from portcut.engine.units import parse_frequency
 from ..sheet import SheetIndex
 from ..theme import qcolor
 from .grid import UNIT
-from .items import DotTile, ElementItem, Look, PartItem, element_item, item_for
+from .items import Z_PREVIEW, DotTile, ElementItem, Look, PartItem, element_item, item_for
 
 __all__ = ["SchematicScene"]
 
@@ -41,6 +41,10 @@ def _frequency(doc: Document) -> float:
         return 0.0
 
 
+#: Radius (grid units) of the ring that marks where a move would join nets.
+_JOIN_RING = 0.6
+
+
 class SchematicScene(QGraphicsScene):
     """Items for every element of ``doc``; ``look`` is shared with every item."""
 
@@ -55,6 +59,7 @@ class SchematicScene(QGraphicsScene):
         self._tiles: dict[tuple[int, int], DotTile] = {}
         self._couplings: dict[str, tuple[str, ...]] = {}
         self._previewed: set[str] = set()
+        self._preview_items: list[QGraphicsItem] = []
         self._extent = QRectF(_EMPTY_SHEET)
         self._unsubscribe = lambda: None
         self._selected: set[ElementItem] = set()
@@ -77,6 +82,7 @@ class SchematicScene(QGraphicsScene):
         self._dots.clear()
         self._tiles.clear()
         self._previewed.clear()
+        self._preview_items.clear()  # clear() removed them
         self.doc = doc
         self.index = SheetIndex(doc)
         self._couplings = {p.id: p.couples for p in doc.parts() if p.kind == "coupling"}
@@ -235,13 +241,37 @@ class SchematicScene(QGraphicsScene):
 
     # -- gesture previews ---------------------------------------------------------------------
     def show_preview(self, elements: Iterable[Element]) -> None:
-        """Draw new versions of existing elements without changing the document (a move being
-        dragged); :meth:`end_preview` puts the document's versions back."""
+        """Draw new versions of elements without changing the document (a move being dragged):
+        an existing element's item shows its new version, a new one (a link wire) gets a
+        preview item; :meth:`end_preview` puts the document's versions back."""
         for e in elements:
             item = self._items.get(e.id)
             if item is not None:
                 item.sync(e)
                 self._previewed.add(e.id)
+            else:
+                extra = item_for(e, self.look, preview=True)
+                self.addItem(extra)
+                self._preview_items.append(extra)
+
+    def previewing(self) -> bool:
+        """Whether a gesture's preview is showing."""
+        return bool(self._previewed or self._preview_items)
+
+    def show_join_marks(self, points: Iterable[Point]) -> None:
+        """Rings in the error colour where a move being dragged would join nets (gone with
+        :meth:`end_preview`)."""
+        colour = qcolor(self.look.theme.error)
+        fill = QColor(colour)
+        fill.setAlpha(60)
+        r = _JOIN_RING * UNIT
+        for x, y in points:
+            ring = QGraphicsEllipseItem(x * UNIT - r, y * UNIT - r, 2 * r, 2 * r)
+            ring.setPen(QPen(colour, 0.15 * UNIT))
+            ring.setBrush(fill)
+            ring.setZValue(Z_PREVIEW)
+            self.addItem(ring)
+            self._preview_items.append(ring)
 
     def end_preview(self) -> None:
         for eid in self._previewed:
@@ -249,6 +279,9 @@ class SchematicScene(QGraphicsScene):
             if item is not None and eid in self.doc:
                 item.sync(self.doc[eid])
         self._previewed.clear()
+        for extra in self._preview_items:
+            self.removeItem(extra)
+        self._preview_items.clear()
 
     # -- background ---------------------------------------------------------------------------
     def drawBackground(self, painter: QPainter, rect: QRectF) -> None:

@@ -1,4 +1,4 @@
-"""Docked panels: part palette, inspector, undo history, live equivalent, sweep.
+"""Docked panels: part palette, inspector, undo history, wiring checks, live equivalent, sweep.
 
 :func:`install` adds them to a main window; a further panel is a QDockWidget given to
 ``MainWindow.add_dock``. The equivalent and sweep panels read the live analysis of the current
@@ -15,6 +15,7 @@ from ..analysis import LiveAnalysis
 from ..canvas.marks import CutMarks
 from ..canvas.tools import ToolSpec
 from ..canvas.tools.boundary import BoundaryTool
+from .checks import ChecksDock
 from .equivalent import EquivalentDock
 from .history import HistoryDock
 from .inspector import FieldEditor, InspectorDock
@@ -24,18 +25,26 @@ from .sweep import SweepDock
 if TYPE_CHECKING:
     from ..window import MainWindow
 
-__all__ = ["EquivalentDock", "FieldEditor", "HistoryDock", "InspectorDock", "PaletteDock",
-           "SweepDock", "entry_icon", "install"]
+__all__ = ["ChecksDock", "EquivalentDock", "FieldEditor", "HistoryDock", "InspectorDock",
+           "PaletteDock", "SweepDock", "entry_icon", "install"]
+
+
+#: The share of the window's height the sweep panel opens at: the sheet stays the main view.
+SWEEP_SHARE = 0.25
 
 
 def install(window: MainWindow) -> None:
-    """The standard panels: palette on the left, inspector and history on the right."""
+    """The standard panels: palette on the left, inspector, history and checks on the
+    right."""
     window.palette_dock = PaletteDock(window.canvas, window)
     window.inspector = InspectorDock(window.workbench, window.canvas, window)
     window.history = HistoryDock(window.workbench, window)
     window.add_dock(window.palette_dock, Qt.DockWidgetArea.LeftDockWidgetArea, "Ctrl+1")
     window.add_dock(window.inspector, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+2")
     window.add_dock(window.history, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+3")
+    window.checks_dock = ChecksDock(window.workbench, window.canvas, window)
+    window.add_dock(window.checks_dock, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+6")
+    window.tabifyDockWidget(window.history, window.checks_dock)
     install_reduction(window)
 
 
@@ -64,5 +73,5 @@ def _show_sweep(window: MainWindow) -> None:
     dock = window.sweep_dock
     if dock.isHidden():
         dock.show()
-        window.resizeDocks([dock], [int(window.height() * 0.4)], Qt.Orientation.Vertical)
+        window.resizeDocks([dock], [int(window.height() * SWEEP_SHARE)], Qt.Orientation.Vertical)
     dock.raise_()

@@ -9,6 +9,7 @@ an invalid cut it shows the reason in plain words (the canvas highlights what is
 from __future__ import annotations
 
 import html
+import re
 from dataclasses import replace
 
 from PySide6.QtCore import Qt
@@ -18,6 +19,7 @@ from PySide6.QtWidgets import (
     QComboBox,
     QDockWidget,
     QFormLayout,
+    QFrame,
     QGridLayout,
     QHBoxLayout,
     QLabel,
@@ -46,7 +48,7 @@ from ..workbench import Workbench
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
 __all__ = ["EquivalentDock", "block_text", "boundary_text", "equivalence_text", "expand_command",
-           "forms_text", "power_text", "realisation_text"]
+           "forms_text", "keep_values", "power_text", "realisation_text"]
 
 #: Relative deviation below which the reduced circuit counts as reproducing the original.
 MATCH_RTOL = 1e-9
@@ -151,6 +153,19 @@ def equivalence_text(report: EquivalenceReport) -> str:
             f"{_agreement(report.current_rel)}")
 
 
+#: A space between a number and its unit (with any SI prefix), the spaces around the j of a
+#: complex value's imaginary part and around a phasor's angle sign: none may break a line.
+_VALUE_SPACES = re.compile(
+    r"(?<=\d) (?=[yzafpnµumkMGTPE]?(?:Ω|V|A|W|H|F|Hz|S)(?!\w))|(?<=[-+−]) (?=j )|(?<=j) (?=\d)"
+    r"| (?=∠)|(?<=∠) ")
+
+
+def keep_values(text: str) -> str:
+    """``text`` with non-breaking spaces inside every value ("114.6 µW", "- j 450.5 mV",
+    "846.8 mV ∠ -32.14°"), so a line breaks only between values and words."""
+    return _VALUE_SPACES.sub("\u00a0", text)
+
+
 # -- widgets --------------------------------------------------------------------------------------
 def _label(text: str = "", selectable: bool = True) -> QLabel:
     label = QLabel(text)
@@ -169,44 +184,84 @@ def _button(text: str, tip: str, slot=None) -> QPushButton:
 
 
 class ValuesTable(QWidget):
-    """Voc, Isc and Z, each in rectangular and polar form, with units."""
+    """Voc, Isc and Z, each in rectangular and polar form, with units: side by side where the
+    panel is wide enough for both, else the polar form under the rectangular one."""
 
     ROWS = (("voc", "Voc"), ("isc", "Isc"), ("z", "Z"))
+    FORMS = ("rectangular", "polar")
 
     def __init__(self) -> None:
         super().__init__()
-        grid = QGridLayout(self)
+        self.grid = grid = QGridLayout(self)
         grid.setContentsMargins(0, 0, 0, 0)
         grid.setHorizontalSpacing(12)
-        for col, title in enumerate(("", "rectangular", "polar")):
-            head = QLabel(title)
+        self.heads = [QLabel(title) for title in self.FORMS]
+        for head in self.heads:
             head.setEnabled(False)
-            grid.addWidget(head, 0, col)
+        self.names: list[QLabel] = []
         self.cells: dict[tuple[str, str], QLabel] = {}
-        for row, (key, title) in enumerate(self.ROWS, start=1):
-            name = QLabel(f"<b>{title}</b>")
-            grid.addWidget(name, row, 0)
-            for col, form in enumerate(("rectangular", "polar"), start=1):
+        for key, title in self.ROWS:
+            self.names.append(QLabel(f"<b>{title}</b>"))
+            for form in self.FORMS:
                 cell = _label()
                 cell.setAccessibleName(f"{title} {form}")
                 self.cells[key, form] = cell
-                grid.addWidget(cell, row, col)
-        grid.setColumnStretch(2, 1)
+        self.stacked: bool | None = None
+        self._arrange(False)
+
+    def _arrange(self, stacked: bool) -> None:
+        """Lay the cells out side by side, or stacked (polar under rectangular)."""
+        if stacked == self.stacked:
+            return
+        self.stacked = stacked
+        grid = self.grid
+        for widget in [*self.heads, *self.names, *self.cells.values()]:
+            grid.removeWidget(widget)
+        for col in range(3):
+            grid.setColumnStretch(col, 0)
+        for head in self.heads:
+            head.setVisible(not stacked)
+        if not stacked:
+            for col, head in enumerate(self.heads, start=1):
+                grid.addWidget(head, 0, col)
+        for i, (key, _) in enumerate(self.ROWS):
+            row = 2 * i if stacked else i + 1
+            grid.addWidget(self.names[i], row, 0, Qt.AlignmentFlag.AlignTop)
+            for j, form in enumerate(self.FORMS):
+                at = (row + j, 1) if stacked else (row, 1 + j)
+                grid.addWidget(self.cells[key, form], *at)
+        grid.setColumnStretch(1 if stacked else 2, 1)
+
+    def _wide_enough(self, width: int) -> bool:
+        """Whether ``width`` pixels hold the names and both forms of every row on one line."""
+        metrics = self.fontMetrics()
+        spacing = self.grid.horizontalSpacing()
+        name = max(n.sizeHint().width() for n in self.names)
+        need = [metrics.horizontalAdvance(self.cells[key, form].text()) for key, _ in self.ROWS
+                for form in self.FORMS]
+        widest = max(need[0::2]) + max(need[1::2])
+        return name + widest + 2 * spacing + 8 <= width
+
+    def resizeEvent(self, event) -> None:
+        super().resizeEvent(event)
+        self._arrange(not self._wide_enough(event.size().width()))
 
     def show_equivalent(self, eq: Equivalent | None) -> None:
         if eq is None:
             for cell in self.cells.values():
                 cell.setText("—")
-            return
-        rect, polar = eq.rectangular(), eq.polar()
-        defined = {"voc": eq.has_thevenin, "isc": eq.has_norton, "z": True}
-        for key, _ in self.ROWS:
-            for form, texts in (("rectangular", rect), ("polar", polar)):
-                self.cells[key, form].setText(getattr(texts, key) if defined[key] else
-                                              "none")
+        else:
+            rect, polar = eq.rectangular(), eq.polar()
+            defined = {"voc": eq.has_thevenin, "isc": eq.has_norton, "z": True}
+            for key, _ in self.ROWS:
+                for form, texts in (("rectangular", rect), ("polar", polar)):
+                    self.cells[key, form].setText(
+                        keep_values(getattr(texts, key)) if defined[key] else "none")
+        self._arrange(not self._wide_enough(self.width()))
 
     def text(self, key: str, form: str) -> str:
-        return self.cells[key, form].text()
+        """What a cell says, with plain spaces."""
+        return self.cells[key, form].text().replace("\u00a0", " ")
 
 
 class EquivalentDock(QDockWidget):
@@ -300,17 +355,30 @@ class EquivalentDock(QDockWidget):
         column = QVBoxLayout(body)
         column.addLayout(settings)
         for widget in (self.port, self.message, self.automatic_button, self.values, self.forms,
-                       self.realisation, self.power, self.check):
+                       self.realisation, self.power, self.check, self.notice):
             column.addWidget(widget)
-        column.addLayout(row1)
-        column.addLayout(row2)
-        column.addWidget(self.notice)
         column.addStretch(1)
         body.setStyleSheet(ERROR_STYLE)
         scroll = QScrollArea()
         scroll.setWidgetResizable(True)
+        scroll.setFrameShape(QFrame.Shape.NoFrame)
+        # the panel is never narrower than its widest row (below), so a sideways scroll would
+        # only hide the first letters of the texts, which wrap instead
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         scroll.setWidget(body)
-        self.setWidget(scroll)
+        # the commands stay below the scrolled texts, always in sight
+        outer = QWidget()
+        frame = QVBoxLayout(outer)
+        frame.setContentsMargins(0, 0, 0, 0)
+        frame.addWidget(scroll, 1)
+        buttons = QVBoxLayout()
+        buttons.setContentsMargins(9, 0, 9, 6)
+        buttons.addLayout(row1)
+        buttons.addLayout(row2)
+        frame.addLayout(buttons)
+        self.setWidget(outer)
+        scroll.setMinimumWidth(body.minimumSizeHint().width()
+                               + scroll.verticalScrollBar().sizeHint().width())
 
     @property
     def doc(self) -> Document:
@@ -401,12 +469,12 @@ class EquivalentDock(QDockWidget):
         self.message.hide()
         plus, minus = eq.port
         self.port.setText(f"Port <b>{plus}</b> (+) / <b>{minus}</b> (−) at "
-                          f"{describe_freq(eq.freq)}")
+                          f"{keep_values(describe_freq(eq.freq))}")
         self.values.show_equivalent(eq)
         form = self.doc.analysis.form
         self.forms.setText("<br>".join(forms_text(eq, form)))
-        self.realisation.setText(realisation_text(eq))
-        self.power.setText(power_text(eq, self.doc.analysis.basis))
+        self.realisation.setText(keep_values(realisation_text(eq)))
+        self.power.setText(keep_values(power_text(eq, self.doc.analysis.basis)))
         self.check.setEnabled(False)  # greyed until the check of these numbers arrives
 
     def _show_block(self, block: Block) -> bool:
@@ -432,8 +500,8 @@ class EquivalentDock(QDockWidget):
         self.values.show_equivalent(eq)
         self.values.show()
         self.forms.setText("<br>".join(forms_text(eq, block.form)))
-        self.realisation.setText(realisation_text(eq))
-        self.power.setText(power_text(eq, self.doc.analysis.basis))
+        self.realisation.setText(keep_values(realisation_text(eq)))
+        self.power.setText(keep_values(power_text(eq, self.doc.analysis.basis)))
         for widget in (self.forms, self.realisation, self.power):
             widget.show()
         return True
@@ -465,7 +533,7 @@ class EquivalentDock(QDockWidget):
     def show_check(self, result: EquivalenceReport | str) -> None:
         self.check.setEnabled(True)
         if isinstance(result, EquivalenceReport):
-            self.check.setText(equivalence_text(result))
+            self.check.setText(keep_values(equivalence_text(result)))
             mark_error(self.check, not result.within(MATCH_RTOL))
         else:
             self.check.setText(f"No equivalence check: {result}")

@@ -56,6 +56,7 @@ __all__ = [
     "build_circuit",
     "contents_document",
     "extract",
+    "joined_nets",
     "net_at",
 ]
 
@@ -81,12 +82,14 @@ _QUANTITY: dict[str, tuple[str, str]] = {
 class ConnectivityWarning:
     """Something drawn that will not connect or compute as the user probably meant.
 
-    ``element_id`` is the element to select; ``at`` the grid point to show, where there is one.
+    ``element_id`` is the element to select; ``at`` the grid point to show, where there is one;
+    ``kind`` what sort of fault it is ("unconnected", "shorted", or "" for the rest).
     """
 
     message: str
     element_id: str
     at: Point | None = None
+    kind: str = ""
 
 
 @dataclass(frozen=True)
@@ -336,9 +339,11 @@ class _Sheet:
         return _Pin(e.id, index, at, e.designator, _roles(e)[index])
 
 
-def extract(doc: Document, previous: Connectivity | None = None) -> Connectivity:
-    """Derive the nets of ``doc`` (rules and naming in the module docstring); never raises on
-    a drawing problem, which comes back in ``warnings`` instead.
+def extract(doc: Document | Iterable[Element],
+            previous: Connectivity | None = None) -> Connectivity:
+    """Derive the nets of ``doc`` (a document, or the elements of one planned but not yet
+    applied; rules and naming in the module docstring); never raises on a drawing problem,
+    which comes back in ``warnings`` instead.
 
     ``previous``, an earlier result (of any document), is a head start: what it worked out for
     each element that is still the same object is reused, since elements are immutable. A
@@ -577,14 +582,14 @@ def _pin_warnings(sheet: _Sheet, net: np.ndarray, names: list[str]) -> list[Conn
         pin = sheet.pin(k)
         out.append(ConnectivityWarning(
             f"{pin.designator} pin {pin.role} at {_fmt(pin.at)} is not connected",
-            pin.element_id, pin.at))
+            pin.element_id, pin.at, "unconnected"))
     first = np.array(sheet.first_pin[:sheet.designated + 1], dtype=np.int64)
     two = first[:-1][np.diff(first) == 2]
     for k in two[pin_net[two] == pin_net[two + 1]].tolist():
         pin = sheet.pin(k)
         out.append(ConnectivityWarning(
             f"{pin.designator} has both pins on net {names[pin_net[k]]}, so it is shorted out",
-            pin.element_id, pin.at))
+            pin.element_id, pin.at, "shorted"))
     return out
 
 
@@ -677,6 +682,19 @@ def _missing(designator: str, blocks: list[Block]) -> str:
                 return f"is inside the collapsed block {block.designator}; expand the block"
             stack.extend(b.contents for b in contents.blocks)
     return "is not on the sheet"
+
+
+def joined_nets(before: Connectivity, after: Connectivity) -> dict[str, tuple[str, ...]]:
+    """Nets of ``after`` that hold pins of two or more nets of ``before``: each such net's name
+    mapped to the ``before`` names it joins (natural order). Pins in only one of the two are
+    left out, so a part added or removed joins nothing by itself."""
+    sources: dict[str, set[str]] = defaultdict(set)
+    for key, net in after.net_of_pin.items():
+        old = before.net_of_pin.get(key)
+        if old is not None:
+            sources[net].add(old)
+    return {net: tuple(sorted(olds, key=_natural_key)) for net, olds in sources.items()
+            if len(olds) > 1}
 
 
 def net_at(doc: Document, conn: Connectivity, at: Point) -> str | None:

@@ -8,8 +8,12 @@ from itertools import pairwise
 
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QKeySequence
+from PySide6.QtTest import QTest
+from PySide6.QtWidgets import QGraphicsEllipseItem, QToolTip
+from sheets import divider, open_sheet
 
 from portcut import assets
+from portcut.engine.circuit import GROUND
 from portcut.engine.schematic.connectivity import extract
 from portcut.engine.schematic.fileformat import dumps, loads
 from portcut.engine.svg import junction_points
@@ -218,3 +222,55 @@ def test_a_replacement_inside_a_composite_restores_what_it_found_when_it_ran(win
     assert "p77" not in doc
     window.workbench.undo_stack.redo()
     assert doc["p77"].value == "2k2"
+
+
+def test_dragging_a_part_with_taps_keeps_its_nets_in_one_undo_step(window, drive):
+    # R2 of the divider has both pins in the middle of wires (taps)
+    open_sheet(window, divider())
+    doc = drive.doc
+    start, before = _snapshot(doc), _partition(doc)
+    steps = window.workbench.undo_stack.count()
+    drive.drag((8, 4), (11, 5))
+    assert drive.by("R2").at == (11, 5)
+    assert _partition(doc) == before
+    assert window.workbench.undo_stack.count() == steps + 1
+    _undo(drive)
+    assert doc == start
+
+
+def test_a_drag_that_would_join_nets_says_so_before_the_drop(window, drive, qtbot):
+    # lifting R2 by its length drops its lower pin onto the "out" wire, so ground joins "out"
+    open_sheet(window, divider())
+    doc = drive.doc
+    view = drive.viewport
+    drive.move((8, 4))
+    QTest.mousePress(view, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                     drive.at((8, 4)))
+    for y in (3.5, 2, 0):
+        QTest.mouseMove(view, drive.at((8, y)))
+    # the pointer rests: the drop's joins are worked out
+    qtbot.waitUntil(lambda: "joins" in window.canvas.tool.status, timeout=2000)
+    status = window.canvas.tool.status
+    assert f"joins nets {GROUND} and out" in status
+    assert f"joins nets {GROUND} and out" in QToolTip.text()
+    rings = [i for i in drive.canvas.scene.items() if isinstance(i, QGraphicsEllipseItem)]
+    assert rings
+    QTest.mouseRelease(view, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                       drive.at((8, 0)))
+    assert not [i for i in drive.canvas.scene.items() if isinstance(i, QGraphicsEllipseItem)]
+    conn = extract(doc)
+    r2 = drive.by("R2")
+    assert conn.net_of_pin[(r2.id, 0)] == conn.net_of_pin[(r2.id, 1)]  # dropped as shown
+
+
+def test_nudging_a_tapped_part_away_and_back_leaves_no_stray_link(window, drive):
+    open_sheet(window, divider())
+    doc = drive.doc
+    start = _snapshot(doc)
+    drive.click((8, 4))
+    drive.key(Qt.Key.Key_Down)                     # off the wires: links hold the taps
+    assert len(doc.wires()) == len(start.wires()) + 2
+    drive.key(Qt.Key.Key_Up)                       # back: the links fold away
+    assert doc == start
+    drive.key(Qt.Key.Key_Left)                     # along the wires: the taps slide, no link
+    assert len(doc.wires()) == len(start.wires())

@@ -15,7 +15,16 @@ from hypothesis import strategies as st
 from sheets import divider
 
 from portcut import assets
-from portcut.app.editing import RigidMap, bend, moved, paste, plan_delete, plan_placement, simplify
+from portcut.app.editing import (
+    RigidMap,
+    bend,
+    link_route,
+    moved,
+    paste,
+    plan_delete,
+    plan_placement,
+    simplify,
+)
 from portcut.app.fields import fields_for
 from portcut.app.region_edits import renamed, with_port_net
 from portcut.app.safety import above_extra_low_voltage
@@ -72,7 +81,7 @@ def test_moving_any_part_loses_no_connection_and_keeps_wires_orthogonal(name, pi
     parts = [p for p in doc.parts() if element_pins(p)]
     part = parts[pick % len(parts)]
     m = RigidMap(m.offset, m.turns, m.mirror, part.at)
-    after = _apply(doc, plan_placement(doc, SheetIndex(doc), [part.id], m))
+    after = _apply_new(doc, plan_placement(doc, SheetIndex(doc), [part.id], m))
     # every net survives whole (a part dropped onto another wire may join more, as drawn)
     merged = _partition(after)
     assert all(any(net <= bigger for bigger in merged) for net in _partition(doc))
@@ -210,3 +219,35 @@ def test_renaming_a_part_in_its_field_carries_a_chosen_port_along():
     new = designator.write(doc, r1, "R7")
     assert [e.port for e in new if isinstance(e, Region)] == [("R7.a", "out")]
     assert designator.write(doc, r1, "R1") == [r1]  # unchanged: nothing follows
+
+
+def test_a_tap_keeps_its_wire_through_a_link_when_its_part_moves():
+    # R2 sits with both pins in the middle of wires (taps); moving it must keep both nets whole
+    doc = divider()
+    r2 = doc.by_designator("R2")
+    before = _partition(doc)
+    plan = plan_placement(doc, SheetIndex(doc), [r2.id], RigidMap((3, 1)))
+    links = [e for e in plan if e.id not in doc]
+    assert len(links) == 2 and all(isinstance(e, Wire) for e in links)
+    assert {(w.points[0], w.points[-1]) for w in links} == {((8, 2), (11, 3)), ((8, 6), (11, 7))}
+    after = _apply_new(doc, plan)
+    assert _partition(after) == before
+    for wire in links:  # the link turns first where a straight run would lie along the wire
+        assert wire.points == (wire.points[0], (8, wire.points[0][1] + 1), wire.points[-1])
+
+
+def test_link_route_takes_the_first_clear_orthogonal_path():
+    blocked = {(1, 0), (2, 0)}.__contains__
+    assert link_route((0, 0), (3, 2), blocked) == ((0, 0), (0, 2), (3, 2))
+    assert link_route((0, 0), (3, 2), lambda p: False) == ((0, 0), (3, 0), (3, 2))
+    # nothing clear: the straight run, for the net check to judge
+    assert link_route((0, 0), (3, 0), blocked) == ((0, 0), (3, 0))
+
+
+def _apply_new(doc: Document, elements) -> Document:
+    elements = list(elements)
+    out = _apply(doc, [e for e in elements if e.id in doc])
+    for e in elements:
+        if e.id not in doc:
+            out.add(e)
+    return out

@@ -3,16 +3,20 @@ from a pin to draw a wire; arrows nudge the selection, Tab steps through element
 
 A rubber band dragged to the right selects what lies wholly inside it; dragged to the left, what
 it touches (common practice in drawing tools). A move shows a preview while dragging and becomes
-one undo step on release.
+one undo step on release. Where the drop would join nets (a pin landing on another net's wire)
+the preview rings the pins concerned and the status line names the nets before the release (once
+the pointer rests a moment).
 """
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from PySide6.QtCore import QRectF, Qt
+from PySide6.QtCore import QPointF, QRectF, Qt, QTimer
 from PySide6.QtGui import QBrush, QColor, QKeyEvent, QPen
-from PySide6.QtWidgets import QApplication, QGraphicsRectItem
+from PySide6.QtWidgets import QApplication, QGraphicsRectItem, QToolTip
+
+from portcut.engine.schematic import Connectivity, Element, extract
 
 from ...theme import qcolor
 from ..grid import snap
@@ -24,6 +28,10 @@ if TYPE_CHECKING:
     from ..canvas import Canvas
 
 __all__ = ["SelectTool"]
+
+#: How long (ms) the pointer must rest during a drag before the drop's net joins are worked
+#: out (a re-extraction of the sheet: tens of milliseconds at 2,000 parts).
+JOIN_PAUSE_MS = 40
 
 _ARROWS = {Qt.Key.Key_Left: (-1, 0), Qt.Key.Key_Right: (1, 0), Qt.Key.Key_Up: (0, -1),
            Qt.Key.Key_Down: (0, 1)}
@@ -42,6 +50,12 @@ class SelectTool(Tool):
         self._band: QGraphicsRectItem | None = None
         self._draft: WireDraft | None = None
         self._pin = (0, 0)
+        self._nets_before: Connectivity | None = None  # the document's nets while dragging
+        self._joins = ""
+        self._plan: list[Element] = []
+        self._pointer = QPointF()
+        self._join_timer = QTimer(canvas, singleShot=True, interval=JOIN_PAUSE_MS)
+        self._join_timer.timeout.connect(self._check_joins)
 
     @property
     def status(self) -> str:
@@ -50,6 +64,8 @@ class SelectTool(Tool):
         if self._mode == "wire":
             return "Wire: release on a pin or a wire to join it"
         if self._mode == "move":
+            if self._joins:
+                return f"Move: {self._joins} · release to drop anyway · Esc puts it back"
             return "Move: release to drop · Esc puts it back"
         if self.canvas.scene.selected_ids():
             return ("Drag to move · arrows nudge · R rotates · M mirrors · Delete removes · "
@@ -116,6 +132,7 @@ class SelectTool(Tool):
             self.canvas.scene.select_ids([item.element_id] if item else [], add=ev.adds)
         self._origin = None
         self._offset = (0, 0)
+        self._forget_joins()
         self.announce()
 
     def double_click(self, ev: CanvasEvent) -> None:
@@ -145,10 +162,42 @@ class SelectTool(Tool):
     def _preview_move(self, ev: CanvasEvent) -> None:
         step = self.canvas.scene.grid_step
         start, now = self._origin.at, ev.at
-        self._offset = snap((now[0] - start[0], now[1] - start[1]), step)
-        plan = self.canvas.plan_move(self._offset)
-        self.canvas.scene.end_preview()
-        self.canvas.scene.show_preview(plan)
+        offset = snap((now[0] - start[0], now[1] - start[1]), step)
+        if offset == self._offset and self.canvas.scene.previewing():
+            return
+        self._offset = offset
+        plan = self.canvas.plan_move(offset)
+        scene = self.canvas.scene
+        scene.end_preview()
+        scene.show_preview(plan)
+        # which nets the drop would join: a re-extraction of the planned sheet, run once the
+        # pointer rests so that a long drag on a large sheet stays fluid
+        self._plan, self._pointer = plan, ev.scene_pos
+        self._join_timer.start()
+
+    def _check_joins(self) -> None:
+        if self._mode != "move":
+            return
+        if self._nets_before is None:
+            self._nets_before = extract(self.canvas.doc)
+        joins, points = self.canvas.move_joins(self._plan, self._nets_before)
+        self.canvas.scene.show_join_marks(points)
+        if joins != self._joins:
+            self._joins = joins
+            self.announce()
+            # beside the pointer too, where the eye is during a drag
+            view = self.canvas.view
+            where = view.viewport().mapToGlobal(view.mapFromScene(self._pointer))
+            if joins:
+                QToolTip.showText(where, joins[0].upper() + joins[1:], view)
+            else:
+                QToolTip.hideText()
+
+    def _forget_joins(self) -> None:
+        self._join_timer.stop()
+        if self._joins:
+            QToolTip.hideText()
+        self._nets_before, self._joins, self._plan = None, "", []
 
     # -- rubber band --------------------------------------------------------------------------
     def _start_band(self, ev: CanvasEvent) -> None:
@@ -206,6 +255,7 @@ class SelectTool(Tool):
     def cancel(self) -> bool:
         mode, self._mode = self._mode, ""
         self._origin = None
+        self._forget_joins()
         if mode == "move":
             self.canvas.scene.end_preview()
         elif mode == "band":
