@@ -1,16 +1,16 @@
 """Measures a drawn sheet for what makes it hard to read: texts over texts or symbols, wires
 through symbols, markers and blocks run into each other, and strokes of different nets touching.
 
-It measures the geometry the canvas and the SVG writer draw: symbol bounds (engine.symbols),
-wire strokes, and the captions of engine.placement (net names and block captions at their
-symbol's anchors). Units are grid units. Each fault names the elements involved, so a test can
-say which part is crowded.
+It measures the geometry the canvas and the SVG writer draw: symbol bodies (engine.symbols,
+without the leads, which meet other strokes at pins), leads and wire strokes, and the captions
+of engine.placement (net names and block captions at their symbol's anchors). Units are grid
+units. Each fault names the elements involved, so a test can say which part is crowded.
 """
 
 from __future__ import annotations
 
-from collections import defaultdict
 from dataclasses import dataclass
+from functools import cache
 from itertools import combinations, pairwise
 
 from .captions import block_caption
@@ -19,7 +19,17 @@ from .placement import Placement, overlap, text_box
 from .schematic.connectivity import block_equivalent, extract
 from .schematic.document import Document
 from .schematic.model import Block, NetLabel, PlacedPart
-from .symbols import Bounds, FPoint, Point, TextAnchor, pin_positions, place, placed_bounds, symbol
+from .symbols import (
+    Bounds,
+    FPoint,
+    Line,
+    Point,
+    TextAnchor,
+    pin_positions,
+    place,
+    shape_bounds,
+    symbol,
+)
 
 __all__ = ["FAULT_KINDS", "Fault", "drawing_faults", "drawn_texts"]
 
@@ -60,21 +70,38 @@ def _name(element: PlacedPart | Block | NetLabel) -> str:
     return element.designator
 
 
-def _bodies(doc: Document, style: str) -> list[tuple[str, str, Bounds]]:
-    """(id, name, bounds) of every drawn symbol."""
-    out = []
-    for e in doc:
-        if isinstance(e, PlacedPart):
-            box = placed_bounds(e.kind, e.at, e.rotation, e.mirror, style=style)
-        elif isinstance(e, Block):
-            box = placed_bounds("block", e.at, e.rotation, e.mirror, style=style, form=e.form)
-        elif isinstance(e, NetLabel):
-            kind = "ground" if e.style == "ground" else "label"
-            box = placed_bounds(kind, e.at, e.rotation, style=style)
-        else:
-            continue
-        out.append((e.id, _name(e), box))
-    return out
+@cache
+def _core(kind: str, style: str, form: str) -> tuple[Bounds, tuple[Line, ...]]:
+    """A symbol's body without its leads (the lines that end at a pin), and the leads, in
+    its local frame: leads meet wires and other leads at pins, the body must stay clear."""
+    sym = symbol(kind, style, form)
+    pins = set(map(tuple, sym.pins))
+    leads = tuple(s for s in sym.shapes if isinstance(s, Line)
+                  and (s.points[0] in pins or s.points[-1] in pins))
+    rest = [shape_bounds(s) for s in sym.shapes if s not in leads] or [sym.bounds]
+    return (min(b[0] for b in rest), min(b[1] for b in rest), max(b[2] for b in rest),
+            max(b[3] for b in rest)), leads
+
+
+def _drawn(e: PlacedPart | Block | NetLabel, style: str) -> tuple[Bounds, list[Line]]:
+    """The placed body box and leads of an element's symbol."""
+    if isinstance(e, PlacedPart):
+        kind, form, mirror = e.kind, "thevenin", e.mirror
+    elif isinstance(e, Block):
+        kind, form, mirror = "block", e.form, e.mirror
+    else:
+        kind, form, mirror = ("ground" if e.style == "ground" else "label"), "thevenin", False
+    (x0, y0, x1, y1), leads = _core(kind, style, form)
+    corners = [place(Line(((x0, y0), (x1, y1))), e.at, e.rotation, mirror).points]
+    (ax, ay), (bx, by) = corners[0]
+    box = (min(ax, bx), min(ay, by), max(ax, bx), max(ay, by))
+    return box, [place(lead, e.at, e.rotation, mirror) for lead in leads]
+
+
+def _bodies(doc: Document, style: str) -> list[tuple[str, str, Bounds, list[Line]]]:
+    """(id, name, body box, leads) of every drawn symbol."""
+    return [(e.id, _name(e), *_drawn(e, style)) for e in doc
+            if isinstance(e, PlacedPart | Block | NetLabel)]
 
 
 def _anchored(kind: str, role: str, lines: tuple[str, ...], at: Point, rotation: int,
@@ -133,39 +160,48 @@ def _on(p: FPoint, a: FPoint, b: FPoint) -> bool:
             and (x0 == x1 == p[0] or y0 == y1 == p[1]))
 
 
-def _net_touches(doc: Document) -> list[Fault]:
-    """Pairs of nets whose strokes meet without joining: a wire end or a pin of one net on a
-    wire of another, or two nets' segments running along each other. (Plain crossings are
-    drawn without a dot and read as not joined, so they do not count.)"""
+def _net_strokes(doc: Document, style: str) -> list[tuple[str, bool, Bounds]]:
+    """(net, is a wire, segment box) of every stroke that carries a net: wire segments, the
+    leads of parts and blocks (the net of their pin), every stroke of a ground or label."""
     conn = extract(doc)
-    ends: list[tuple[str, FPoint]] = []
-    for wire in doc.wires():
-        net = conn.net_of_wire.get(wire.id, "")
-        ends += [(net, wire.points[0]), (net, wire.points[-1])]
+    out = [(conn.net_of_wire.get(wid, ""), True, _segment_box(a, b))
+           for wid, a, b in _segments(doc)]
     for e in doc:
-        if isinstance(e, PlacedPart | Block | NetLabel):
-            kind = e.kind if isinstance(e, PlacedPart) else (
-                "block" if isinstance(e, Block) else
-                "ground" if e.style == "ground" else "label")
-            mirror = getattr(e, "mirror", False)
-            for i, p in enumerate(pin_positions(kind, e.at, e.rotation, mirror)):
-                ends.append((conn.net_of_pin.get((e.id, i), ""), p))
-    by_point: dict[FPoint, set[str]] = defaultdict(set)
-    for net, p in ends:
-        by_point[p].add(net)
+        if not isinstance(e, PlacedPart | Block | NetLabel):
+            continue
+        kind = (e.kind if isinstance(e, PlacedPart) else "block" if isinstance(e, Block)
+                else "ground" if e.style == "ground" else "label")
+        mirror = getattr(e, "mirror", False)
+        pins = pin_positions(kind, e.at, e.rotation, mirror)
+        nets = {p: conn.net_of_pin.get((e.id, i), "") for i, p in enumerate(pins)}
+        lines = (symbol(kind, style).shapes if isinstance(e, NetLabel)
+                 else _core(kind, style, getattr(e, "form", "thevenin"))[1])
+        for line in lines:
+            if not isinstance(line, Line):
+                continue
+            placed = place(line, e.at, e.rotation, mirror)
+            ends = {nets[p] for p in (placed.points[0], placed.points[-1]) if p in nets}
+            if len(ends) > 1:
+                continue  # a stroke from pin to pin is the body itself (wire/body covers it)
+            net = ends.pop() if ends else nets[pins[0]]
+            for a, b in pairwise(placed.points):
+                out.append((net, False, _segment_box(a, b)))
+    return out
+
+
+def _touch(a: Bounds, b: Bounds) -> bool:
+    return a[0] <= b[2] and b[0] <= a[2] and a[1] <= b[3] and b[1] <= a[3]
+
+
+def _net_touches(doc: Document, style: str) -> list[Fault]:
+    """Pairs of nets whose strokes touch: a wire over a lead or a marker of another net, two
+    leads of different nets meeting. (Two wires crossing are drawn without a dot and read as
+    not joined, and a wire end on a wire joins it, so wire pairs do not count.)"""
+    strokes = _net_strokes(doc, style)
     pairs: set[tuple[str, str]] = set()
-    segments = [(conn.net_of_wire.get(wid, ""), a, b) for wid, a, b in _segments(doc)]
-    for net, a, b in segments:
-        for p, nets in by_point.items():
-            if _on(p, a, b):
-                pairs |= {tuple(sorted((net, other))) for other in nets if other != net}
-    for (n1, a1, b1), (n2, a2, b2) in combinations(segments, 2):
-        if n1 != n2 and (_on(a1, a2, b2) or _on(b1, a2, b2) or _on(a2, a1, b1)
-                         or _on(b2, a1, b1)):
-            box1, box2 = _segment_box(a1, b1), _segment_box(a2, b2)
-            if box1[0] == box1[2] == box2[0] == box2[2] or box1[1] == box1[3] == box2[1] == \
-                    box2[3]:
-                pairs.add(tuple(sorted((n1, n2))))
+    for (n1, w1, b1), (n2, w2, b2) in combinations(strokes, 2):
+        if n1 != n2 and not (w1 and w2) and _touch(b1, b2):
+            pairs.add((min(n1, n2), max(n1, n2)))
     return [Fault("net/net", pair) for pair in sorted(pairs)]
 
 
@@ -179,19 +215,21 @@ def drawing_faults(doc: Document, style: str = "iec", freq: float = 0.0) -> list
         if overlap(t1.box, t2.box) > 0:
             faults.append(Fault("caption/caption", (t1.owner, t2.owner),
                                 t1.crowded or t2.crowded))
+    strokes = segments + [(f"{name} lead", a, b) for _, name, _, leads in bodies
+                          for lead in leads for a, b in pairwise(lead.points)]
     for t in texts:
-        for _, name, box in bodies:
+        for _, name, box, _ in bodies:
             if overlap(t.box, _shrunk(box)) > 0:
                 faults.append(Fault("caption/body", (t.owner, name), t.crowded))
-        for wid, a, b in segments:
+        for wid, a, b in strokes:
             if _crosses(_segment_box(a, b), t.box):
                 faults.append(Fault("caption/wire", (t.owner, wid), t.crowded))
-    for wid, a, b in segments:
-        for _, name, box in bodies:
-            if _crosses(_segment_box(a, b), _shrunk(box)):
+    for wid, a, b in strokes:
+        for _, name, box, _ in bodies:
+            if not wid.startswith(f"{name} ") and _crosses(_segment_box(a, b), _shrunk(box)):
                 faults.append(Fault("wire/body", (wid, name)))
-    for (_, n1, b1), (_, n2, b2) in combinations(bodies, 2):
+    for (_, n1, b1, _), (_, n2, b2, _) in combinations(bodies, 2):
         if overlap(_shrunk(b1), _shrunk(b2)) > 0:
             faults.append(Fault("body/body", (n1, n2)))
-    faults += _net_touches(doc)
+    faults += _net_touches(doc, style)
     return faults

@@ -17,7 +17,7 @@ from __future__ import annotations
 
 from collections import defaultdict
 from collections.abc import Iterable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from itertools import pairwise
 
 from .captions import value_caption
@@ -196,6 +196,7 @@ class Placement:
     ac: bool = False
     captions: dict[str, dict[str, PlacedCaption]] = field(default_factory=dict)
     _boxes: dict[str, list[tuple[str, Bounds]]] = field(default_factory=dict)
+    _origins: dict[str, FPoint] = field(default_factory=dict)
 
     @classmethod
     def of(cls, doc: Document, style: str = "iec", ac: bool = False) -> Placement:
@@ -205,6 +206,17 @@ class Placement:
             placement._boxes[element.id] = _obstacles(element, style)
         placement._place(doc, list(doc), None)
         return placement
+
+    def around(self, part_id: str) -> list[PlacedCaption] | None:
+        """The part's captions relative to its origin (so they follow it while it is dragged),
+        or None for a part not placed here."""
+        roles = self.captions.get(part_id)
+        if roles is None:
+            return None
+        ox, oy = self._origins[part_id]
+        return [replace(c, at=(c.at[0] - ox, c.at[1] - oy),
+                        box=(c.box[0] - ox, c.box[1] - oy, c.box[2] - ox, c.box[3] - oy))
+                for c in roles.values()]
 
     def update(self, doc: Document, changed: Iterable[str]) -> set[str]:
         """Re-place after the elements ``changed`` (ids, whether added, updated or removed)
@@ -248,6 +260,7 @@ class Placement:
 
     def _place_part(self, part: PlacedPart, index: _Index) -> dict[str, PlacedCaption]:
         texts = part_texts(part, ac=self.ac)
+        self._origins[part.id] = part.at
         sym = symbol(part.kind, self.style)
         body = self._boxes[part.id][0][1]
         pinned = {role: (dx, dy) for role, dx, dy in part.captions}

@@ -14,6 +14,7 @@ from PySide6.QtGui import QPainter, QPen
 from PySide6.QtWidgets import QGraphicsScene
 
 from engine.errors import CircuitError
+from engine.placement import Placement
 from engine.schematic import Change, Document, Element, PlacedPart
 from engine.symbols import Point
 from engine.units import parse_frequency
@@ -79,6 +80,7 @@ class SchematicScene(QGraphicsScene):
         self._previewed.clear()
         self.doc = doc
         self.index = SheetIndex(doc)
+        self.look.placement = Placement.of(doc, self.look.style, self.look.ac)
         self._couplings = {p.id: p.couples for p in doc.parts() if p.kind == "coupling"}
         self.look.coupled = self._coupled()
         self.look.freq = _frequency(doc)
@@ -99,6 +101,10 @@ class SchematicScene(QGraphicsScene):
 
     def _on_change(self, change: Change) -> None:
         self.end_preview()
+        if change.analysis:
+            self.look.freq = _frequency(self.doc)
+        recaptioned = self.look.placement.update(
+            self.doc, (*change.removed, *change.updated, *change.added))
         touched: set[Point] = set()
         couplings_before = dict(self._couplings)
         renamed_inductor = False
@@ -125,11 +131,13 @@ class SchematicScene(QGraphicsScene):
             touched |= self.index.touch_points(new)
             self._track_coupling(new)
             self._extent |= self._add_item(new).sceneBoundingRect()
+        for eid in recaptioned.difference(change.updated, change.added):
+            if eid in self._items:
+                self._items[eid].relayout()
         self._update_dots(touched)
         if self._couplings != couplings_before or renamed_inductor:
             self._refresh_coupled()
         if change.analysis:
-            self.look.freq = _frequency(self.doc)
             self.relayout()
         self._apply_extent()
 
@@ -172,6 +180,7 @@ class SchematicScene(QGraphicsScene):
     # -- looks --------------------------------------------------------------------------------
     def relayout(self) -> None:
         """Redraw every item after a change of theme, symbol style or frequency."""
+        self.look.placement = Placement.of(self.doc, self.look.style, self.look.ac)
         for item in self._items.values():
             item.sync(item.element)
         for tile in self._tiles.values():
@@ -202,15 +211,21 @@ class SchematicScene(QGraphicsScene):
         return rect
 
     def element_at(self, pos: QPointF, tolerance: float) -> ElementItem | None:
-        """The topmost selectable element item within ``tolerance`` scene units of ``pos``."""
+        """The topmost selectable element item within ``tolerance`` scene units of ``pos``: a
+        body or wire first, else the part whose caption is there."""
         box = QRectF(pos.x() - tolerance, pos.y() - tolerance, 2 * tolerance, 2 * tolerance)
+        by_caption: ElementItem | None = None
         for hit in self.items(box, Qt.ItemSelectionMode.IntersectsItemShape,
                               Qt.SortOrder.DescendingOrder):
             item = element_item(hit)
-            if item is not None and not item.preview and (
+            if item is None or item.preview or not (
                     item.flags() & item.GraphicsItemFlag.ItemIsSelectable):
+                continue
+            if hit is item:
                 return item
-        return None
+            # a caption (a child item) picks its part only where no body is under the pointer
+            by_caption = by_caption or item
+        return by_caption
 
     # -- selection ----------------------------------------------------------------------------
     def selected_ids(self) -> list[str]:
