@@ -16,7 +16,7 @@ units, x right, y down.
 from __future__ import annotations
 
 from collections import defaultdict
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field, replace
 from itertools import pairwise
 
@@ -136,23 +136,42 @@ def _obstacles(element: Element, style: str) -> list[tuple[str, Bounds]]:
 
 
 class _Index:
-    """Boxes by grid cell, for the overlap queries of the candidate spots."""
+    """Boxes by grid cell, each with its kind, owner and rank (the order of placing: fixed
+    obstacles rank -1, a caption the position of its part and role), for the overlap queries
+    of the candidate spots. A query sees only captions placed before the one being placed, so
+    re-placing one part gives what placing everything again would."""
 
     def __init__(self) -> None:
-        self.cells: dict[tuple[int, int], list[tuple[str, Bounds, str]]] = defaultdict(list)
+        self.cells: dict[tuple[int, int], list[tuple[str, Bounds, str, tuple[int, int]]]] = (
+            defaultdict(list))
 
-    def add(self, kind: str, box: Bounds, owner: str) -> None:
+    def add(self, kind: str, box: Bounds, owner: str, rank: tuple[int, int]) -> None:
         for cell in _cells(box):
-            self.cells[cell].append((kind, box, owner))
+            self.cells[cell].append((kind, box, owner, rank))
 
-    def score(self, box: Bounds) -> float:
-        seen: set[tuple[str, Bounds, str]] = set()
+    def remove(self, box: Bounds, owner: str) -> None:
+        for cell in _cells(box):
+            entries = self.cells.get(cell)
+            if entries:
+                self.cells[cell] = [e for e in entries if not (e[2] == owner and e[1] == box)]
+
+    def owners(self, box: Bounds) -> set[str]:
+        """Owners of the boxes overlapping ``box``."""
+        return {e[2] for cell in _cells(box) for e in self.cells.get(cell, ())
+                if overlap(box, e[1]) > 0}
+
+    def score(self, box: Bounds, rank: tuple[int, int], ranks: dict[str, int]) -> float:
+        seen: set[tuple[Bounds, str]] = set()
         total = 0.0
         for cell in _cells(box):
-            for entry in self.cells.get(cell, ()):
-                if entry not in seen:
-                    seen.add(entry)
-                    total += WEIGHTS[entry[0]] * overlap(box, entry[1])
+            for kind, other, owner, entry_rank in self.cells.get(cell, ()):
+                if (other, owner) in seen:
+                    continue
+                seen.add((other, owner))
+                if kind == "caption" and entry_rank[0] >= 0 and (
+                        ranks.get(owner, -1), entry_rank[1]) >= rank:
+                    continue  # placed after this one: not an obstacle for it
+                total += WEIGHTS[kind] * overlap(box, other)
         return total
 
 
@@ -187,24 +206,30 @@ def _spots(anchor: TextAnchor | None, body: Bounds,
 class Placement:
     """The captions of every part of a document: ``captions[part id][role]``.
 
-    Build with :meth:`of`; after an edit, :meth:`update` re-places only the captions near the
-    elements that changed (in document order, the captions farther away kept as obstacles), so
-    a move stays cheap on a large sheet.
+    Build with :meth:`of`; after an edit, :meth:`update` places again only the captions whose
+    surroundings changed, and gives what :meth:`of` would give for the edited document, so
+    the canvas after any edits and an export of the same document agree.
     """
 
     style: str = "iec"
     ac: bool = False
     captions: dict[str, dict[str, PlacedCaption]] = field(default_factory=dict)
-    _boxes: dict[str, list[tuple[str, Bounds]]] = field(default_factory=dict)
+    _fixed: dict[str, list[tuple[str, Bounds]]] = field(default_factory=dict)
     _origins: dict[str, FPoint] = field(default_factory=dict)
+    _reach: dict[str, Bounds] = field(default_factory=dict)
+    _ranks: dict[str, int] = field(default_factory=dict)
+    _index: _Index = field(default_factory=_Index)
+    _reaches: _Index = field(default_factory=_Index)
 
     @classmethod
     def of(cls, doc: Document, style: str = "iec", ac: bool = False) -> Placement:
         """Captions for every part of ``doc`` drawn in ``style`` (``ac``: sources as phasors)."""
         placement = cls(style, ac)
+        placement._rank(doc)
         for element in doc:
-            placement._boxes[element.id] = _obstacles(element, style)
-        placement._place(doc, list(doc), None)
+            placement._add_fixed(element)
+        for part in doc.parts():
+            placement._place_part(part)
         return placement
 
     def around(self, part_id: str) -> list[PlacedCaption] | None:
@@ -219,81 +244,118 @@ class Placement:
                 for c in roles.values()]
 
     def update(self, doc: Document, changed: Iterable[str]) -> set[str]:
-        """Re-place after the elements ``changed`` (ids, whether added, updated or removed)
-        were edited in ``doc``; returns the ids of the parts whose captions moved or changed."""
+        """Place again after the elements ``changed`` (ids, whether added, updated or removed)
+        were edited in ``doc``; returns the ids of the parts whose captions moved or changed
+        (removed parts included)."""
         changed = list(changed)
-        region: list[Bounds] = []
+        self._rank(doc)
+        dirty: set[str] = set()
+        gone: dict[str, dict[str, PlacedCaption]] = {}
         for eid in changed:
-            region += [box for _, box in self._boxes.pop(eid, ())]
-            region += [c.box for c in self.captions.pop(eid, {}).values()]
+            for _, box in self._fixed.get(eid, ()):
+                dirty |= self._reaches.owners(box)
+            for c in self.captions.get(eid, {}).values():
+                dirty |= self._reaches.owners(c.box)
+            gone[eid] = self.captions.get(eid, {})
+            self._drop(eid)
             if eid in doc:
-                self._boxes[eid] = _obstacles(doc[eid], self.style)
-                region += [box for _, box in self._boxes[eid]]
-        if not region:
-            return set()
-        # every part whose body or caption could reach the changed area is placed again
-        reach = 2 * CELL + 4 * LINE_PITCH * FONT_SIZE
-        window = (min(b[0] for b in region) - reach, min(b[1] for b in region) - reach,
-                  max(b[2] for b in region) + reach, max(b[3] for b in region) + reach)
-        inside = {eid for eid, boxes in self._boxes.items()
-                  if any(overlap(box, window) > 0 for _, box in boxes)}
-        near = {eid for eid in inside if isinstance(doc[eid], PlacedPart)}
-        before = {eid: self.captions.get(eid) for eid in near}
-        self._place(doc, [e for e in doc if e.id in inside], near)
-        return {eid for eid in near if self.captions.get(eid) != before[eid]} | {
-            eid for eid in changed if eid not in doc}
+                self._add_fixed(doc[eid])
+                dirty |= {o for _, box in self._fixed[eid] for o in self._reaches.owners(box)}
+                if isinstance(doc[eid], PlacedPart):
+                    dirty.add(eid)
+        out = {eid for eid in changed if eid not in doc}
+        # in placing order; a caption that moves can move those placed after it
+        while dirty:
+            eid = min((e for e in dirty if e in doc), key=self._ranks.__getitem__, default=None)
+            if eid is None:
+                break
+            dirty.discard(eid)
+            before = self.captions.get(eid, gone.get(eid))
+            self._drop_captions(eid)
+            after = self._place_part(doc[eid])
+            if after != before:
+                out.add(eid)
+                rank = self._ranks[eid]
+                for c in (*(before or {}).values(), *after.values()):
+                    dirty |= {o for o in self._reaches.owners(c.box) if self._ranks[o] > rank}
+        return out
 
-    def _place(self, doc: Document, elements: list[Element], only: set[str] | None) -> None:
-        index = _Index()
-        for element in elements:
-            for kind, box in self._boxes[element.id]:
-                index.add(kind, box, element.id)
-        if only is not None:
-            # captions outside the re-placed set stay where they are, as obstacles
-            for eid, roles in self.captions.items():
-                if eid not in only:
-                    for c in roles.values():
-                        index.add("caption", c.box, eid)
-        for element in elements:
-            if isinstance(element, PlacedPart) and (only is None or element.id in only):
-                self.captions[element.id] = self._place_part(element, index)
+    def _rank(self, doc: Document) -> None:
+        self._ranks = {p.id: i for i, p in enumerate(doc.parts())}
 
-    def _place_part(self, part: PlacedPart, index: _Index) -> dict[str, PlacedCaption]:
+    def _add_fixed(self, element: Element) -> None:
+        boxes = _obstacles(element, self.style)
+        self._fixed[element.id] = boxes
+        for kind, box in boxes:
+            self._index.add(kind, box, element.id, (-1, 0))
+
+    def _drop_captions(self, eid: str) -> None:
+        for c in self.captions.pop(eid, {}).values():
+            self._index.remove(c.box, eid)
+
+    def _drop(self, eid: str) -> None:
+        """Forget everything of element ``eid``."""
+        for _, box in self._fixed.pop(eid, ()):
+            self._index.remove(box, eid)
+        self._drop_captions(eid)
+        reach = self._reach.pop(eid, None)
+        if reach is not None:
+            self._reaches.remove(reach, eid)
+        self._origins.pop(eid, None)
+
+    def _place_part(self, part: PlacedPart) -> dict[str, PlacedCaption]:
         texts = part_texts(part, ac=self.ac)
-        self._origins[part.id] = part.at
         sym = symbol(part.kind, self.style)
-        body = self._boxes[part.id][0][1]
+        body = self._fixed[part.id][0][1]
         pinned = {role: (dx, dy) for role, dx, dy in part.captions}
+        rank = self._ranks[part.id]
         out: dict[str, PlacedCaption] = {}
-        for role in CAPTION_ROLES:
+        reach = [body]
+        for i, role in enumerate(CAPTION_ROLES):
             lines = tuple(line for line in texts.get(role, ()) if line)
             if not lines:
                 continue
             if role in pinned:
                 dx, dy = pinned[role]
                 at = (part.at[0] + dx, part.at[1] + dy)
-                caption = PlacedCaption(role, lines, at, "c", text_box(lines, at, "c"))
+                spots = [(at, "c")]
             else:
                 anchor = sym.anchor(role)
                 placed = None if anchor is None else place(anchor, part.at, part.rotation,
                                                            part.mirror)
-                caption = _best(role, lines, _spots(placed, body, len(lines)), index)
-            index.add("caption", caption.box, part.id)
+                spots = _spots(placed, body, len(lines))
+            boxes = [text_box(lines, at, align) for at, align in spots]
+            reach += boxes
+            caption = _best(role, lines, spots, boxes,
+                            lambda box, i=i: self._index.score(box, (rank, i), self._ranks))
+            self._index.add("caption", caption.box, part.id, (rank, i))
             out[role] = caption
+        old = self._reach.pop(part.id, None)
+        if old is not None:
+            self._reaches.remove(old, part.id)
+        self._reach[part.id] = _union(reach)
+        self._reaches.add("reach", self._reach[part.id], part.id, (rank, 0))
+        self._origins[part.id] = part.at
+        self.captions[part.id] = out
         return out
 
 
+def _union(boxes: list[Bounds]) -> Bounds:
+    return (min(b[0] for b in boxes), min(b[1] for b in boxes), max(b[2] for b in boxes),
+            max(b[3] for b in boxes))
+
+
 def _best(role: str, lines: tuple[str, ...], spots: list[tuple[FPoint, str]],
-          index: _Index) -> PlacedCaption:
-    """The first free spot, or else the least covered one (marked crowded)."""
+          boxes: list[Bounds], score: Callable[[Bounds], float]) -> PlacedCaption:
+    """The first free spot, or else the least covered one (marked crowded); a single spot (a
+    dragged caption) is taken whatever it covers."""
     best: PlacedCaption | None = None
     best_score = float("inf")
-    for at, align in spots:
-        box = text_box(lines, at, align)
-        score = index.score(box)
-        if score == 0:
+    for (at, align), box in zip(spots, boxes, strict=True):
+        value = score(box)
+        if value == 0 or len(spots) == 1:
             return PlacedCaption(role, lines, at, align, box)
-        if score < best_score:
-            best, best_score = PlacedCaption(role, lines, at, align, box, crowded=True), score
+        if value < best_score:
+            best, best_score = PlacedCaption(role, lines, at, align, box, crowded=True), value
     assert best is not None
     return best

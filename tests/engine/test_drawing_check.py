@@ -117,3 +117,21 @@ def test_placement_is_deterministic_and_follows_a_moved_neighbour() -> None:
     assert "r1" in moved
     assert first.captions["r1"]["designator"].box[1] < again.captions["r1"]["designator"].box[1]
     assert first.captions == Placement.of(doc).captions
+
+
+@pytest.mark.parametrize("pitch", [4, 6])
+def test_placing_again_after_edits_gives_what_placing_afresh_gives(pitch: int) -> None:
+    doc = ladder(pitch)
+    placement = Placement.of(doc)
+    edits = [("c2", {"at": (9, 3)}), ("r4", {"value": "1.234567M"}), ("c5", None),
+             ("r0", {"rotation": 90}), ("c1", {"captions": (("value", 0.0, 3.0),)})]
+    for eid, fields in edits:
+        if fields is None:
+            doc.remove(eid)
+        else:
+            doc.replace_fields(eid, **fields)
+        placement.update(doc, [eid])
+        assert placement.captions == Placement.of(doc).captions, eid
+    doc.add(PlacedPart("r9", "resistor", "R9", (pitch, -3), value="1"))
+    placement.update(doc, ["r9"])
+    assert placement.captions == Placement.of(doc).captions
