@@ -15,10 +15,14 @@ units, x right, y down.
 
 from __future__ import annotations
 
+import math
 from collections import defaultdict
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field, replace
+from functools import cache
 from itertools import pairwise
+
+import numpy as np
 
 from .captions import value_caption
 from .schematic.document import Document
@@ -50,14 +54,18 @@ GAP = 0.3
 #: Cost per square grid unit of covering each kind of obstacle.
 WEIGHTS = {"body": 100.0, "caption": 100.0, "wire": 20.0, "dot": 20.0}
 #: Side of the square cells of the obstacle index, grid units.
-CELL = 4.0
+CELL = 8.0
+#: Side of the squares of the quick free-spot raster, and its margin around the sheet.
+RES = 0.25
+RASTER_MARGIN = 20.0
+RASTER_CELLS = 16_000_000
 WIRE_HALF = STROKE_WIDTH / 2
 
 
 def part_texts(part: PlacedPart, *, ac: bool = False) -> dict[str, tuple[str, ...]]:
     """The lines drawn beside ``part`` per role: its designator and its value (``"no value"``
     where one is missing; a coupling adds the inductors it joins)."""
-    value = value_caption(part, ac=ac)
+    value = _value_text(part.kind, part.value, part.phase_deg, part.control, part.couples, ac)
     if not value and part.kind != "opamp":
         value = "no value"
     if part.kind == "coupling" and part.couples:
@@ -65,12 +73,27 @@ def part_texts(part: PlacedPart, *, ac: bool = False) -> dict[str, tuple[str, ..
     return {"designator": (part.designator,), "value": (value,) if value else ()}
 
 
+@cache
+def _value_text(kind: str, value: str, phase: str, control: str, couples: tuple[str, ...],
+                ac: bool) -> str:
+    """Cached: sheets repeat their values."""
+    return value_caption(PlacedPart("", kind, "", (0, 0), value=value, phase_deg=phase,
+                                    control=control, couples=couples), ac=ac)
+
+
 def text_box(lines: tuple[str, ...], at: FPoint, align: str,
              size: float = FONT_SIZE) -> Bounds:
     """The box the upright ``lines`` set at anchor point ``at`` with ``align`` take up (top of
     the capitals of the first line to the descent of the last), as text_baselines sets them."""
-    how, baselines = text_baselines(at, align, len(lines), size)
-    width = CHAR_WIDTH * size * max(len(line) for line in lines)
+    x0, y0, x1, y1 = _text_box_at_origin(len(lines), max(len(line) for line in lines), align,
+                                         size)
+    return (x0 + at[0], y0 + at[1], x1 + at[0], y1 + at[1])
+
+
+@cache
+def _text_box_at_origin(lines: int, chars: int, align: str, size: float) -> Bounds:
+    how, baselines = text_baselines((0.0, 0.0), align, lines, size)
+    width = CHAR_WIDTH * size * chars
     x = baselines[0][0]
     left = {"start": x, "middle": x - width / 2, "end": x - width}[how]
     return (left, baselines[0][1] - CAP_HEIGHT * size, left + width,
@@ -141,15 +164,26 @@ class _Index:
     of the candidate spots. A query sees only captions placed before the one being placed, so
     re-placing one part gives what placing everything again would."""
 
-    def __init__(self) -> None:
+    def __init__(self, extent: Bounds | None = None) -> None:
         self.cells: dict[tuple[int, int], list[tuple[str, Bounds, str, tuple[int, int]]]] = (
             defaultdict(list))
+        self.raster = None if extent is None else _Raster.over(extent)
 
     def add(self, kind: str, box: Bounds, owner: str, rank: tuple[int, int]) -> None:
+        entry = (kind, box, owner, rank)
+        cells = self.cells
         for cell in _cells(box):
-            self.cells[cell].append((kind, box, owner, rank))
+            cells[cell].append(entry)
+        if self.raster is not None:
+            self.raster.count(box, 1)
+
+    def free(self, box: Bounds) -> bool:
+        """A quick yes when nothing at all lies under ``box`` (False: look closer)."""
+        return self.raster is not None and self.raster.free(box)
 
     def remove(self, box: Bounds, owner: str) -> None:
+        if self.raster is not None:
+            self.raster.count(box, -1)
         for cell in _cells(box):
             entries = self.cells.get(cell)
             if entries:
@@ -161,18 +195,58 @@ class _Index:
                 if overlap(box, e[1]) > 0}
 
     def score(self, box: Bounds, rank: tuple[int, int], ranks: dict[str, int]) -> float:
-        seen: set[tuple[Bounds, str]] = set()
         total = 0.0
+        bx0, by0, bx1, by1 = box
         for cell in _cells(box):
-            for kind, other, owner, entry_rank in self.cells.get(cell, ()):
-                if (other, owner) in seen:
+            for kind, (x0, y0, x1, y1), owner, entry_rank in self.cells.get(cell, ()):
+                w = min(bx1, x1) - max(bx0, x0)
+                h = min(by1, y1) - max(by0, y0)
+                if w <= 1e-9 or h <= 1e-9:
                     continue
-                seen.add((other, owner))
+                # an overlap is counted in the one cell holding its top-left corner
+                if (int(max(bx0, x0) // CELL), int(max(by0, y0) // CELL)) != cell:
+                    continue
                 if kind == "caption" and entry_rank[0] >= 0 and (
                         ranks.get(owner, -1), entry_rank[1]) >= rank:
                     continue  # placed after this one: not an obstacle for it
-                total += WEIGHTS[kind] * overlap(box, other)
+                total += WEIGHTS[kind] * w * h
         return total
+
+
+@dataclass
+class _Raster:
+    """How many obstacle boxes touch each square of :data:`RES` grid units over the sheet: a
+    box whose squares are all empty overlaps no obstacle (boxes are counted on every square
+    they touch), which settles most spots with one array look-up."""
+
+    x0: float
+    y0: float
+    counts: np.ndarray
+
+    @classmethod
+    def over(cls, extent: Bounds) -> _Raster | None:
+        x0, y0 = extent[0] - RASTER_MARGIN, extent[1] - RASTER_MARGIN
+        nx = math.ceil((extent[2] + RASTER_MARGIN - x0) / RES)
+        ny = math.ceil((extent[3] + RASTER_MARGIN - y0) / RES)
+        if nx * ny > RASTER_CELLS:
+            return None  # a sheet this large is scored box by box
+        return cls(x0, y0, np.zeros((ny, nx), dtype=np.int32))
+
+    def _span(self, box: Bounds) -> tuple[int, int, int, int]:
+        return (math.floor((box[0] - self.x0) / RES), math.floor((box[1] - self.y0) / RES),
+                math.ceil((box[2] - self.x0) / RES), math.ceil((box[3] - self.y0) / RES))
+
+    def count(self, box: Bounds, step: int) -> None:
+        i0, j0, i1, j1 = self._span(box)
+        ny, nx = self.counts.shape
+        self.counts[max(j0, 0):max(min(j1, ny), 0), max(i0, 0):max(min(i1, nx), 0)] += step
+
+    def free(self, box: Bounds) -> bool:
+        i0, j0, i1, j1 = self._span(box)
+        ny, nx = self.counts.shape
+        if i0 < 0 or j0 < 0 or i1 > nx or j1 > ny:
+            return False
+        return not self.counts[j0:j1, i0:i1].any()
 
 
 def _cells(box: Bounds) -> Iterable[tuple[int, int]]:
@@ -226,8 +300,11 @@ class Placement:
         """Captions for every part of ``doc`` drawn in ``style`` (``ac``: sources as phasors)."""
         placement = cls(style, ac)
         placement._rank(doc)
+        fixed = {e.id: _obstacles(e, style) for e in doc}
+        boxes = [box for found in fixed.values() for _, box in found]
+        placement._index = _Index(_union(boxes) if boxes else None)
         for element in doc:
-            placement._add_fixed(element)
+            placement._add_fixed(element, fixed[element.id])
         for part in doc.parts():
             placement._place_part(part)
         return placement
@@ -283,8 +360,9 @@ class Placement:
     def _rank(self, doc: Document) -> None:
         self._ranks = {p.id: i for i, p in enumerate(doc.parts())}
 
-    def _add_fixed(self, element: Element) -> None:
-        boxes = _obstacles(element, self.style)
+    def _add_fixed(self, element: Element,
+                   boxes: list[tuple[str, Bounds]] | None = None) -> None:
+        boxes = _obstacles(element, self.style) if boxes is None else boxes
         self._fixed[element.id] = boxes
         for kind, box in boxes:
             self._index.add(kind, box, element.id, (-1, 0))
@@ -324,9 +402,8 @@ class Placement:
                 placed = None if anchor is None else place(anchor, part.at, part.rotation,
                                                            part.mirror)
                 spots = _spots(placed, body, len(lines))
-            boxes = [text_box(lines, at, align) for at, align in spots]
-            reach += boxes
-            caption = _best(role, lines, spots, boxes,
+            reach += [text_box(lines, *spots[0]), _reach(body, lines)]
+            caption = _best(role, lines, spots, self._index.free,
                             lambda box, i=i: self._index.score(box, (rank, i), self._ranks))
             self._index.add("caption", caption.box, part.id, (rank, i))
             out[role] = caption
@@ -345,15 +422,28 @@ def _union(boxes: list[Bounds]) -> Bounds:
             max(b[3] for b in boxes))
 
 
+def _reach(body: Bounds, lines: tuple[str, ...]) -> Bounds:
+    """A box holding every spot of :func:`_spots` but the first, for ``lines`` around
+    ``body``: a text width beside it, three rows and the text's height above and below."""
+    x0, y0, x1, y1 = body
+    tx0, ty0, tx1, ty1 = _text_box_at_origin(len(lines), max(map(len, lines)), "c", FONT_SIZE)
+    width, height = tx1 - tx0, ty1 - ty0
+    rows = GAP + 2 * LINE_PITCH * FONT_SIZE + 2 * height
+    return (x0 - GAP - width - FONT_SIZE, y0 - rows, x1 + GAP + width + FONT_SIZE, y1 + rows)
+
+
 def _best(role: str, lines: tuple[str, ...], spots: list[tuple[FPoint, str]],
-          boxes: list[Bounds], score: Callable[[Bounds], float]) -> PlacedCaption:
+          free: Callable[[Bounds], bool], score: Callable[[Bounds], float]) -> PlacedCaption:
     """The first free spot, or else the least covered one (marked crowded); a single spot (a
     dragged caption) is taken whatever it covers."""
     best: PlacedCaption | None = None
     best_score = float("inf")
-    for (at, align), box in zip(spots, boxes, strict=True):
+    for at, align in spots:
+        box = text_box(lines, at, align)
+        if free(box) or len(spots) == 1:
+            return PlacedCaption(role, lines, at, align, box)
         value = score(box)
-        if value == 0 or len(spots) == 1:
+        if value == 0:
             return PlacedCaption(role, lines, at, align, box)
         if value < best_score:
             best, best_score = PlacedCaption(role, lines, at, align, box, crowded=True), value
