@@ -42,8 +42,8 @@ from .symbols import (
     text_baselines,
 )
 
-__all__ = ["CHAR_WIDTH", "PlacedCaption", "Placement", "overlap",
-           "part_texts", "text_box"]
+__all__ = ["CHAR_WIDTH", "PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
+           "text_box"]
 
 #: Advance of one character in font sizes (DejaVu Sans digits are 0.64, letters mostly less).
 CHAR_WIDTH = 0.64
@@ -118,6 +118,19 @@ class PlacedCaption:
     align: str
     box: Bounds
     crowded: bool = False
+
+
+def dragged(part: PlacedPart, caption: PlacedCaption,
+            shift: FPoint) -> tuple[tuple[str, float, float], ...]:
+    """``part.captions`` once ``caption`` is dragged by ``shift`` grid units: its anchor point
+    (text centred on it) relative to the part's origin, to a tenth of a grid unit."""
+    x0, y0, x1, y1 = caption.box
+    # the middle of the capitals block, where a centred text's anchor lies (text_baselines)
+    middle = y0 + (y1 - y0 - DESCENT * FONT_SIZE) / 2
+    dx = round((x0 + x1) / 2 + shift[0] - part.at[0], 1)
+    dy = round(middle + shift[1] - part.at[1], 1)
+    kept = tuple(c for c in part.captions if c[0] != caption.role)
+    return tuple(sorted((*kept, (caption.role, dx, dy))))
 
 
 def _body(element: Element, style: str) -> Bounds | None:

@@ -260,6 +260,18 @@ class SymbolItem(ElementItem):
         path.addRect(self._body)
         return path
 
+    def caption_role(self, child: QGraphicsItem) -> str:
+        """The role of the caption ``child`` ("" when it is not one of this item's captions)."""
+        return next((role for text, role in self._texts if text is child and role), "")
+
+    def shift_caption(self, role: str, offset: QPointF) -> None:
+        """Draw the caption of ``role`` ``offset`` scene units from where it is laid out (a
+        caption being dragged); a relayout puts it back."""
+        self.relayout()
+        for text, r in self._texts:
+            if r == role:
+                text.setPos(text.pos() + offset)
+
     def captions(self) -> list[str]:
         """The texts shown beside the symbol."""
         return [text.text() for text, role in self._texts if role]

@@ -227,6 +227,22 @@ class SchematicScene(QGraphicsScene):
             by_caption = by_caption or item
         return by_caption
 
+    def caption_at(self, pos: QPointF, tolerance: float) -> tuple[PartItem, str] | None:
+        """The part and caption role picked at ``pos`` when it is a part's caption that is
+        picked there (no body under the pointer), else None."""
+        item = self.element_at(pos, tolerance)
+        if not isinstance(item, PartItem):
+            return None
+        box = QRectF(pos.x() - tolerance, pos.y() - tolerance, 2 * tolerance, 2 * tolerance)
+        for hit in self.items(box, Qt.ItemSelectionMode.IntersectsItemShape,
+                              Qt.SortOrder.DescendingOrder):
+            if hit is item:
+                return None
+            role = item.caption_role(hit)
+            if role:
+                return item, role
+        return None
+
     # -- selection ----------------------------------------------------------------------------
     def selected_ids(self) -> list[str]:
         """Ids of the selected elements, in document order."""

@@ -1,14 +1,18 @@
 """Picking on a dense sheet with real events: a double-click on a part's body opens that part,
 never the neighbour whose caption lies close by; a caption picks its own part where no body is
-under the pointer; captions follow a moved neighbour."""
+under the pointer; a dragged caption stays where it is dropped."""
 
 from __future__ import annotations
 
 import pytest
 from dense_sheets import ladder
+from PySide6.QtCore import Qt
 from sheets import open_sheet
 
+from engine.schematic import load, save
 from engine.symbols import placed_bounds
+
+CTRL = Qt.KeyboardModifier.ControlModifier
 
 
 def _body_centre(part) -> tuple[float, float]:
@@ -47,3 +51,22 @@ def test_a_body_wins_over_a_neighbours_caption_dragged_onto_it(window, drive) ->
     assert placed[1] < 0.35 < placed[3]  # over the resistor's box, 0.35 below its axis
     drive.click((_body_centre(r1)[0], placed[3] - 0.1))  # the caption, below R1's body
     assert window.canvas.scene.selected_ids() == ["r1"]
+
+
+def test_a_dragged_caption_stays_where_dropped_is_saved_and_undoes(window, drive, tmp_path):
+    open_sheet(window, ladder(6, cells=2))
+    scene = window.canvas.scene
+    before = scene.look.placement.captions["r0"]["designator"]
+    x0, y0, x1, y1 = before.box
+    start = ((x0 + x1) / 2, (y0 + y1) / 2)
+    drive.drag(start, (start[0], start[1] - 3))
+    part = drive.by("R1")
+    assert [role for role, _, _ in part.captions] == ["designator"]
+    after = scene.look.placement.captions["r0"]["designator"]
+    assert after.box[1] == pytest.approx(y0 - 3, abs=0.1)  # moved up 3 grid units, kept there
+    path = tmp_path / "dragged.json"
+    save(window.workbench.doc, path)
+    assert load(path).by_designator("R1").captions == part.captions
+    drive.key(Qt.Key.Key_Z, CTRL)
+    assert drive.by("R1").captions == ()
+    assert scene.look.placement.captions["r0"]["designator"] == before
