@@ -85,8 +85,8 @@ def text_box(lines: tuple[str, ...], at: FPoint, align: str,
              size: float = FONT_SIZE) -> Bounds:
     """The box the upright ``lines`` set at anchor point ``at`` with ``align`` take up (top of
     the capitals of the first line to the descent of the last), as text_baselines sets them."""
-    x0, y0, x1, y1 = _text_box_at_origin(len(lines), max(len(line) for line in lines), align,
-                                         size)
+    chars = len(lines[0]) if len(lines) == 1 else max(map(len, lines))
+    x0, y0, x1, y1 = _text_box_at_origin(len(lines), chars, align, size)
     return (x0 + at[0], y0 + at[1], x1 + at[0], y1 + at[1])
 
 
@@ -431,8 +431,8 @@ class Placement:
 
 
 def _union(boxes: list[Bounds]) -> Bounds:
-    return (min(b[0] for b in boxes), min(b[1] for b in boxes), max(b[2] for b in boxes),
-            max(b[3] for b in boxes))
+    x0s, y0s, x1s, y1s = zip(*boxes, strict=True)
+    return (min(x0s), min(y0s), max(x1s), max(y1s))
 
 
 def _reach(body: Bounds, lines: tuple[str, ...]) -> Bounds:
