@@ -8,9 +8,9 @@ caption costs most. The result is deterministic for a document. A caption the us
 its offset from the part's origin (``PlacedPart.captions``) and is an obstacle for the others.
 
 The canvas, the screenshot mode and the SVG writer all draw :class:`Placement` results, so the
-three agree. Text widths are estimated (:data:`CHAR_WIDTH` per character, a little wider than
-the average of the sans-serif fonts used) so the engine needs no font machinery. Units: grid
-units, x right, y down.
+three agree. Text widths are estimated (:func:`text_width`: a width per kind of character, a
+little wider than the sans-serif fonts used draw them) so the engine needs no font machinery.
+Units: grid units, x right, y down.
 """
 
 from __future__ import annotations
@@ -42,11 +42,13 @@ from .symbols import (
     text_baselines,
 )
 
-__all__ = ["CHAR_WIDTH", "PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
-           "text_box"]
+__all__ = ["PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
+           "text_box", "text_width"]
 
-#: Advance of one character in font sizes (DejaVu Sans digits are 0.64, letters mostly less).
-CHAR_WIDTH = 0.64
+#: Advance of characters in font sizes, rounded up from common sans-serif faces: narrow,
+#: wide, capitals, and everything else (digits, most lower case, Ω, µ).
+NARROW, WIDE, CAPITAL, OTHER = " .,:;'|!·ijlrtf()[]-", "mwMW∠", 0.74, 0.66
+NARROW_WIDTH, WIDE_WIDTH = 0.4, 1.0
 #: Descent below the last baseline, in font sizes.
 DESCENT = 0.24
 #: Space kept between a body and a caption beside it.
@@ -85,15 +87,22 @@ def text_box(lines: tuple[str, ...], at: FPoint, align: str,
              size: float = FONT_SIZE) -> Bounds:
     """The box the upright ``lines`` set at anchor point ``at`` with ``align`` take up (top of
     the capitals of the first line to the descent of the last), as text_baselines sets them."""
-    chars = len(lines[0]) if len(lines) == 1 else max(map(len, lines))
-    x0, y0, x1, y1 = _text_box_at_origin(len(lines), chars, align, size)
+    width = text_width(lines[0]) if len(lines) == 1 else max(map(text_width, lines))
+    x0, y0, x1, y1 = _text_box_at_origin(len(lines), width, align, size)
     return (x0 + at[0], y0 + at[1], x1 + at[0], y1 + at[1])
 
 
 @cache
-def _text_box_at_origin(lines: int, chars: int, align: str, size: float) -> Bounds:
+def text_width(line: str) -> float:
+    """The estimated advance of ``line`` in font sizes."""
+    return sum(NARROW_WIDTH if c in NARROW else WIDE_WIDTH if c in WIDE
+               else CAPITAL if c.isupper() else OTHER for c in line)
+
+
+@cache
+def _text_box_at_origin(lines: int, width: float, align: str, size: float) -> Bounds:
     how, baselines = text_baselines((0.0, 0.0), align, lines, size)
-    width = CHAR_WIDTH * size * chars
+    width *= size
     x = baselines[0][0]
     left = {"start": x, "middle": x - width / 2, "end": x - width}[how]
     return (left, baselines[0][1] - CAP_HEIGHT * size, left + width,
@@ -439,7 +448,8 @@ def _reach(body: Bounds, lines: tuple[str, ...]) -> Bounds:
     """A box holding every spot of :func:`_spots` but the first, for ``lines`` around
     ``body``: a text width beside it, three rows and the text's height above and below."""
     x0, y0, x1, y1 = body
-    tx0, ty0, tx1, ty1 = _text_box_at_origin(len(lines), max(map(len, lines)), "c", FONT_SIZE)
+    tx0, ty0, tx1, ty1 = _text_box_at_origin(len(lines), max(map(text_width, lines)), "c",
+                                             FONT_SIZE)
     width, height = tx1 - tx0, ty1 - ty0
     rows = GAP + 2 * LINE_PITCH * FONT_SIZE + 2 * height
     return (x0 - GAP - width - FONT_SIZE, y0 - rows, x1 + GAP + width + FONT_SIZE, y1 + rows)

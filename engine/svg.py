@@ -26,7 +26,7 @@ from .captions import block_caption, drawn_form
 from .errors import CircuitError, ValueParseError
 from .mna import describe_freq
 from .palette import PALETTE, Palette
-from .placement import PlacedCaption, Placement
+from .placement import PlacedCaption, Placement, text_width
 from .schematic.connectivity import block_equivalent
 from .schematic.document import Document
 from .schematic.model import Block, NetLabel, PlacedPart, Region
@@ -64,7 +64,6 @@ SCALE = 10.0
 MARGIN = 2.0  # grid units around the drawing
 TITLE_SIZE = 1.6
 FONT_FAMILY = "DejaVu Sans, Helvetica, Arial, sans-serif"
-CHAR_WIDTH = 0.6  # average advance of a character, in font sizes, for the extent estimate
 
 
 def _n(value: float) -> str:
@@ -111,7 +110,7 @@ class _Sheet:
             attrs["font-weight"] = "bold"
         for line, (x, y) in zip(lines, baselines, strict=True):
             ET.SubElement(parent, "text", {"x": _n(x), "y": _n(y), **attrs}).text = line
-            width = CHAR_WIDTH * size * len(line)
+            width = text_width(line) * size
             left = {"start": x, "middle": x - width / 2, "end": x - width}[anchor]
             self.grow((left, y - size, left + width, y + 0.3 * size))
 

@@ -7,8 +7,11 @@ from __future__ import annotations
 import pytest
 from dense_sheets import ladder
 from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QGraphicsSimpleTextItem
 from sheets import open_sheet
 
+import assets
+from app.canvas.grid import UNIT
 from engine.schematic import load, save
 from engine.symbols import placed_bounds
 
@@ -70,3 +73,21 @@ def test_a_dragged_caption_stays_where_dropped_is_saved_and_undoes(window, drive
     drive.key(Qt.Key.Key_Z, CTRL)
     assert drive.by("R1").captions == ()
     assert scene.look.placement.captions["r0"]["designator"] == before
+
+
+@pytest.mark.parametrize("name", ["audio_crossover", "opamp_stage_output"])
+def test_canvas_captions_lie_inside_the_boxes_the_drawing_check_measures(window, name) -> None:
+    window.files.open_path(assets.example_path(name), as_copy=True)
+    scene = window.canvas.scene
+    for part in window.workbench.doc.parts():
+        item = scene.item(part.id)
+        boxes = {c.lines[0]: c.box for c in scene.look.placement.captions[part.id].values()}
+        for child in item.childItems():
+            if isinstance(child, QGraphicsSimpleTextItem) and child.isVisible():
+                ink = child.mapRectToScene(child.boundingRect())
+                x0, y0, x1, y1 = boxes[child.text()]
+                # the drawn advance is no wider than the estimate (common practice: the check
+                # may only err on the side of reporting a collision)
+                assert x0 * UNIT - 1 <= ink.left() and ink.right() <= x1 * UNIT + 1, child.text()
+                centre = ink.center().y() / UNIT
+                assert y0 - 0.3 <= centre <= y1 + 0.3, child.text()

@@ -8,6 +8,8 @@ canvas and the SVG writer draw (engine.placement and engine.symbols).
 
 from __future__ import annotations
 
+import xml.etree.ElementTree as ET
+
 import pytest
 from dense_sheets import ladder
 
@@ -17,6 +19,8 @@ from engine.drawing_check import FAULT_KINDS, Fault, drawing_faults
 from engine.placement import Placement
 from engine.schematic import Document, NetLabel, PlacedPart, Wire, load
 from engine.schematic.reduction import collapse_region
+from engine.svg import SCALE, SVG_NS, document_svg
+from engine.symbols import FONT_SIZE, text_baselines
 from engine.units import parse_frequency
 
 EXAMPLES = assets.example_names()
@@ -118,3 +122,21 @@ def test_placing_again_after_edits_gives_what_placing_afresh_gives(pitch: int) -
     doc.add(PlacedPart("r9", "resistor", "R9", (pitch, -3), value="1"))
     placement.update(doc, ["r9"])
     assert placement.captions == Placement.of(doc).captions
+
+
+@pytest.mark.parametrize("name", EXAMPLES)
+def test_the_svg_sets_each_caption_where_the_check_measures_it(name: str) -> None:
+    doc = load(assets.example_path(name))
+    freq = parse_frequency(doc.analysis.freq)
+    root = ET.fromstring(document_svg(doc))
+    placement = Placement.of(doc, ac=freq > 0)
+    for part in doc.parts():
+        group = root.find(f".//{{{SVG_NS}}}g[@id='el-{part.id}']")
+        for role, c in placement.captions[part.id].items():
+            drawn = group.findall(f"{{{SVG_NS}}}text[@class='{role}']")
+            anchor, baselines = text_baselines(c.at, c.align, len(c.lines), FONT_SIZE)
+            assert [t.text for t in drawn] == list(c.lines)
+            for text, (x, y) in zip(drawn, baselines, strict=True):
+                assert text.get("text-anchor") == anchor
+                assert float(text.get("x")) == pytest.approx(x * SCALE, abs=0.01)
+                assert float(text.get("y")) == pytest.approx(y * SCALE, abs=0.01)
