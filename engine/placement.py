@@ -1,7 +1,8 @@
 """Where each part's designator and value are drawn: the best free spot around its symbol.
 
 For every part, in document order, each caption tries a fixed list of spots around the symbol's
-body (the symbol's own anchor first, then above, below, beside, a second row out, the corners)
+body (the symbol's own anchor first, then rows above and below stepping outwards, beside it,
+the corners)
 and takes the first one with the lowest score: the area it shares with symbol bodies, wires,
 junction dots and the captions already placed, weighted so that covering a body or another
 caption costs most. The result is deterministic for a document. A caption the user dragged keeps
@@ -53,6 +54,8 @@ NARROW_WIDTH, WIDE_WIDTH = 0.4, 1.0
 DESCENT = 0.24
 #: Space kept between a body and a caption beside it.
 GAP = 0.3
+#: Room kept free around a caption, grid units, left and right / above and below.
+PAD_X, PAD_Y = 0.4, 0.1
 #: Cost per square grid unit of covering each kind of obstacle.
 WEIGHTS = {"body": 100.0, "caption": 100.0, "wire": 20.0, "dot": 20.0}
 #: Side of the square cells of the obstacle index, grid units.
@@ -287,14 +290,15 @@ def _spots(anchor: TextAnchor | None, body: Bounds,
     pitch = LINE_PITCH * FONT_SIZE
     half = (CAP_HEIGHT * FONT_SIZE + pitch * (lines - 1)) / 2 + GAP
     spots = [] if anchor is None else [(anchor.at, anchor.align)]
-    spots += [((cx, y0 - GAP), "n"), ((cx, y1 + GAP), "s"), ((x1 + GAP, cy), "e"),
-              ((x0 - GAP, cy), "w"),
+    # centred rows first (they read as belonging to the part), in half-line steps outwards,
+    # then beside it, then the corners
+    rows = [k * pitch / 2 for k in range(5)]
+    spots += [spot for d in rows for spot in (((cx, y0 - GAP - d), "n"), ((cx, y1 + GAP + d), "s"))]
+    spots += [((x1 + GAP, cy), "e"), ((x0 - GAP, cy), "w"),
               ((x1 + GAP, cy - pitch / 2), "e"), ((x1 + GAP, cy + pitch / 2), "e"),
               ((x0 - GAP, cy - pitch / 2), "w"), ((x0 - GAP, cy + pitch / 2), "w"),
-              ((cx, y0 - GAP - pitch), "n"), ((cx, y1 + GAP + pitch), "s"),
               ((x1, y0 - half), "e"), ((x0, y0 - half), "w"),
-              ((x1, y1 + half), "e"), ((x0, y1 + half), "w"),
-              ((cx, y0 - GAP - 2 * pitch), "n"), ((cx, y1 + GAP + 2 * pitch), "s")]
+              ((x1, y1 + half), "e"), ((x0, y1 + half), "w")]
     return spots
 
 
@@ -446,7 +450,7 @@ def _union(boxes: list[Bounds]) -> Bounds:
 
 def _reach(body: Bounds, lines: tuple[str, ...]) -> Bounds:
     """A box holding every spot of :func:`_spots` but the first, for ``lines`` around
-    ``body``: a text width beside it, three rows and the text's height above and below."""
+    ``body``: a text width beside it, five half-line rows and the text above and below."""
     x0, y0, x1, y1 = body
     tx0, ty0, tx1, ty1 = _text_box_at_origin(len(lines), max(map(text_width, lines)), "c",
                                              FONT_SIZE)
@@ -463,9 +467,11 @@ def _best(role: str, lines: tuple[str, ...], spots: list[tuple[FPoint, str]],
     best_score = float("inf")
     for at, align in spots:
         box = text_box(lines, at, align)
-        if free(box) or len(spots) == 1:
+        # a little room around the text, so neighbouring captions do not run together
+        room = (box[0] - PAD_X, box[1] - PAD_Y, box[2] + PAD_X, box[3] + PAD_Y)
+        if len(spots) == 1 or free(room):
             return PlacedCaption(role, lines, at, align, box)
-        value = score(box)
+        value = score(room)
         if value == 0:
             return PlacedCaption(role, lines, at, align, box)
         if value < best_score:
