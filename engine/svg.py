@@ -4,7 +4,7 @@ Every symbol comes from engine.symbols and is drawn as one ``<g class="symbol">`
 ``transform`` places it (translate, rotate clockwise, mirror), inside a ``<g>`` for its element
 (``class`` "part", "block", "label" or "ground") that also holds its upright ``<text>``
 elements, one per line: the designator, the value (engine.captions: 4.7 kΩ, 100 nF,
-3.33 V ∠ 0°) and any polarity marks.
+3.33 V ∠ 0°) where engine.placement puts them, and any polarity marks.
 Wires are ``<polyline class="wire">``; junction dots ``<circle class="junction">`` sit on
 explicit junctions and wherever three or more connections meet; regions are outlined in the
 accent colour with a light fill; a collapsed block shows its equivalent at the analysis
@@ -22,10 +22,11 @@ from collections import Counter, defaultdict
 from collections.abc import Iterable, Sequence
 from itertools import pairwise
 
-from .captions import block_caption, drawn_form, value_caption
+from .captions import block_caption, drawn_form
 from .errors import CircuitError, ValueParseError
 from .mna import describe_freq
 from .palette import PALETTE, Palette
+from .placement import PlacedCaption, Placement
 from .schematic.connectivity import block_equivalent
 from .schematic.document import Document
 from .schematic.model import Block, NetLabel, PlacedPart, Region
@@ -191,10 +192,14 @@ def _element_group(parent: ET.Element, cls: str, element_id: str, tooltip: str) 
     return group
 
 
-def _draw_part(sheet: _Sheet, part: PlacedPart, style: str, ac: bool) -> None:
+def _draw_part(sheet: _Sheet, part: PlacedPart, style: str,
+               captions: Iterable[PlacedCaption]) -> None:
+    """The part's symbol and its captions where engine.placement put them."""
     group = _element_group(sheet.layer("parts"), "part", part.id, part.designator)
-    texts = {"designator": [part.designator], "value": [value_caption(part, ac=ac)]}
-    _draw_symbol(sheet, group, part.kind, part.at, part.rotation, part.mirror, style, texts=texts)
+    _draw_symbol(sheet, group, part.kind, part.at, part.rotation, part.mirror, style, texts={})
+    for c in captions:
+        colour = sheet.palette.muted if c.role == "value" else sheet.palette.text
+        sheet.text(group, c.lines, c.at, c.align, colour=colour, cls=c.role)
 
 
 def _draw_block(sheet: _Sheet, block: Block, style: str, freq: float) -> None:
@@ -337,8 +342,9 @@ def document_svg(doc: Document, *, style: str = "iec", title: str | None = None,
         xs, ys = zip(*wire.points, strict=True)
         sheet.grow((min(xs), min(ys), max(xs), max(ys)))
     sheet.layer("parts", **ink)
+    placement = Placement.of(doc, style, ac=freq_hz > 0)
     for part in doc.parts():
-        _draw_part(sheet, part, style, ac=freq_hz > 0)
+        _draw_part(sheet, part, style, placement.captions[part.id].values())
     sheet.layer("blocks", **ink)
     for block in doc.blocks():
         _draw_block(sheet, block, style, freq_hz)

@@ -31,7 +31,6 @@ from functools import cache
 __all__ = [
     "ALIGNS",
     "BLOCK_FORMS",
-    "CHAR_WIDTH",
     "COUPLING_DOT_RADIUS",
     "FONT_SIZE",
     "JUNCTION_RADIUS",
@@ -57,6 +56,7 @@ __all__ = [
     "symbol",
     "text_baselines",
     "text_bounds",
+    "text_width",
     "transform",
 ]
 
@@ -316,20 +316,28 @@ def text_baselines(at: FPoint, align: str, lines: int,
     return h, [(x + dx, first + i * pitch) for i in range(lines)]
 
 
-#: Average advance of a character, in font sizes: the text-width estimate that the SVG writer's
-#: extent and the block layout's clearances share.
-CHAR_WIDTH = 0.6
+#: Advance of characters in font sizes, rounded up from common sans-serif faces: narrow,
+#: wide, capitals, and everything else (digits, most lower case, Ω, µ).
+NARROW, WIDE, CAPITAL, OTHER = " .,:;'|!·ijlrtf()[]-", "mwMW∠", 0.74, 0.66
+NARROW_WIDTH, WIDE_WIDTH = 0.4, 1.0
+
+
+def text_width(line: str) -> float:
+    """The estimated advance of ``line`` in font sizes (a width per kind of character, a little
+    wider than the sans-serif fonts used draw them, so the engine needs no font machinery)."""
+    return sum(NARROW_WIDTH if c in NARROW else WIDE_WIDTH if c in WIDE
+               else CAPITAL if c.isupper() else OTHER for c in line)
 
 
 def text_bounds(at: FPoint, align: str, lines: tuple[str, ...] | list[str],
                 font_size: float) -> Bounds:
     """Estimated box of upright ``lines`` set at an anchor by :func:`text_baselines` (same
-    units as ``at``): each line :data:`CHAR_WIDTH` font sizes per character wide, from a font
-    size above its baseline to 0.3 below."""
+    units as ``at``): each line :func:`text_width` wide, from a font size above its baseline to
+    0.3 below."""
     how, baselines = text_baselines(at, align, len(lines), font_size)
     boxes = []
     for line, (x, y) in zip(lines, baselines, strict=True):
-        width = CHAR_WIDTH * font_size * len(line)
+        width = text_width(line) * font_size
         left = {"start": x, "middle": x - width / 2, "end": x - width}[how]
         boxes.append((left, y - font_size, left + width, y + 0.3 * font_size))
     return _union(boxes)

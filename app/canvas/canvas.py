@@ -8,10 +8,12 @@ select all, step through elements) are what both the tools and the window's acti
 from __future__ import annotations
 
 from collections.abc import Iterable
+from dataclasses import replace
 
 from PySide6.QtCore import QMimeData, QObject, QPointF, Qt, Signal
 from PySide6.QtGui import QUndoCommand
 
+from portcut.engine.placement import dragged
 from portcut.engine.schematic import (
     Block,
     Connectivity,
@@ -26,7 +28,7 @@ from portcut.engine.schematic.connectivity import joined_nets
 from portcut.engine.symbols import Point
 
 from ..clipboard import copyable, elements_from, mime_for
-from ..commands import AddElements, MoveElements, delete_command
+from ..commands import AddElements, MoveElements, ReplaceElements, delete_command
 from ..editing import RigidMap, anchor_points, center_of, paste, plan_delete, plan_placement
 from ..sheet import element_pins
 from ..workbench import Workbench
@@ -197,6 +199,16 @@ class Canvas(QObject):
         plan = plan_placement(self.doc, self.scene.index, ids, m)
         self.push(MoveElements(self.doc, ids, plan, f"{verb} {self._describe(ids)}"))
         self.scene.select_ids(ids)
+
+    def drag_caption(self, part_id: str, role: str, shift: tuple[float, float]) -> None:
+        """Keep the caption ``role`` of a part where the user dropped it, ``shift`` grid units
+        from where it was (one undo step; the file keeps the offset)."""
+        part = self.doc[part_id]
+        caption = self.scene.look.placement.captions.get(part_id, {}).get(role)
+        if caption is None or shift == (0, 0):
+            return
+        new = replace(part, captions=dragged(part, caption, shift))
+        self.push(ReplaceElements(self.doc, [new], f"Move {part.designator} {role} caption"))
 
     def delete_selection(self) -> None:
         ids = self.scene.selected_ids()

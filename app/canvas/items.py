@@ -4,13 +4,14 @@ An item keeps the last version of its element it was given (:meth:`ElementItem.s
 derives all geometry from it, engine.symbols and the scene's :class:`Look`; it holds no state of
 its own. Items are Qt's native path, text and ellipse items, so painting runs in C++ and Python
 is involved only when an element changes; symbols come from engine.symbols only (painting.py
-turns them into paths), captions from engine.captions.
+turns them into paths), caption texts from engine.captions and where a part's captions go from
+engine.placement (the scene keeps one :class:`~engine.placement.Placement` in the Look).
 """
 
 from __future__ import annotations
 
 from collections.abc import Iterable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import cache
 
 from PySide6.QtCore import QPointF, QRectF, Qt
@@ -25,10 +26,11 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from portcut.engine.captions import block_caption, value_caption
+from portcut.engine.captions import block_caption
 from portcut.engine.errors import CircuitError
+from portcut.engine.placement import Placement, part_texts
 from portcut.engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
-from portcut.engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point
+from portcut.engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point, TextAnchor
 from portcut.engine.units import parse_value
 
 from ..theme import LIGHT, Theme
@@ -65,6 +67,7 @@ class Look:
     freq: float = 0.0
     coupled: frozenset[str] = field(default_factory=frozenset)
     captions: bool = True
+    placement: Placement = field(default_factory=Placement)
 
     @property
     def ac(self) -> bool:
@@ -183,16 +186,22 @@ class SymbolItem(ElementItem):
         self._dash = self._child_path(self._dash, placed.dashed)
         self._fill = self._child_path(self._fill, placed.fills_with_dot if self.shows_dot()
                                       else placed.fills)
-        texts = self.texts()
-        captions: list[Caption] = []
-        for anchor in placed.anchors:
-            if texts.get(anchor.role):
-                captions += layout(anchor, tuple(texts[anchor.role]), FONT_SIZE, rotation,
-                                   mirror)
+        captions = self.caption_layout(placed.anchors, rotation, mirror)
         # the body (for picking) stays inside the stroke's bounds, so that Qt's index, which
         # goes by bounds, finds every pick (the pointer's reach covers the edge)
         self._body = placed.strokes.boundingRect()
         self._set_captions(captions)
+
+    def caption_layout(self, anchors: tuple[TextAnchor, ...], rotation: int,
+                       mirror: bool) -> list[Caption]:
+        """The captions at the symbol's own anchors (item coordinates)."""
+        texts = self.texts()
+        captions: list[Caption] = []
+        for anchor in anchors:
+            if texts.get(anchor.role):
+                captions += layout(anchor, tuple(texts[anchor.role]), FONT_SIZE, rotation,
+                                   mirror)
+        return captions
 
     def _set_captions(self, captions: list[Caption]) -> None:
         """Reuse the caption items (a sync usually changes one text, or none)."""
@@ -254,6 +263,18 @@ class SymbolItem(ElementItem):
         path.addRect(self._body)
         return path
 
+    def caption_role(self, child: QGraphicsItem) -> str:
+        """The role of the caption ``child`` ("" when it is not one of this item's captions)."""
+        return next((role for text, role in self._texts if text is child and role), "")
+
+    def shift_caption(self, role: str, offset: QPointF) -> None:
+        """Draw the caption of ``role`` ``offset`` scene units from where it is laid out (a
+        caption being dragged); a relayout puts it back."""
+        self.relayout()
+        for text, r in self._texts:
+            if r == role:
+                text.setPos(text.pos() + offset)
+
     def captions(self) -> list[str]:
         """The texts shown beside the symbol."""
         return [text.text() for text, role in self._texts if role]
@@ -267,8 +288,8 @@ def _valued(part: PlacedPart) -> PlacedPart:
 
 
 @cache
-def _caption(valued: PlacedPart, ac: bool) -> str:
-    return value_caption(valued, ac=ac)
+def _texts(valued: PlacedPart, ac: bool) -> dict[str, tuple[str, ...]]:
+    return part_texts(valued, ac=ac)
 
 
 @cache
@@ -294,12 +315,18 @@ class PartItem(SymbolItem):
 
     def texts(self) -> dict[str, list[str]]:
         part: PlacedPart = self.element
-        value = _caption(_valued(part), self.look.ac)
-        if not value and part.kind != "opamp":
-            value = "no value"
-        if part.kind == "coupling" and part.couples:
-            return {"designator": [part.designator], "value": [value, " · ".join(part.couples)]}
-        return {"designator": [part.designator], "value": [value] if value else []}
+        valued = replace(_valued(part), designator=part.designator, couples=part.couples)
+        return {role: list(lines) for role, lines in _texts(valued, self.look.ac).items()}
+
+    def caption_layout(self, anchors: tuple[TextAnchor, ...], rotation: int,
+                       mirror: bool) -> list[Caption]:
+        """The captions where engine.placement put them; a part not yet in the document (a
+        preview of a new part) has them at its symbol's anchors."""
+        placed = None if self.preview else self.look.placement.around(self.element.id)
+        if placed is None:
+            return super().caption_layout(anchors, rotation, mirror)
+        return [c for p in placed
+                for c in layout(TextAnchor(p.role, p.at, p.align), p.lines, FONT_SIZE)]
 
     def text_colours(self, theme: Theme) -> dict[str, str]:
         return {"value": theme.value if _readable(_valued(self.element)) else theme.error}

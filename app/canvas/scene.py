@@ -14,6 +14,7 @@ from PySide6.QtGui import QColor, QPainter, QPen
 from PySide6.QtWidgets import QGraphicsEllipseItem, QGraphicsItem, QGraphicsScene
 
 from portcut.engine.errors import CircuitError
+from portcut.engine.placement import Placement
 from portcut.engine.schematic import Change, Document, Element, PlacedPart
 from portcut.engine.symbols import Point
 from portcut.engine.units import parse_frequency
@@ -85,6 +86,7 @@ class SchematicScene(QGraphicsScene):
         self._preview_items.clear()  # clear() removed them
         self.doc = doc
         self.index = SheetIndex(doc)
+        self.look.placement = Placement.of(doc, self.look.style, self.look.ac)
         self._couplings = {p.id: p.couples for p in doc.parts() if p.kind == "coupling"}
         self.look.coupled = self._coupled()
         self.look.freq = _frequency(doc)
@@ -105,6 +107,10 @@ class SchematicScene(QGraphicsScene):
 
     def _on_change(self, change: Change) -> None:
         self.end_preview()
+        if change.analysis:
+            self.look.freq = _frequency(self.doc)
+        recaptioned = self.look.placement.update(
+            self.doc, (*change.removed, *change.updated, *change.added))
         touched: set[Point] = set()
         couplings_before = dict(self._couplings)
         renamed_inductor = False
@@ -131,11 +137,13 @@ class SchematicScene(QGraphicsScene):
             touched |= self.index.touch_points(new)
             self._track_coupling(new)
             self._extent |= self._add_item(new).sceneBoundingRect()
+        for eid in recaptioned.difference(change.updated, change.added):
+            if eid in self._items:
+                self._items[eid].relayout()
         self._update_dots(touched)
         if self._couplings != couplings_before or renamed_inductor:
             self._refresh_coupled()
         if change.analysis:
-            self.look.freq = _frequency(self.doc)
             self.relayout()
         self._apply_extent()
 
@@ -178,6 +186,7 @@ class SchematicScene(QGraphicsScene):
     # -- looks --------------------------------------------------------------------------------
     def relayout(self) -> None:
         """Redraw every item after a change of theme, symbol style or frequency."""
+        self.look.placement = Placement.of(self.doc, self.look.style, self.look.ac)
         for item in self._items.values():
             item.sync(item.element)
         for tile in self._tiles.values():
@@ -208,14 +217,36 @@ class SchematicScene(QGraphicsScene):
         return rect
 
     def element_at(self, pos: QPointF, tolerance: float) -> ElementItem | None:
-        """The topmost selectable element item within ``tolerance`` scene units of ``pos``."""
+        """The topmost selectable element item within ``tolerance`` scene units of ``pos``: a
+        body or wire first, else the part whose caption is there."""
         box = QRectF(pos.x() - tolerance, pos.y() - tolerance, 2 * tolerance, 2 * tolerance)
+        by_caption: ElementItem | None = None
         for hit in self.items(box, Qt.ItemSelectionMode.IntersectsItemShape,
                               Qt.SortOrder.DescendingOrder):
             item = element_item(hit)
-            if item is not None and not item.preview and (
+            if item is None or item.preview or not (
                     item.flags() & item.GraphicsItemFlag.ItemIsSelectable):
+                continue
+            if hit is item:
                 return item
+            # a caption (a child item) picks its part only where no body is under the pointer
+            by_caption = by_caption or item
+        return by_caption
+
+    def caption_at(self, pos: QPointF, tolerance: float) -> tuple[PartItem, str] | None:
+        """The part and caption role picked at ``pos`` when it is a part's caption that is
+        picked there (no body under the pointer), else None."""
+        item = self.element_at(pos, tolerance)
+        if not isinstance(item, PartItem):
+            return None
+        box = QRectF(pos.x() - tolerance, pos.y() - tolerance, 2 * tolerance, 2 * tolerance)
+        for hit in self.items(box, Qt.ItemSelectionMode.IntersectsItemShape,
+                              Qt.SortOrder.DescendingOrder):
+            if hit is item:
+                return None
+            role = item.caption_role(hit)
+            if role:
+                return item, role
         return None
 
     # -- selection ----------------------------------------------------------------------------

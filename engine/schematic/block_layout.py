@@ -146,9 +146,18 @@ class Obstacles:
     def of(cls, doc: Document, conn: Connectivity, *, style: str = "iec",
            freq: float = 0.0) -> Obstacles:
         """The drawing of ``doc``, its captions as they read at ``freq`` hertz."""
+        # the captions where the drawing puts them (placement reads the document package,
+        # which holds this module, so it is imported when first needed)
+        from ..placement import Placement
+
+        placement = Placement.of(doc, style, ac=freq > 0)
         found = cls()
         for element in doc:
-            if isinstance(element, PlacedPart | NetLabel):
+            if isinstance(element, PlacedPart):
+                found.boxes.append(placed_bounds(element.kind, element.at, element.rotation,
+                                                 element.mirror, style=style))
+                found.boxes += [c.box for c in placement.captions[element.id].values()]
+            elif isinstance(element, NetLabel):
                 found.boxes += element_boxes(element, style, freq > 0)
             elif isinstance(element, Block):
                 found.boxes += _drawn_block(element, style, freq)

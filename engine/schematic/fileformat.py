@@ -21,6 +21,7 @@ from ..units import parse_frequency, parse_value
 from .document import Document
 from .model import (
     ANALYSIS_FORMS,
+    CAPTION_ROLES,
     PART_KINDS,
     ROTATIONS,
     Analysis,
@@ -50,10 +51,14 @@ __all__ = [
 
 FORMAT = "portcut-schematic"
 #: The newest file version this program writes and reads.
-VERSION = 2
+VERSION = 3
 #: The first version whose regions may hold a chosen port; a file without one is written as
 #: version 1, which older programs read.
 PORT_VERSION = 2
+#: The first version whose parts may hold dragged caption offsets.
+CAPTION_VERSION = 3
+#: Largest caption offset from its part, grid units.
+CAPTION_REACH = 1000.0
 #: Largest grid coordinate (in either direction) a file may hold.
 COORD_LIMIT = 1_000_000
 #: Deepest nesting of collapsed blocks inside collapsed blocks.
@@ -64,7 +69,7 @@ _BASES = ("peak", "rms")
 _WIDTH = 120  # characters per line of the file: one element a line, mostly
 # Optional fields and the values they take when absent; the writer leaves out defaults.
 _PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
-                  "couples": []}
+                  "couples": [], "captions": {}}
 _LABEL_DEFAULTS = {"rotation": 0, "style": "label"}
 _REGION_DEFAULTS = {"outline": [], "swap": False, "port": None}
 _BLOCK_DEFAULTS = {"rotation": 0, "mirror": False, "stubs": []}
@@ -103,8 +108,11 @@ def _document_data(doc: Document) -> Data:
 
 def _version_needed(doc: Document) -> int:
     """The lowest file version that holds ``doc``: 1 unless a region (on the sheet or inside
-    a collapsed block) has a chosen port."""
+    a collapsed block) has a chosen port, 3 where a part has a dragged caption."""
     regions = (*doc.regions(), *(e for e in doc.collapsed() if isinstance(e, Region)))
+    parts = (*doc.parts(), *(e for e in doc.collapsed() if isinstance(e, PlacedPart)))
+    if any(p.captions for p in parts):
+        return CAPTION_VERSION
     return PORT_VERSION if any(r.port is not None for r in regions) else 1
 
 
@@ -121,7 +129,9 @@ def _contents_data(parts, wires, junctions, labels, blocks) -> Data:
         "parts": [_trimmed({"id": p.id, "kind": p.kind, "designator": p.designator,
                             "at": list(p.at), "rotation": p.rotation, "mirror": p.mirror,
                             "value": p.value, "phase_deg": p.phase_deg, "control": p.control,
-                            "couples": list(p.couples)}, _PART_DEFAULTS) for p in parts],
+                            "couples": list(p.couples),
+                            "captions": {role: [dx, dy] for role, dx, dy in p.captions}},
+                           _PART_DEFAULTS) for p in parts],
         "wires": [{"id": w.id, "points": _points(w.points)} for w in wires],
         "junctions": [{"id": j.id, "at": list(j.at)} for j in junctions],
         "labels": [_trimmed({"id": n.id, "name": n.name, "at": list(n.at),
@@ -278,7 +288,7 @@ class _Scope:
 
 def _elements(data: Data, base: str, depth: int, designators: dict[str, str],
               version: int) -> Iterator[tuple[str, Element]]:
-    yield from _each(data, "parts", _part, base)
+    yield from _each(data, "parts", lambda d, p: _part(d, p, version), base)
     yield from _each(data, "wires", _wire, base)
     yield from _each(data, "junctions", _junction, base)
     yield from _each(data, "labels", _label, base)
@@ -296,7 +306,7 @@ def _each(data: Data, key: str, read: Callable[[Any, str], Element],
         yield f"{path}[{i}]", read(item, f"{path}[{i}]")
 
 
-def _part(data: Any, path: str) -> PlacedPart:
+def _part(data: Any, path: str, version: int) -> PlacedPart:
     d = _fields(data, path, required=("id", "kind", "designator", "at"), defaults=_PART_DEFAULTS)
     kind = _choice(d["kind"], f"{path}.kind", PART_KINDS)
     designator = _text(d["designator"], f"{path}.designator")
@@ -309,7 +319,28 @@ def _part(data: Any, path: str) -> PlacedPart:
         _id(d["id"], f"{path}.id"), kind, designator, _point(d["at"], f"{path}.at"),
         _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
         _bool(d["mirror"], f"{path}.mirror"), value, phase, _text(d["control"], f"{path}.control"),
-        tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)))
+        tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)),
+        _captions(d["captions"], f"{path}.captions", version))
+
+
+def _captions(value: Any, path: str, version: int) -> tuple[tuple[str, float, float], ...]:
+    """Dragged caption offsets: ``{"designator": [dx, dy], "value": [dx, dy]}``."""
+    if not isinstance(value, dict):
+        raise DocumentError(f"{path}: expected an object of caption offsets, got "
+                            f"{_shown(value)}")
+    if value and version < CAPTION_VERSION:
+        raise DocumentError(f"{path}: caption offsets need file version {CAPTION_VERSION} or "
+                            f"later; this file says version {version}")
+    out = []
+    for role, offset in value.items():
+        _choice(role, f"{path}", CAPTION_ROLES)
+        pair = _list(offset, f"{path}.{role}")
+        if len(pair) != 2 or not all(type(c) in (int, float) and abs(c) <= CAPTION_REACH
+                                     for c in pair):
+            raise DocumentError(f"{path}.{role}: expected an offset [dx, dy] of numbers from "
+                                f"-{CAPTION_REACH:g} to {CAPTION_REACH:g}, got {_shown(offset)}")
+        out.append((role, float(pair[0]), float(pair[1])))
+    return tuple(sorted(out))
 
 
 def _readable(text: str, path: str, what: str) -> None:

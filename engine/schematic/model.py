@@ -12,6 +12,7 @@ from ..symbols import Point
 
 __all__ = [
     "ANALYSIS_FORMS",
+    "CAPTION_ROLES",
     "PART_KINDS",
     "Analysis",
     "Block",
@@ -31,6 +32,8 @@ PART_KINDS: tuple[str, ...] = (
     "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling",
 )
 ANALYSIS_FORMS = ("thevenin", "norton")
+#: The captions of a part that are placed automatically and may be dragged.
+CAPTION_ROLES = ("designator", "value")
 ROTATIONS = (0, 90, 180, 270)
 
 
@@ -41,6 +44,9 @@ class PlacedPart:
     ``value``: resistance, capacitance, inductance, impedance, source magnitude, or gain, as
     text. ``phase_deg``: source phase in degrees (text, "" for 0). ``control``: the designator
     whose current controls a CCVS/CCCS. ``couples``: the two inductor designators of a coupling.
+    ``captions``: (role, dx, dy) for each caption the user dragged: its anchor point (text
+    centred on it) relative to ``at``, grid units; the other captions are placed automatically
+    (engine.placement).
     """
 
     id: str
@@ -53,6 +59,7 @@ class PlacedPart:
     phase_deg: str = ""
     control: str = ""
     couples: tuple[str, ...] = ()
+    captions: tuple[tuple[str, float, float], ...] = ()
 
 
 @dataclass(frozen=True, slots=True)

@@ -148,6 +148,28 @@ def test_a_chosen_port_kept_inside_a_collapsed_block_needs_version_2_too() -> No
     assert loads(text).blocks()[0].region.port == ("R3.a", "0")
 
 
+def test_a_dragged_caption_is_written_as_version_3_and_read_back() -> None:
+    doc = rich_document()
+    part = doc.parts()[0]
+    doc.replace_fields(part.id, captions=(("value", 1.5, -2.25),))
+    text = dumps(doc)
+    data = json.loads(text)
+    assert data["version"] == fileformat.CAPTION_VERSION == fileformat.VERSION == 3
+    assert data["parts"][0]["captions"] == {"value": [1.5, -2.25]}
+    assert loads(text) == doc
+    doc.replace_fields(part.id, captions=())  # placed automatically again: no field
+    assert "captions" not in json.loads(dumps(doc))["parts"][0]
+
+
+def test_a_caption_offset_for_an_unknown_role_is_refused_by_path() -> None:
+    data = json.loads(dumps(rich_document()))
+    data["version"] = 3
+    data["parts"][0]["captions"] = {"name": [0, 1]}
+    with pytest.raises(DocumentError, match=r'^parts\[0\]\.captions: expected one of '
+                                            '"designator", "value", got "name"'):
+        loads(json.dumps(data))
+
+
 def test_an_in_memory_region_with_a_bad_port_is_refused_by_name() -> None:
     doc = rich_document()
     with pytest.raises(DocumentError, match=r"^Region r2: swap: a chosen port gives plus and "
@@ -342,9 +364,14 @@ REFUSALS = [
      'analysis.basis: expected one of "peak", "rms", got "average"'),
     (setter("parts", value={}), "parts: expected a list, got {}"),
     (setter("title", value=7), "title: expected text, got 7"),
-    (setter("version", value=3),
-     "written by a newer Portcut (version 3); this program reads up to version 2"),
-    (setter("version", value="1"), 'version: expected a whole number from 1 to 2, got "1"'),
+    (setter("version", value=4),
+     "written by a newer Portcut (version 4); this program reads up to version 3"),
+    (setter("version", value="1"), 'version: expected a whole number from 1 to 3, got "1"'),
+    (setter("parts", 0, "captions", value={"value": [1, -2]}),
+     "parts[0].captions: caption offsets need file version 3 or later; this file says "
+     "version 1"),
+    (setter("parts", 0, "captions", value=[1, 2]),
+     "parts[0].captions: expected an object of caption offsets, got [1, 2]"),
     (setter("regions", 0, "port", value={"plus": "v_out", "minus": "0"}),
      "regions[0].port: a chosen port needs file version 2 or later; this file says version 1"),
     (chosen_port({"plus": "v_out", "minus": "0"}, swap=True),

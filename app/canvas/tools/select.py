@@ -1,5 +1,6 @@
 """Selecting and moving: click, Shift/Ctrl-click, rubber band, drag to move (wires follow), drag
-from a pin to draw a wire; arrows nudge the selection, Tab steps through elements.
+from a pin to draw a wire, drag a part's caption to keep it elsewhere; arrows nudge the
+selection, Tab steps through elements.
 
 A rubber band dragged to the right selects what lies wholly inside it; dragged to the left, what
 it touches (common practice in drawing tools). A move shows a preview while dragging and becomes
@@ -19,7 +20,7 @@ from PySide6.QtWidgets import QApplication, QGraphicsRectItem, QToolTip
 from portcut.engine.schematic import Connectivity, Element, extract
 
 from ...theme import qcolor
-from ..grid import snap
+from ..grid import UNIT, snap
 from ..items import Z_PREVIEW, ElementItem
 from .base import CanvasEvent, Tool
 from .wire import WireDraft
@@ -56,6 +57,7 @@ class SelectTool(Tool):
         self._pointer = QPointF()
         self._join_timer = QTimer(canvas, singleShot=True, interval=JOIN_PAUSE_MS)
         self._join_timer.timeout.connect(self._check_joins)
+        self._caption: tuple[ElementItem, str] | None = None
 
     @property
     def status(self) -> str:
@@ -67,6 +69,8 @@ class SelectTool(Tool):
             if self._joins:
                 return f"Move: {self._joins} · release to drop anyway · Esc puts it back"
             return "Move: release to drop · Esc puts it back"
+        if self._mode == "caption":
+            return "Caption: release to keep it there (the file keeps the spot)"
         if self.canvas.scene.selected_ids():
             return ("Drag to move · arrows nudge · R rotates · M mirrors · Delete removes · "
                     "double-click or F2 edits the value · Esc clears the selection")
@@ -84,7 +88,12 @@ class SelectTool(Tool):
             self._mode, self._pin = "pin", pin
             return
         item = scene.element_at(ev.scene_pos, self.canvas.pick_tolerance())
-        if item is None:
+        caption = None if ev.keyboard or ev.adds else scene.caption_at(
+            ev.scene_pos, self.canvas.pick_tolerance())
+        if caption is not None:
+            scene.select_ids([caption[0].element_id])
+            self._mode, self._caption = "caption-pending", caption
+        elif item is None:
             if not ev.adds:
                 scene.select_ids([])
             self._mode = "band"
@@ -99,6 +108,13 @@ class SelectTool(Tool):
 
     def move(self, ev: CanvasEvent) -> None:
         if self._origin is None:
+            return
+        if self._mode == "caption-pending" and self._dragged(ev):
+            self._mode = "caption"
+            self.announce()
+        if self._mode == "caption":
+            item, role = self._caption
+            item.shift_caption(role, ev.scene_pos - self._origin.scene_pos)
             return
         if self._mode in ("pending", "pin") and self._dragged(ev):
             if self._mode == "pin":
@@ -116,7 +132,13 @@ class SelectTool(Tool):
 
     def release(self, ev: CanvasEvent) -> None:
         mode, self._mode = self._mode, ""
-        if mode == "move":
+        caption, self._caption = self._caption, None
+        if mode == "caption":
+            item, role = caption
+            d = ev.scene_pos - self._origin.scene_pos
+            item.relayout()
+            self.canvas.drag_caption(item.element_id, role, (d.x() / UNIT, d.y() / UNIT))
+        elif mode == "move":
             if self._offset != (0, 0):
                 self.canvas.move_selection(self._offset)
             else:
@@ -263,6 +285,9 @@ class SelectTool(Tool):
         elif mode == "wire":
             self._draft.cancel()
             self._draft = None
+        elif mode in ("caption", "caption-pending"):
+            self._caption[0].relayout()
+            self._caption = None
         elif self.canvas.scene.selected_ids():
             self.canvas.scene.select_ids([])
         else:
