@@ -34,6 +34,7 @@ from .model import (
     Wire,
     port_problem,
 )
+from .text import text_problem
 
 __all__ = [
     "COORD_LIMIT",
@@ -441,6 +442,9 @@ def _fields(data: Any, path: str, required: tuple[str, ...] = (),
 def _text(value: Any, path: str) -> str:
     if not isinstance(value, str):
         raise DocumentError(f"{path}: expected text, got {_shown(value)}")
+    problem = text_problem(value)
+    if problem:
+        raise DocumentError(f"{path}: {problem}")
     return value
 
 
@@ -501,4 +505,6 @@ def _shown(value: Any) -> str:
         text = json.dumps(value, ensure_ascii=False)
     except RecursionError:  # nested almost as deep as the decoder allows
         return f"a deeply nested {_json_type(value)}"
+    if text_problem(text):  # a message must be printable and storable itself
+        text = json.dumps(value)
     return text if len(text) <= 40 else text[:37] + "..."

@@ -473,6 +473,47 @@ def test_mangled_files_meet_only_document_error(text: str | bytes) -> None:
     assert loads(dumps(doc)) == doc  # what was accepted is a valid document
 
 
+def _value_at(data: Any, path: tuple) -> Any:
+    for key in path:
+        data = data[key]
+    return data
+
+
+TEXT_PATHS = [p for p in BASE_PATHS
+              if isinstance(_value_at(json.loads(BASE), p), str) and p != ("format",)]
+
+
+@pytest.mark.parametrize("path", TEXT_PATHS, ids=lambda p: ".".join(map(str, p)))
+def test_a_lone_surrogate_in_any_text_is_refused_by_its_path(path: tuple) -> None:
+    # a lone surrogate has no UTF-8 encoding (Unicode 15, section 3.9, D92), so no file holds it
+    text = mangled(setter(*path, value=_value_at(json.loads(BASE), path) + "\udfff"))
+    with pytest.raises(DocumentError) as caught:
+        loads(text)
+    message = str(caught.value)
+    message.encode("utf-8")  # the message itself can be shown and stored
+    where = re.escape(path[0] + "".join(f"[{k}]" if isinstance(k, int) else f".{k}"
+                                        for k in path[1:]))
+    assert re.match(rf"^{where}: (character \d+ is U\+DFFF|expected one of)", message), message
+
+
+def test_a_lone_surrogate_escaped_in_the_file_bytes_is_refused_and_saving_never_fails(
+        tmp_path: Path) -> None:
+    raw = BASE.replace('"title": "', '"title": "\\ud800', 1).encode("utf-8")
+    with pytest.raises(DocumentError, match=r"^title: character 1 is U\+D800, half of a UTF-16 "
+                                            r"surrogate pair"):
+        loads(raw)
+    with pytest.raises(DocumentError, match=r"^title: character 3 is U\+DFFF"):
+        Document("ab\udfff")
+    doc = rich_document()
+    with pytest.raises(DocumentError, match=r"^title: "):
+        doc.set_title("x\udfff")
+    part = doc.parts()[0]
+    with pytest.raises(DocumentError, match=rf"^PlacedPart {part.id}: value: character 2 is "):
+        doc.replace(replace(part, value="1\udfff"))
+    assert doc == rich_document()  # nothing was taken
+    save(doc, tmp_path / "kept.json")
+
+
 # -- loading from disk --------------------------------------------------------------------------
 def test_load_names_the_file_in_every_refusal(tmp_path: Path) -> None:
     path = tmp_path / "bad.json"
