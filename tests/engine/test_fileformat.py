@@ -7,8 +7,10 @@ import itertools
 import json
 import os
 import re
+import signal
 import stat
 import string
+import subprocess
 import sys
 from collections.abc import Iterator
 from dataclasses import replace
@@ -20,8 +22,13 @@ from drawing_strategies import orthogonal_polylines
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+try:
+    import fcntl
+except ImportError:  # not POSIX
+    fcntl = None
+
 import assets
-from engine import DocumentError
+from engine import DocumentError, atomic
 from engine.schematic import (
     Analysis,
     Block,
@@ -564,13 +571,51 @@ def test_a_failed_save_keeps_the_old_file_and_leaves_no_temporary(
     assert load(saved) == rich_document()
 
 
+def _killed_during_save(target: Path) -> None:
+    """Save to ``target`` in a child process that is killed (SIGKILL) once its bytes are
+    written but before the rename, as a crash or a power cut would stop it."""
+    script = ("import os, signal, sys\n"
+              "from engine.schematic import Document\n"
+              "from engine.schematic.fileformat import save\n"
+              "os.fsync = lambda fd: os.kill(os.getpid(), signal.SIGKILL)\n"
+              "save(Document('Killed'), sys.argv[1])\n")
+    done = subprocess.run([sys.executable, "-c", script, str(target)], check=False,
+                          cwd=Path(__file__).resolve().parents[2], capture_output=True)
+    assert done.returncode == -signal.SIGKILL, done.stderr
+
+
+@pytest.mark.skipif(not hasattr(signal, "SIGKILL") or fcntl is None, reason="POSIX only")
+def test_the_next_save_removes_what_a_killed_save_left(saved: Path) -> None:
+    _killed_during_save(saved)
+    left = [p.name for p in saved.parent.iterdir() if p.name != "circuit.json"]
+    assert len(left) == 1 and re.fullmatch(r"\.circuit\.json\.[0-9a-f]{12}\.tmp", left[0])
+    assert load(saved) == rich_document()  # the kill changed nothing
+    folder = saved.parent
+    others = [".other.json.0123456789ab.tmp", ".circuit.json.0123456789aZ.tmp", "notes.tmp"]
+    for name in others:
+        (folder / name).write_text("x", encoding="utf-8")
+    live = folder / ".circuit.json.00000000000f.tmp"  # a save of another process, under way
+    fd = os.open(live, os.O_WRONLY | os.O_CREAT)
+    fcntl.flock(fd, fcntl.LOCK_EX)
+    try:
+        save(Document("Next"), saved)
+        assert sorted(p.name for p in folder.iterdir()) == sorted(
+            ["circuit.json", live.name, *others])
+    finally:
+        os.close(fd)
+    assert load(saved).title == "Next"
+    assert atomic.remove_stale_temporaries(folder) == 2  # any target's, the lock now released
+    assert sorted(p.name for p in folder.iterdir()) == sorted(
+        ["circuit.json", ".circuit.json.0123456789aZ.tmp", "notes.tmp"])
+
+
 def test_a_failed_write_keeps_the_old_file(saved: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     before = saved.read_bytes()
     real_fdopen = os.fdopen
 
     class Full:
-        def __init__(self, fd: int, *args: Any) -> None:
-            self.f = real_fdopen(fd, *args)
+        def __init__(self, fd: int, *args: Any, **kwargs: Any) -> None:
+            self.f = real_fdopen(fd, *args, **kwargs)
 
         def __enter__(self):
             return self
