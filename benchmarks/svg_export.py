@@ -1,5 +1,7 @@
 """SVG export benchmark: engine.svg.document_svg on generated ladder sheets of 2,000 and 20,000
-parts (benchmarks/canvas.py's generator: two parts, two wires and a tee per cell).
+parts (benchmarks/canvas.py's generator: two parts, two wires and a tee per cell), laid out in
+rows of 40 cells and as one long row (every tee on one rail: where a count of the segments
+through each point per line grows with the square of the line's length).
 
 For each size it prints the export's time per part beside a floor measured in the same run: an
 ElementTree tree with one group, one polyline and one text per part and one polyline per wire,
@@ -56,20 +58,21 @@ def main(argv: list[str] | None = None) -> int:
                         help="part counts, comma-separated (default 2000,20000)")
     args = parser.parse_args(argv)
     sizes = [int(s) for s in args.sizes.split(",")]
-    per_part = {}
-    print(f"{'parts':>7}  {'export':>9}  {'per part':>9}  {'floor/part':>10}  ratio")
-    for n in sizes:
-        doc = generated_sheet(n)
-        parts = len(doc.parts())
-        repeats = max(1, 20_000 // parts)
-        export = _seconds(lambda doc=doc: document_svg(doc), repeats)
-        floor = _seconds(lambda doc=doc: _floor(doc), repeats)
-        per_part[n] = export / parts
-        print(f"{parts:>7}  {export * 1e3:>7.0f}ms  {export / parts * 1e6:>7.1f}µs  "
-              f"{floor / parts * 1e6:>8.1f}µs  {export / floor:.1f}x")
-    small, large = sizes[0], sizes[-1]
-    print(f"time per part, {large} over {small} parts: {per_part[large] / per_part[small]:.2f}"
-          " (1.00 is linear; target below 2)")
+    print(f"{'layout':<12} {'parts':>7}  {'export':>9}  {'per part':>9}  {'floor/part':>10}  ratio")
+    for layout, columns in (("rows of 40", lambda n: 40), ("one row", lambda n: n // 2)):
+        per_part = {}
+        for n in sizes:
+            doc = generated_sheet(n, columns(n))
+            parts = len(doc.parts())
+            repeats = max(1, 20_000 // parts)
+            export = _seconds(lambda doc=doc: document_svg(doc), repeats)
+            floor = _seconds(lambda doc=doc: _floor(doc), repeats)
+            per_part[n] = export / parts
+            print(f"{layout:<12} {parts:>7}  {export * 1e3:>7.0f}ms  {export / parts * 1e6:>7.1f}µs"
+                  f"  {floor / parts * 1e6:>8.1f}µs  {export / floor:.1f}x")
+        small, large = sizes[0], sizes[-1]
+        print(f"{layout}: time per part, {large} over {small} parts: "
+              f"{per_part[large] / per_part[small]:.2f} (1.00 is linear; target below 2)")
     return 0
 
 
