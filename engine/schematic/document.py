@@ -252,6 +252,7 @@ class Document:
                                 f"got {analysis.form!r}")
         if analysis.basis not in ("peak", "rms"):
             raise DocumentError(f"analysis.basis: expected 'peak' or 'rms', got {analysis.basis!r}")
+        _check_texts(analysis, "analysis")
         old, self._analysis = self._analysis, analysis
         self._notify(Change(analysis=True))
         return old
@@ -317,7 +318,7 @@ def _title(title: str) -> str:
     return title
 
 
-def _check_texts(element: Element, where: str) -> None:
+def _check_texts(element: Element | Analysis, where: str) -> None:
     """Refuse text no file can store in the element's own fields (a block's contents were
     checked when they were on the sheet)."""
     for f in fields(element):

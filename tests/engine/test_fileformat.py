@@ -517,6 +517,8 @@ def test_a_lone_surrogate_escaped_in_the_file_bytes_is_refused_and_saving_never_
     part = doc.parts()[0]
     with pytest.raises(DocumentError, match=rf"^PlacedPart {part.id}: value: character 2 is "):
         doc.replace(replace(part, value="1\udfff"))
+    with pytest.raises(DocumentError, match=r"^analysis: freq: character 3 is U\+DFFF"):
+        doc.set_analysis(Analysis("1k\udfff"))
     assert doc == rich_document()  # nothing was taken
     save(doc, tmp_path / "kept.json")
 
