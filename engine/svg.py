@@ -245,8 +245,9 @@ def _draw_region(sheet: _Sheet, region: Region, doc: Document, style: str) -> No
 
 def _outline_around(region: Region, doc: Document, style: str) -> list[tuple[float, float]]:
     """A rectangle one grid unit around the members, for a region saved without an outline."""
+    members = (doc[m] for m in region.members if m in doc)  # by id: no pass over the sheet
     boxes = [placed_bounds(e.kind, e.at, e.rotation, e.mirror, style=style)
-             for e in doc if isinstance(e, PlacedPart) and e.id in region.members]
+             for e in members if isinstance(e, PlacedPart)]
     if not boxes:
         return []
     x0, y0 = min(b[0] for b in boxes) - 1, min(b[1] for b in boxes) - 1
