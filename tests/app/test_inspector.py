@@ -123,7 +123,8 @@ def test_sheet_summary_follows_parts_added_and_undone(window, drive):
 
 def test_text_no_file_can_store_is_refused_in_every_field(window, drive):
     # Qt's own strings cannot carry a lone surrogate (typing drops it), but text reaches the
-    # fields from Python too; a lone surrogate has no UTF-8 encoding (Unicode 15, 3.9 D92)
+    # fields from Python too; a lone surrogate has no UTF-8 encoding (Unicode 15, 3.9 D92;
+    # from memory)
     doc = drive.doc
     for i, kind in enumerate(("resistor", "voltage_source", "ccvs", "coupling")):
         doc.add(PlacedPart(f"p{i}", kind, f"X{i}", (10 * i, 0), value="1"))

@@ -368,7 +368,8 @@ def test_a_regions_chosen_port_is_used_unless_port_is_given(capsys, saved):
 
 @pytest.mark.skipif(sys.platform == "win32", reason="POSIX file names are bytes")
 def test_a_file_name_that_is_not_utf8_is_printed_escaped(tmp_path: Path, monkeypatch):
-    # a POSIX name is bytes; Python holds the byte 0xff of a non-UTF-8 name as U+DCFF (PEP 383)
+    # a POSIX name is bytes; Python holds the byte 0xff of a non-UTF-8 name as U+DCFF
+    # (PEP 383; from memory)
     out = tmp_path / "\udcff.svg"
     strict = io.TextIOWrapper(io.BytesIO(), encoding="utf-8", errors="strict")
     monkeypatch.setattr(sys, "stdout", strict)

@@ -31,8 +31,8 @@ VARIANTS = 3000
 CLI_EVERY = 25  # one variant in this many also goes through the command line
 EXAMPLES = {name: assets.example_path(name).read_text(encoding="utf-8")
             for name in assets.example_names()}
-# text XML cannot hold (XML 1.0 section 2.2), no UTF-8 file can store (lone surrogates), or
-# that often breaks parsers and formatters
+# text XML cannot hold (XML 1.0 section 2.2, from memory), no UTF-8 file can store (lone
+# surrogates), or that often breaks parsers and formatters
 NASTY_TEXT = ["\x00", "\x01", "\x1f", "\ufffe", "\uffff", "\udfff", "\ud800x", "<&>\"'", "]]>",
               "\u202e", "𝄞", "", " ", "\n", "R1", "0", "1e308", "-1e308", "1e-320", "nan", "inf",
               "4k7", "1T", "1e160", "1e-300", "100p", "∠", "µ"]

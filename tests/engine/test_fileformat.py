@@ -492,7 +492,7 @@ TEXT_PATHS = [p for p in BASE_PATHS
 
 @pytest.mark.parametrize("path", TEXT_PATHS, ids=lambda p: ".".join(map(str, p)))
 def test_a_lone_surrogate_in_any_text_is_refused_by_its_path(path: tuple) -> None:
-    # a lone surrogate has no UTF-8 encoding (Unicode 15, section 3.9, D92), so no file holds it
+    # a lone surrogate has no UTF-8 encoding (Unicode 15, 3.9 D92; from memory): no file holds it
     text = mangled(setter(*path, value=_value_at(json.loads(BASE), path) + "\udfff"))
     with pytest.raises(DocumentError) as caught:
         loads(text)

@@ -301,7 +301,8 @@ def test_junction_dots_match_the_rule_on_random_crowded_sheets(seed):
 
 @pytest.mark.parametrize("char", ["\x00", "\x01", "\x1f", "\ufffe", "\uffff", "\udfff"])
 def test_characters_xml_cannot_hold_never_break_the_drawing(char):
-    # XML 1.0 section 2.2 (Char production): these are outside the characters a document may hold
+    # XML 1.0 section 2.2, Char production (from memory): these are outside the characters a
+    # document may hold
     doc = _divider()
     if char < "\ud800" or char > "\udfff":  # a document refuses lone surrogates itself
         doc.replace_fields("n2", name=f"o{char}ut")
