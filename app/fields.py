@@ -18,6 +18,7 @@ from portcut.engine.captions import UNITS
 from portcut.engine.errors import DocumentError, ValueParseError
 from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart
 from portcut.engine.schematic.ports import follow_renames
+from portcut.engine.schematic.text import text_problem
 from portcut.engine.units import parse_value
 
 __all__ = ["QUANTITY", "Field", "fields_for"]
@@ -55,6 +56,10 @@ class Field:
     def write(self, doc: Document, element: Element, text: str) -> list[Element]:
         """The new elements for ``text``; raises CircuitError (ValueParseError or
         DocumentError) with the reason when the text cannot be taken."""
+        problem = text_problem(text)
+        if problem:
+            owner = getattr(element, "designator", None) or getattr(element, "name", "")
+            raise DocumentError(f"{owner} {self.title.lower()}: {problem}".lstrip())
         return self.writer(doc, element, text)
 
 

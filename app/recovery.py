@@ -5,7 +5,10 @@ Each session writes its unsaved work every :data:`INTERVAL_S` seconds to
 ``.meta.json`` beside it (where the work came from, when it was saved), and holds
 ``session-<token>.lock`` while it runs. The files go when the work is saved or the window closes
 normally. At the next start, recovery files whose session lock is no longer held (QLockFile
-recognises a lock left by a dead process as stale) are offered for restoring.
+recognises a lock left by a dead process as stale) are offered for restoring, and temporaries
+that a killed write left in the folder are removed. Restored files are kept, under a lock of
+the session that restored them, until that session has autosaved or saved the work itself, so
+a second crash before then still finds them.
 """
 
 from __future__ import annotations
@@ -18,7 +21,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QLockFile, QObject, QTimer, Signal
 
-from portcut.engine.atomic import write_atomically
+from portcut.engine.atomic import remove_stale_temporaries, write_atomically
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Document
 from portcut.engine.schematic.fileformat import load, save
@@ -39,6 +42,10 @@ class Recovered:
     source: Path | None
     saved_at: str
     title: str
+
+    @property
+    def token(self) -> str:
+        return self.document.name.removeprefix("autosave-").removesuffix(".json")
 
     def describe(self) -> str:
         name = self.source.name if self.source else f"unsaved sheet “{self.title}”"
@@ -91,8 +98,11 @@ class Recovery(QObject):
         self.document = folder / f"autosave-{token}.json"
         self.meta = folder / f"autosave-{token}.meta.json"
         folder.mkdir(parents=True, exist_ok=True)
+        remove_stale_temporaries(folder)
         self.lock = _lock(folder, token)
         self.lock.tryLock(0)
+        #: Restored work of an earlier session, held until this one has a copy of its own.
+        self.adopted: list[tuple[Recovered, QLockFile]] = []
         self.timer = QTimer(self)
         self.timer.setInterval(int(interval_s * 1000))
         self.timer.timeout.connect(self.autosave)
@@ -114,16 +124,32 @@ class Recovery(QObject):
         except (OSError, CircuitError) as exc:
             self.failed.emit(f"Autosave failed: {exc}")
             return False
+        self._release_adopted()
         return True
+
+    def adopt(self, found: Recovered) -> None:
+        """Keep ``found`` (just restored) until this session autosaves or saves the work, or
+        closes normally; its lock is held meanwhile, so no other window offers it again."""
+        lock = _lock(self.folder, found.token)
+        lock.tryLock(0)
+        self.adopted.append((found, lock))
+
+    def _release_adopted(self) -> None:
+        for found, lock in self.adopted:
+            found.discard()
+            lock.unlock()
+        self.adopted.clear()
 
     def _on_clean(self, clean: bool) -> None:
         if clean:
             self.discard()
 
     def discard(self) -> None:
-        """Remove this session's recovery files (the work is saved, or deliberately dropped)."""
+        """Remove this session's recovery files and those it restored (the work is saved, or
+        deliberately dropped)."""
         for p in (self.document, self.meta):
             p.unlink(missing_ok=True)
+        self._release_adopted()
 
     def close(self) -> None:
         """A normal end of the session: nothing to recover."""

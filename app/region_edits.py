@@ -11,6 +11,7 @@ from dataclasses import replace
 from portcut.engine.circuit import GROUND
 from portcut.engine.errors import DocumentError
 from portcut.engine.schematic import Document, Region
+from portcut.engine.schematic.text import text_problem
 
 __all__ = ["ROLES", "port_text", "renamed", "with_port_net"]
 
@@ -24,6 +25,8 @@ def renamed(doc: Document, region: Region, text: str) -> Region:
     name = text.strip()
     if not name:
         raise DocumentError("region name: enter a name, e.g. input stage")
+    if text_problem(name):
+        raise DocumentError(f"region name: {text_problem(name)}")
     if not name.isprintable():
         raise DocumentError("region name: one line of text, without tabs or control "
                             "characters")

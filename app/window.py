@@ -423,9 +423,9 @@ class MainWindow(QMainWindow):
     # -- recovery and closing -----------------------------------------------------------------
     def offer_recovery(self) -> bool:
         """Offer work left by a session that did not close normally; True if restored."""
-        if self.recovery_folder is None:
+        if self.recovery is None:
             return False
-        for found in left_over(self.recovery_folder):
+        for found in left_over(self.recovery.folder):
             if not dialogs.ask_restore(self, found.describe()):
                 found.discard()
                 continue
@@ -439,7 +439,7 @@ class MainWindow(QMainWindow):
             self.workbench.replace_document(doc, found.source)
             self.workbench.undo_stack.resetClean()  # restored work is not saved anywhere yet
             self._update_title()
-            found.discard()
+            self.recovery.adopt(found)  # kept until this session has its own copy
             return True
         return False
 

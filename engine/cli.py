@@ -391,7 +391,7 @@ def _run_sweep(args: argparse.Namespace, out: TextIO) -> int:
             return 0
         write_atomically(args.csv, sweep_csv(rows))
         sys.stderr.write(f"wrote {len(rows)} frequencies for port ({port[0]}, {port[1]}) "
-                         f"to {args.csv}\n")
+                         f"to {_path_text(args.csv)}\n")
         return 0
     out.write(f"{sel.label} seen from port ({port[0]}, {port[1]}), plus first\n\n")
     out.write(f"{'f':>10}  {'Voc':<22}  {'Isc':<22}  Z\n")
@@ -432,8 +432,7 @@ def _run_export(args: argparse.Namespace, out: TextIO,
         return 0
     else:
         write_atomically(args.output, text)
-    if not _is_stdout(args.output):
-        sys.stderr.write(f"wrote {args.output}\n")
+    sys.stderr.write(f"wrote {_path_text(args.output)}\n")
     return 0
 
 
@@ -465,6 +464,12 @@ def main(argv: Sequence[str], writers: Mapping[str, Writer] | None = None) -> in
         command = argv[0] if argv else "portcut"
         sys.stderr.write(f"portcut {command}: {_one_line(e)}\n")
         return 1
+
+
+def _path_text(path: Path) -> str:
+    """A path as printable text: bytes of a name that are not UTF-8 (which Python holds as lone
+    surrogates) shown as escapes, which every terminal encoding can print."""
+    return str(path).encode("utf-8", "backslashreplace").decode("utf-8")
 
 
 def _one_line(error: BaseException) -> str:

@@ -17,7 +17,9 @@ and every text with a margin.
 from __future__ import annotations
 
 import math
+import re
 import xml.etree.ElementTree as ET
+from bisect import bisect_left, bisect_right
 from collections import Counter, defaultdict
 from collections.abc import Iterable, Sequence
 from itertools import pairwise
@@ -65,6 +67,10 @@ SCALE = 10.0
 MARGIN = 2.0  # grid units around the drawing
 TITLE_SIZE = 1.6
 FONT_FAMILY = "DejaVu Sans, Helvetica, Arial, sans-serif"
+#: Characters XML 1.0 does not allow anywhere in a document (control characters other than tab,
+#: line feed and carriage return, lone surrogates, U+FFFE and U+FFFF); names and titles holding
+#: them are drawn with U+FFFD in their place so that every export is well-formed.
+_NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
 
 
 def _n(value: float) -> str:
@@ -242,8 +248,9 @@ def _draw_region(sheet: _Sheet, region: Region, doc: Document, style: str) -> No
 
 def _outline_around(region: Region, doc: Document, style: str) -> list[tuple[float, float]]:
     """A rectangle one grid unit around the members, for a region saved without an outline."""
+    members = (doc[m] for m in region.members if m in doc)  # by id: no pass over the sheet
     boxes = [placed_bounds(e.kind, e.at, e.rotation, e.mirror, style=style)
-             for e in doc if isinstance(e, PlacedPart) and e.id in region.members]
+             for e in members if isinstance(e, PlacedPart)]
     if not boxes:
         return []
     x0, y0 = min(b[0] for b in boxes) - 1, min(b[1] for b in boxes) - 1
@@ -257,8 +264,9 @@ def junction_points(doc: Document) -> list[tuple[int, int]]:
     bending there counts two, a pin one). Crossings without a junction never get a dot, as
     they do not connect (engine.schematic.connectivity)."""
     count: Counter[tuple[int, int]] = Counter()
-    through: dict[str, dict[int, list[tuple[int, int]]]] = {"h": defaultdict(list),
-                                                            "v": defaultdict(list)}
+    # per row (y) of horizontal segments and per column (x) of vertical ones: their ends, sorted
+    rows: dict[int, list[tuple[int, int]]] = defaultdict(list)
+    columns: dict[int, list[tuple[int, int]]] = defaultdict(list)
     for wire in doc.wires():
         if len(set(wire.points)) < 2:  # a zero-length wire joins nothing new
             continue
@@ -268,16 +276,32 @@ def junction_points(doc: Document) -> list[tuple[int, int]]:
             count[p] += 2
         for (x0, y0), (x1, y1) in pairwise(wire.points):
             if y0 == y1 and x0 != x1:
-                through["h"][y0].append((min(x0, x1), max(x0, x1)))
+                rows[y0].append((min(x0, x1), max(x0, x1)))
             elif x0 == x1 and y0 != y1:
-                through["v"][x0].append((min(y0, y1), max(y0, y1)))
+                columns[x0].append((min(y0, y1), max(y0, y1)))
     for pin in _all_pins(doc):
         count[pin] += 1
+    across, along = _Spans(rows), _Spans(columns)
     for (x, y) in list(count):
-        count[x, y] += 2 * sum(lo < x < hi for lo, hi in through["h"].get(y, ()))
-        count[x, y] += 2 * sum(lo < y < hi for lo, hi in through["v"].get(x, ()))
+        count[x, y] += 2 * (across.inside(y, x) + along.inside(x, y))
     dots = {p for p, n in count.items() if n >= 3} | {j.at for j in doc.junctions()}
     return sorted(dots)
+
+
+class _Spans:
+    """Open segments grouped by the line they lie on, counted by bisection: the segments
+    holding ``at`` strictly inside are those starting before it less those ending at or before
+    it (a segment that ends before ``at`` also starts before it)."""
+
+    def __init__(self, lines: dict[int, list[tuple[int, int]]]) -> None:
+        self.starts = {k: sorted(lo for lo, _ in v) for k, v in lines.items()}
+        self.ends = {k: sorted(hi for _, hi in v) for k, v in lines.items()}
+
+    def inside(self, line: int, at: int) -> int:
+        starts = self.starts.get(line)
+        if starts is None:
+            return 0
+        return bisect_left(starts, at) - bisect_right(self.ends[line], at)
 
 
 def _all_pins(doc: Document) -> Iterable[tuple[int, int]]:
@@ -358,7 +382,9 @@ def document_svg(doc: Document, *, style: str = "iec", title: str | None = None,
         _dot(dots, at, COUPLING_DOT_RADIUS, "coupling-dot", palette.ink)
     _heading(sheet, title if title is not None else doc.title, doc, freq_hz)
     _frame(sheet, background)
-    return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(sheet.root, "unicode") + "\n"
+    text = ET.tostring(sheet.root, "unicode")
+    # only text and attribute values can hold such characters: markup never does
+    return '<?xml version="1.0" encoding="UTF-8"?>\n' + _NOT_XML.sub("\ufffd", text) + "\n"
 
 
 def _heading(sheet: _Sheet, title: str, doc: Document, freq: float) -> None:

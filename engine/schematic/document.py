@@ -12,7 +12,7 @@ import itertools
 import re
 from collections.abc import Callable, Iterable, Iterator
 from contextlib import contextmanager
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field, fields, replace
 from typing import TypeVar
 
 from ..errors import DocumentError
@@ -29,6 +29,7 @@ from .model import (
     Wire,
     port_problem,
 )
+from .text import text_problem
 
 __all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
 
@@ -84,7 +85,7 @@ class Document:
         self._block_ids: dict[str, None] = {}  # ordered set
         self._designators: dict[str, str] = {}
         self._analysis = Analysis()
-        self._title = title
+        self._title = _title(title)
         self._listeners: list[Listener] = []
         self._pending = _Pending()
         self._counter = itertools.count(1)
@@ -258,12 +259,13 @@ class Document:
                                 f"got {analysis.form!r}")
         if analysis.basis not in ("peak", "rms"):
             raise DocumentError(f"analysis.basis: expected 'peak' or 'rms', got {analysis.basis!r}")
+        _check_texts(analysis, "analysis")
         old, self._analysis = self._analysis, analysis
         self._notify(Change(analysis=True))
         return old
 
     def set_title(self, title: str) -> str:
-        old, self._title = self._title, str(title)
+        old, self._title = self._title, _title(str(title))
         self._notify(Change(title=True))
         return old
 
@@ -276,6 +278,7 @@ class Document:
     # -- checks -------------------------------------------------------------------------------
     def _check(self, element: Element, replacing: Element | None = None) -> None:
         where = f"{type(element).__name__} {element.id}"
+        _check_texts(element, where)
         if isinstance(element, PlacedPart | Block):
             if not re.fullmatch(r"[A-Za-z][A-Za-z0-9_]*", element.designator or ""):
                 raise DocumentError(f"{where}: designator {element.designator!r} must start "
@@ -313,6 +316,32 @@ class Document:
     def replace_fields(self, element_id: str, **changes: object) -> Element:
         """Shorthand for ``replace(dataclasses.replace(doc[element_id], **changes))``."""
         return self.replace(replace(self[element_id], **changes))
+
+
+def _title(title: str) -> str:
+    problem = text_problem(title)
+    if problem:
+        raise DocumentError(f"title: {problem}")
+    return title
+
+
+def _check_texts(element: Element | Analysis, where: str) -> None:
+    """Refuse text no file can store in the element's own fields (a block's contents were
+    checked when they were on the sheet)."""
+    for f in fields(element):
+        for text in _texts(getattr(element, f.name)):
+            problem = text_problem(text)
+            if problem:
+                raise DocumentError(f"{where}: {f.name}: {problem}")
+
+
+def _texts(value: object) -> tuple[str, ...]:
+    """The strings of a field: itself, or those of a tuple or set of names."""
+    if isinstance(value, str):
+        return (value,)
+    if isinstance(value, tuple | frozenset):
+        return tuple(v for v in value if isinstance(v, str))
+    return ()
 
 
 def _check_wire(wire: Wire, where: str) -> None:

@@ -35,6 +35,7 @@ from .model import (
     Wire,
     port_problem,
 )
+from .text import text_problem
 
 __all__ = [
     "COORD_LIMIT",
@@ -472,6 +473,9 @@ def _fields(data: Any, path: str, required: tuple[str, ...] = (),
 def _text(value: Any, path: str) -> str:
     if not isinstance(value, str):
         raise DocumentError(f"{path}: expected text, got {_shown(value)}")
+    problem = text_problem(value)
+    if problem:
+        raise DocumentError(f"{path}: {problem}")
     return value
 
 
@@ -532,4 +536,6 @@ def _shown(value: Any) -> str:
         text = json.dumps(value, ensure_ascii=False)
     except RecursionError:  # nested almost as deep as the decoder allows
         return f"a deeply nested {_json_type(value)}"
+    if text_problem(text):  # a message must be printable and storable itself
+        text = json.dumps(value)
     return text if len(text) <= 40 else text[:37] + "..."

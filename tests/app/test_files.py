@@ -93,9 +93,54 @@ def test_autosave_is_offered_back_after_a_crash(qtbot, settings, tmp_path: Path,
     assert second.offer_recovery()
     assert second.workbench.doc == lost and second.workbench.dirty
     assert left_over(folder) == []    # the recovered copy was taken over
+    assert len(list(folder.glob("autosave-*.json"))) == 2   # but kept: the document and its note
     assert second.recovery.autosave()   # and the restored work is autosaved again
+    assert sorted(p.name for p in folder.glob("autosave-*.json")) == sorted(
+        [second.recovery.document.name, second.recovery.meta.name])
     second.files.save_to(tmp_path / "saved.json")     # saved: nothing left to recover
     assert not second.recovery.document.exists()
+
+
+def _crash(window: MainWindow) -> None:
+    """The process "dies": its locks are gone, its files stay."""
+    window.recovery.lock.unlock()
+    for _, lock in window.recovery.adopted:
+        lock.unlock()
+    window.recovery = None
+
+
+def test_restored_work_survives_a_second_crash_before_it_is_autosaved(
+        qtbot, settings, tmp_path: Path, monkeypatch):
+    folder = tmp_path / "recovery"
+    first = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(first)
+    first.files.open_path(assets.example_path("rc_antialias"), as_copy=True)
+    first.canvas.select_all()
+    first.canvas.move_selection((3, 0))
+    assert first.recovery.autosave()
+    lost = loads(dumps(first.workbench.doc))
+    _crash(first)
+    monkeypatch.setattr(dialogs, "ask_restore", lambda parent, what: True)
+    second = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(second)
+    assert second.offer_recovery()
+    _crash(second)                    # before any autosave of the restored sheet
+    third = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(third)
+    assert third.offer_recovery()
+    assert third.workbench.doc == lost
+    third.close()                     # a normal end: nothing is left to offer
+    assert list(folder.glob("autosave-*")) == []
+
+
+def test_a_killed_autosave_leaves_nothing_at_the_next_start(qtbot, settings, tmp_path: Path):
+    folder = tmp_path / "recovery"
+    folder.mkdir()
+    stale = folder / ".autosave-0123456789ab.json.00000000abcd.tmp"  # a write that was killed
+    stale.write_text("{", encoding="utf-8")
+    w = MainWindow(settings, recovery_folder=folder)
+    qtbot.addWidget(w)
+    assert not stale.exists()
 
 
 def test_a_clean_close_leaves_nothing_to_recover(qtbot, settings, tmp_path: Path):

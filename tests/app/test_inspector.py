@@ -7,6 +7,12 @@ from __future__ import annotations
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 
+from portcut.app.fields import fields_for
+from portcut.app.panels.inspector import _TITLE, _Sheet
+from portcut.app.region_edits import renamed
+from portcut.engine.errors import DocumentError
+from portcut.engine.schematic import NetLabel, PlacedPart, Region
+
 CTRL = Qt.KeyboardModifier.ControlModifier
 
 
@@ -113,3 +119,31 @@ def test_sheet_summary_follows_parts_added_and_undone(window, drive):
     assert details.text().startswith("2 parts, 0 wires")
     window.workbench.undo_stack.undo()               # the capacitor goes, nothing selected
     assert details.text().startswith("1 part, 0 wires")
+
+
+def test_text_no_file_can_store_is_refused_in_every_field(window, drive):
+    # Qt's own strings cannot carry a lone surrogate (typing drops it), but text reaches the
+    # fields from Python too; a lone surrogate has no UTF-8 encoding (Unicode 15, 3.9 D92;
+    # from memory)
+    doc = drive.doc
+    for i, kind in enumerate(("resistor", "voltage_source", "ccvs", "coupling")):
+        doc.add(PlacedPart(f"p{i}", kind, f"X{i}", (10 * i, 0), value="1"))
+    doc.add(NetLabel("n1", "out", (0, 20)))
+    doc.add(Region("r1", "stage", frozenset({"p0"})))
+    elements = [*doc.parts(), *doc.labels(), _Sheet(doc.title)]
+    before = [*doc]
+    for element in elements:
+        for field in (_TITLE,) if isinstance(element, _Sheet) else fields_for(element):
+            try:
+                field.write(doc, element, "ab\udfff")
+            except DocumentError as e:
+                assert "character 3 is U+DFFF" in str(e), (field.name, str(e))
+            else:
+                raise AssertionError(f"{field.name} took a lone surrogate")
+    try:
+        renamed(doc, doc["r1"], "st\udfffage")
+    except DocumentError as e:
+        assert str(e).startswith("region name: character 3 is U+DFFF")
+    else:
+        raise AssertionError("a region name took a lone surrogate")
+    assert [*doc] == before

@@ -9,6 +9,7 @@ a divider of a 10 V source through 1 kΩ into 1 kΩ has Voc = 5 V, Z = 500 Ω, I
 from __future__ import annotations
 
 import csv
+import io
 import json
 import math
 import subprocess
@@ -358,3 +359,17 @@ def test_a_regions_chosen_port_is_used_unless_port_is_given(capsys, saved):
     assert chosen["port"] == ["0", "out"] and _c(chosen["voc"]) == pytest.approx(-5.0)
     given = _json(capsys, path, "--port", "out,0")
     assert given["port"] == ["out", "0"] and _c(given["voc"]) == pytest.approx(5.0)
+
+
+@pytest.mark.skipif(sys.platform == "win32", reason="POSIX file names are bytes")
+def test_a_file_name_that_is_not_utf8_is_printed_escaped(tmp_path: Path, monkeypatch):
+    # a POSIX name is bytes; Python holds the byte 0xff of a non-UTF-8 name as U+DCFF
+    # (PEP 383; from memory)
+    out = tmp_path / "\udcff.svg"
+    strict = io.TextIOWrapper(io.BytesIO(), encoding="utf-8", errors="strict")
+    monkeypatch.setattr(sys, "stderr", strict)  # where status lines go
+    assert cli.main(["export", str(ROOT / "assets" / "examples" / "rc_antialias.json"),
+                     "-o", str(out)]) == 0
+    strict.flush()
+    assert strict.buffer.getvalue().decode("utf-8").endswith("\\udcff.svg\n")
+    ET.parse(out)

@@ -7,8 +7,10 @@ import itertools
 import json
 import os
 import re
+import signal
 import stat
 import string
+import subprocess
 import sys
 from collections.abc import Iterator
 from dataclasses import replace
@@ -20,8 +22,13 @@ from drawing_strategies import orthogonal_polylines
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+try:
+    import fcntl
+except ImportError:  # not POSIX
+    fcntl = None
+
 from portcut import assets
-from portcut.engine import DocumentError
+from portcut.engine import DocumentError, atomic
 from portcut.engine.schematic import (
     Analysis,
     Block,
@@ -500,6 +507,49 @@ def test_mangled_files_meet_only_document_error(text: str | bytes) -> None:
     assert loads(dumps(doc)) == doc  # what was accepted is a valid document
 
 
+def _value_at(data: Any, path: tuple) -> Any:
+    for key in path:
+        data = data[key]
+    return data
+
+
+TEXT_PATHS = [p for p in BASE_PATHS
+              if isinstance(_value_at(json.loads(BASE), p), str) and p != ("format",)]
+
+
+@pytest.mark.parametrize("path", TEXT_PATHS, ids=lambda p: ".".join(map(str, p)))
+def test_a_lone_surrogate_in_any_text_is_refused_by_its_path(path: tuple) -> None:
+    # a lone surrogate has no UTF-8 encoding (Unicode 15, 3.9 D92; from memory): no file holds it
+    text = mangled(setter(*path, value=_value_at(json.loads(BASE), path) + "\udfff"))
+    with pytest.raises(DocumentError) as caught:
+        loads(text)
+    message = str(caught.value)
+    message.encode("utf-8")  # the message itself can be shown and stored
+    where = re.escape(path[0] + "".join(f"[{k}]" if isinstance(k, int) else f".{k}"
+                                        for k in path[1:]))
+    assert re.match(rf"^{where}: (character \d+ is U\+DFFF|expected one of)", message), message
+
+
+def test_a_lone_surrogate_escaped_in_the_file_bytes_is_refused_and_saving_never_fails(
+        tmp_path: Path) -> None:
+    raw = BASE.replace('"title": "', '"title": "\\ud800', 1).encode("utf-8")
+    with pytest.raises(DocumentError, match=r"^title: character 1 is U\+D800, half of a UTF-16 "
+                                            r"surrogate pair"):
+        loads(raw)
+    with pytest.raises(DocumentError, match=r"^title: character 3 is U\+DFFF"):
+        Document("ab\udfff")
+    doc = rich_document()
+    with pytest.raises(DocumentError, match=r"^title: "):
+        doc.set_title("x\udfff")
+    part = doc.parts()[0]
+    with pytest.raises(DocumentError, match=rf"^PlacedPart {part.id}: value: character 2 is "):
+        doc.replace(replace(part, value="1\udfff"))
+    with pytest.raises(DocumentError, match=r"^analysis: freq: character 3 is U\+DFFF"):
+        doc.set_analysis(Analysis("1k\udfff"))
+    assert doc == rich_document()  # nothing was taken
+    save(doc, tmp_path / "kept.json")
+
+
 # -- loading from disk --------------------------------------------------------------------------
 def test_load_names_the_file_in_every_refusal(tmp_path: Path) -> None:
     path = tmp_path / "bad.json"
@@ -550,13 +600,51 @@ def test_a_failed_save_keeps_the_old_file_and_leaves_no_temporary(
     assert load(saved) == rich_document()
 
 
+def _killed_during_save(target: Path) -> None:
+    """Save to ``target`` in a child process that is killed (SIGKILL) once its bytes are
+    written but before the rename, as a crash or a power cut would stop it."""
+    script = ("import os, signal, sys\n"
+              "from engine.schematic import Document\n"
+              "from engine.schematic.fileformat import save\n"
+              "os.fsync = lambda fd: os.kill(os.getpid(), signal.SIGKILL)\n"
+              "save(Document('Killed'), sys.argv[1])\n")
+    done = subprocess.run([sys.executable, "-c", script, str(target)], check=False,
+                          cwd=Path(__file__).resolve().parents[2], capture_output=True)
+    assert done.returncode == -signal.SIGKILL, done.stderr
+
+
+@pytest.mark.skipif(not hasattr(signal, "SIGKILL") or fcntl is None, reason="POSIX only")
+def test_the_next_save_removes_what_a_killed_save_left(saved: Path) -> None:
+    _killed_during_save(saved)
+    left = [p.name for p in saved.parent.iterdir() if p.name != "circuit.json"]
+    assert len(left) == 1 and re.fullmatch(r"\.circuit\.json\.[0-9a-f]{12}\.tmp", left[0])
+    assert load(saved) == rich_document()  # the kill changed nothing
+    folder = saved.parent
+    others = [".other.json.0123456789ab.tmp", ".circuit.json.0123456789aZ.tmp", "notes.tmp"]
+    for name in others:
+        (folder / name).write_text("x", encoding="utf-8")
+    live = folder / ".circuit.json.00000000000f.tmp"  # a save of another process, under way
+    fd = os.open(live, os.O_WRONLY | os.O_CREAT)
+    fcntl.flock(fd, fcntl.LOCK_EX)
+    try:
+        save(Document("Next"), saved)
+        assert sorted(p.name for p in folder.iterdir()) == sorted(
+            ["circuit.json", live.name, *others])
+    finally:
+        os.close(fd)
+    assert load(saved).title == "Next"
+    assert atomic.remove_stale_temporaries(folder) == 2  # any target's, the lock now released
+    assert sorted(p.name for p in folder.iterdir()) == sorted(
+        ["circuit.json", ".circuit.json.0123456789aZ.tmp", "notes.tmp"])
+
+
 def test_a_failed_write_keeps_the_old_file(saved: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     before = saved.read_bytes()
     real_fdopen = os.fdopen
 
     class Full:
-        def __init__(self, fd: int, *args: Any) -> None:
-            self.f = real_fdopen(fd, *args)
+        def __init__(self, fd: int, *args: Any, **kwargs: Any) -> None:
+            self.f = real_fdopen(fd, *args, **kwargs)
 
         def __enter__(self):
             return self

@@ -13,6 +13,7 @@ import math
 import re
 import xml.etree.ElementTree as ET
 from dataclasses import replace
+from itertools import pairwise
 
 import numpy as np
 import pytest
@@ -260,6 +261,62 @@ def test_divider_dots():
     # R2's and C1's wires meet the top rail in Ts, R2's the bottom rail, and the ground pin
     # sits mid-rail; the corners at (0, 0), (0, 8) and (12, 8) are two ends only
     assert set(junction_points(_divider())) == {(8, 0), (12, 0), (8, 8), (4, 8)}
+
+
+def _dots_by_definition(doc: Document) -> set[tuple[int, int]]:
+    """The dot rule read literally, point by point over every segment (slow, obviously right):
+    a wire end counts one, a bend or a segment passing strictly through counts two, a pin one."""
+    wires = [w.points for w in doc.wires() if len(set(w.points)) > 1]
+    points = {p for w in wires for p in (w[0], w[-1])} | {p for w in wires for p in w[1:-1]}
+    pins = [p for e in doc.parts() for p in pin_positions(e.kind, e.at, e.rotation, e.mirror)]
+    points |= set(pins)
+
+    def connections(p):
+        n = pins.count(p)
+        for w in wires:
+            n += (w[0] == p) + (w[-1] == p) + 2 * w[1:-1].count(p)
+            for (x0, y0), (x1, y1) in pairwise(w):
+                inside_h = y0 == y1 == p[1] and min(x0, x1) < p[0] < max(x0, x1)
+                inside_v = x0 == x1 == p[0] and min(y0, y1) < p[1] < max(y0, y1)
+                n += 2 * (inside_h or inside_v)
+        return n
+
+    return {p for p in points if connections(p) >= 3} | {j.at for j in doc.junctions()}
+
+
+@pytest.mark.parametrize("seed", range(20))
+def test_junction_dots_match_the_rule_on_random_crowded_sheets(seed):
+    # overlapping, touching and crossing segments on a few rows and columns, with parts on them
+    rng = np.random.default_rng(seed)
+    doc = Document()
+    for i in range(40):
+        x, y = (int(v) for v in rng.integers(0, 8, 2))
+        length = int(rng.integers(1, 6))
+        points = [(x, y), (x + length, y)] if rng.random() < 0.5 else [(x, y), (x, y + length)]
+        if rng.random() < 0.3:  # a bend
+            points.append((points[-1][0], points[-1][1] + 2) if points[0][1] == points[1][1]
+                          else (points[-1][0] + 2, points[-1][1]))
+        doc.add(Wire(f"w{i}", tuple(points)))
+    for i in range(6):
+        x, y = (int(v) for v in rng.integers(0, 10, 2))
+        doc.add(PlacedPart(f"p{i}", "resistor", f"R{i}", (x, y), rotation=int(rng.choice([0, 90])),
+                           value="1"))
+    assert set(junction_points(doc)) == _dots_by_definition(doc)
+
+
+@pytest.mark.parametrize("char", ["\x00", "\x01", "\x1f", "\ufffe", "\uffff", "\udfff"])
+def test_characters_xml_cannot_hold_never_break_the_drawing(char):
+    # XML 1.0 section 2.2, Char production (from memory): these are outside the characters a
+    # document may hold
+    doc = _divider()
+    if char < "\ud800" or char > "\udfff":  # a document refuses lone surrogates itself
+        doc.replace_fields("n2", name=f"o{char}ut")
+        doc.replace_fields("r1", name=f"src{char}")
+    text = document_svg(doc, title=f"T{char}itle")
+    root = _parse(text)
+    assert char not in text
+    assert "T\ufffditle" in _texts(root)
+    text.encode("utf-8")  # every character can be written to the file
 
 
 def test_coupled_inductors_get_a_dot_at_their_first_node():
