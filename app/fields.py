@@ -151,7 +151,7 @@ def fields_for(element: Element) -> list[Field]:
         if element.style == "ground":
             return []
         return [Field("name", "Net name", "Labels with the same name join anywhere on the "
-                      "sheet; 0 is ground", _name)]
+                      "sheet; gnd is ground", _name)]
     if not isinstance(element, PlacedPart):
         return []
     out = [_DESIGNATOR]

@@ -1,4 +1,4 @@
-"""The netlist level: named parts on named nets. Net ``"0"`` is ground.
+"""The netlist level: named parts on named nets. Net ``"gnd"`` (:data:`GROUND`) is ground.
 
 Sign conventions (kept by every module and stated in docs/method.md):
 
@@ -27,7 +27,7 @@ from .units import parse_value
 
 __all__ = ["GROUND", "KINDS", "REFERRING", "Circuit", "Columns", "Part", "References"]
 
-GROUND = "0"
+GROUND = "gnd"
 
 #: Every part kind, with the roles of its nodes.
 KINDS: dict[str, tuple[str, ...]] = {
@@ -90,8 +90,8 @@ class Circuit:
     """An ordered collection of uniquely named parts. Builder methods validate and return the Part.
 
     >>> c = Circuit()
-    >>> c.voltage_source("V1", "in", "0", 5).nodes
-    ('in', '0')
+    >>> c.voltage_source("V1", "in", "gnd", 5).nodes
+    ('in', 'gnd')
     >>> c.resistor("R1", "in", "out", "4k7").value
     4700.0
     """

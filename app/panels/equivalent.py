@@ -38,7 +38,7 @@ from engine.units import format_complex, format_eng, parse_frequency
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas
 from ..commands import RemoveElements, ReplaceElements, SetAnalysis, edit_command
-from ..region_edits import ROLES, port_text, renamed, with_port_net
+from ..region_edits import ROLES, net_shown, port_text, renamed, with_port_net
 from ..workbench import Workbench
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
@@ -365,7 +365,7 @@ class EquivalentDock(QDockWidget):
         eq = analysis.equivalent
         self.message.hide()
         plus, minus = eq.port
-        self.port.setText(f"Port <b>{plus}</b> (+) / <b>{minus}</b> (−) at "
+        self.port.setText(f"Port <b>{net_shown(plus)}</b> (+) / <b>{net_shown(minus)}</b> (−) at "
                           f"{describe_freq(eq.freq)}")
         self.values.show_equivalent(eq)
         form = self.doc.analysis.form
@@ -388,9 +388,10 @@ class EquivalentDock(QDockWidget):
             box.setEnabled(usable)
             if not usable:
                 continue
-            box.addItem(f"automatic ({automatic[i]})" if automatic else "automatic", None)
+            box.addItem(f"automatic ({net_shown(automatic[i])})" if automatic else "automatic",
+                        None)
             for net in nets:
-                box.addItem(net, net)
+                box.addItem(net_shown(net), net)
             chosen = region.port[i] if region.port is not None else None
             if chosen is not None and chosen not in nets:
                 box.addItem(f"{chosen} (gone)", chosen)

@@ -64,7 +64,7 @@ def _describe(element: Element) -> str:
     if isinstance(element, Block):
         return f"{element.designator} · collapsed {element.form.title()} equivalent"
     if isinstance(element, NetLabel):
-        return "Ground (net 0)" if element.style == "ground" else f"Net label {element.name}"
+        return "Ground (net gnd)" if element.style == "ground" else f"Net label {element.name}"
     if isinstance(element, Wire):
         return f"Wire · {len(element.points) - 1} segment(s)"
     return type(element).__name__

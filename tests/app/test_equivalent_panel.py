@@ -120,13 +120,13 @@ def test_swap_reverses_the_port_and_the_sign(window, drive):
     click_button(panel.swap_button)
     eq = window.analysis.analysis.equivalent
     # common practice: seen the other way round, Voc and Isc change sign, Z does not
-    assert eq.port == ("0", "out")
+    assert eq.port == ("gnd", "out")
     assert eq.voc == pytest.approx(-7.5, rel=1e-12)
     assert panel.values.text("voc", "polar") == "7.5 V ∠ 180°"
     assert panel.values.text("z", "rectangular") == "750 Ω"
     drive.key(Qt.Key.Key_Z, CTRL)
     settle()
-    assert window.analysis.analysis.equivalent.port == ("out", "0")
+    assert window.analysis.analysis.equivalent.port == ("out", "gnd")
 
 
 def test_an_ideal_current_source_has_no_thevenin_form_and_says_why(window, drive):

@@ -49,7 +49,7 @@ def test_coupling_coefficient_beyond_one_is_refused(window, drive):
     drive.click((0, 0))
     editor = window.inspector.editors["value"]
     _type(editor, "1.2")
-    assert drive.by("K1").value == "0.9"
+    assert drive.by("CP1").value == "0.9"
     assert "|k| ≤ 1" in editor.error.text()
 
 

@@ -383,10 +383,10 @@ def test_the_check_across_a_galvanically_separate_winding() -> None:
     c.resistor("R1", "in", "p", 50)
     c.inductor("L1", "p", GROUND, "1m")
     c.inductor("L2", "t", "u", "4m")
-    c.coupling("K1", "L2", "L1", -0.7)
+    c.coupling("CP1", "L2", "L1", -0.7)
     c.resistor("RL", "t", "u", "1k")
     c.resistor("RB", "u", GROUND, "1M")
-    region = {"V1", "R1", "L1", "L2", "K1"}
+    region = {"V1", "R1", "L1", "L2", "CP1"}
     reduced = collapse(c, region, ("t", "u"), 2e4)
     assert check_equivalence(c, reduced, region, port=("t", "u"), freq=2e4,
                              loads=[10, 1e4]).within(1e-10)
