@@ -324,7 +324,7 @@ def _reduce_table(eq: Equivalent, sel: _Selection, form: str, basis: str) -> str
               "Norton:   none, Z is zero (the port sees an ideal voltage source or a short)")
     out.extend([thevenin, norton] if form == "thevenin" else [norton, thevenin])
     out.append(f"Z as series parts at {at}: {_realisation_text(eq)}")
-    out.append(f"Maximum power ({basis} phasors): {_power_text(eq, basis)}")
+    out.append(f"Maximum power ({eq.max_power(basis).described()}): {_power_text(eq, basis)}")
     return "\n".join(out)
 
 

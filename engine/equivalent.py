@@ -78,7 +78,8 @@ class PowerTransfer:
     ``load``: the conjugate-matched load (Ω) and ``power`` the average power it takes (W);
     ``resistive_load`` = |z| is the best purely resistive load and ``resistive_power`` its power.
     All four are None where no finite maximum exists (Re z <= 0 or no Thevenin form), and
-    ``reason`` says why. ``basis``: "peak" (source phasors are amplitudes) or "rms".
+    ``reason`` says why. ``basis``: "peak" (source phasors are amplitudes) or "rms" above DC;
+    "dc" at DC, where values are steady and peak and rms do not apply.
     """
 
     basis: str
@@ -87,6 +88,10 @@ class PowerTransfer:
     resistive_load: float | None
     resistive_power: float | None
     reason: str | None
+
+    def described(self) -> str:
+        """The basis as reports name it: "DC", "peak phasors" or "rms phasors"."""
+        return "DC" if self.basis == "dc" else f"{self.basis} phasors"
 
 
 @dataclass(frozen=True, slots=True)
@@ -156,13 +161,15 @@ class Equivalent:
 
     def max_power(self, basis: str = "peak") -> PowerTransfer:
         """Power into a conjugate-matched load: |voc|^2 / (8 Re z) for peak phasors, / (4 Re z)
-        for rms ones; and into the best resistive load |z|."""
+        for rms ones and at DC (whatever ``basis``); and into the best resistive load |z|."""
         if basis not in ("peak", "rms"):
             raise CircuitError(f"basis must be 'peak' or 'rms', not {basis!r}")
+        if self.freq == 0:
+            basis = "dc"
         reason = _no_maximum(self)
         if reason:
             return PowerTransfer(basis, None, None, None, None, reason)
-        share = 0.5 if basis == "peak" else 1.0
+        share = 0.5 if basis == "peak" else 1.0  # a peak phasor's average power is half
         v2 = abs(self.voc) ** 2
         r_best = abs(self.z)
         return PowerTransfer(basis, self.z.conjugate(), share * v2 / (4 * self.z.real), r_best,

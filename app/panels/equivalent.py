@@ -110,7 +110,7 @@ def power_text(eq: Equivalent, basis: str) -> str:
         return p.reason[0].upper() + p.reason[1:]
     return (f"Matched load {format_complex(p.load, 'Ω')} takes {format_eng(p.power, 'W', 4)}; "
             f"the best resistor, {format_eng(p.resistive_load, 'Ω', 4)}, takes "
-            f"{format_eng(p.resistive_power, 'W', 4)} ({basis} phasors)")
+            f"{format_eng(p.resistive_power, 'W', 4)} ({p.described()})")
 
 
 def _agreement(relative: float) -> str:

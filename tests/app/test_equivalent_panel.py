@@ -102,10 +102,14 @@ def test_thevenin_norton_toggle_is_an_undoable_setting(window, drive):
     assert drive.doc.analysis.form == "thevenin" and panel.thevenin.isChecked()
 
 
-def test_matched_load_power_in_peak_and_rms(window, drive):
+def test_matched_load_power_at_dc_and_in_peak_and_rms(window, drive):
     panel = _drawn(window, drive, divider())
-    # common practice (maximum power transfer): P = |Voc|^2 / (8 Re Z) for peak phasors and
-    # |Voc|^2 / (4 Re Z) for rms ones: 7.5^2 / (8 * 750) = 9.375 mW, twice that for rms
+    # common practice (maximum power transfer): at DC a matched load takes Voc^2 / (4 R), in
+    # either basis: 7.5^2 / (4 * 750) = 18.75 mW. Above DC P = |Voc|^2 / (8 Re Z) for peak
+    # phasors and |Voc|^2 / (4 Re Z) for rms ones (a resistive divider: the same Voc and Z).
+    assert "Matched load 750 Ω takes 18.75 mW" in panel.power.text()
+    assert "(DC)" in panel.power.text() and "phasors" not in panel.power.text()
+    type_into(panel.frequency.edit, "1k")
     assert "Matched load 750 Ω takes 9.375 mW" in panel.power.text()
     assert "peak phasors" in panel.power.text()
     panel.basis.setFocus()
@@ -113,6 +117,7 @@ def test_matched_load_power_in_peak_and_rms(window, drive):
     settle()
     assert drive.doc.analysis.basis == "rms"
     assert "Matched load 750 Ω takes 18.75 mW" in panel.power.text()
+    assert "rms phasors" in panel.power.text()
 
 
 def test_swap_reverses_the_port_and_the_sign(window, drive):

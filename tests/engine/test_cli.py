@@ -154,6 +154,17 @@ def test_reduce_table_lists_both_forms_and_the_series_parts(capsys, saved):
     assert norton_first.index("Norton:") < norton_first.index("Thevenin:")
 
 
+@pytest.mark.parametrize(("freq", "basis", "power"), [
+    ("DC", "DC", "12.5 mW"), ("1k", "peak phasors", "6.25 mW")])
+def test_reduce_states_the_matched_load_power_for_dc_and_for_phasors(capsys, divider, freq,
+                                                                     basis, power):
+    # common practice (maximum power transfer): the divider is Voc = 5 V behind 500 Ω; at DC a
+    # matched load takes Voc^2 / (4 R) = 12.5 mW, with peak phasors |Voc|^2 / (8 Re Z) = 6.25 mW.
+    code, out, err = _run(capsys, "reduce", divider, "--freq", freq)
+    assert code == 0, err
+    assert f"Maximum power ({basis}): {power} into a matched load of 500 Ω" in out
+
+
 def test_reduce_without_a_thevenin_form(capsys, saved):
     # an ideal current source alone at the port: Z is infinite (shared/design.md)
     path = saved(_source_load(("current_source", "I1", "1m"), None, None))

@@ -17,7 +17,7 @@ import pytest
 import sympy
 from sympy_nodal import port_reference
 
-from engine import Circuit, CircuitError, equivalent
+from engine import GROUND, Circuit, CircuitError, equivalent
 
 RTOL = 1e-9
 
@@ -263,7 +263,7 @@ def test_max_power_helper_on_example_11_5() -> None:
     # P_max = |V_th|^2 / (8 R_th) = (500/9) / (8 * 44/15) = 7500/3168 W with amplitude phasors;
     # the same numbers read as rms phasors give |V|^2 / (4 R_th), twice as much.
     c, region = _example_11_5()
-    eq = equivalent(c, region=region, port=("a", "gnd"))
+    eq = equivalent(c, region=region, port=("a", "gnd"), freq=1e3)  # fixed impedances
     peak, rms = eq.max_power(), eq.max_power("rms")
     assert (peak.basis, rms.basis) == ("peak", "rms")
     assert close(peak.load, (44 - 67j) / 15)
@@ -273,6 +273,22 @@ def test_max_power_helper_on_example_11_5() -> None:
     r = abs((44 + 67j) / 15)
     assert close(peak.resistive_load, r)
     assert close(peak.resistive_power, 0.5 * (500 / 9) * r / abs((44 + 67j) / 15 + r) ** 2)
+
+
+@pytest.mark.parametrize("basis", ["peak", "rms"])
+def test_max_power_at_dc_is_voc_squared_over_4r_in_either_basis(basis: str) -> None:
+    # common practice (maximum power transfer at DC): a source Voc behind R delivers
+    # Voc^2 / (4 R) into a matched load R; peak and rms are phasor conventions and do not apply.
+    # Divider: Voc = 10 V * 2k / (1k + 2k) = 20/3 V, R = 1k || 2k = 2000/3 Ω.
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 10)
+    c.resistor("R1", "in", "a", 1e3)
+    c.resistor("R2", "a", GROUND, 2e3)
+    c.resistor("RL", "a", GROUND, 5e3)
+    got = equivalent(c, region={"V1", "R1", "R2"}, port=("a", GROUND)).max_power(basis)
+    assert got.basis == "dc" and got.described() == "DC"
+    assert close(got.power, (20 / 3) ** 2 / (4 * 2000 / 3))
+    assert close(got.resistive_power, (20 / 3) ** 2 / (4 * 2000 / 3))  # |Z| = R at DC
 
 
 def test_max_power_has_no_finite_maximum_for_negative_resistance() -> None:
