@@ -23,7 +23,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from .errors import CircuitError
-from .units import parse_value
+from .units import VALUE_UNITS, parse_value
 
 __all__ = ["GROUND", "KINDS", "REFERRING", "Circuit", "Columns", "Part", "References"]
 
@@ -494,7 +494,7 @@ def _phasor(name: str, value: object, phase_deg: float | None) -> complex | floa
 
 
 def _read(kind: str, name: str, value: object) -> complex | float:
-    number = parse_value(value, what=f"{name} value")
+    number = parse_value(value, what=f"{name} value", unit=VALUE_UNITS.get(kind))
     if isinstance(number, complex) and kind not in {"impedance", "voltage_source",
                                                      "current_source", "vcvs", "vccs",
                                                      "ccvs", "cccs"}:

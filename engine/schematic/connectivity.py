@@ -44,7 +44,7 @@ from ..circuit import GROUND, KINDS, Circuit, Part
 from ..equivalent import Equivalent, collapse, equivalent
 from ..errors import CircuitError
 from ..symbols import Point, pin_positions
-from ..units import parse_value
+from ..units import VALUE_UNITS, parse_value
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Wire
 
@@ -739,7 +739,7 @@ def _add_part(circuit: Circuit, part: PlacedPart, nodes: list[str]) -> None:
     if not part.value.strip():
         quantity, example = _QUANTITY[kind]
         raise CircuitError(f"{name} value: none given; enter the {quantity}, e.g. {example}")
-    value = parse_value(part.value, what=f"{name} value")
+    value = parse_value(part.value, what=f"{name} value", unit=VALUE_UNITS[kind])
     phase = _phase(part)
     if kind == "coupling":
         circuit.coupling(name, *part.couples, value)

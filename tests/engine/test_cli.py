@@ -233,6 +233,16 @@ def test_sweep_table(capsys, divider):
     assert all("500 Ω" in line for line in lines[-4:])
 
 
+@pytest.mark.parametrize(("freq", "unit"), [("1kF", "F"), ("4.7 kΩ", "Ω")])
+def test_a_frequency_in_another_unit_is_refused(capsys, divider, freq, unit):
+    # SI (BIPM SI Brochure): frequency is in Hz; F and Ω belong to other quantities.
+    code, out, err = _run(capsys, "reduce", divider, "--freq", freq)
+    assert code == 2 and out == ""
+    assert f"frequency: '{freq}' is in {unit}, but this field takes a value in Hz" in err
+    code, out, err = _run(capsys, "reduce", divider, "--freq", "fast")
+    assert "give hertz" in err and "4k7" not in err and "IEC" not in err  # no resistor codes
+
+
 @pytest.mark.parametrize("args", [
     ["--from", "0", "--to", "1k"],          # log spacing needs F1 > 0
     ["--from", "1k", "--to", "10"],
