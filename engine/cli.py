@@ -35,7 +35,7 @@ from .schematic.model import Region
 from .schematic.reduction import collapse_region, region_part_names, swapped
 from .svg import document_svg
 from .tables import sweep_csv
-from .units import format_complex, format_eng, parse_frequency
+from .units import denoised, format_complex, format_eng, parse_frequency
 
 __all__ = ["COMMANDS", "main"]
 
@@ -263,7 +263,7 @@ def _caution(circuit: Circuit, eqs: Sequence[Equivalent], basis: str, err: TextI
 
 # -- reduce --------------------------------------------------------------------------------------
 def _json_complex(z: complex) -> dict[str, float] | None:
-    z = complex(z)
+    z = denoised(z)  # full precision, but no rounding noise and never -0.0
     return {"re": z.real, "im": z.imag} if cmath.isfinite(z) else None
 
 

@@ -24,7 +24,14 @@ from . import mna, topology
 from .circuit import GROUND, Circuit, Part
 from .errors import CircuitError, SingularCircuitError
 from .mna import describe_freq
-from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
+from .units import (
+    denoised,
+    format_complex,
+    format_eng,
+    format_phasor,
+    parse_frequency,
+    parse_value,
+)
 
 __all__ = [
     "DENSE_SWEEP_LIMIT",
@@ -121,7 +128,7 @@ class Equivalent:
 
     def _forms(self, fmt, digits: int) -> Forms:
         def text(value: complex, unit: str) -> str:
-            return "undefined" if cmath.isnan(value) else fmt(value, unit, digits)
+            return "undefined" if cmath.isnan(value) else fmt(denoised(value), unit, digits)
         return Forms(text(self.voc, "V"), text(self.isc, "A"), text(self.z, "Ω"))
 
     def summary(self) -> str:
@@ -148,7 +155,8 @@ class Equivalent:
         if not self.has_thevenin:
             raise CircuitError("the region has no Thevenin form (infinite impedance), so no "
                                "series R + L or R + C realises it")
-        r, x = self.z.real, self.z.imag
+        z = denoised(self.z)  # a noise-level R or X is no part
+        r, x = z.real, z.imag
         if x == 0:
             return Realisation(r, None, None, self.freq)
         if self.freq == 0:

@@ -8,6 +8,7 @@ import math
 from collections.abc import Iterable
 
 from .equivalent import Equivalent
+from .units import denoised
 
 __all__ = ["SWEEP_COLUMNS", "sweep_csv"]
 
@@ -33,7 +34,7 @@ def sweep_csv(rows: Iterable[Equivalent]) -> str:
     for eq in rows:
         row = [repr(float(eq.freq))]
         for _, _, key, exists in _QUANTITIES:
-            value = complex(getattr(eq, key))
+            value = denoised(getattr(eq, key))
             if getattr(eq, exists) and math.isfinite(abs(value)):
                 row += [repr(value.real), repr(value.imag), repr(abs(value)),
                         repr(math.degrees(math.atan2(value.imag, value.real)))]

@@ -33,9 +33,11 @@ from numbers import Complex, Real
 from .errors import ValueParseError
 
 __all__ = [
+    "NOISE_RTOL",
     "PLAUSIBLE",
     "SI_PREFIXES",
     "VALUE_UNITS",
+    "denoised",
     "format_complex",
     "format_eng",
     "format_phasor",
@@ -177,6 +179,27 @@ def parse_frequency(value: object) -> float:
     if isinstance(f, complex) or f < 0:
         raise ValueParseError(f"frequency: {value!r} must be a real number of hertz, 0 or more")
     return f
+
+
+#: A component of a complex result smaller than this fraction of the larger component's magnitude
+#: is rounding noise: the solution's own error scale is far above it.
+NOISE_RTOL = 1e-12
+
+
+def denoised(z: complex, scale: float | None = None) -> complex:
+    """``z`` with a component below its error scale set to zero, and no negative zero.
+
+    ``scale`` is the absolute error bound of ``z`` in its own units; None takes
+    :data:`NOISE_RTOL` times the larger component's magnitude. Non-finite values pass through.
+    Every output (panel, tables, CSV, JSON) shows results through this one function.
+    """
+    z = complex(z)
+    if not cmath.isfinite(z):
+        return z
+    bound = NOISE_RTOL * max(abs(z.real), abs(z.imag)) if scale is None else scale
+    re = 0.0 if abs(z.real) <= bound else z.real
+    im = 0.0 if abs(z.imag) <= bound else z.imag
+    return complex(re + 0.0, im + 0.0)  # -0.0 + 0.0 is +0.0
 
 
 _FORMAT_PREFIXES = [(1e24, "Y"), (1e21, "Z"), (1e18, "E"), (1e15, "P"), (1e12, "T"), (1e9, "G"),
