@@ -25,6 +25,7 @@ from .circuit import GROUND, Circuit, Part
 from .errors import CircuitError, SingularCircuitError
 from .mna import describe_freq
 from .units import (
+    UNDEFINED,
     denoised,
     format_complex,
     format_eng,
@@ -127,9 +128,12 @@ class Equivalent:
         return self._forms(format_phasor, digits)
 
     def _forms(self, fmt, digits: int) -> Forms:
-        def text(value: complex, unit: str) -> str:
-            return "undefined" if cmath.isnan(value) else fmt(denoised(value), unit, digits)
-        return Forms(text(self.voc, "V"), text(self.isc, "A"), text(self.z, "Ω"))
+        def text(value: complex, unit: str, exists: bool = True) -> str:
+            if not exists or cmath.isnan(value):
+                return UNDEFINED
+            return fmt(denoised(value), unit, digits)
+        return Forms(text(self.voc, "V", self.has_thevenin), text(self.isc, "A", self.has_norton),
+                     text(self.z, "Ω"))
 
     def summary(self) -> str:
         """A few lines for a report: port, frequency, both forms (or why one is missing)."""

@@ -36,6 +36,7 @@ __all__ = [
     "NOISE_RTOL",
     "PLAUSIBLE",
     "SI_PREFIXES",
+    "UNDEFINED",
     "VALUE_UNITS",
     "denoised",
     "format_complex",
@@ -181,6 +182,10 @@ def parse_frequency(value: object) -> float:
     return f
 
 
+#: How every output writes a quantity that does not exist (Voc without a Thevenin form, Isc
+#: without a Norton form): the panel, the command-line tables and the CSV cells alike.
+UNDEFINED = "undefined"
+
 #: A component of a complex result smaller than this fraction of the larger component's magnitude
 #: is rounding noise: the solution's own error scale is far above it.
 NOISE_RTOL = 1e-12
@@ -213,7 +218,7 @@ def format_eng(value: float, unit: str = "", digits: int = 3) -> str:
     ``digits`` significant figures; trailing zeros are dropped. Infinity prints as ``∞``.
     """
     if math.isnan(value):
-        return "undefined"
+        return UNDEFINED
     if math.isinf(value):
         return f"{'-' if value < 0 else ''}∞ {unit}".rstrip()
     if value == 0:

@@ -175,11 +175,9 @@ class ValuesTable(QWidget):
                 cell.setText("—")
             return
         rect, polar = eq.rectangular(), eq.polar()
-        defined = {"voc": eq.has_thevenin, "isc": eq.has_norton, "z": True}
         for key, _ in self.ROWS:
             for form, texts in (("rectangular", rect), ("polar", polar)):
-                self.cells[key, form].setText(getattr(texts, key) if defined[key] else
-                                              "none")
+                self.cells[key, form].setText(getattr(texts, key))
 
     def text(self, key: str, form: str) -> str:
         return self.cells[key, form].text()

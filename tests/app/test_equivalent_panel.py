@@ -150,7 +150,7 @@ def test_an_ideal_current_source_has_no_thevenin_form_and_says_why(window, drive
     assert eq.isc == pytest.approx(2e-3, rel=1e-12)
     assert cmath.isinf(eq.z)
     assert "No Thevenin form: Z is infinite" in panel.forms.text()
-    assert panel.values.text("voc", "rectangular") == "none"
+    assert panel.values.text("voc", "rectangular") == "undefined"
     assert panel.values.text("isc", "rectangular") == "2 mA"
     assert panel.values.text("z", "rectangular") == "∞ Ω"
     assert "No series R, L or C realises Z" in panel.realisation.text()

@@ -14,7 +14,7 @@ from engine import GROUND
 from engine.cli import _json_complex
 from engine.equivalent import Equivalent
 from engine.tables import sweep_csv
-from engine.units import NOISE_RTOL, denoised
+from engine.units import NOISE_RTOL, UNDEFINED, denoised
 
 # A resistive 100 Ω region seen with noise of the size a sparse solve leaves (IEEE 754 double:
 # about 1e-16 relative per operation, well below NOISE_RTOL): j 3.675 pΩ and -j 55.51 zA.
@@ -52,3 +52,12 @@ def test_csv_and_json_keep_full_precision_without_noise_or_negative_zero() -> No
     assert _json_complex(NOISY.z) == {"re": 100.0, "im": 0.0}
     got = _json_complex(complex(-0.0, 2.5))
     assert got == {"re": 0.0, "im": 2.5} and math.copysign(1, got["re"]) == 1
+
+
+def test_an_undefined_quantity_reads_the_same_in_the_tables_and_the_csv() -> None:
+    # an ideal 5 V source at the port (common practice): Z = 0, so there is no Norton form and
+    # Isc does not exist; reduce, sweep and the CSV all write the one word.
+    stiff = Equivalent(("a", GROUND), 0.0, 5 + 0j, complex(math.inf, 0), 0j, True, False)
+    assert stiff.rectangular().isc == stiff.polar().isc == UNDEFINED == "undefined"
+    row = list(csv.reader(io.StringIO(sweep_csv([stiff]))))[1]
+    assert row[5:9] == [UNDEFINED] * 4
