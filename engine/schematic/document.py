@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import itertools
 import re
-from collections.abc import Callable, Iterable, Iterator
+from collections.abc import Callable, Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, field, replace
 from typing import TypeVar
@@ -243,6 +243,13 @@ class Document:
         del self._elements[element.id]
         if isinstance(element, PlacedPart | Block):
             del self._designators[element.designator]
+
+    def arrange(self, order: Sequence[str]) -> None:
+        """Put the elements in ``order`` (every id once), the order a file lists them in.
+        Nothing about the elements changes, so nobody is notified."""
+        if len(order) != len(self._elements) or set(order) != self._elements.keys():
+            raise DocumentError("arrange: the order must name every element exactly once")
+        self._elements = {i: self._elements[i] for i in order}
 
     def set_analysis(self, analysis: Analysis) -> Analysis:
         """Set the analysis settings; returns the old ones."""
