@@ -291,11 +291,8 @@ def _realisation_text(eq: Equivalent) -> str:
         r = eq.realisation()
     except CircuitError as e:
         return f"none: {e}"
-    parts = [format_eng(r.resistance, "Ω", 4)] if r.resistance != 0 or r.kind is None else []
-    if r.kind is not None:
-        parts.append(format_eng(r.value, "H" if r.kind == "inductor" else "F", 4))
     note = " (a negative resistance: the region is active)" if r.resistance < 0 else ""
-    return " in series with ".join(parts) + note
+    return r.parts_text() + note
 
 
 def _power_text(eq: Equivalent, basis: str) -> str:

@@ -78,6 +78,15 @@ class Realisation:
     value: float | None
     freq: float
 
+    def parts_text(self) -> str:
+        """The series parts as every output writes them: ``"100 Ω in series with 4.7 µF"``,
+        ``"4.7 µF"`` (no resistance), ``"100 Ω"`` (no reactance)."""
+        parts = [format_eng(self.resistance, "Ω", 4)] if self.resistance != 0 or \
+            self.kind is None else []
+        if self.kind is not None:
+            parts.append(format_eng(self.value, "H" if self.kind == "inductor" else "F", 4))
+        return " in series with ".join(parts)
+
 
 @dataclass(frozen=True, slots=True)
 class PowerTransfer:
@@ -164,7 +173,7 @@ class Equivalent:
         if x == 0:
             return Realisation(r, None, None, self.freq)
         if self.freq == 0:
-            raise CircuitError(f"z = {format_complex(self.z, 'Ω')} is reactive at DC (a fixed "
+            raise CircuitError(f"Z = {format_complex(self.z, 'Ω')} is reactive at DC (a fixed "
                                "impedance part), which no inductor or capacitor realises")
         w = 2 * math.pi * self.freq
         if x > 0:
@@ -196,10 +205,10 @@ def _no_maximum(eq: Equivalent) -> str | None:
         return ("no finite maximum: the impedance is zero (an ideal voltage source), so a "
                 "smaller load always takes more power")
     if eq.z.real < 0:
-        return (f"no finite maximum: Re z = {format_eng(eq.z.real, 'Ω')} is negative, the region "
+        return (f"no finite maximum: Re Z = {format_eng(eq.z.real, 'Ω')} is negative, the region "
                 "is active and can deliver unbounded power")
     if eq.z.real == 0:
-        return ("no finite maximum: z is purely reactive, so the conjugate load cancels it and "
+        return ("no finite maximum: Z is purely reactive, so the conjugate load cancels it and "
                 "the current is unbounded")
     return None
 

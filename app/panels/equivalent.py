@@ -92,14 +92,9 @@ def realisation_text(eq: Equivalent) -> str:
         r = eq.realisation()
     except CircuitError as exc:
         return f"No series R, L or C realises Z: {exc}"
-    resistance = format_eng(r.resistance, "Ω", 4)
-    if r.kind is None:
-        text = f"Z at {at} is a resistance of {resistance}"
-    else:
-        unit = "H" if r.kind == "inductor" else "F"
-        text = f"Z at {at} = {resistance} in series with {format_eng(r.value, unit, 4)}"
+    text = f"Z at {at} = {r.parts_text()}"
     if r.resistance < 0:
-        text += " (negative resistance: the region is active)"
+        text += " (a negative resistance: the region is active)"
     return text
 
 
