@@ -43,6 +43,7 @@ from app.canvas import Canvas, Look
 from app.commands import MoveElements
 from app.editing import RigidMap, plan_placement
 from app.workbench import Workbench
+from engine import GROUND
 from engine.schematic import Document, NetLabel, PlacedPart, Wire
 from engine.schematic.connectivity import extract
 from engine.schematic.fileformat import dumps, loads
@@ -60,7 +61,7 @@ def generated_sheet(parts: int, columns: int = 40) -> Document:
     n = 0
     for r in range(rows):
         y = r * ROW
-        doc.add(NetLabel(f"g{r}", "0", (0, y + 6), style="ground"))
+        doc.add(NetLabel(f"g{r}", GROUND, (0, y + 6), style="ground"))
         doc.add(Wire(f"rail{r}", ((0, y + 6), (columns * CELL, y + 6))))
         for c in range(columns):
             x = c * CELL
