@@ -6,6 +6,7 @@ from __future__ import annotations
 import itertools
 from dataclasses import dataclass
 
+from portcut.engine.circuit import GROUND
 from portcut.engine.schematic import Document, Element, Junction, NetLabel, PlacedPart
 from portcut.engine.symbols import Point
 
@@ -48,7 +49,7 @@ ENTRIES: tuple[Entry, ...] = (
           "the controlling part", "10", "cccs", "Controlled"),
     Entry("opamp", "Op-amp", "Ideal operational amplifier (nullor), output referred to ground",
           "", "opamp", "Controlled"),
-    Entry("ground", "Ground", "The reference net, 0", icon="ground", group="Connections"),
+    Entry("ground", "Ground", "The reference net, gnd", icon="ground", group="Connections"),
     Entry("label", "Net label", "Names a net; equal names join anywhere on the sheet",
           icon="label", group="Connections"),
     Entry("junction", "Junction", "Joins every wire through its point, crossings included",
@@ -74,7 +75,7 @@ def prototype(doc: Document, key: str, at: Point, couples: tuple[str, ...] = ())
     if key == "junction":
         return Junction(doc.new_id(Junction), at)
     if key in ("ground", "label"):
-        name = "0" if key == "ground" else next_label_name(doc)
+        name = GROUND if key == "ground" else next_label_name(doc)
         return NetLabel(doc.new_id(NetLabel), name, at, style=key)
     return PlacedPart(doc.new_id(PlacedPart), key, doc.next_designator(key), at,
                       value=_BY_KEY[key].value,

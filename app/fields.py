@@ -15,11 +15,11 @@ from collections.abc import Callable
 from dataclasses import dataclass, replace
 
 from portcut.engine.captions import UNITS
-from portcut.engine.errors import DocumentError, ValueParseError
+from portcut.engine.errors import CircuitError, DocumentError, ValueParseError
 from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart
 from portcut.engine.schematic.ports import follow_renames
 from portcut.engine.schematic.text import text_problem
-from portcut.engine.units import parse_value
+from portcut.engine.units import VALUE_UNITS, implausible, parse_value
 
 __all__ = ["QUANTITY", "Field", "fields_for"]
 
@@ -48,6 +48,7 @@ class Field:
     tip: str
     writer: Writer
     unit: str = ""
+    warner: Callable[[Element, str], str] | None = None
 
     def read(self, element: Element) -> str:
         value = getattr(element, self.name)
@@ -61,6 +62,10 @@ class Field:
             owner = getattr(element, "designator", None) or getattr(element, "name", "")
             raise DocumentError(f"{owner} {self.title.lower()}: {problem}".lstrip())
         return self.writer(doc, element, text)
+
+    def warning(self, element: Element, text: str) -> str:
+        """A caution about text the field takes (an unusual magnitude), or ""."""
+        return self.warner(element, text) if self.warner else ""
 
 
 def _designator(doc: Document, element: Element, text: str) -> list[Element]:
@@ -85,11 +90,20 @@ def _value(doc: Document, part: PlacedPart, text: str) -> list[Element]:
     what = f"{part.designator} {QUANTITY[part.kind].lower()}"
     if not text.strip():
         raise ValueParseError(f"{what}: enter a value, e.g. {_EXAMPLE[part.kind]}")
-    value = parse_value(text, what=what)
+    value = parse_value(text, what=what, unit=VALUE_UNITS[part.kind])
     if part.kind == "coupling" and not abs(value) <= 1:
         raise ValueParseError(f"{what}: {text.strip()!r} is outside -1 … 1; a coupling "
                               "coefficient k has |k| ≤ 1")
     return [replace(part, value=text.strip())]
+
+
+def _value_warning(part: PlacedPart, text: str) -> str:
+    try:
+        value = parse_value(text, unit=VALUE_UNITS[part.kind])
+    except CircuitError:
+        return ""  # the refusal says what is wrong
+    reason = implausible(part.kind, value)
+    return f"Taken, but check the prefix: {text.strip()} is {reason}" if reason else ""
 
 
 _EXAMPLE = {"resistor": "4k7", "capacitor": "100n", "inductor": "10m", "impedance": "50",
@@ -156,7 +170,7 @@ def fields_for(element: Element) -> list[Field]:
         if element.style == "ground":
             return []
         return [Field("name", "Net name", "Labels with the same name join anywhere on the "
-                      "sheet; 0 is ground", _name)]
+                      "sheet; gnd is ground", _name)]
     if not isinstance(element, PlacedPart):
         return []
     out = [_DESIGNATOR]
@@ -165,7 +179,7 @@ def fields_for(element: Element) -> list[Field]:
         unit = UNITS.get(kind, "")
         out.append(Field("value", QUANTITY[kind], f"SI prefixes (4.7k, 100n, 2M; u or µ for "
                          f"micro) or IEC 60062 codes (4k7, 2R2, R47, 4n7), e.g. "
-                         f"{_EXAMPLE[kind]}", _value, unit))
+                         f"{_EXAMPLE[kind]}", _value, unit, _value_warning))
     if kind in ("voltage_source", "current_source"):
         out.append(Field("phase_deg", "Phase", "Phase of the source phasor in degrees; empty "
                          "for 0", _phase, "°"))

@@ -50,8 +50,10 @@ def _size(text: str) -> tuple[int, int]:
     try:
         w, h = (int(v) for v in text.lower().split("x"))
     except ValueError:
-        raise SystemExit(f"portcut: --size: expected WIDTHxHEIGHT such as 1400x860, got "
-                         f"{text!r}") from None
+        w = h = 0
+    if w <= 0 or h <= 0:
+        raise SystemExit(f"portcut: --size: expected WIDTHxHEIGHT in pixels such as 1400x860, "
+                         f"got {text!r}")
     return w, h
 
 
@@ -61,6 +63,7 @@ def run(argv: list[str]) -> int:
     args, qt_args = parser.parse_known_args(argv)  # the rest is Qt's own (-style, -platform …)
     if args.screenshot is not None:
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+        _quiet_platform_notes()
     elif not _has_display():
         print(_NO_DISPLAY, file=sys.stderr)
         from portcut.engine import cli
@@ -124,6 +127,17 @@ def _apply_looks(window, args: argparse.Namespace) -> None:
         window.set_style(args.symbols)
 
 
+def _quiet_platform_notes() -> None:
+    """Drop the windowing layer's notes on what an off-screen surface cannot do (size hints and
+    the like): a screenshot run has no screen, and they would read as problems on stderr."""
+    from PySide6.QtCore import qInstallMessageHandler
+
+    def handler(kind, context, message: str) -> None:
+        if not message.startswith("This plugin does not support"):
+            sys.stderr.write(message + "\n")
+    qInstallMessageHandler(handler)
+
+
 def _screenshot(args: argparse.Namespace, window) -> int:
     from PySide6.QtWidgets import QApplication
 
@@ -132,17 +146,28 @@ def _screenshot(args: argparse.Namespace, window) -> int:
     _apply_looks(window, args)
     window.files.report = lambda *message: None  # nobody is watching: the reason goes to stderr
     path = args.file if args.file is not None else assets.example_path()
+    size = _size(args.size)
     if not window.files.open_path(path, as_copy=args.file is None):
-        print(f"portcut: cannot open {path}: {window.files.last_error}", file=sys.stderr)
+        print(f"portcut: {window.files.last_error}", file=sys.stderr)  # it names the file
         return 1
-    window.resize(*_size(args.size))
+    doc = window.workbench.doc
+    names = [n.strip() for n in args.select.split(",") if n.strip()]
+    missing = [n for n in names if doc.by_designator(n) is None]
+    if missing:
+        known = ", ".join(sorted(e.designator for e in (*doc.parts(), *doc.blocks())))
+        print(f"portcut: --select: no part {', '.join(missing)} on the sheet; its parts are "
+              f"{known or 'none'}", file=sys.stderr)
+        return 2
+    window.resize(*size)
     window.show()
     for _ in range(3):  # let the docks settle their sizes before fitting the drawing
         QApplication.processEvents()
+    got = (window.width(), window.height())
+    if got != size:
+        print(f"portcut: --size {size[0]}x{size[1]} is smaller than the window can be; "
+              f"rendered at {got[0]}x{got[1]}", file=sys.stderr)
     window.canvas.view.fit()
-    names = [n.strip() for n in args.select.split(",") if n.strip()]
-    chosen = [e.id for n in names if (e := window.workbench.doc.by_designator(n)) is not None]
-    window.canvas.scene.select_ids(chosen)
+    window.canvas.scene.select_ids([doc.by_designator(n).id for n in names])
     QApplication.processEvents()
     ok = window.grab().save(str(args.screenshot))
     window.close()

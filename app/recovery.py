@@ -9,6 +9,7 @@ recognises a lock left by a dead process as stale) are offered for restoring, an
 that a killed write left in the folder are removed. Restored files are kept, under a lock of
 the session that restored them, until that session has autosaved or saved the work itself, so
 a second crash before then still finds them.
+Stale locks of sessions that ended without any autosave are removed too.
 """
 
 from __future__ import annotations
@@ -64,15 +65,28 @@ def _lock(folder: Path, token: str) -> QLockFile:
     return QLockFile(str(folder / f"session-{token}.lock"))
 
 
+def _held(folder: Path, token: str) -> bool:
+    """Whether session ``token`` is still running. A stale lock (its process is gone) is taken
+    and released, which removes its file."""
+    lock = _lock(folder, token)
+    if not lock.tryLock(0):
+        return True
+    lock.unlock()
+    return False
+
+
 def left_over(folder: Path) -> list[Recovered]:
-    """Recovery files of sessions that are no longer running, newest first."""
+    """Recovery files of sessions that are no longer running, newest first. Stale lock files
+    of ended sessions are removed on the way."""
+    for lock_path in folder.glob("session-*.lock"):
+        token = lock_path.name.removeprefix("session-").removesuffix(".lock")
+        if not (folder / f"autosave-{token}.meta.json").exists():
+            _held(folder, token)  # nothing to offer: only the stale lock to clear
     found = []
     for meta_path in folder.glob("autosave-*.meta.json"):
         token = meta_path.name.removeprefix("autosave-").removesuffix(".meta.json")
-        lock = _lock(folder, token)
-        if not lock.tryLock(0):
+        if _held(folder, token):
             continue  # that session is still running
-        lock.unlock()
         try:
             meta = json.loads(meta_path.read_text(encoding="utf-8"))
             source = Path(meta["source"]) if meta.get("source") else None

@@ -13,7 +13,7 @@ from portcut.engine.errors import DocumentError
 from portcut.engine.schematic import Document, Region
 from portcut.engine.schematic.text import text_problem
 
-__all__ = ["ROLES", "port_text", "renamed", "with_port_net"]
+__all__ = ["ROLES", "net_shown", "port_text", "renamed", "with_port_net"]
 
 #: The port's two sides, in the order of ``Region.port``.
 ROLES = ("plus", "minus")
@@ -69,4 +69,9 @@ def port_text(region: Region) -> str:
     if region.port is None:
         return f"Automatic port for “{region.name}”"
     plus, minus = region.port
-    return f"Port of “{region.name}”: + {plus}, − {minus}"
+    return f"Port of “{region.name}”: + {net_shown(plus)}, − {net_shown(minus)}"
+
+
+def net_shown(net: str) -> str:
+    """A net as the window names it: the ground net reads "ground"."""
+    return "ground" if net == GROUND else net

@@ -246,8 +246,8 @@ class MainWindow(QMainWindow):
         v = c.view
         view.addAction(a("zoom_in", "Zoom &In", v.zoom_in, key.ZoomIn, "Zoom in"))
         view.addAction(a("zoom_out", "Zoom &Out", v.zoom_out, key.ZoomOut, "Zoom out"))
-        view.addAction(a("fit", "&Fit to Sheet", v.fit, "Ctrl+0", "Show the whole drawing"))
-        view.addAction(a("actual_size", "&Actual Size", v.actual_size, "Ctrl+Alt+0",
+        view.addAction(a("fit", "&Fit to Sheet", v.fit, "Home", "Show the whole drawing"))
+        view.addAction(a("actual_size", "&Actual Size", v.actual_size, "Ctrl+0",
                          "Zoom to 100 %"))
         view.addSeparator()
         self._panels_menu = view.addMenu("&Panels")

@@ -46,6 +46,7 @@ from portcut.app.canvas import Canvas, Look
 from portcut.app.commands import MoveElements
 from portcut.app.editing import RigidMap, plan_placement
 from portcut.app.workbench import Workbench
+from portcut.engine import GROUND
 from portcut.engine.placement import Placement
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire
 from portcut.engine.schematic.connectivity import extract
@@ -64,7 +65,7 @@ def generated_sheet(parts: int, columns: int = 40) -> Document:
     n = 0
     for r in range(rows):
         y = r * ROW
-        doc.add(NetLabel(f"g{r}", "0", (0, y + 6), style="ground"))
+        doc.add(NetLabel(f"g{r}", GROUND, (0, y + 6), style="ground"))
         doc.add(Wire(f"rail{r}", ((0, y + 6), (columns * CELL, y + 6))))
         for c in range(columns):
             x = c * CELL

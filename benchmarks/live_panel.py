@@ -39,7 +39,7 @@ from PySide6.QtWidgets import QApplication
 from portcut.app.commands import MoveElements, ReplaceElements
 from portcut.app.settings import Settings
 from portcut.app.window import MainWindow
-from portcut.engine import equivalent
+from portcut.engine import GROUND, equivalent
 from portcut.engine.schematic import Analysis, Document, NetLabel, PlacedPart, Region, Wire
 from portcut.engine.topology import forget_netlists
 
@@ -64,7 +64,7 @@ def ladder_sheet() -> Document:
     doc.add(Wire("src_top", ((-4, 0), (0, 0))))
     for r in range(rows):
         y = r * ROW
-        doc.add(NetLabel(f"gnd{r}", "0", (-4 if r == 0 else 0, y + 4), style="ground"))
+        doc.add(NetLabel(f"gnd{r}", GROUND, (-4 if r == 0 else 0, y + 4), style="ground"))
         doc.add(Wire(f"rail{r}", ((-4 if r == 0 else 0, y + 4), (PER_ROW * CELL, y + 4))))
         for c in range(PER_ROW):
             n = r * PER_ROW + c + 1

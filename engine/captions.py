@@ -48,7 +48,7 @@ class Equivalent(Protocol):
 
 def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
     """The value of ``part`` as drawn beside it: ``"4.7 kΩ"``, ``"5 V ∠ 30°"``,
-    ``"100 Ω · I(R1)"``, ``"k = 0.9 (L1, L2)"``. ``ac``: the analysis is above DC, so
+    ``"100 Ω × current in R1"``, ``"k = 0.9 (L1, L2)"``. ``ac``: the analysis is above DC, so
     sources print as phasors.
 
     Text that cannot be read is shown as typed (building the circuit reports it); an ideal
@@ -71,7 +71,7 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
     else:
         text = format_complex(value, unit)
     if part.kind in ("ccvs", "cccs") and part.control:
-        text = f"{text} · I({part.control})"
+        text = f"{text} × current in {part.control}"
     return text
 
 

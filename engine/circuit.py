@@ -1,4 +1,4 @@
-"""The netlist level: named parts on named nets. Net ``"0"`` is ground.
+"""The netlist level: named parts on named nets. Net ``"gnd"`` (:data:`GROUND`) is ground.
 
 Sign conventions (kept by every module and stated in docs/method.md):
 
@@ -23,11 +23,11 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from .errors import CircuitError
-from .units import parse_value
+from .units import VALUE_UNITS, parse_value
 
 __all__ = ["GROUND", "KINDS", "REFERRING", "Circuit", "Columns", "Part", "References"]
 
-GROUND = "0"
+GROUND = "gnd"
 
 #: Every part kind, with the roles of its nodes.
 KINDS: dict[str, tuple[str, ...]] = {
@@ -90,8 +90,8 @@ class Circuit:
     """An ordered collection of uniquely named parts. Builder methods validate and return the Part.
 
     >>> c = Circuit()
-    >>> c.voltage_source("V1", "in", "0", 5).nodes
-    ('in', '0')
+    >>> c.voltage_source("V1", "in", "gnd", 5).nodes
+    ('in', 'gnd')
     >>> c.resistor("R1", "in", "out", "4k7").value
     4700.0
     """
@@ -494,7 +494,7 @@ def _phasor(name: str, value: object, phase_deg: float | None) -> complex | floa
 
 
 def _read(kind: str, name: str, value: object) -> complex | float:
-    number = parse_value(value, what=f"{name} value")
+    number = parse_value(value, what=f"{name} value", unit=VALUE_UNITS.get(kind))
     if isinstance(number, complex) and kind not in {"impedance", "voltage_source",
                                                      "current_source", "vcvs", "vccs",
                                                      "ccvs", "cccs"}:

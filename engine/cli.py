@@ -35,7 +35,7 @@ from .schematic.model import Region
 from .schematic.reduction import collapse_region, region_part_names, swapped
 from .svg import document_svg
 from .tables import sweep_csv
-from .units import format_complex, format_eng, parse_frequency
+from .units import denoised, format_complex, format_eng, parse_frequency
 
 __all__ = ["COMMANDS", "COMMAND_SUMMARIES", "Writer", "main"]
 
@@ -276,7 +276,7 @@ def _caution(circuit: Circuit, eqs: Sequence[Equivalent], basis: str, err: TextI
 
 # -- reduce --------------------------------------------------------------------------------------
 def _json_complex(z: complex) -> dict[str, float] | None:
-    z = complex(z)
+    z = denoised(z)  # full precision, but no rounding noise and never -0.0
     return {"re": z.real, "im": z.imag} if cmath.isfinite(z) else None
 
 
@@ -304,11 +304,8 @@ def _realisation_text(eq: Equivalent) -> str:
         r = eq.realisation()
     except CircuitError as e:
         return f"none: {e}"
-    parts = [format_eng(r.resistance, "Ω", 4)] if r.resistance != 0 or r.kind is None else []
-    if r.kind is not None:
-        parts.append(format_eng(r.value, "H" if r.kind == "inductor" else "F", 4))
     note = " (a negative resistance: the region is active)" if r.resistance < 0 else ""
-    return " in series with ".join(parts) + note
+    return r.parts_text() + note
 
 
 def _power_text(eq: Equivalent, basis: str) -> str:
@@ -337,7 +334,7 @@ def _reduce_table(eq: Equivalent, sel: _Selection, form: str, basis: str) -> str
               "Norton:   none, Z is zero (the port sees an ideal voltage source or a short)")
     out.extend([thevenin, norton] if form == "thevenin" else [norton, thevenin])
     out.append(f"Z as series parts at {at}: {_realisation_text(eq)}")
-    out.append(f"Maximum power ({basis} phasors): {_power_text(eq, basis)}")
+    out.append(f"Maximum power ({eq.max_power(basis).described()}): {_power_text(eq, basis)}")
     return "\n".join(out)
 
 

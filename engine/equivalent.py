@@ -24,7 +24,15 @@ from . import mna, topology
 from .circuit import GROUND, Circuit, Part
 from .errors import CircuitError, SingularCircuitError
 from .mna import describe_freq
-from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
+from .units import (
+    UNDEFINED,
+    denoised,
+    format_complex,
+    format_eng,
+    format_phasor,
+    parse_frequency,
+    parse_value,
+)
 
 __all__ = [
     "DENSE_SWEEP_LIMIT",
@@ -70,6 +78,15 @@ class Realisation:
     value: float | None
     freq: float
 
+    def parts_text(self) -> str:
+        """The series parts as every output writes them: ``"100 Ω in series with 4.7 µF"``,
+        ``"4.7 µF"`` (no resistance), ``"100 Ω"`` (no reactance)."""
+        parts = [format_eng(self.resistance, "Ω", 4)] if self.resistance != 0 or \
+            self.kind is None else []
+        if self.kind is not None:
+            parts.append(format_eng(self.value, "H" if self.kind == "inductor" else "F", 4))
+        return " in series with ".join(parts)
+
 
 @dataclass(frozen=True, slots=True)
 class PowerTransfer:
@@ -78,7 +95,8 @@ class PowerTransfer:
     ``load``: the conjugate-matched load (Ω) and ``power`` the average power it takes (W);
     ``resistive_load`` = |z| is the best purely resistive load and ``resistive_power`` its power.
     All four are None where no finite maximum exists (Re z <= 0 or no Thevenin form), and
-    ``reason`` says why. ``basis``: "peak" (source phasors are amplitudes) or "rms".
+    ``reason`` says why. ``basis``: "peak" (source phasors are amplitudes) or "rms" above DC;
+    "dc" at DC, where values are steady and peak and rms do not apply.
     """
 
     basis: str
@@ -87,6 +105,10 @@ class PowerTransfer:
     resistive_load: float | None
     resistive_power: float | None
     reason: str | None
+
+    def described(self) -> str:
+        """The basis as reports name it: "DC", "peak phasors" or "rms phasors"."""
+        return "DC" if self.basis == "dc" else f"{self.basis} phasors"
 
 
 @dataclass(frozen=True, slots=True)
@@ -115,9 +137,12 @@ class Equivalent:
         return self._forms(format_phasor, digits)
 
     def _forms(self, fmt, digits: int) -> Forms:
-        def text(value: complex, unit: str) -> str:
-            return "undefined" if cmath.isnan(value) else fmt(value, unit, digits)
-        return Forms(text(self.voc, "V"), text(self.isc, "A"), text(self.z, "Ω"))
+        def text(value: complex, unit: str, exists: bool = True) -> str:
+            if not exists or cmath.isnan(value):
+                return UNDEFINED
+            return fmt(denoised(value), unit, digits)
+        return Forms(text(self.voc, "V", self.has_thevenin), text(self.isc, "A", self.has_norton),
+                     text(self.z, "Ω"))
 
     def summary(self) -> str:
         """A few lines for a report: port, frequency, both forms (or why one is missing)."""
@@ -143,11 +168,12 @@ class Equivalent:
         if not self.has_thevenin:
             raise CircuitError("the region has no Thevenin form (infinite impedance), so no "
                                "series R + L or R + C realises it")
-        r, x = self.z.real, self.z.imag
+        z = denoised(self.z)  # a noise-level R or X is no part
+        r, x = z.real, z.imag
         if x == 0:
             return Realisation(r, None, None, self.freq)
         if self.freq == 0:
-            raise CircuitError(f"z = {format_complex(self.z, 'Ω')} is reactive at DC (a fixed "
+            raise CircuitError(f"Z = {format_complex(self.z, 'Ω')} is reactive at DC (a fixed "
                                "impedance part), which no inductor or capacitor realises")
         w = 2 * math.pi * self.freq
         if x > 0:
@@ -156,13 +182,15 @@ class Equivalent:
 
     def max_power(self, basis: str = "peak") -> PowerTransfer:
         """Power into a conjugate-matched load: |voc|^2 / (8 Re z) for peak phasors, / (4 Re z)
-        for rms ones; and into the best resistive load |z|."""
+        for rms ones and at DC (whatever ``basis``); and into the best resistive load |z|."""
         if basis not in ("peak", "rms"):
             raise CircuitError(f"basis must be 'peak' or 'rms', not {basis!r}")
+        if self.freq == 0:
+            basis = "dc"
         reason = _no_maximum(self)
         if reason:
             return PowerTransfer(basis, None, None, None, None, reason)
-        share = 0.5 if basis == "peak" else 1.0
+        share = 0.5 if basis == "peak" else 1.0  # a peak phasor's average power is half
         v2 = abs(self.voc) ** 2
         r_best = abs(self.z)
         return PowerTransfer(basis, self.z.conjugate(), share * v2 / (4 * self.z.real), r_best,
@@ -177,10 +205,10 @@ def _no_maximum(eq: Equivalent) -> str | None:
         return ("no finite maximum: the impedance is zero (an ideal voltage source), so a "
                 "smaller load always takes more power")
     if eq.z.real < 0:
-        return (f"no finite maximum: Re z = {format_eng(eq.z.real, 'Ω')} is negative, the region "
+        return (f"no finite maximum: Re Z = {format_eng(eq.z.real, 'Ω')} is negative, the region "
                 "is active and can deliver unbounded power")
     if eq.z.real == 0:
-        return ("no finite maximum: z is purely reactive, so the conjugate load cancels it and "
+        return ("no finite maximum: Z is purely reactive, so the conjugate load cancels it and "
                 "the current is unbounded")
     return None
 

@@ -8,6 +8,7 @@ import math
 from collections.abc import Iterable
 
 from .equivalent import Equivalent
+from .units import UNDEFINED, denoised
 
 __all__ = ["SWEEP_COLUMNS", "sweep_csv"]
 
@@ -25,19 +26,19 @@ SWEEP_COLUMNS: list[str] = ["f (Hz)"] + [
 
 def sweep_csv(rows: Iterable[Equivalent]) -> str:
     """The equivalents at each frequency as CSV text (:data:`SWEEP_COLUMNS`, full float
-    precision); a quantity whose form does not exist there, or is not finite, leaves its four
-    cells empty."""
+    precision); a quantity whose form does not exist there, or is not finite, has its four
+    cells read :data:`~engine.units.UNDEFINED`."""
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(SWEEP_COLUMNS)
     for eq in rows:
         row = [repr(float(eq.freq))]
         for _, _, key, exists in _QUANTITIES:
-            value = complex(getattr(eq, key))
+            value = denoised(getattr(eq, key))
             if getattr(eq, exists) and math.isfinite(abs(value)):
                 row += [repr(value.real), repr(value.imag), repr(abs(value)),
                         repr(math.degrees(math.atan2(value.imag, value.real)))]
             else:
-                row += ["", "", "", ""]
+                row += [UNDEFINED] * 4
         writer.writerow(row)
     return buffer.getvalue()

@@ -146,10 +146,10 @@ def check_cut(circuit: Circuit, region: Collection[str],
     Examples
     --------
     >>> c = Circuit()
-    >>> _ = c.voltage_source("V1", "in", "0", 5); _ = c.resistor("R1", "in", "a", 1e3)
-    >>> _ = c.resistor("R2", "a", "0", 1e3)
+    >>> _ = c.voltage_source("V1", "in", "gnd", 5); _ = c.resistor("R1", "in", "a", 1e3)
+    >>> _ = c.resistor("R2", "a", "gnd", 1e3)
     >>> check_cut(c, {"V1", "R1"})
-    ('a', '0')
+    ('a', 'gnd')
 
     Notes
     -----
@@ -686,9 +686,9 @@ def circuit_graph(circuit: Circuit | Iterable[Part], freq: float = 0.0) -> nx.Mu
     sources, controlled current sources and, at DC, capacitors). A VCVS/VCCS adds its output
     branch only; an op-amp its output to ground. Couplings add no edge.
 
-    >>> c = Circuit(); _ = c.resistor("R1", "a", "0", 1); _ = c.capacitor("C1", "a", "b", 1)
+    >>> c = Circuit(); _ = c.resistor("R1", "a", "gnd", 1); _ = c.capacitor("C1", "a", "b", 1)
     >>> sorted(circuit_graph(c).edges(keys=True, data="conducting"))
-    [('a', '0', 'R1', True), ('a', 'b', 'C1', False)]
+    [('a', 'b', 'C1', False), ('a', 'gnd', 'R1', True)]
     """
     graph = nx.MultiGraph()
     for part in circuit:

@@ -15,7 +15,9 @@ Accepted input (numbers pass through unchanged; strings are read as below):
   (``"4K7J"``): ``K`` and ``M`` inside or right after the digits are multipliers, so ``"47K"`` is
   47 kΩ;
 * an optional unit symbol after the prefix or code, with or without a space: ``"4.7 kΩ"``,
-  ``"100nF"``, ``"10 mH"``, ``"1 kHz"``, ``"5V"``, ``"2 mA"``, ``"1 mS"``, ``"ohm"``.
+  ``"100nF"``, ``"10 mH"``, ``"1 kHz"``, ``"5V"``, ``"2 mA"``, ``"1 mS"``, ``"ohm"``. Given the
+  field's unit (``unit=``, ``""`` for a plain ratio), a symbol must be that unit: ``"10uF"`` is
+  refused as a resistance.
 
 A bad value raises :class:`ValueParseError` that quotes the text and says what is accepted.
 """
@@ -31,10 +33,16 @@ from numbers import Complex, Real
 from .errors import ValueParseError
 
 __all__ = [
+    "NOISE_RTOL",
+    "PLAUSIBLE",
     "SI_PREFIXES",
+    "UNDEFINED",
+    "VALUE_UNITS",
+    "denoised",
     "format_complex",
     "format_eng",
     "format_phasor",
+    "implausible",
     "parse_frequency",
     "parse_value",
 ]
@@ -51,6 +59,13 @@ _CODE_LETTERS: dict[str, int] = {
     "m": -3, "k": 3, "K": 3, "M": 6, "G": 9, "T": 12,
 }
 _UNITS = ("Ω", "ohm", "ohms", "Ohm", "F", "H", "V", "A", "Hz", "S", "W")
+_OHMS = ("ohm", "ohms", "Ohm")  # spellings of Ω
+#: The unit each part kind's value takes ("" for a plain ratio: the gains and a coupling's k).
+VALUE_UNITS: dict[str, str] = {
+    "resistor": "Ω", "capacitor": "F", "inductor": "H", "impedance": "Ω",
+    "voltage_source": "V", "current_source": "A", "vcvs": "", "vccs": "S", "ccvs": "Ω",
+    "cccs": "", "coupling": "",
+}
 _TOLERANCE = "BCDFGJKM"
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
@@ -67,18 +82,21 @@ _HELP = (
 )
 
 
-def parse_value(value: object, *, what: str = "value") -> float | complex:
+def parse_value(value: object, *, what: str = "value", unit: str | None = None,
+                help_text: str = _HELP) -> float | complex:
     """Read a component value; numbers (real or complex) pass through.
 
-    ``what`` names the field in the error message (e.g. ``"R1 resistance"``).
-    Raises :class:`ValueParseError` quoting the text when it cannot be read or is not finite.
+    ``what`` names the field in the error message (e.g. ``"R1 resistance"``). ``unit``: the
+    field's unit symbol ("" for a ratio); text carrying another unit is refused (None: any).
+    Raises :class:`ValueParseError` quoting the text when it cannot be read, carries the wrong
+    unit or is not finite; ``help_text`` says what is accepted.
     """
     if type(value) is float:  # the common case, ahead of the slower abstract-type checks
         if not math.isfinite(value):
             raise ValueParseError(f"{what}: {value!r} is not finite")
         return value
     if isinstance(value, bool):
-        raise ValueParseError(f"{what}: {value!r} is not a number; {_HELP}")
+        raise ValueParseError(f"{what}: {value!r} is not a number; {help_text}")
     if isinstance(value, Real):
         result: float | complex = float(value)
     elif isinstance(value, Complex):
@@ -87,43 +105,106 @@ def parse_value(value: object, *, what: str = "value") -> float | complex:
             result = result.real
     elif isinstance(value, str):
         try:
-            result = _parse_text(value, what)
+            result = _parse_text(value, what, unit, help_text)
         except ArithmeticError:  # decimal.Overflow / InvalidOperation on absurd exponents
             raise ValueParseError(f"{what}: {value!r} is far out of range") from None
     else:
-        raise ValueParseError(f"{what}: {value!r} is not a number or text; {_HELP}")
+        raise ValueParseError(f"{what}: {value!r} is not a number or text; {help_text}")
     if not cmath.isfinite(result):
         raise ValueParseError(f"{what}: {value!r} is not finite")
     return result
 
 
-def _parse_text(text: str, what: str) -> float:
+def _parse_text(text: str, what: str, unit: str | None, help_text: str) -> float:
     s = text.strip()
     m = _DECIMAL_RE.match(s)
     if m:
+        _check_unit(m.group(3), unit, what, s)
         return _scaled(m.group(1), SI_PREFIXES[m.group(2) or ""])
     m = _BARE_R_RE.match(s)
     if m:  # "470R", "1R": IEC 60062 unit multiplier at the end
+        _check_unit(m.group(2), unit, what, s)
         return float(m.group(1))
     m = _LETTER_CODE_RE.match(s)
     if m and (m.group(2) or m.group(4)):
+        _check_unit(m.group(6), unit, what, s)
         sign, whole, letter, frac = m.group(1), m.group(2) or "0", m.group(3), m.group(4)
         return _scaled(f"{sign}{whole}.{frac}", _CODE_LETTERS[letter])
-    raise ValueParseError(f"{what}: cannot read {text!r}; {_HELP}")
+    raise ValueParseError(f"{what}: cannot read {text!r}; {help_text}")
+
+
+def _check_unit(given: str | None, unit: str | None, what: str, text: str) -> None:
+    """Refuse a unit symbol other than the field's own (``unit`` None: no check)."""
+    if given is None or unit is None:
+        return
+    symbol = "Ω" if given in _OHMS else given
+    if symbol == unit:
+        return
+    expected = f"a value in {unit}" if unit else "a plain number without a unit"
+    raise ValueParseError(f"{what}: {text!r} is in {symbol}, but this field takes {expected}")
 
 
 def _scaled(number: str, exponent: int) -> float:
     return float(Decimal(number).scaleb(exponent))
 
 
+#: Magnitudes (low, high) beyond which a part's value is most likely a slip (a wrong prefix); such
+#: a value is still taken, with a warning. Zero is never flagged.
+PLAUSIBLE: dict[str, tuple[float, float]] = {
+    "resistor": (1e-6, 1e15), "impedance": (1e-6, 1e15), "capacitor": (1e-15, 1.0),
+    "inductor": (1e-12, 1e3), "voltage_source": (1e-9, 1e6), "current_source": (1e-15, 1e4),
+}
+
+
+def implausible(kind: str, value: complex) -> str | None:
+    """Why ``value`` (SI units) is an unusual magnitude for a ``kind`` part, or None."""
+    if kind not in PLAUSIBLE or value == 0:
+        return None
+    low, high = PLAUSIBLE[kind]
+    unit = VALUE_UNITS[kind]
+    if abs(value) < low:
+        return f"below {format_eng(low, unit)}, unusually small for a {kind.replace('_', ' ')}"
+    if abs(value) > high:
+        return f"above {format_eng(high, unit)}, unusually large for a {kind.replace('_', ' ')}"
+    return None
+
+
+_FREQUENCY_HELP = "give hertz as a number with an optional SI prefix (50, 1k, 2.5 MHz) or DC"
+
+
 def parse_frequency(value: object) -> float:
     """Read an analysis frequency in hertz (``"1k"``, ``"10 kHz"``, ``"DC"`` = 0); must be >= 0."""
     if isinstance(value, str) and value.strip().upper() == "DC":
         return 0.0
-    f = parse_value(value, what="frequency")
+    f = parse_value(value, what="frequency", unit="Hz", help_text=_FREQUENCY_HELP)
     if isinstance(f, complex) or f < 0:
         raise ValueParseError(f"frequency: {value!r} must be a real number of hertz, 0 or more")
     return f
+
+
+#: How every output writes a quantity that does not exist (Voc without a Thevenin form, Isc
+#: without a Norton form): the panel, the command-line tables and the CSV cells alike.
+UNDEFINED = "undefined"
+
+#: A component of a complex result smaller than this fraction of the larger component's magnitude
+#: is rounding noise: the solution's own error scale is far above it.
+NOISE_RTOL = 1e-12
+
+
+def denoised(z: complex, scale: float | None = None) -> complex:
+    """``z`` with a component below its error scale set to zero, and no negative zero.
+
+    ``scale`` is the absolute error bound of ``z`` in its own units; None takes
+    :data:`NOISE_RTOL` times the larger component's magnitude. Non-finite values pass through.
+    Every output (panel, tables, CSV, JSON) shows results through this one function.
+    """
+    z = complex(z)
+    if not cmath.isfinite(z):
+        return z
+    bound = NOISE_RTOL * max(abs(z.real), abs(z.imag)) if scale is None else scale
+    re = 0.0 if abs(z.real) <= bound else z.real
+    im = 0.0 if abs(z.imag) <= bound else z.imag
+    return complex(re + 0.0, im + 0.0)  # -0.0 + 0.0 is +0.0
 
 
 _FORMAT_PREFIXES = [(1e24, "Y"), (1e21, "Z"), (1e18, "E"), (1e15, "P"), (1e12, "T"), (1e9, "G"),
@@ -137,7 +218,7 @@ def format_eng(value: float, unit: str = "", digits: int = 3) -> str:
     ``digits`` significant figures; trailing zeros are dropped. Infinity prints as ``∞``.
     """
     if math.isnan(value):
-        return "undefined"
+        return UNDEFINED
     if math.isinf(value):
         return f"{'-' if value < 0 else ''}∞ {unit}".rstrip()
     if value == 0:

@@ -43,7 +43,7 @@ from portcut.engine.units import format_complex, format_eng, parse_frequency
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas
 from ..commands import RemoveElements, ReplaceElements, SetAnalysis, edit_command
-from ..region_edits import ROLES, port_text, renamed, with_port_net
+from ..region_edits import ROLES, net_shown, port_text, renamed, with_port_net
 from ..workbench import Workbench
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 
@@ -118,14 +118,9 @@ def realisation_text(eq: Equivalent) -> str:
         r = eq.realisation()
     except CircuitError as exc:
         return f"No series R, L or C realises Z: {exc}"
-    resistance = format_eng(r.resistance, "Ω", 4)
-    if r.kind is None:
-        text = f"Z at {at} is a resistance of {resistance}"
-    else:
-        unit = "H" if r.kind == "inductor" else "F"
-        text = f"Z at {at} = {resistance} in series with {format_eng(r.value, unit, 4)}"
+    text = f"Z at {at} = {r.parts_text()}"
     if r.resistance < 0:
-        text += " (negative resistance: the region is active)"
+        text += " (a negative resistance: the region is active)"
     return text
 
 
@@ -136,7 +131,7 @@ def power_text(eq: Equivalent, basis: str) -> str:
         return p.reason[0].upper() + p.reason[1:]
     return (f"Matched load {format_complex(p.load, 'Ω')} takes {format_eng(p.power, 'W', 4)}; "
             f"the best resistor, {format_eng(p.resistive_load, 'Ω', 4)}, takes "
-            f"{format_eng(p.resistive_power, 'W', 4)} ({basis} phasors)")
+            f"{format_eng(p.resistive_power, 'W', 4)} ({p.described()})")
 
 
 def _agreement(relative: float) -> str:
@@ -252,11 +247,9 @@ class ValuesTable(QWidget):
                 cell.setText("—")
         else:
             rect, polar = eq.rectangular(), eq.polar()
-            defined = {"voc": eq.has_thevenin, "isc": eq.has_norton, "z": True}
             for key, _ in self.ROWS:
                 for form, texts in (("rectangular", rect), ("polar", polar)):
-                    self.cells[key, form].setText(
-                        keep_values(getattr(texts, key)) if defined[key] else "none")
+                    self.cells[key, form].setText(keep_values(getattr(texts, key)))
         self._arrange(not self._wide_enough(self.width()))
 
     def text(self, key: str, form: str) -> str:
@@ -468,7 +461,7 @@ class EquivalentDock(QDockWidget):
         eq = analysis.equivalent
         self.message.hide()
         plus, minus = eq.port
-        self.port.setText(f"Port <b>{plus}</b> (+) / <b>{minus}</b> (−) at "
+        self.port.setText(f"Port <b>{net_shown(plus)}</b> (+) / <b>{net_shown(minus)}</b> (−) at "
                           f"{keep_values(describe_freq(eq.freq))}")
         self.values.show_equivalent(eq)
         form = self.doc.analysis.form
@@ -520,9 +513,10 @@ class EquivalentDock(QDockWidget):
             box.setEnabled(usable)
             if not usable:
                 continue
-            box.addItem(f"automatic ({automatic[i]})" if automatic else "automatic", None)
+            box.addItem(f"automatic ({net_shown(automatic[i])})" if automatic else "automatic",
+                        None)
             for net in nets:
-                box.addItem(net, net)
+                box.addItem(net_shown(net), net)
             chosen = region.port[i] if region.port is not None else None
             if chosen is not None and chosen not in nets:
                 box.addItem(f"{chosen} (gone)", chosen)

@@ -40,7 +40,17 @@ class FieldEditor(CheckedEntry):
         super().__init__(self._write, field.read(element), field.title, field.tip)
         self.edit.setPlaceholderText(field.unit)
         self.edit.setCursorPosition(0)  # show the start of a long text
+        self.caution = QLabel()  # an unusual value taken: shown, never silent
+        self.caution.setObjectName("caution")
+        self.caution.setWordWrap(True)
+        self.layout().addWidget(self.caution)
+        self._caution()
         self.accepted.connect(self._push)
+
+    def _caution(self) -> None:
+        text = self.field.warning(self.element, self.text)
+        self.caution.setText(text)
+        self.caution.setVisible(bool(text))
 
     def _write(self, text: str) -> list:
         return self.field.write(self.inspector.workbench.doc, self.element, text)
@@ -50,8 +60,10 @@ class FieldEditor(CheckedEntry):
         self.element = element
         self.set_text(self.field.read(element))
         self.edit.setCursorPosition(0)
+        self._caution()
 
     def _push(self, text: str, new: list) -> None:
+        self._caution()
         if new != [self.element]:
             self.inspector.push(self.command(self.inspector.workbench.doc, new, text))
 
@@ -67,7 +79,7 @@ def _describe(element: Element) -> str:
     if isinstance(element, Block):
         return f"{element.designator} · collapsed {element.form.title()} equivalent"
     if isinstance(element, NetLabel):
-        return "Ground (net 0)" if element.style == "ground" else f"Net label {element.name}"
+        return "Ground (net gnd)" if element.style == "ground" else f"Net label {element.name}"
     if isinstance(element, Wire):
         return f"Wire · {len(element.points) - 1} segment(s)"
     return type(element).__name__

@@ -32,7 +32,7 @@ from portcut.engine.mna import describe_freq
 from portcut.engine.palette import PALETTE
 from portcut.engine.tables import SWEEP_COLUMNS
 from portcut.engine.tables import sweep_csv as rows_csv
-from portcut.engine.units import format_eng, parse_frequency
+from portcut.engine.units import UNDEFINED, format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
@@ -258,7 +258,8 @@ class SweepDock(QDockWidget):
         z = (f"|Z| = {format_eng(abs(eq.z), 'Ω', 4)}   ∠Z = "
              f"{math.degrees(math.atan2(eq.z.imag, eq.z.real)):.2f}°" if eq.has_thevenin
              else "|Z| = ∞")
-        voc = f"|Voc| = {format_eng(abs(eq.voc), 'V', 4)}" if eq.has_thevenin else "no Voc"
+        voc = f"|Voc| = {format_eng(abs(eq.voc), 'V', 4)}" if eq.has_thevenin else \
+            f"Voc {UNDEFINED}"
         self.readout.setText(f"Cursor at {describe_freq(eq.freq)}:   {z}   {voc}")
 
     # -- export -------------------------------------------------------------------------------

@@ -6,8 +6,8 @@ Joining rules (grid points are exact integers, so every test is an equality):
 * a wire end joins every wire through its point (a T), and pins at the same point join each other;
 * two wires that merely cross (neither ends there) stay apart unless a Junction sits on the point;
 * a Junction joins everything through its point;
-* net labels join by name anywhere on the sheet; a ground marker, or a label named ``"0"``, is
-  the ground net ``"0"``.
+* net labels join by name anywhere on the sheet; a ground marker, or a label named ``"gnd"``, is
+  the ground net ``"gnd"``.
 
 Net names. A net with labels takes the label's name; ground wins over any other name, and between
 two user names the one first in natural order (R2 before R10) wins, with a warning. An unlabelled
@@ -44,7 +44,7 @@ from ..circuit import GROUND, KINDS, Circuit, Part
 from ..equivalent import Equivalent, collapse, equivalent
 from ..errors import CircuitError
 from ..symbols import Point, pin_positions
-from ..units import parse_value
+from ..units import VALUE_UNITS, parse_value
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Wire
 
@@ -134,7 +134,7 @@ def _offsets(kind: str, rotation: int, mirror: bool) -> tuple[Point, ...]:
 
 
 def _label_net(label: NetLabel) -> str:
-    """The net name a marker gives: ``"0"`` for ground, else its name stripped ("" if none)."""
+    """The net name a marker gives: ``"gnd"`` for ground, else its name stripped ("" if none)."""
     return GROUND if label.style == "ground" else label.name.strip()
 
 
@@ -553,7 +553,7 @@ def _chosen_name(found: dict[str, int], sheet: _Sheet,
     """Ground first, then natural order; a warning for each name that loses."""
     ordered = sorted(found, key=lambda n: (n != GROUND, _natural_key(n)))
     chosen = ordered[0]
-    shown = "ground (0)" if chosen == GROUND else repr(chosen)
+    shown = f"ground ({GROUND})" if chosen == GROUND else repr(chosen)
     for other in ordered[1:]:
         marker = sheet.pin(found[other])
         warnings.append(ConnectivityWarning(
@@ -757,7 +757,7 @@ def _add_part(circuit: Circuit, part: PlacedPart, nodes: list[str]) -> None:
     if not part.value.strip():
         quantity, example = _QUANTITY[kind]
         raise CircuitError(f"{name} value: none given; enter the {quantity}, e.g. {example}")
-    value = parse_value(part.value, what=f"{name} value")
+    value = parse_value(part.value, what=f"{name} value", unit=VALUE_UNITS[kind])
     phase = _phase(part)
     if kind == "coupling":
         circuit.coupling(name, *part.couples, value)

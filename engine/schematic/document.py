@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import itertools
 import re
-from collections.abc import Callable, Iterable, Iterator
+from collections.abc import Callable, Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, field, fields, replace
 from typing import TypeVar
@@ -37,7 +37,7 @@ __all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
 DESIGNATOR_PREFIX: dict[str, str] = {
     "resistor": "R", "capacitor": "C", "inductor": "L", "impedance": "Z",
     "voltage_source": "V", "current_source": "I", "vcvs": "DS", "vccs": "DS", "ccvs": "DS",
-    "cccs": "DS", "opamp": "U", "coupling": "K", "block": "EQ",
+    "cccs": "DS", "opamp": "U", "coupling": "CP", "block": "EQ",
 }
 T = TypeVar("T")
 _ID_PREFIX = {PlacedPart: "p", Wire: "w", Junction: "j", NetLabel: "n", Region: "r", Block: "b"}
@@ -251,6 +251,13 @@ class Document:
         del self._elements[element.id]
         if isinstance(element, PlacedPart | Block):
             del self._designators[element.designator]
+
+    def arrange(self, order: Sequence[str]) -> None:
+        """Put the elements in ``order`` (every id once), the order a file lists them in.
+        Nothing about the elements changes, so nobody is notified."""
+        if len(order) != len(self._elements) or set(order) != self._elements.keys():
+            raise DocumentError("arrange: the order must name every element exactly once")
+        self._elements = {i: self._elements[i] for i in order}
 
     def set_analysis(self, analysis: Analysis) -> Analysis:
         """Set the analysis settings; returns the old ones."""

@@ -12,10 +12,12 @@ from __future__ import annotations
 
 import json
 import os
+import re
 from collections.abc import Callable, Iterator
 from typing import Any
 
 from ..atomic import write_atomically
+from ..circuit import GROUND
 from ..errors import DocumentError, ValueParseError
 from ..units import parse_frequency, parse_value
 from .document import Document
@@ -42,6 +44,7 @@ __all__ = [
     "FORMAT",
     "MAX_BLOCK_NESTING",
     "MAX_FILE_BYTES",
+    "NAMES_VERSION",
     "PORT_VERSION",
     "VERSION",
     "dumps",
@@ -51,11 +54,13 @@ __all__ = [
 ]
 
 FORMAT = "portcut-schematic"
-#: The newest file version this program writes and reads.
+#: The file version this program writes (every file) and the newest it reads.
 VERSION = 3
-#: The first version whose regions may hold a chosen port; a file without one is written as
-#: version 1, which older programs read.
+#: The first version whose regions may hold a chosen port.
 PORT_VERSION = 2
+#: The first version that names ground ``"gnd"`` and couplings ``CP<n>``; older files (ground
+#: ``"0"``, couplings ``K<n>``) are migrated on load.
+NAMES_VERSION = 3
 #: The first version whose parts may hold dragged caption offsets.
 CAPTION_VERSION = 3
 #: Largest caption offset from its part, grid units.
@@ -66,6 +71,7 @@ COORD_LIMIT = 1_000_000
 MAX_BLOCK_NESTING = 32
 MAX_FILE_BYTES = 64 * 1024 * 1024
 _LABEL_STYLES = ("label", "ground")
+_OLD_GROUND = "0"  # the ground net's name before NAMES_VERSION
 _BASES = ("peak", "rms")
 _WIDTH = 120  # characters per line of the file: one element a line, mostly
 # Optional fields and the values they take when absent; the writer leaves out defaults.
@@ -102,19 +108,9 @@ def _document_data(doc: Document) -> Data:
     contents = _contents_data(doc.parts(), doc.wires(), doc.junctions(), doc.labels(),
                               doc.blocks())
     a = doc.analysis
-    return {"format": FORMAT, "version": _version_needed(doc), "title": doc.title,
+    return {"format": FORMAT, "version": VERSION, "title": doc.title,
             "analysis": {"frequency": a.freq, "form": a.form, "basis": a.basis},
             **contents, "regions": [_region_data(r) for r in doc.regions()]}
-
-
-def _version_needed(doc: Document) -> int:
-    """The lowest file version that holds ``doc``: 1 unless a region (on the sheet or inside
-    a collapsed block) has a chosen port, 3 where a part has a dragged caption."""
-    regions = (*doc.regions(), *(e for e in doc.collapsed() if isinstance(e, Region)))
-    parts = (*doc.parts(), *(e for e in doc.collapsed() if isinstance(e, PlacedPart)))
-    if any(p.captions for p in parts):
-        return CAPTION_VERSION
-    return PORT_VERSION if any(r.port is not None for r in regions) else 1
 
 
 def _trimmed(data: Data, defaults: Data) -> Data:
@@ -250,6 +246,8 @@ def _read_document(data: Any) -> Document:
     _fields(data, "", required=("format", "version"),
             optional=("title", "analysis", "parts", "wires", "junctions", "labels", "blocks",
                       "regions"))
+    if version < NAMES_VERSION:
+        _migrate_names(data)
     scope = _Scope(Document(_text(data.get("title", "Untitled"), "title")), {})
     for path, element in _elements(data, "", 0, scope.designators, version):
         scope.add(path, element)
@@ -257,6 +255,43 @@ def _read_document(data: Any) -> Document:
         scope.add(path, region)
     scope.doc.set_analysis(_analysis(data.get("analysis", {}), "analysis"))
     return scope.doc
+
+
+def _migrate_names(data: Data) -> None:
+    """Rename, in place, what a version 1-2 file names the old way: the ground net ``"0"`` (in
+    net labels and chosen ports) becomes :data:`GROUND`, and a coupling designated ``K<n>``
+    becomes ``CP<n>`` where that designator is free. Anything malformed is left for the reader
+    to refuse with its path."""
+    levels = list(_levels(data))
+    taken = {p.get("designator") for level in levels for p in _dicts(level.get("parts"))}
+    for level in levels:
+        for label in _dicts(level.get("labels")):
+            if label.get("name") == _OLD_GROUND:
+                label["name"] = GROUND
+        for region in [*_dicts(level.get("regions")),
+                       *(b["region"] for b in _dicts(level.get("blocks"))
+                         if isinstance(b.get("region"), dict))]:
+            port = region.get("port")
+            if isinstance(port, dict):
+                region["port"] = {k: GROUND if v == _OLD_GROUND else v for k, v in port.items()}
+        for part in _dicts(level.get("parts")):
+            old = part.get("designator")
+            if part.get("kind") == "coupling" and isinstance(old, str) and \
+                    re.fullmatch(r"K\d+", old) and f"CP{old[1:]}" not in taken:
+                part["designator"] = f"CP{old[1:]}"
+                taken.add(part["designator"])
+
+
+def _levels(data: Data) -> Iterator[Data]:
+    """The sheet and every collapsed block's contents, however deep."""
+    yield data
+    for block in _dicts(data.get("blocks")):
+        if isinstance(block.get("contents"), dict):
+            yield from _levels(block["contents"])
+
+
+def _dicts(items: Any) -> list[Data]:
+    return [i for i in items if isinstance(i, dict)] if isinstance(items, list) else []
 
 
 class _Scope:

@@ -83,7 +83,7 @@ class Junction:
 class NetLabel:
     """A named net marker with one pin at ``at``: equal names join anywhere on the sheet.
 
-    ``style`` is ``"label"`` or ``"ground"``; a ground marker always names net ``"0"``.
+    ``style`` is ``"label"`` or ``"ground"``; a ground marker always names the ground net ``"gnd"``.
     """
 
     id: str

@@ -13,6 +13,7 @@ from __future__ import annotations
 from collections.abc import Iterable
 from dataclasses import replace
 
+from ..circuit import GROUND
 from ..symbols import PINS
 from .connectivity import Connectivity, _natural_key, extract
 from .document import Document
@@ -22,14 +23,14 @@ __all__ = ["follow_renames", "lost_port_nets", "region_nets"]
 
 
 def region_nets(doc: Document, region: Region, conn: Connectivity) -> tuple[str, ...]:
-    """The nets the region's parts and blocks have pins on, in natural order (ground, ``"0"``,
+    """The nets the region's parts and blocks have pins on, in natural order (ground, ``"gnd"``,
     first): the nets a port may be chosen from."""
     nets: set[str] = set()
     for element in (doc[m] for m in region.members if m in doc):
         if isinstance(element, PlacedPart | Block):
             kind = "block" if isinstance(element, Block) else element.kind
             nets.update(conn.net_of_pin[element.id, i] for i in range(len(PINS[kind])))
-    return tuple(sorted(nets, key=_natural_key))
+    return tuple(sorted(nets, key=lambda n: (n != GROUND, _natural_key(n))))
 
 
 def lost_port_nets(region: Region, nets: Iterable[str]) -> tuple[str, ...]:

@@ -46,7 +46,7 @@ from .block_layout import (
     route,
     union,
 )
-from .connectivity import Connectivity, build_circuit, extract, net_at
+from .connectivity import Connectivity, _natural_key, build_circuit, extract, net_at
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Region, Wire
 from .ports import lost_port_nets, region_nets
@@ -92,15 +92,35 @@ class Edit:
     added: tuple[Element, ...] = ()
 
     def apply(self, doc: Document) -> None:
-        """Perform the edit as one change notification."""
+        """Perform the edit as one change notification. Elements coming back (an expand, an
+        undo) return to their places in the document's order, so the file is as it was."""
         with doc.batch():
             for element in self.removed:
                 doc.remove(element.id)
+            kept = list(doc)
             for element in self.added:
                 doc.add(element)
+            doc.arrange(_merged(kept, self.added))
 
     def inverse(self) -> Edit:
         return Edit(removed=self.added, added=self.removed)
+
+
+def _merged(kept: list[Element], added: Iterable[Element]) -> list[str]:
+    """The ids of ``kept`` (in their order) with each of ``added`` placed among the elements of
+    its own type by id in natural order: ids are handed out in increasing order, so that is
+    where it stood."""
+    out = list(kept)
+    for element in sorted(added, key=lambda e: _natural_key(e.id)):
+        key, at = _natural_key(element.id), None
+        for i, other in enumerate(out):
+            if type(other) is type(element):
+                if _natural_key(other.id) > key:
+                    at = i
+                    break
+                at = i + 1
+        out.insert(len(out) if at is None else at, element)
+    return [e.id for e in out]
 
 
 def region_part_names(doc: Document, region: Region, circuit: Circuit) -> frozenset[str]:

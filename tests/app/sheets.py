@@ -35,7 +35,7 @@ def divider(r1: str = "1k", r2: str = "3k", load: str = "2k", second: str = "res
     part("resistor", "RL", (16, 4), 90, load)
     for points in (((0, 2), (2, 2)), ((6, 2), (16, 2)), ((0, 6), (16, 6))):
         doc.add(Wire(doc.new_id(Wire), points))
-    doc.add(NetLabel(doc.new_id(NetLabel), "0", (0, 6), style="ground"))
+    doc.add(NetLabel(doc.new_id(NetLabel), "gnd", (0, 6), style="ground"))
     doc.add(NetLabel(doc.new_id(NetLabel), "out", (12, 2)))
     return doc
 

@@ -107,10 +107,14 @@ def test_thevenin_norton_toggle_is_an_undoable_setting(window, drive):
     assert drive.doc.analysis.form == "thevenin" and panel.thevenin.isChecked()
 
 
-def test_matched_load_power_in_peak_and_rms(window, drive):
+def test_matched_load_power_at_dc_and_in_peak_and_rms(window, drive):
     panel = _drawn(window, drive, divider())
-    # common practice (maximum power transfer): P = |Voc|^2 / (8 Re Z) for peak phasors and
-    # |Voc|^2 / (4 Re Z) for rms ones: 7.5^2 / (8 * 750) = 9.375 mW, twice that for rms
+    # common practice (maximum power transfer): at DC a matched load takes Voc^2 / (4 R), in
+    # either basis: 7.5^2 / (4 * 750) = 18.75 mW. Above DC P = |Voc|^2 / (8 Re Z) for peak
+    # phasors and |Voc|^2 / (4 Re Z) for rms ones (a resistive divider: the same Voc and Z).
+    assert "Matched load 750 Ω takes 18.75 mW" in _plain(panel.power)
+    assert "(DC)" in _plain(panel.power) and "phasors" not in _plain(panel.power)
+    type_into(panel.frequency.edit, "1k")
     assert "Matched load 750 Ω takes 9.375 mW" in _plain(panel.power)
     assert "peak phasors" in _plain(panel.power)
     panel.basis.setFocus()
@@ -118,6 +122,7 @@ def test_matched_load_power_in_peak_and_rms(window, drive):
     settle()
     assert drive.doc.analysis.basis == "rms"
     assert "Matched load 750 Ω takes 18.75 mW" in _plain(panel.power)
+    assert "rms phasors" in _plain(panel.power)
 
 
 def test_swap_reverses_the_port_and_the_sign(window, drive):
@@ -125,13 +130,13 @@ def test_swap_reverses_the_port_and_the_sign(window, drive):
     click_button(panel.swap_button)
     eq = window.analysis.analysis.equivalent
     # common practice: seen the other way round, Voc and Isc change sign, Z does not
-    assert eq.port == ("0", "out")
+    assert eq.port == ("gnd", "out")
     assert eq.voc == pytest.approx(-7.5, rel=1e-12)
     assert panel.values.text("voc", "polar") == "7.5 V ∠ 180°"
     assert panel.values.text("z", "rectangular") == "750 Ω"
     drive.key(Qt.Key.Key_Z, CTRL)
     settle()
-    assert window.analysis.analysis.equivalent.port == ("out", "0")
+    assert window.analysis.analysis.equivalent.port == ("out", "gnd")
 
 
 def test_an_ideal_current_source_has_no_thevenin_form_and_says_why(window, drive):
@@ -150,7 +155,7 @@ def test_an_ideal_current_source_has_no_thevenin_form_and_says_why(window, drive
     assert eq.isc == pytest.approx(2e-3, rel=1e-12)
     assert cmath.isinf(eq.z)
     assert "No Thevenin form: Z is infinite" in panel.forms.text()
-    assert panel.values.text("voc", "rectangular") == "none"
+    assert panel.values.text("voc", "rectangular") == "undefined"
     assert panel.values.text("isc", "rectangular") == "2 mA"
     assert panel.values.text("z", "rectangular") == "∞ Ω"
     assert "No series R, L or C realises Z" in _plain(panel.realisation)

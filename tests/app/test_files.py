@@ -4,6 +4,8 @@ files, autosave recovery after a crash, and the SVG export rendered by Qt's SVG 
 
 from __future__ import annotations
 
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -155,6 +157,19 @@ def test_a_clean_close_leaves_nothing_to_recover(qtbot, settings, tmp_path: Path
     again = MainWindow(settings, recovery_folder=folder)
     qtbot.addWidget(again)
     assert not again.offer_recovery()
+
+
+def test_a_killed_session_leaves_no_stale_lock_behind(tmp_path: Path):
+    # a session killed before its first autosave: only its lock file is left on disk
+    folder = tmp_path / "recovery"
+    folder.mkdir()
+    lock = folder / "session-deadbeef0001.lock"
+    code = ("import os, sys; from PySide6.QtCore import QLockFile; "
+            "held = QLockFile(sys.argv[1]); assert held.tryLock(0); os._exit(0)")
+    subprocess.run([sys.executable, "-c", code, str(lock)], check=True, timeout=60)
+    assert lock.exists()  # the process ended without releasing it
+    assert left_over(folder) == []
+    assert not lock.exists()
 
 
 def test_svg_export_renders_with_qt(window, tmp_path: Path):

@@ -50,12 +50,38 @@ def test_bad_value_shows_the_reason_and_keeps_the_old_one(window, drive):
     assert drive.by("C1").value == "4n7" and not editor.in_error
 
 
+def test_a_value_in_another_fields_unit_is_refused_naming_the_unit(window, drive):
+    # SI (BIPM SI Brochure): resistance is in Ω; 10 µF is a capacitance, 10 mA a current.
+    drive.place("resistor", (0, 0))
+    drive.click((0, 0))
+    editor = window.inspector.editors["value"]
+    for typed, unit in (("10uF", "F"), ("10 mA", "A")):
+        _type(editor, typed)
+        assert drive.by("R1").value == "1k"
+        assert editor.in_error and "R1 resistance" in editor.error.text()
+        assert f"is in {unit}, but this field takes a value in Ω" in editor.error.text()
+    _type(editor, "4.7 kohm")                        # its own unit is taken (ohm for Ω)
+    assert drive.by("R1").value == "4.7 kohm" and not editor.in_error
+
+
+def test_an_unusual_magnitude_is_taken_with_a_visible_warning(window, drive):
+    drive.place("capacitor", (0, 0))
+    drive.click((0, 0))
+    editor = window.inspector.editors["value"]
+    assert not editor.caution.isVisible()
+    _type(editor, "10F")                             # 10 F: a prefix forgotten, most likely
+    assert drive.by("C1").value == "10F" and not editor.in_error
+    assert editor.caution.isVisible() and "unusually large" in editor.caution.text()
+    _type(editor, "10u")
+    assert drive.by("C1").value == "10u" and not editor.caution.isVisible()
+
+
 def test_coupling_coefficient_beyond_one_is_refused(window, drive):
     drive.place("coupling", (0, 0))
     drive.click((0, 0))
     editor = window.inspector.editors["value"]
     _type(editor, "1.2")
-    assert drive.by("K1").value == "0.9"
+    assert drive.by("CP1").value == "0.9"
     assert "|k| ≤ 1" in editor.error.text()
 
 

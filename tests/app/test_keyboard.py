@@ -3,6 +3,7 @@ stepping through elements, nudging, rotating, deleting, box-selecting, zooming a
 
 from __future__ import annotations
 
+import pytest
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 
@@ -83,7 +84,9 @@ def test_zoom_pan_and_fit_with_keys(window, drive):
     assert bar.value() > before
     drive.place("resistor", (0, 0))
     drive.place("resistor", (60, 30))
-    drive.key(Qt.Key.Key_0, CTRL)                         # fit to sheet
+    drive.key(Qt.Key.Key_Home)                            # fit to sheet
     shown = view.mapToScene(view.viewport().rect()).boundingRect()
     drawing = drive.canvas.scene.drawing_rect()
     assert shown.contains(drawing)
+    drive.key(Qt.Key.Key_0, CTRL)                         # 100 %
+    assert view.zoom() == pytest.approx(1.0)

@@ -3,8 +3,12 @@ fails with the loader's message, and with no display the command says what to do
 
 from __future__ import annotations
 
+import os
+import subprocess
+import sys
 from pathlib import Path
 
+import pytest
 from PySide6.QtGui import QColor, QImage
 
 import portcut
@@ -41,6 +45,38 @@ def test_screenshot_of_a_bad_file_fails_with_the_reason(qapp, tmp_path: Path, ca
     err = capsys.readouterr().err
     assert "bad.json" in err and "version" in err
     assert not (tmp_path / "x.png").exists()
+
+
+def test_a_missing_file_is_named_once_and_no_platform_note_reaches_stderr(tmp_path: Path):
+    # a run of its own: the process's stderr as a user sees it
+    missing = tmp_path / "missing.json"
+    env = {k: v for k, v in os.environ.items() if k != "QT_QPA_PLATFORM"}  # as a user runs it
+    done = subprocess.run([sys.executable, "-m", "app", str(missing), "--screenshot",
+                           str(tmp_path / "x.png")], capture_output=True, text=True, env=env,
+                          cwd=Path(__file__).parents[2], timeout=120)
+    assert done.returncode == 1
+    assert done.stderr == f"portcut: cannot open {missing}: No such file or directory\n"
+
+
+def test_an_unknown_designator_to_select_is_refused(qapp, tmp_path: Path, capsys):
+    out = tmp_path / "x.png"
+    assert run([str(assets.example_path("rc_antialias")), "--screenshot", str(out),
+                "--select", "ZZ9,R1"]) == 2
+    assert "--select: no part ZZ9 on the sheet; its parts are C1, C2, R1, R2, V1" in \
+        capsys.readouterr().err
+    assert not out.exists()
+
+
+def test_a_size_below_the_windows_smallest_is_said(qapp, tmp_path: Path, capsys):
+    out = tmp_path / "x.png"
+    assert run([str(assets.example_path("rc_antialias")), "--screenshot", str(out),
+                "--size", "10x10"]) == 0
+    err = capsys.readouterr().err
+    assert "--size 10x10 is smaller than the window can be; rendered at" in err
+    for bad in ("0x10", "wide"):
+        with pytest.raises(SystemExit, match="--size: expected WIDTHxHEIGHT"):
+            run([str(assets.example_path("rc_antialias")), "--screenshot", str(out),
+                 "--size", bad])
 
 
 def test_no_display_says_what_to_do(monkeypatch, capsys):

@@ -24,7 +24,7 @@ def test_every_entry_places_where_clicked(drive):
         assert element.at == spots[key]
     designators = [p.designator for p in doc.parts()]
     assert len(designators) == len(set(designators))
-    assert placed["ground"].name == "0"
+    assert placed["ground"].name == "gnd"
     assert isinstance(placed["junction"], Junction)
 
 

@@ -157,7 +157,7 @@ def test_couples_needs_two_inductors_on_the_sheet():
     doc = Document()
     doc.add(PlacedPart("p1", "inductor", "L1", (0, 0), value="1m"))
     doc.add(PlacedPart("p2", "capacitor", "C1", (0, 4), value="1n"))
-    k = PlacedPart("p3", "coupling", "K1", (4, 0), value="0.5")
+    k = PlacedPart("p3", "coupling", "CP1", (4, 0), value="0.5")
     doc.add(k)
     couples = _field(k, "couples")
     with pytest.raises(CircuitError, match="'C1' is not an inductor"):
@@ -184,16 +184,16 @@ def test_extra_low_voltage_limits(value, freq, basis, high):
 # -- region controls ------------------------------------------------------------------------------
 def test_choosing_one_port_net_completes_or_exchanges_the_other():
     region = Region("r1", "stage", frozenset(), swap=True)
-    nets = ("0", "R1.a", "out")
+    nets = ("gnd", "R1.a", "out")
     # with the automatic port shown, the other side keeps its net; the swap goes
-    assert with_port_net(region, ("out", "0"), nets, "plus", "R1.a").port == ("R1.a", "0")
-    assert not with_port_net(region, ("out", "0"), nets, "plus", "R1.a").swap
+    assert with_port_net(region, ("out", "gnd"), nets, "plus", "R1.a").port == ("R1.a", "gnd")
+    assert not with_port_net(region, ("out", "gnd"), nets, "plus", "R1.a").swap
     # choosing the other side's net exchanges the two
-    assert with_port_net(region, ("out", "0"), nets, "minus", "out").port == ("0", "out")
+    assert with_port_net(region, ("out", "gnd"), nets, "minus", "out").port == ("gnd", "out")
     # no port shown (the cut has none): ground where the region has it, else the first net
-    assert with_port_net(region, None, nets, "plus", "out").port == ("out", "0")
+    assert with_port_net(region, None, nets, "plus", "out").port == ("out", "gnd")
     assert with_port_net(region, None, ("a", "b"), "minus", "a").port == ("b", "a")
-    chosen = replace(region, swap=False, port=("out", "0"))
+    chosen = replace(region, swap=False, port=("out", "gnd"))
     assert with_port_net(chosen, chosen.port, nets, "plus", None).port is None
     with pytest.raises(DocumentError, match="has no net besides out; a port needs two"):
         with_port_net(region, None, ("out",), "plus", "out")

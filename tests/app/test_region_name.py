@@ -74,9 +74,9 @@ def test_shift_f2_on_the_canvas_goes_to_the_name(window, drive):
 def test_the_name_and_a_chosen_port_are_saved_in_the_file(window, drive, tmp_path: Path):
     panel = _drawn(window, drive)
     type_into(panel.name.edit, "source side")
-    pick(panel.port_boxes["plus"], "0")
+    pick(panel.port_boxes["plus"], "gnd")
     path = tmp_path / "named.json"
     assert window.files.save_to(path)
     (region,) = load(path).regions()
-    assert (region.name, region.port) == ("source side", ("0", "out"))
-    assert '"version": 2' in path.read_text(encoding="utf-8")
+    assert (region.name, region.port) == ("source side", ("gnd", "out"))
+    assert '"version": 3' in path.read_text(encoding="utf-8")

@@ -40,7 +40,7 @@ def test_a_lasso_around_a_divider_shows_its_closed_form(window, drive):
     assert region.members == _ids(doc, "V1", "R1", "R2")
     assert window.analysis.region_id == region.id
     eq = window.analysis.analysis.equivalent
-    assert eq.port == ("out", "0")
+    assert eq.port == ("out", "gnd")
     assert eq.voc == pytest.approx(7.5, rel=1e-12)
     assert eq.z == pytest.approx(750.0, rel=1e-12)
     assert eq.isc == pytest.approx(0.01, rel=1e-12)
@@ -154,11 +154,11 @@ def test_port_marks_sit_where_the_port_nets_cross_the_outline(window, drive):
     marks = window.cut_marks.items()[1].marks
     # the top wire (net out) crosses x = 11 at y = 2, the ground wire at y = 6
     assert {(m.role, m.net, m.at) for m in marks} == {("plus", "out", (11.0, 2.0)),
-                                                      ("minus", "0", (11.0, 6.0))}
+                                                      ("minus", "gnd", (11.0, 6.0))}
     window.equivalent_dock.swap_button.click()
     settle()
     marks = window.cut_marks.items()[1].marks
-    assert {(m.role, m.net) for m in marks} == {("plus", "0"), ("minus", "out")}
+    assert {(m.role, m.net) for m in marks} == {("plus", "gnd"), ("minus", "out")}
 
 
 def _pixel(window, p) -> QColor:

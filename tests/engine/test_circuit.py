@@ -19,7 +19,7 @@ def circuit() -> Circuit:
     c.resistor("R2", "a", GROUND, "10k")
     c.inductor("L1", "a", "b", "10m")
     c.inductor("L2", "c", GROUND, "22m")
-    c.coupling("K1", "L1", "L2", 0.5)
+    c.coupling("CP1", "L1", "L2", 0.5)
     c.opamp("U1", "a", "o", "o")
     return c
 
@@ -28,8 +28,8 @@ def circuit() -> Circuit:
 def test_values_are_parsed_and_nodes_kept_in_role_order(circuit: Circuit) -> None:
     assert circuit["R1"] == Part("R1", "resistor", ("in", "a"), 4700.0)
     assert circuit["L1"].value == pytest.approx(10e-3)
-    assert circuit["K1"].refs == ("L1", "L2")
-    assert circuit.names == ["V1", "R1", "R2", "L1", "L2", "K1", "U1"]
+    assert circuit["CP1"].refs == ("L1", "L2")
+    assert circuit.names == ["V1", "R1", "R2", "L1", "L2", "CP1", "U1"]
     assert len(circuit) == 7
     assert "R2" in circuit
     assert "R9" not in circuit
@@ -44,7 +44,7 @@ def test_every_builder_makes_the_kind_with_its_node_roles() -> None:
         c.current_source("I1", "a", "b", 1), c.vcvs("E1", "a", "b", "c", "d", 2),
         c.vccs("G1", "a", "b", "c", "d", 2), c.ccvs("H1", "a", "b", "R1", 2),
         c.cccs("F1", "a", "b", "R1", 2), c.opamp("U1", "a", "b", "c"),
-        c.inductor("L2", "c", "d", 1), c.coupling("K1", "L1", "L2", 0.1),
+        c.inductor("L2", "c", "d", 1), c.coupling("CP1", "L1", "L2", 0.1),
     ]
     kinds = {p.kind for p in made}
     assert kinds == set(KINDS)
@@ -65,19 +65,19 @@ def test_a_zero_ohm_resistor_is_an_ideal_wire() -> None:
 
 
 def test_sources_are_independent_and_dependent_ones_are_not(circuit: Circuit) -> None:
-    circuit.current_source("I1", "0", "a", "2m")
-    circuit.vcvs("E1", "x", "0", "a", "0", 10)
+    circuit.current_source("I1", "gnd", "a", "2m")
+    circuit.vcvs("E1", "x", "gnd", "a", "gnd", 10)
     assert [p.name for p in circuit if p.is_independent_source] == ["V1", "I1"]
 
 
 def test_magnitude_with_phase_makes_a_phasor() -> None:
     c = Circuit()
-    v = c.voltage_source("V1", "a", "0", 2, phase_deg=30)
-    i = c.current_source("I1", "0", "a", "2m", phase_deg=-90)
+    v = c.voltage_source("V1", "a", "gnd", 2, phase_deg=30)
+    i = c.current_source("I1", "gnd", "a", "2m", phase_deg=-90)
     assert v.value == pytest.approx(cmath.rect(2, math.radians(30)), abs=1e-15)
     assert i.value == pytest.approx(-2e-3j, abs=1e-18)
-    assert c.voltage_source("V2", "b", "0", 5, phase_deg=0).value == 5.0
-    assert c.voltage_source("V3", "c", "0", 1 + 2j).value == 1 + 2j
+    assert c.voltage_source("V2", "b", "gnd", 5, phase_deg=0).value == 5.0
+    assert c.voltage_source("V3", "c", "gnd", 1 + 2j).value == 1 + 2j
 
 
 def test_complex_values_are_kept_where_they_mean_something() -> None:
@@ -90,7 +90,7 @@ def test_copy_without_subcircuit_and_with_value_leave_the_original(circuit: Circ
     assert circuit.copy() == circuit
     assert circuit.copy() is not circuit
     smaller = circuit.without(["R2", "U1"])
-    assert smaller.names == ["V1", "R1", "L1", "L2", "K1"]
+    assert smaller.names == ["V1", "R1", "L1", "L2", "CP1"]
     assert circuit.subcircuit(["R2", "V1"]).names == ["V1", "R2"]
     changed = circuit.with_value("R1", "2k2")
     assert changed["R1"].value == 2200.0
@@ -170,7 +170,7 @@ def test_part_name_must_be_text(name: object) -> None:
     (Part("R9", "resistor", ("a",), 1), r"^R9: a resistor takes 2 nets \(a, b\), got 1"),
     (Part("E9", "vcvs", ("a", "b", "c"), 1), r"^E9: a vcvs takes 4 nets \(p, n, cp, cn\), got 3"),
     (Part("U9", "opamp", ("a", "b"), 0), r"^U9: a opamp takes 3 nets \(inp, inn, out\), got 2"),
-    (Part("K9", "coupling", ("a",), 0.1, ("L1", "L2")), r"takes 0 nets \(none\), got 1"),
+    (Part("CP9", "coupling", ("a",), 0.1, ("L1", "L2")), r"takes 0 nets \(none\), got 1"),
 ])
 def test_wrong_node_count(part: Part, message: str) -> None:
     with pytest.raises(CircuitError, match=message):
@@ -190,37 +190,37 @@ def test_unknown_kind() -> None:
 
 @pytest.mark.parametrize("k", [1.5, -1.01, "2"])
 def test_coupling_coefficient_outside_minus_one_to_one(circuit: Circuit, k: object) -> None:
-    with pytest.raises(CircuitError, match=r"^K2: coupling coefficient .* must lie in \[-1, 1\]"):
-        circuit.coupling("K2", "L1", "L2", k)
+    with pytest.raises(CircuitError, match=r"^CP2: coupling coefficient .* must lie in \[-1, 1\]"):
+        circuit.coupling("CP2", "L1", "L2", k)
 
 
 @pytest.mark.parametrize("k", [1, -1, 0, "0.999"])
 def test_coupling_coefficient_at_the_limits_is_accepted(circuit: Circuit, k: object) -> None:
-    assert -1 <= circuit.coupling("K2", "L1", "L2", k).value <= 1
+    assert -1 <= circuit.coupling("CP2", "L1", "L2", k).value <= 1
 
 
 def test_complex_coupling_coefficient(circuit: Circuit) -> None:
-    with pytest.raises(CircuitError, match=r"^K2: a coupling takes a real value, not 0.5j"):
-        circuit.coupling("K2", "L1", "L2", 0.5j)
+    with pytest.raises(CircuitError, match=r"^CP2: a coupling takes a real value, not 0.5j"):
+        circuit.coupling("CP2", "L1", "L2", 0.5j)
 
 
 def test_coupling_of_a_non_inductor(circuit: Circuit) -> None:
-    with pytest.raises(CircuitError, match=r"^K2: couples R1, which is a resistor, not an"):
-        circuit.coupling("K2", "L1", "R1", 0.5)
+    with pytest.raises(CircuitError, match=r"^CP2: couples R1, which is a resistor, not an"):
+        circuit.coupling("CP2", "L1", "R1", 0.5)
 
 
 def test_coupling_of_a_missing_inductor(circuit: Circuit) -> None:
-    with pytest.raises(CircuitError, match=r"^K2: couples 'L9', which is not in the circuit; add"):
-        circuit.coupling("K2", "L9", "L1", 0.5)
+    with pytest.raises(CircuitError, match=r"^CP2: couples 'L9', which is not in the circuit; add"):
+        circuit.coupling("CP2", "L9", "L1", 0.5)
 
 
 def test_coupling_of_an_inductor_with_itself(circuit: Circuit) -> None:
-    with pytest.raises(CircuitError, match=r"^K2: a coupling names two different inductors, got"):
-        circuit.coupling("K2", "L1", "L1", 0.5)
+    with pytest.raises(CircuitError, match=r"^CP2: a coupling names two different inductors, got"):
+        circuit.coupling("CP2", "L1", "L1", 0.5)
 
 
 def test_removing_a_coupled_inductor_is_refused_by_name(circuit: Circuit) -> None:
-    with pytest.raises(CircuitError, match=r"^K1: couples 'L2', which is not in the circuit"):
+    with pytest.raises(CircuitError, match=r"^CP1: couples 'L2', which is not in the circuit"):
         circuit.without(["L2"])
 
 
@@ -243,7 +243,7 @@ def test_unreadable_value_names_the_part_and_quotes_the_text() -> None:
 
 def test_phase_with_a_complex_value() -> None:
     with pytest.raises(CircuitError, match=r"^V1: give either a complex value or a magnitude"):
-        Circuit().voltage_source("V1", "a", "0", 1 + 1j, phase_deg=30)
+        Circuit().voltage_source("V1", "a", "gnd", 1 + 1j, phase_deg=30)
 
 
 @pytest.mark.parametrize(("phase", "message"), [
@@ -253,7 +253,7 @@ def test_phase_with_a_complex_value() -> None:
 ])
 def test_phase_must_be_a_finite_number_of_degrees(phase: object, message: str) -> None:
     with pytest.raises(CircuitError, match=message):
-        Circuit().current_source("I1", "0", "a", 1, phase_deg=phase)  # type: ignore[arg-type]
+        Circuit().current_source("I1", "gnd", "a", 1, phase_deg=phase)  # type: ignore[arg-type]
 
 
 def test_current_controlled_source_cannot_sense_itself() -> None:
@@ -261,7 +261,7 @@ def test_current_controlled_source_cannot_sense_itself() -> None:
         Circuit().ccvs("H1", "a", "b", "H1", 10)
 
 
-@pytest.mark.parametrize("control", ["U1", "K1"])
+@pytest.mark.parametrize("control", ["U1", "CP1"])
 def test_current_controlled_source_needs_a_branch_current(circuit: Circuit, control: str) -> None:
     with pytest.raises(CircuitError, match=rf"^F1: {control} has no single branch current"):
         circuit.cccs("F1", "a", "b", control, 2)
@@ -277,8 +277,8 @@ def test_unknown_part_names_are_refused_by_name(circuit: Circuit) -> None:
 def test_new_value_is_validated_as_on_creation(circuit: Circuit) -> None:
     with pytest.raises(CircuitError, match=r"^R1: a resistor takes a real value"):
         circuit.with_value("R1", 2j)
-    with pytest.raises(CircuitError, match=r"^K1: coupling coefficient 2.0 must lie in \[-1, 1\]"):
-        circuit.with_value("K1", 2)
+    with pytest.raises(CircuitError, match=r"^CP1: coupling coefficient 2.0 must lie in \[-1, 1\]"):
+        circuit.with_value("CP1", 2)
 
 
 @pytest.mark.parametrize(("part", "message"), [
@@ -288,7 +288,7 @@ def test_new_value_is_validated_as_on_creation(circuit: Circuit) -> None:
     (Part("F9", "cccs", ("a", "b"), 1, ("R1", "R2")), "^F9: "),
     (Part("R9", "resistor", None, 1), "^R9: "),  # type: ignore[arg-type]
     (Part("R9", "resistor", "ab", 1), "^R9: "),  # text is not a tuple of net names
-    (Part("K9", "coupling", (), 0.5, None), "^K9: "),  # type: ignore[arg-type]
+    (Part("CP9", "coupling", (), 0.5, None), "^CP9: "),  # type: ignore[arg-type]
     (Part("X9", ["resistor"], ("a", "b"), 1), "^X9: "),  # type: ignore[arg-type]
 ])
 def test_malformed_part_is_refused_with_a_circuit_error(part: Part, message: str) -> None:

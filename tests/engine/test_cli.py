@@ -38,7 +38,7 @@ def _two_terminal(doc: Document, pid: str, kind: str, name: str, a, b, value: st
 
 
 def _labelled(doc: Document, at, name: str) -> None:
-    style = "ground" if name == "0" else "label"
+    style = "ground" if name == "gnd" else "label"
     doc.add(NetLabel(doc.new_id(NetLabel), name, at, style=style))
 
 
@@ -50,8 +50,8 @@ def _source_load(source: tuple[str, str, str], series: tuple[str, str, str] | No
     source's top pin is "out" itself."""
     doc = Document("cli test")
     top = "in" if series else "out"
-    parts = [(source, (0, 0), (0, 4), top, "0"), (series, (10, 0), (14, 0), "in", "out"),
-             (shunt, (20, 0), (20, 4), "out", "0")]
+    parts = [(source, (0, 0), (0, 4), top, "gnd"), (series, (10, 0), (14, 0), "in", "out"),
+             (shunt, (20, 0), (20, 4), "out", "gnd")]
     members = set()
     for i, (part, a, b, net_a, net_b) in enumerate(parts, start=1):
         if part is None:
@@ -63,7 +63,7 @@ def _source_load(source: tuple[str, str, str], series: tuple[str, str, str] | No
         members.add(f"p{i}")
     _two_terminal(doc, "p4", "resistor", "RL", (30, 0), (30, 4), "1k")
     _labelled(doc, (30, 0), "out")
-    _labelled(doc, (30, 4), "0")
+    _labelled(doc, (30, 4), "gnd")
     doc.add(Region("r1", "src", frozenset(members)))
     return doc
 
@@ -110,7 +110,7 @@ def test_reduce_json_of_a_divider(capsys, divider):
     data = _json(capsys, divider)
     assert set(data) == {"port", "freq_hz", "voc", "isc", "z", "has_thevenin", "has_norton",
                          "region", "parts"}
-    assert data["port"] == ["out", "0"]  # ground is minus
+    assert data["port"] == ["out", "gnd"]  # ground is minus
     assert data["freq_hz"] == 0
     assert _c(data["voc"]) == pytest.approx(5.0)
     assert _c(data["z"]) == pytest.approx(500.0)
@@ -122,8 +122,8 @@ def test_reduce_json_of_a_divider(capsys, divider):
 def test_reduce_by_parts_and_swapped_port(capsys, divider):
     by_parts = _json(capsys, divider, "--parts", "V1,R1,R2")
     assert by_parts["region"] is None and _c(by_parts["voc"]) == pytest.approx(5.0)
-    swapped = _json(capsys, divider, "--port", "0,out")
-    assert swapped["port"] == ["0", "out"]
+    swapped = _json(capsys, divider, "--port", "gnd,out")
+    assert swapped["port"] == ["gnd", "out"]
     assert _c(swapped["voc"]) == pytest.approx(-5.0)
     assert _c(swapped["z"]) == pytest.approx(500.0)
 
@@ -145,7 +145,7 @@ def test_reduce_table_lists_both_forms_and_the_series_parts(capsys, saved):
     f = 1 / (2 * math.pi * 1e3 * 100e-9)
     code, out, err = _run(capsys, "reduce", path, "--freq", repr(f))
     assert code == 0, err
-    assert "region 'src' seen from port (out, 0)" in out
+    assert "region 'src' seen from port (out, gnd)" in out
     assert "707.1 mV ∠ -45°" in out          # |Voc| = 1/√2 at ωRC = 1
     assert "500 Ω - j 500 Ω" in out           # Z = R/(1 + j)
     assert "Thevenin: Voc in series with Z" in out and "Norton:   Isc in parallel with Z" in out
@@ -153,6 +153,17 @@ def test_reduce_table_lists_both_forms_and_the_series_parts(capsys, saved):
     assert "500 Ω in series with 200 nF" in out
     norton_first = _run(capsys, "reduce", path, "--form", "norton")[1]
     assert norton_first.index("Norton:") < norton_first.index("Thevenin:")
+
+
+@pytest.mark.parametrize(("freq", "basis", "power"), [
+    ("DC", "DC", "12.5 mW"), ("1k", "peak phasors", "6.25 mW")])
+def test_reduce_states_the_matched_load_power_for_dc_and_for_phasors(capsys, divider, freq,
+                                                                     basis, power):
+    # common practice (maximum power transfer): the divider is Voc = 5 V behind 500 Ω; at DC a
+    # matched load takes Voc^2 / (4 R) = 12.5 mW, with peak phasors |Voc|^2 / (8 Re Z) = 6.25 mW.
+    code, out, err = _run(capsys, "reduce", divider, "--freq", freq)
+    assert code == 0, err
+    assert f"Maximum power ({basis}): {power} into a matched load of 500 Ω" in out
 
 
 def test_reduce_without_a_thevenin_form(capsys, saved):
@@ -218,9 +229,19 @@ def test_sweep_table(capsys, divider):
     code, out, err = _run(capsys, "sweep", divider, "--from", "1", "--to", "1k", "--points", "4")
     assert code == 0, err
     lines = out.strip().splitlines()
-    assert lines[0] == "region 'src' seen from port (out, 0), plus first"
+    assert lines[0] == "region 'src' seen from port (out, gnd), plus first"
     assert [line.split()[0] for line in lines[-4:]] == ["1", "10", "100", "1"]
     assert all("500 Ω" in line for line in lines[-4:])
+
+
+@pytest.mark.parametrize(("freq", "unit"), [("1kF", "F"), ("4.7 kΩ", "Ω")])
+def test_a_frequency_in_another_unit_is_refused(capsys, divider, freq, unit):
+    # SI (BIPM SI Brochure): frequency is in Hz; F and Ω belong to other quantities.
+    code, out, err = _run(capsys, "reduce", divider, "--freq", freq)
+    assert code == 2 and out == ""
+    assert f"frequency: '{freq}' is in {unit}, but this field takes a value in Hz" in err
+    code, out, err = _run(capsys, "reduce", divider, "--freq", "fast")
+    assert "give hertz" in err and "4k7" not in err and "IEC" not in err  # no resistor codes
 
 
 @pytest.mark.parametrize("args", [
@@ -353,12 +374,13 @@ def test_demo_reduces_without_qt():
 def test_a_regions_chosen_port_is_used_unless_port_is_given(capsys, saved):
     # common practice (voltage divider): seen with plus on ground, Voc changes sign
     doc = _source_load(V10, R1K, R2K)
-    doc.replace_fields("r1", port=("0", "out"))
+    doc.replace_fields("r1", port=("gnd", "out"))
     path = saved(doc)
     chosen = _json(capsys, path)
-    assert chosen["port"] == ["0", "out"] and _c(chosen["voc"]) == pytest.approx(-5.0)
-    given = _json(capsys, path, "--port", "out,0")
-    assert given["port"] == ["out", "0"] and _c(given["voc"]) == pytest.approx(5.0)
+    assert chosen["port"] == ["gnd", "out"] and _c(chosen["voc"]) == pytest.approx(-5.0)
+    given = _json(capsys, path, "--port", "out,gnd")
+    assert given["port"] == ["out", "gnd"] and _c(given["voc"]) == pytest.approx(5.0)
+
 
 
 @pytest.mark.skipif(sys.platform == "win32", reason="POSIX file names are bytes")

@@ -72,16 +72,16 @@ def test_divider_nets_labels_ground_and_automatic_names() -> None:
     conn = extract(divider())
     assert conn.warnings == ()
     assert conn.net_of_pin == {
-        ("p_V1", 0): "R1.a", ("p_V1", 1): "0",
+        ("p_V1", 0): "R1.a", ("p_V1", 1): "gnd",
         ("p_R1", 0): "R1.a", ("p_R1", 1): "out",
-        ("p_R2", 0): "out", ("p_R2", 1): "0",
-        ("g1", 0): "0", ("g2", 0): "0", ("l1", 0): "out",
+        ("p_R2", 0): "out", ("p_R2", 1): "gnd",
+        ("g1", 0): "gnd", ("g2", 0): "gnd", ("l1", 0): "out",
     }
     assert conn.net_of_wire == {"w1": "R1.a", "w2": "out"}
     assert conn.nets == {
         "R1.a": frozenset({(0, 2), (0, 0), (2, 0)}),
         "out": frozenset({(6, 0), (8, 0), (8, 2)}),
-        "0": frozenset({(0, 6), (8, 6)}),
+        "gnd": frozenset({(0, 6), (8, 6)}),
     }
 
 
@@ -147,10 +147,10 @@ def test_labels_join_by_name_across_the_sheet() -> None:
 def test_ground_markers_and_a_label_named_0_are_all_ground() -> None:
     doc = sheet(part("R1", "resistor", (0, 0)), ground("g1", (-2, 0)),
                 NetLabel("g2", "anything", (2, 0), style="ground"),
-                part("R2", "resistor", (20, 0)), NetLabel("l1", "0", (18, 0)))
+                part("R2", "resistor", (20, 0)), NetLabel("l1", "gnd", (18, 0)))
     conn = extract(doc)
-    assert conn.net_of_pin["p_R1", 0] == conn.net_of_pin["p_R1", 1] == "0"
-    assert conn.net_of_pin["p_R2", 0] == "0"
+    assert conn.net_of_pin["p_R1", 0] == conn.net_of_pin["p_R1", 1] == "gnd"
+    assert conn.net_of_pin["p_R2", 0] == "gnd"
 
 
 def test_two_names_on_one_net_warn_and_the_first_in_natural_order_wins() -> None:
@@ -167,8 +167,8 @@ def test_two_names_on_one_net_warn_and_the_first_in_natural_order_wins() -> None
 def test_ground_wins_over_a_user_name() -> None:
     doc = sheet(Wire("w1", ((0, 0), (10, 0))), NetLabel("l1", "a", (0, 0)),
                 ground("g1", (10, 0)), part("R1", "resistor", (5, 2), 90))
-    assert extract(doc).net_of_wire["w1"] == "0"
-    assert ("one net carries two names, ground (0) and 'a'; it is called ground (0). "
+    assert extract(doc).net_of_wire["w1"] == "gnd"
+    assert ("one net carries two names, ground (gnd) and 'a'; it is called ground (gnd). "
             "Remove one label or separate the nets") in messages(doc)
 
 
@@ -235,7 +235,7 @@ def test_an_empty_document_has_no_nets() -> None:
 def test_net_at_finds_pins_then_wire_segments() -> None:
     doc = divider()
     conn = extract(doc)
-    assert net_at(doc, conn, (8, 6)) == "0"
+    assert net_at(doc, conn, (8, 6)) == "gnd"
     assert net_at(doc, conn, (7, 0)) == "out"
     assert net_at(doc, conn, (30, 30)) is None
 
@@ -277,12 +277,12 @@ def test_a_part_with_both_pins_on_one_net_is_shorted_out() -> None:
 
 
 @pytest.mark.parametrize(("extra", "message"), [
-    (part("K1", "coupling", (0, 9), couples=("L1", "L3"), value="0.9"),
-     "K1 couples L3, which is not on the sheet"),
-    (part("K1", "coupling", (0, 9), couples=("L1", "R1"), value="0.9"),
-     "K1 couples R1, which is a resistor, not an inductor"),
-    (part("K1", "coupling", (0, 9), couples=("L1",), value="0.9"),
-     "K1 must name two different inductors to couple"),
+    (part("CP1", "coupling", (0, 9), couples=("L1", "L3"), value="0.9"),
+     "CP1 couples L3, which is not on the sheet"),
+    (part("CP1", "coupling", (0, 9), couples=("L1", "R1"), value="0.9"),
+     "CP1 couples R1, which is a resistor, not an inductor"),
+    (part("CP1", "coupling", (0, 9), couples=("L1",), value="0.9"),
+     "CP1 must name two different inductors to couple"),
     (part("DS1", "ccvs", (0, 9), control="R5", value="100"),
      "DS1 is controlled by the current of R5, which is not on the sheet"),
     (part("DS1", "cccs", (0, 9), value="100"),
@@ -427,9 +427,9 @@ def test_far_apart_coordinates_give_the_same_joins(doc: Document) -> None:
 def test_build_circuit_names_parts_by_designator_on_their_nets() -> None:
     circuit = build_circuit(divider())
     assert [(p.name, p.kind, p.nodes, p.value) for p in circuit] == [
-        ("V1", "voltage_source", ("R1.a", "0"), 5.0),
+        ("V1", "voltage_source", ("R1.a", "gnd"), 5.0),
         ("R1", "resistor", ("R1.a", "out"), 4700.0),
-        ("R2", "resistor", ("out", "0"), 10000.0),
+        ("R2", "resistor", ("out", "gnd"), 10000.0),
     ]
 
 
@@ -437,19 +437,19 @@ def test_build_circuit_reads_phase_control_couplings_and_four_terminal_parts() -
     doc = sheet(
         part("V1", "voltage_source", (0, 0), value="2", phase_deg="90"),
         part("L1", "inductor", (0, 10), value="1m"), part("L2", "inductor", (0, 20), value="4m"),
-        part("K1", "coupling", (10, 40), value="0.5", couples=("L1", "L2")),
+        part("CP1", "coupling", (10, 40), value="0.5", couples=("L1", "L2")),
         part("DS1", "ccvs", (20, 0), value="100", control="L1"),
         part("DS2", "vccs", (20, 10), value="40m"),
         part("U1", "opamp", (20, 30)),
     )
     circuit = build_circuit(doc)
     assert circuit["V1"].value == pytest.approx(2j)
-    assert circuit["K1"].refs == ("L1", "L2") and circuit["K1"].value == 0.5
+    assert circuit["CP1"].refs == ("L1", "L2") and circuit["CP1"].value == 0.5
     assert circuit["DS1"].refs == ("L1",) and circuit["DS1"].nodes == ("DS1.p", "DS1.n")
     assert circuit["DS2"].nodes == ("DS2.from", "DS2.to", "DS2.cp", "DS2.cn")
     assert circuit["DS2"].value == pytest.approx(0.04)
     assert circuit["U1"].nodes == ("U1.inp", "U1.inn", "U1.out")
-    assert circuit.names[-1] == "K1"  # couplings follow their inductors
+    assert circuit.names[-1] == "CP1"  # couplings follow their inductors
 
 
 @pytest.mark.parametrize(("element_id", "fields", "message"), [
@@ -497,10 +497,10 @@ def test_a_thevenin_block_becomes_a_source_behind_its_impedance() -> None:
     assert plus == "EQ1.plus"
     src, z = circuit["EQ1.src"], circuit["EQ1.z"]
     assert (src.kind, src.nodes, z.nodes) == ("voltage_source", (plus, "EQ1.mid"),
-                                             ("EQ1.mid", "0"))
+                                             ("EQ1.mid", "gnd"))
     assert src.value == pytest.approx(VTH, rel=1e-12)
     assert complex(z.value) == pytest.approx(RTH, rel=1e-12)
-    seen = equivalent(circuit, region={"EQ1.src", "EQ1.z"}, port=(plus, "0"))
+    seen = equivalent(circuit, region={"EQ1.src", "EQ1.z"}, port=(plus, "gnd"))
     assert seen.voc == pytest.approx(VTH, rel=1e-12)
     assert seen.z == pytest.approx(RTH, rel=1e-12)
 
@@ -518,7 +518,7 @@ def test_a_norton_block_drives_its_current_into_plus() -> None:
     circuit = build_circuit(loaded(divider_block("norton")))
     plus = circuit["R9"].nodes[0]
     src, z = circuit["EQ1.src"], circuit["EQ1.z"]
-    assert (src.kind, src.nodes, z.nodes) == ("current_source", ("0", plus), (plus, "0"))
+    assert (src.kind, src.nodes, z.nodes) == ("current_source", ("gnd", plus), (plus, "gnd"))
     assert src.value == pytest.approx(5 / 4.7e3, rel=1e-12)  # the short-circuit current V / R1
     assert complex(z.value) == pytest.approx(RTH, rel=1e-12)
 
@@ -602,7 +602,7 @@ def test_a_re_extraction_of_an_unchanged_document_is_the_previous_result() -> No
     assert extract(doc, previous=conn) is conn
 
 
-LABEL_NAMES = ("a", "b", "0", "P1.a", "", "P10")  # "P1.a" takes an automatic name; "" warns
+LABEL_NAMES = ("a", "b", "gnd", "P1.a", "", "P10")  # "P1.a" takes an automatic name; "" warns
 DRAWN_KINDS = ("resistor", "capacitor", "opamp", "vcvs", "ccvs", "coupling")
 rotation = st.sampled_from((0, 90, 180, 270))
 

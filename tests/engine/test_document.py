@@ -33,7 +33,7 @@ def doc() -> Document:
     d.add(PlacedPart("p1", "resistor", "R1", (0, 0), value="4k7"))
     d.add(PlacedPart("p2", "resistor", "R2", (4, 0), rotation=90, value="10k"))
     d.add(Wire("w1", ((2, 0), (2, 4), (6, 4))))
-    d.add(NetLabel("n1", "0", (6, 4), style="ground"))
+    d.add(NetLabel("n1", "gnd", (6, 4), style="ground"))
     return d
 
 

@@ -383,10 +383,10 @@ def test_the_check_across_a_galvanically_separate_winding() -> None:
     c.resistor("R1", "in", "p", 50)
     c.inductor("L1", "p", GROUND, "1m")
     c.inductor("L2", "t", "u", "4m")
-    c.coupling("K1", "L2", "L1", -0.7)
+    c.coupling("CP1", "L2", "L1", -0.7)
     c.resistor("RL", "t", "u", "1k")
     c.resistor("RB", "u", GROUND, "1M")
-    region = {"V1", "R1", "L1", "L2", "K1"}
+    region = {"V1", "R1", "L1", "L2", "CP1"}
     reduced = collapse(c, region, ("t", "u"), 2e4)
     assert check_equivalence(c, reduced, region, port=("t", "u"), freq=2e4,
                              loads=[10, 1e4]).within(1e-10)
@@ -474,9 +474,28 @@ def test_formatted_forms_and_summary() -> None:
     c.voltage_source("V1", "a", GROUND, 5)
     c.resistor("RL", "a", GROUND, 1)
     stiff = equivalent(c, {"V1"}, ("a", GROUND))
-    assert stiff.rectangular().isc == "∞ A"
+    assert stiff.rectangular().isc == stiff.polar().isc == "undefined"  # no Norton form
     assert "Norton: none" in stiff.summary()
     open_ = Circuit()
     open_.current_source("I1", GROUND, "a", 0)
     open_.resistor("RL", "a", GROUND, 1)
     assert equivalent(open_, {"I1"}, ("a", GROUND)).polar().voc == "undefined"
+
+
+def test_series_parts_read_the_same_in_every_output() -> None:
+    # a 100 Ω + 4.278 µF region reads as both parts; with no resistance only the capacitor,
+    # never "0 Ω in series with" (the panel and reduce share this text)
+    Realisation = EQUIVALENT.Realisation
+    assert Realisation(100.0, "capacitor", 4.278e-6, 1e4).parts_text() == \
+        "100 Ω in series with 4.278 µF"
+    assert Realisation(0.0, "capacitor", 4.278e-6, 1e4).parts_text() == "4.278 µF"
+    assert Realisation(50.0, None, None, 0.0).parts_text() == "50 Ω"
+
+
+def test_a_purely_reactive_z_is_named_with_a_capital_z() -> None:
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 1)
+    c.capacitor("C1", "in", "a", 1e-6)
+    c.resistor("RL", "a", GROUND, 1)
+    got = equivalent(c, {"V1", "C1"}, ("a", GROUND), 1e3).max_power()
+    assert got.reason.startswith("no finite maximum: Z is purely reactive")

@@ -66,7 +66,7 @@ def test_a_region_meeting_the_rest_at_three_nets() -> None:
     c = divider()
     c.resistor("R3", "in", "vref", "1k")
     c.resistor("R4", "vref", GROUND, "1k")
-    with pytest.raises(CutError, match=r"at 3 nets: 0, a, vref — a two-terminal cut needs "
+    with pytest.raises(CutError, match=r"at 3 nets: a, gnd, vref — a two-terminal cut needs "
                                        r"exactly 2; .*move the parts on one of them"):
         check_cut(c, REGION | {"R3"})
 
@@ -81,7 +81,7 @@ def test_a_region_meeting_the_rest_at_one_net_needs_a_port() -> None:
 def test_a_net_besides_the_given_port() -> None:
     c = divider()
     c.resistor("R3", "in", "x", "1k")
-    with pytest.raises(CutError, match=r"at net in besides its port \(a, 0\)"):
+    with pytest.raises(CutError, match=r"at net in besides its port \(a, gnd\)"):
         check_cut(c, REGION, ("a", GROUND))
 
 
@@ -149,9 +149,9 @@ def test_coupling_across_the_boundary() -> None:
     c.inductor("L1", "a", GROUND, "1m")
     c.inductor("L2", "s", GROUND, "1m")
     c.resistor("RS", "s", GROUND, 10)
-    c.coupling("K1", "L1", "L2", 0.5)
-    with pytest.raises(CutError, match="K1 couples L1 inside the region with L2 outside it"):
-        check_cut(c, REGION | {"L1", "K1"}, ("a", GROUND))
+    c.coupling("CP1", "L1", "L2", 0.5)
+    with pytest.raises(CutError, match="CP1 couples L1 inside the region with L2 outside it"):
+        check_cut(c, REGION | {"L1", "CP1"}, ("a", GROUND))
 
 
 def test_coupling_of_inductances_of_opposite_signs() -> None:
@@ -161,9 +161,9 @@ def test_coupling_of_inductances_of_opposite_signs() -> None:
     c.inductor("L1", "a", GROUND, "1m")
     c.inductor("L2", "a", "s", "-1m")
     c.resistor("RS", "s", GROUND, 10)
-    c.coupling("K1", "L1", "L2", 0.5)
-    with pytest.raises(CircuitError, match="K1 couples inductors of opposite signs"):
-        equivalent(c, REGION | {"L1", "L2", "RS", "K1"}, ("a", GROUND), freq=1e3)
+    c.coupling("CP1", "L1", "L2", 0.5)
+    with pytest.raises(CircuitError, match="CP1 couples inductors of opposite signs"):
+        equivalent(c, REGION | {"L1", "L2", "RS", "CP1"}, ("a", GROUND), freq=1e3)
 
 
 # -- existence of a unique solution -------------------------------------------------------------
@@ -215,12 +215,12 @@ def test_sensing_between_isolated_islands() -> None:
     c = divider()
     c.inductor("L1", "a", GROUND, "1m")
     c.inductor("L2", "s", "t", "1m")
-    c.coupling("K1", "L1", "L2", 0.5)
+    c.coupling("CP1", "L1", "L2", 0.5)
     c.vcvs("DS1", "e", GROUND, "s", GROUND, 2)
     c.resistor("RE", "e", "a", "1k")
-    with pytest.raises(SingularCircuitError, match="DS1 senses the voltage between nets s and 0, "
+    with pytest.raises(SingularCircuitError, match="DS1 senses the voltage between nets s and gnd, "
                                                    "which no conducting path joins"):
-        equivalent(c, REGION | {"L1", "L2", "K1", "DS1", "RE"}, ("a", GROUND), 1e3)
+        equivalent(c, REGION | {"L1", "L2", "CP1", "DS1", "RE"}, ("a", GROUND), 1e3)
 
 
 def test_op_amp_without_feedback() -> None:

@@ -72,7 +72,7 @@ def test_each_example_is_a_clean_drawing_with_one_region_ready_to_reduce(name: s
     # the region meets the rest at exactly two nets: the port is found without being given
     eq = equivalent(circuit, region={doc[m].designator for m in region.members},
                     freq=parse_frequency(doc.analysis.freq))
-    labelled = {n.name for n in doc.labels() if n.style == "label"} | {"0"}
+    labelled = {n.name for n in doc.labels() if n.style == "label"} | {"gnd"}
     assert set(eq.port) <= labelled
 
 
@@ -94,7 +94,7 @@ def test_the_bridge_region_swaps_the_automatic_port_to_put_adc_p_first() -> None
 
 
 def test_rc_antialias() -> None:
-    eq, c, f = reduce("rc_antialias", ("adc_in", "0"))
+    eq, c, f = reduce("rc_antialias", ("adc_in", "gnd"))
     v, r, cap = value(c, "V1"), value(c, "R1"), value(c, "C1")
     jwrc = 2j * math.pi * f * r * cap
     # common practice: a first-order RC low-pass seen from its capacitor, V/(1 + jwRC) behind
@@ -104,7 +104,7 @@ def test_rc_antialias() -> None:
 
 
 def test_ce_stage_output() -> None:
-    eq, c, _ = reduce("ce_stage_output", ("collector", "0"))
+    eq, c, _ = reduce("ce_stage_output", ("collector", "gnd"))
     v, rs, rpi, gm = (value(c, n) for n in ("V1", "R1", "R2", "DS1"))
     ro, rc = value(c, "R3"), value(c, "R4")
     # common practice: hybrid-pi small-signal model, v_be = v rpi/(rs + rpi); the collector
@@ -115,7 +115,7 @@ def test_ce_stage_output() -> None:
 
 
 def test_audio_crossover() -> None:
-    eq, c, f = reduce("audio_crossover", ("tweeter", "0"))
+    eq, c, f = reduce("audio_crossover", ("tweeter", "gnd"))
     w = 2 * math.pi * f
     v, zc, zl = value(c, "V1"), 1 / (1j * w * value(c, "C2")), 1j * w * value(c, "L2")
     # common practice: the tweeter's second-order high-pass (series C, shunt L) fed by an ideal
@@ -124,7 +124,7 @@ def test_audio_crossover() -> None:
 
 
 def test_opamp_stage_output() -> None:
-    eq, c, f = reduce("opamp_stage_output", ("out", "0"))
+    eq, c, f = reduce("opamp_stage_output", ("out", "gnd"))
     v, r1, r2, c1, r3 = (value(c, n) for n in ("V1", "R1", "R2", "C1", "R3"))
     zf = par(r2, 1 / (2j * math.pi * f * c1))
     # common practice: ideal inverting amplifier, gain -Zf/R1, zero output impedance, so the
@@ -133,8 +133,8 @@ def test_opamp_stage_output() -> None:
 
 
 def test_transformer_coupling() -> None:
-    eq, c, f = reduce("transformer_coupling", ("secondary", "0"))
-    v, r1, l1, l2, k = (value(c, n) for n in ("V1", "R1", "L1", "L2", "K1"))
+    eq, c, f = reduce("transformer_coupling", ("secondary", "gnd"))
+    v, r1, l1, l2, k = (value(c, n) for n in ("V1", "R1", "L1", "L2", "CP1"))
     # Independent sympy solve of the two mesh equations of coupled coils (dots at the top
     # ends, so M adds for currents entering both dots): primary v = (R1 + jwL1) i1 + jwM i2,
     # secondary v2 = jwL2 i2 + jwM i1. Open: i2 = 0. Driven: 1 A into the secondary with the

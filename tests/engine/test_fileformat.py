@@ -28,7 +28,7 @@ except ImportError:  # not POSIX
     fcntl = None
 
 from portcut import assets
-from portcut.engine import DocumentError, atomic
+from portcut.engine import GROUND, DocumentError, atomic
 from portcut.engine.schematic import (
     Analysis,
     Block,
@@ -70,7 +70,7 @@ def rich_document() -> Document:
     doc = Document("Bridge · 350 Ω gauges")
     doc.add(PlacedPart("p1", "inductor", "L1", (0, 0), 180, value="10 mH"))
     doc.add(PlacedPart("p2", "inductor", "L2", (0, 8), value="40m"))
-    doc.add(PlacedPart("p3", "coupling", "K1", (4, 4), value="0.95", couples=("L1", "L2")))
+    doc.add(PlacedPart("p3", "coupling", "CP1", (4, 4), value="0.95", couples=("L1", "L2")))
     doc.add(PlacedPart("p4", "opamp", "U1", (20, 4), mirror=True))
     doc.add(Wire("w1", ((2, 0), (12, 0), (12, 6))))
     doc.add(Junction("j1", (6, 0)))
@@ -99,7 +99,7 @@ def test_the_text_is_stable_and_readable() -> None:
     assert dumps(loads(text)) == text
     assert max(len(line) for line in text.splitlines()) <= 120
     data = json.loads(text)
-    assert (data["format"], data["version"]) == ("portcut-schematic", 1)
+    assert (data["format"], data["version"]) == ("portcut-schematic", 3)
     assert '"title": "Bridge · 350 Ω gauges"' in text  # unicode kept as written
     # defaults are left out: the opamp has no value, rotation or couples field
     assert data["parts"][3] == {"id": "p4", "kind": "opamp", "designator": "U1", "at": [20, 4],
@@ -133,26 +133,60 @@ def test_the_documented_example_is_read_and_written_back_verbatim() -> None:
     assert [b.designator for b in doc.blocks()] == ["EQ1"]
 
 
-def test_a_chosen_port_is_written_as_version_2_and_read_back() -> None:
+def test_every_file_is_written_as_version_3_with_or_without_a_chosen_port() -> None:
     doc = rich_document()
-    doc.replace_fields("r2", swap=False, port=("v_out", "0"))
+    assert json.loads(dumps(doc))["version"] == fileformat.VERSION == 3
+    doc.replace_fields("r2", swap=False, port=("v_out", GROUND))
     text = dumps(doc)
     data = json.loads(text)
-    assert data["version"] == fileformat.PORT_VERSION == 2
-    assert data["regions"][0]["port"] == {"plus": "v_out", "minus": "0"}
+    assert data["version"] == 3
+    assert data["regions"][0]["port"] == {"plus": "v_out", "minus": "gnd"}
     assert "swap" not in data["regions"][0]  # the default, left out
     assert loads(text) == doc
-    doc.replace_fields("r2", port=None)  # back to automatic: a version 1 file again
-    assert json.loads(dumps(doc))["version"] == 1
 
 
-def test_a_chosen_port_kept_inside_a_collapsed_block_needs_version_2_too() -> None:
+def test_a_chosen_port_kept_inside_a_collapsed_block_reads_back() -> None:
     doc = rich_document()
     block = doc.remove("b1")
-    doc.add(replace(block, region=replace(block.region, port=("R3.a", "0"))))
-    text = dumps(doc)
-    assert json.loads(text)["version"] == 2
-    assert loads(text).blocks()[0].region.port == ("R3.a", "0")
+    doc.add(replace(block, region=replace(block.region, port=("R3.a", GROUND))))
+    assert loads(dumps(doc)).blocks()[0].region.port == ("R3.a", GROUND)
+
+
+def _old_file(version: int) -> dict[str, Any]:
+    """``rich_document`` as a version 1-2 file names it: ground "0", the coupling K1, a label
+    named "0" inside a collapsed block, and (version 2) chosen ports with ground "0"."""
+    data = json.loads(dumps(rich_document()))
+    data["version"] = version
+    data["parts"][2]["designator"] = "K1"
+    data["blocks"][0]["contents"]["labels"] = [{"id": "n5", "name": "0", "at": [3, 3]}]
+    if version >= 2:
+        data["regions"][0].update(port={"plus": "v_out", "minus": "0"}, swap=False)
+        data["blocks"][0]["region"]["port"] = {"plus": "0", "minus": "R3.a"}
+    return data
+
+
+@pytest.mark.parametrize("version", [1, 2])
+def test_an_older_file_is_migrated_to_gnd_and_cp_on_load(version: int) -> None:
+    doc = loads(json.dumps(_old_file(version)))
+    assert doc.by_designator("CP1").kind == "coupling"
+    assert [n.name for n in doc.blocks()[0].contents.labels] == [GROUND]
+    if version == 2:
+        assert doc.regions()[0].port == ("v_out", GROUND)
+        assert doc.blocks()[0].region.port == (GROUND, "R3.a")
+    assert json.loads(dumps(doc))["version"] == 3  # saved again: the new version
+
+
+def test_an_old_coupling_keeps_its_designator_when_the_new_one_is_taken() -> None:
+    data = _old_file(1)
+    data["parts"][3]["designator"] = "CP1"  # the op-amp already holds CP1
+    doc = loads(json.dumps(data))
+    assert doc.by_designator("K1").kind == "coupling"
+
+
+def test_a_version_3_file_is_not_migrated() -> None:
+    data = json.loads(dumps(rich_document()))
+    data["labels"][0]["name"] = "0"  # in version 3 a net named 0 is just a net
+    assert loads(json.dumps(data)).labels()[0].name == "0"
 
 
 def test_a_dragged_caption_is_written_as_version_3_and_read_back() -> None:
@@ -181,7 +215,7 @@ def test_an_in_memory_region_with_a_bad_port_is_refused_by_name() -> None:
     doc = rich_document()
     with pytest.raises(DocumentError, match=r"^Region r2: swap: a chosen port gives plus and "
                                             "minus in order"):
-        doc.replace_fields("r2", port=("v_out", "0"))  # r2 has swap set
+        doc.replace_fields("r2", port=("v_out", "gnd"))  # r2 has swap set
     with pytest.raises(DocumentError, match="plus and minus are both net 'x'"):
         doc.replace_fields("r2", swap=False, port=("x", "x"))
     assert doc.regions()[0].port is None
@@ -295,6 +329,22 @@ def deleter(*path: object):
     return change
 
 
+def version_1(change_more):
+    """A version 1 file, changed further by ``change_more``."""
+    def change(data: Any) -> None:
+        data["version"] = 1
+        change_more(data)
+    return change
+
+
+def version_1_port(port: object):
+    """A version 1 file whose first region has ``port``."""
+    def change(data: Any) -> None:
+        data["version"] = 1
+        data["regions"][0].update(port=port, swap=False)
+    return change
+
+
 def chosen_port(port: object, swap: bool = False):
     """A version 2 file whose first region has ``port`` (and ``swap``)."""
     def change(data: Any) -> None:
@@ -374,23 +424,23 @@ REFUSALS = [
     (setter("version", value=4),
      "written by a newer Portcut (version 4); this program reads up to version 3"),
     (setter("version", value="1"), 'version: expected a whole number from 1 to 3, got "1"'),
-    (setter("parts", 0, "captions", value={"value": [1, -2]}),
+    (version_1(setter("parts", 0, "captions", value={"value": [1, -2]})),
      "parts[0].captions: caption offsets need file version 3 or later; this file says "
      "version 1"),
     (setter("parts", 0, "captions", value=[1, 2]),
      "parts[0].captions: expected an object of caption offsets, got [1, 2]"),
-    (setter("regions", 0, "port", value={"plus": "v_out", "minus": "0"}),
+    (version_1_port({"plus": "v_out", "minus": "gnd"}),
      "regions[0].port: a chosen port needs file version 2 or later; this file says version 1"),
-    (chosen_port({"plus": "v_out", "minus": "0"}, swap=True),
+    (chosen_port({"plus": "v_out", "minus": "gnd"}, swap=True),
      "regions[0].swap: a chosen port gives plus and minus in order; swap is for the automatic "
      "port only"),
     (chosen_port({"plus": "v_out", "minus": "v_out"}),
      "regions[0].port: plus and minus are both net 'v_out'; choose two different nets"),
     (chosen_port({"plus": "v_out"}), "regions[0].port: the field 'minus' is missing"),
     (chosen_port({"plus": "v_out", "minus": 0}), "regions[0].port.minus: expected text, got 0"),
-    (chosen_port({"plus": "", "minus": "0"}),
-     "regions[0].port: expected two net names (plus, minus), got ('', '0')"),
-    (chosen_port(["v_out", "0"]), 'regions[0].port: expected an object, got ["v_out", "0"]'),
+    (chosen_port({"plus": "", "minus": "gnd"}),
+     "regions[0].port: expected two net names (plus, minus), got ('', 'gnd')"),
+    (chosen_port(["v_out", "gnd"]), 'regions[0].port: expected an object, got ["v_out", "gnd"]'),
     (setter("format", value="something-else"),
      "format: expected 'portcut-schematic', got \"something-else\"; this is not a Portcut "
      "schematic"),

@@ -95,7 +95,7 @@ def test_inductor_rows_and_mutual_terms() -> None:
     c = Circuit()
     c.inductor("L1", "a", GROUND, "1m")
     c.inductor("L2", "b", GROUND, "4m")
-    c.coupling("K1", "L1", "L2", 0.5)
+    c.coupling("CP1", "L1", "L2", 0.5)
     s = build(c)
     w = 2 * math.pi * 1e3
     a = s.matrix(1e3).toarray()

@@ -56,7 +56,7 @@ def _divider() -> Document:
     d.add(Wire("w4", ((12, 2), (12, 0))))
     d.add(Wire("w5", ((0, 6), (0, 8), (12, 8), (12, 6))))
     d.add(Wire("w6", ((8, 6), (8, 8))))
-    d.add(NetLabel("n1", "0", (4, 8), style="ground"))
+    d.add(NetLabel("n1", "gnd", (4, 8), style="ground"))
     d.add(NetLabel("n2", "out", (18, 0)))
     d.add(Region("r1", "source", frozenset({"p1", "p2"}), ((-3, -2), (6, -2), (6, 9), (-3, 9))))
     return d
@@ -323,7 +323,7 @@ def test_coupled_inductors_get_a_dot_at_their_first_node():
     doc = Document()
     doc.add(PlacedPart("p1", "inductor", "L1", (0, 0), value="1m"))
     doc.add(PlacedPart("p2", "inductor", "L2", (0, 6), rotation=180, value="4m"))
-    doc.add(PlacedPart("p3", "coupling", "K1", (0, 3), value="0.9", couples=("L1", "L2")))
+    doc.add(PlacedPart("p3", "coupling", "CP1", (0, 3), value="0.9", couples=("L1", "L2")))
     root = _parse(document_svg(doc))
     dots = [(float(c.get("cx")) / SCALE, float(c.get("cy")) / SCALE)
             for c in root.iter(f"{{{NS['s']}}}circle") if c.get("class") == "coupling-dot"]
@@ -357,7 +357,7 @@ def test_value_captions(kind, value, expected):
 
 def test_current_controlled_captions_name_their_control():
     part = PlacedPart("p", "ccvs", "DS1", (0, 0), value="100", control="R1")
-    assert value_caption(part) == "100 Ω · I(R1)"
+    assert value_caption(part) == "100 Ω × current in R1"
     assert value_caption(PlacedPart("p", "opamp", "U1", (0, 0))) == ""
 
 

@@ -33,7 +33,7 @@ def transformer(grounded_secondary: bool) -> Circuit:
     c.resistor("R1", "in", "p", 50)
     c.inductor("L1", "p", GROUND, "1m")
     c.inductor("L2", "t", "u", "4m")
-    c.coupling("K1", "L1", "L2", 0.9)
+    c.coupling("CP1", "L1", "L2", 0.9)
     c.resistor("RL", "t", "u", 330)
     if grounded_secondary:
         c.resistor("RB", "u", GROUND, "1M")
@@ -68,13 +68,13 @@ def test_given_port_may_include_an_inner_net() -> None:
 def test_a_coupling_follows_its_inductors() -> None:
     c = transformer(grounded_secondary=False)
     listed_without_k = {"V1", "R1", "L1", "L2"}
-    assert "K1" in {p.name for p in cut(c, listed_without_k, ("t", "u")).parts}
+    assert "CP1" in {p.name for p in cut(c, listed_without_k, ("t", "u")).parts}
     c.inductor("L3", "t", "u", "1m")
     c.inductor("L4", "v", GROUND, "1m")
-    c.coupling("K2", "L3", "L4", 0.2)
-    with_k_but_not_its_inductors = {"V1", "R1", "L1", "L2", "K1", "K2"}
+    c.coupling("CP2", "L3", "L4", 0.2)
+    with_k_but_not_its_inductors = {"V1", "R1", "L1", "L2", "CP1", "CP2"}
     parts = {p.name for p in cut(c, with_k_but_not_its_inductors, ("t", "u")).parts}
-    assert "K2" not in parts
+    assert "CP2" not in parts
 
 
 def test_a_piece_meeting_the_rest_at_one_net_is_not_a_terminal() -> None:
@@ -82,14 +82,14 @@ def test_a_piece_meeting_the_rest_at_one_net_is_not_a_terminal() -> None:
     # nothing conducts from the primary to the secondary inside the region (KCL, common
     # practice). So the cut is two-terminal at (t, u).
     c = transformer(grounded_secondary=True)
-    region = {"V1", "R1", "L1", "L2", "K1"}
+    region = {"V1", "R1", "L1", "L2", "CP1"}
     assert check_cut(c, region) == ("t", "u")
     assert check_cut(c, region, ("u", "t")) == ("u", "t")
 
 
 def test_an_isolated_winding_gets_its_own_reference() -> None:
     c = transformer(grounded_secondary=False)
-    netlist = Netlist(list(c.subcircuit({"V1", "R1", "L1", "L2", "K1"})))
+    netlist = Netlist(list(c.subcircuit({"V1", "R1", "L1", "L2", "CP1"})))
     found = islands(netlist, dc=False, references=("u",))
     assert len(found.pinned) == 2  # u, and one net of the primary
     assert found.joined("t")
@@ -106,7 +106,7 @@ def test_transformer_region_matches_the_reflected_impedance() -> None:
     w = 2 * cmath.pi * f
     m = 0.9 * (1e-3 * 4e-3) ** 0.5
     primary = 50 + 1j * w * 1e-3
-    eq = equivalent(c, {"V1", "R1", "L1", "L2", "K1"}, ("t", "u"), f)
+    eq = equivalent(c, {"V1", "R1", "L1", "L2", "CP1"}, ("t", "u"), f)
     assert eq.z == pytest.approx(1j * w * 4e-3 + (w * m) ** 2 / primary, rel=1e-12)
     assert eq.voc == pytest.approx(1j * w * m * 10 / primary, rel=1e-12)
 
@@ -199,8 +199,8 @@ def test_refusals_carry_the_nets_and_parts_they_name():
         check_cut(c, {"DS1", "RX"})
     assert set(controlled.value.parts) == {"DS1", "R1"}
     with pytest.raises(CutError) as coupled:
-        check_cut(transformer(True), {"V1", "R1", "L1", "L2", "K1"} - {"L2"})
-    assert {"K1", "L1", "L2"} <= set(coupled.value.parts)
+        check_cut(transformer(True), {"V1", "R1", "L1", "L2", "CP1"} - {"L2"})
+    assert {"CP1", "L1", "L2"} <= set(coupled.value.parts)
 
 
 def test_a_value_edit_patches_the_kept_netlist() -> None:
@@ -268,7 +268,7 @@ def test_a_region_netlist_from_the_columns_equals_one_built_from_its_parts() -> 
     c.opamp("U1", "p", "t", "o")
     c.cccs("F1", "o", GROUND, "RL", 2)
     c.impedance("Z1", "o", GROUND, 1 + 2j)
-    for region in (set(c.names), {"L1", "L2", "K1", "RL", "U1", "F1"}, {"Z1"}):
+    for region in (set(c.names), {"L1", "L2", "CP1", "RL", "U1", "F1"}, {"Z1"}):
         kept = netlist_of(c.columns(), c.rows_of(region))
         built = Netlist([p for p in c if p.name in region])
         assert kept.nets == built.nets and dict(kept.index) == dict(built.index)

@@ -19,11 +19,12 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from portcut.engine import CircuitError, ValueParseError
+from portcut.engine import GROUND, Circuit, CircuitError, ValueParseError
 from portcut.engine.units import (
     format_complex,
     format_eng,
     format_phasor,
+    implausible,
     parse_frequency,
     parse_value,
 )
@@ -258,3 +259,40 @@ def test_any_letter_code_reads_as_the_decimal_it_stands_for(whole: int, frac: st
     leading = str(whole) if whole or symbol != "R" else ""  # "R47" as well as "0R47"
     expected = float(Decimal(f"{whole}.{frac}").scaleb(power))
     assert parse_value(f"{leading}{symbol}{frac}{tolerance}") == expected
+
+
+# -- units checked against the field ------------------------------------------------------------
+@pytest.mark.parametrize(("text", "unit", "expected"), [
+    ("4.7 kΩ", "Ω", 4700.0), ("4k7 ohm", "Ω", 4700.0), ("100nF", "F", 100e-9), ("10 mH", "H", 0.01),
+    ("1 kHz", "Hz", 1000.0), ("40 mS", "S", 0.04), ("10", "", 10.0), ("2R2", "Ω", 2.2),
+])
+def test_a_value_in_the_fields_own_unit_is_taken(text: str, unit: str, expected: float) -> None:
+    # SI (BIPM SI Brochure, 9th ed.): the symbols of the ohm, farad, henry, hertz and siemens.
+    assert parse_value(text, unit=unit) == pytest.approx(expected)
+
+
+@pytest.mark.parametrize(("text", "unit", "message"), [
+    ("10uF", "Ω", "R1 value: '10uF' is in F, but this field takes a value in Ω"),
+    ("10 mA", "Ω", "R1 value: '10 mA' is in A, but this field takes a value in Ω"),
+    ("5 V", "", "R1 value: '5 V' is in V, but this field takes a plain number without a unit"),
+    ("1 W", "A", "R1 value: '1 W' is in W, but this field takes a value in A"),
+])
+def test_a_value_in_another_unit_is_refused_naming_the_unit(text: str, unit: str,
+                                                            message: str) -> None:
+    with pytest.raises(ValueParseError) as caught:
+        parse_value(text, what="R1 value", unit=unit)
+    assert str(caught.value) == message
+
+
+def test_a_resistor_value_in_farads_is_refused_when_the_circuit_is_built() -> None:
+    with pytest.raises(ValueParseError, match="takes a value in Ω"):
+        Circuit().resistor("R1", "a", GROUND, "10uF")
+
+
+@pytest.mark.parametrize(("kind", "value", "warned"), [
+    ("capacitor", 10.0, "unusually large"), ("resistor", 1e-7, "unusually small"),
+    ("capacitor", 100e-9, None), ("resistor", 0.0, None), ("vcvs", 1e9, None),
+])
+def test_unusual_magnitudes_are_named(kind: str, value: float, warned: str | None) -> None:
+    reason = implausible(kind, value)
+    assert (reason is None) if warned is None else (warned in reason)

@@ -39,7 +39,7 @@ from sympy.polys.matrices import DomainMatrix
 
 __all__ = ["GROUND", "PortReference", "ReferencePart", "exact", "port_reference"]
 
-GROUND = "0"
+GROUND = "gnd"
 _PORT = "port branch"
 
 

@@ -17,7 +17,7 @@ import pytest
 import sympy
 from sympy_nodal import port_reference
 
-from portcut.engine import Circuit, CircuitError, equivalent
+from portcut.engine import GROUND, Circuit, CircuitError, equivalent
 
 RTOL = 1e-9
 
@@ -61,11 +61,11 @@ def test_divider(solve: Solver) -> None:
     # Common practice: V_th = V R2 / (R1 + R2), R_th = R1 R2 / (R1 + R2), I_n = V / R1.
     v, r1, r2 = 10.0, 6e3, 4e3
     c = Circuit()
-    c.voltage_source("V1", "in", "0", v)
+    c.voltage_source("V1", "in", "gnd", v)
     c.resistor("R1", "in", "out", r1)
-    c.resistor("R2", "out", "0", r2)
-    c.resistor("RL", "out", "0", "1k")
-    got = solve(c, {"V1", "R1", "R2"}, ("out", "0"))
+    c.resistor("R2", "out", "gnd", r2)
+    c.resistor("RL", "out", "gnd", "1k")
+    got = solve(c, {"V1", "R1", "R2"}, ("out", "gnd"))
     assert close(got.voc, v * r2 / (r1 + r2))
     assert close(got.z, r1 * r2 / (r1 + r2))
     assert close(got.isc, v / r1)
@@ -74,11 +74,11 @@ def test_divider(solve: Solver) -> None:
 # -- Wheatstone bridge (common practice) --------------------------------------------------------
 def _bridge(r4: float) -> Circuit:
     c = Circuit()
-    c.voltage_source("V1", "top", "0", 5)
+    c.voltage_source("V1", "top", "gnd", 5)
     c.resistor("R1", "top", "a", "1k")
-    c.resistor("R2", "a", "0", "2k")
+    c.resistor("R2", "a", "gnd", "2k")
     c.resistor("R3", "top", "b", "3k")
-    c.resistor("R4", "b", "0", r4)
+    c.resistor("R4", "b", "gnd", r4)
     c.resistor("RG", "a", "b", "100")  # the detector, outside; the port floats from ground
     return c
 
@@ -99,16 +99,16 @@ def test_source_transformation(solve: Solver, freq: float) -> None:
     # Common practice: V in series with Z equals V / Z in parallel with Z, at any frequency.
     v, r, ind = 3 - 4j, 220.0, 10e-3
     series, shunt = Circuit(), Circuit()
-    series.voltage_source("V1", "in", "0", v)
+    series.voltage_source("V1", "in", "gnd", v)
     series.resistor("R1", "in", "m", r)
     series.inductor("L1", "m", "out", ind)
     z = r + 2j * math.pi * freq * ind
-    shunt.current_source("I1", "0", "out", v / z)
+    shunt.current_source("I1", "gnd", "out", v / z)
     shunt.resistor("R1", "out", "m", r)
-    shunt.inductor("L1", "m", "0", ind)
+    shunt.inductor("L1", "m", "gnd", ind)
     for c, region in ((series, {"V1", "R1", "L1"}), (shunt, {"I1", "R1", "L1"})):
-        c.resistor("RL", "out", "0", "1k")
-        got = solve(c, region, ("out", "0"), freq)
+        c.resistor("RL", "out", "gnd", "1k")
+        got = solve(c, region, ("out", "gnd"), freq)
         assert close(got.voc, v)
         assert close(got.isc, v / z)
         assert close(got.z, z)
@@ -121,17 +121,17 @@ F_CORNER = 1 / (2 * sympy.pi * R_LOW_PASS * C_LOW_PASS)  # w = 1e4 rad/s exactly
 
 def _rc_low_pass() -> tuple[Circuit, set[str]]:
     c = Circuit()
-    c.voltage_source("V1", "in", "0", 1)
+    c.voltage_source("V1", "in", "gnd", 1)
     c.resistor("R1", "in", "out", float(R_LOW_PASS))
-    c.capacitor("C1", "out", "0", float(C_LOW_PASS))
-    c.resistor("RL", "out", "0", "1M")
+    c.capacitor("C1", "out", "gnd", float(C_LOW_PASS))
+    c.resistor("RL", "out", "gnd", "1M")
     return c, {"V1", "R1", "C1"}
 
 
 def test_rc_low_pass_at_its_corner(solve: Solver) -> None:
     # Common practice: f_c = 1 / (2 pi R C); there V_out / V_in = 1 / (1 + j), i.e. 1/sqrt(2) at
     # -45 degrees, and the output impedance is R || 1/(j w C) = R / (1 + j).
-    got = solve(*_rc_low_pass(), ("out", "0"), F_CORNER)
+    got = solve(*_rc_low_pass(), ("out", "gnd"), F_CORNER)
     assert close(abs(got.voc), 1 / math.sqrt(2))
     assert math.isclose(math.degrees(cmath.phase(got.voc)), -45, rel_tol=RTOL)
     assert close(got.z, 1000 / (1 + 1j))
@@ -144,12 +144,12 @@ def test_series_rlc_at_resonance_leaves_only_r(solve: Solver) -> None:
     r, ind, cap = 50.0, sympy.Rational(1, 100), sympy.Rational(1, 10**6)
     f0 = 1 / (2 * sympy.pi * sympy.sqrt(ind * cap))
     c = Circuit()
-    c.voltage_source("V1", "in", "0", 2)
+    c.voltage_source("V1", "in", "gnd", 2)
     c.resistor("R1", "in", "x", r)
     c.inductor("L1", "x", "y", float(ind))
     c.capacitor("C1", "y", "out", float(cap))
-    c.resistor("RL", "out", "0", "50")
-    got = solve(c, {"V1", "R1", "L1", "C1"}, ("out", "0"), f0)
+    c.resistor("RL", "out", "gnd", "50")
+    got = solve(c, {"V1", "R1", "L1", "C1"}, ("out", "gnd"), f0)
     # the cancellation leaves a reactance of order eps * w0 L, so z is compared on |w0 L| too
     w0_l = float(2 * sympy.pi * f0 * ind)
     assert close(got.z, r, floor=w0_l)
@@ -163,13 +163,13 @@ def test_alexander_sadiku_example_4_8(solve: Solver) -> None:
     # 32 V source behind 4 Ω, 12 Ω to ground, a 2 A source into the same node, then 1 Ω to
     # terminal a. R_th = 4 Ω, V_th = 30 V; I_L = 3 A, 1.5 A, 0.75 A for R_L = 6, 16, 36 Ω.
     c = Circuit()
-    c.voltage_source("V1", "s", "0", 32)
+    c.voltage_source("V1", "s", "gnd", 32)
     c.resistor("R1", "s", "n", 4)
-    c.resistor("R2", "n", "0", 12)
-    c.current_source("I1", "0", "n", 2)
+    c.resistor("R2", "n", "gnd", 12)
+    c.current_source("I1", "gnd", "n", 2)
     c.resistor("R3", "n", "a", 1)
-    c.resistor("RL", "a", "0", 6)
-    got = solve(c, {"V1", "R1", "R2", "I1", "R3"}, ("a", "0"))
+    c.resistor("RL", "a", "gnd", 6)
+    got = solve(c, {"V1", "R1", "R2", "I1", "R3"}, ("a", "gnd"))
     assert close(got.z, 4)
     assert close(got.voc, 30)
     for r_load, current in ((6, 3), (16, 1.5), (36, 0.75)):
@@ -181,12 +181,12 @@ def _example_11_5() -> tuple[Circuit, set[str]]:
     # Alexander & Sadiku, Fundamentals of Electric Circuits, Example 11.5 (from memory): 10 V
     # (amplitude) behind 4 Ω, a shunt 8 Ω - j6 Ω, then j5 Ω to the load.
     c = Circuit()
-    c.voltage_source("V1", "s", "0", 10)
+    c.voltage_source("V1", "s", "gnd", 10)
     c.resistor("R1", "s", "n", 4)
     c.resistor("R2", "n", "m", 8)
-    c.impedance("Z1", "m", "0", -6j)
+    c.impedance("Z1", "m", "gnd", -6j)
     c.impedance("Z2", "n", "a", 5j)
-    c.resistor("RL", "a", "0", 3)
+    c.resistor("RL", "a", "gnd", 3)
     return c, {"V1", "R1", "R2", "Z1", "Z2"}
 
 
@@ -195,7 +195,7 @@ def test_maximum_power_transfer_alexander_sadiku_example_11_5(solve: Solver) -> 
     # amplitude phasors P_max = |V_th|^2 / (8 Re Z_th) (section "Maximum Average Power Transfer").
     # The book works with rounded intermediates (|V_th| = 7.454 V), the exact value is 2.3674 W.
     c, region = _example_11_5()
-    got = solve(c, region, ("a", "0"), 1e3)  # fixed impedances: any frequency
+    got = solve(c, region, ("a", "gnd"), 1e3)  # fixed impedances: any frequency
     z_load = got.z.conjugate()
     assert round(z_load.real, 3) == 2.933
     assert round(z_load.imag, 3) == -4.467
@@ -216,7 +216,7 @@ def test_conjugate_load_beats_every_nearby_load(solve: Solver) -> None:
     # Alexander & Sadiku, section "Maximum Average Power Transfer": the conjugate load is the
     # maximum; and with a purely resistive load the best is R_L = |Z_th|.
     c, region = _example_11_5()
-    got = solve(c, region, ("a", "0"))
+    got = solve(c, region, ("a", "gnd"))
     best = _load_power(got.voc, got.z, got.z.conjugate())
     assert math.isclose(best, abs(got.voc) ** 2 / (8 * got.z.real), rel_tol=RTOL)
     for dz in (0.1, -0.1, 0.1j, -0.1j, 0.05 + 0.05j):
@@ -229,21 +229,21 @@ def test_conjugate_load_beats_every_nearby_load(solve: Solver) -> None:
 # -- V_th = I_n Z_th ----------------------------------------------------------------------------
 def _mixed() -> tuple[Circuit, set[str]]:
     c = Circuit()
-    c.voltage_source("V1", "in", "0", 2, phase_deg=20)
+    c.voltage_source("V1", "in", "gnd", 2, phase_deg=20)
     c.resistor("R1", "in", "a", "1k")
-    c.capacitor("C1", "a", "0", "100n")
-    c.cccs("DS1", "0", "b", "R1", 3)  # dependent sources stay when z is found
+    c.capacitor("C1", "a", "gnd", "100n")
+    c.cccs("DS1", "gnd", "b", "R1", 3)  # dependent sources stay when z is found
     c.resistor("R2", "a", "b", "470")
-    c.inductor("L1", "b", "0", "22m")
-    c.current_source("I1", "0", "b", "1m")
-    c.resistor("RL", "b", "0", "1k")
+    c.inductor("L1", "b", "gnd", "22m")
+    c.current_source("I1", "gnd", "b", "1m")
+    c.resistor("RL", "b", "gnd", "1k")
     return c, {"V1", "R1", "C1", "DS1", "R2", "L1", "I1"}
 
 
 @pytest.mark.parametrize("freq", [50, 1e3, 1e5])
 def test_thevenin_voltage_is_norton_current_times_impedance(solve: Solver, freq: float) -> None:
     # Thevenin/Norton duality (common practice): V_th = I_n Z_th, Z_th = Z_n.
-    got = solve(*_mixed(), ("b", "0"), freq)
+    got = solve(*_mixed(), ("b", "gnd"), freq)
     assert got.has_thevenin
     assert got.has_norton
     assert close(got.voc, got.isc * got.z)
@@ -251,7 +251,7 @@ def test_thevenin_voltage_is_norton_current_times_impedance(solve: Solver, freq:
 
 def test_an_inductor_across_the_port_at_dc_leaves_no_norton_form(solve: Solver) -> None:
     # Common practice: at DC an inductor is a short, so z = 0 and only the Thevenin form exists.
-    got = solve(*_mixed(), ("b", "0"), 0)
+    got = solve(*_mixed(), ("b", "gnd"), 0)
     assert (got.has_thevenin, got.has_norton) == (True, False)
     assert got.z == 0
     assert abs(got.voc) <= RTOL
@@ -263,7 +263,7 @@ def test_max_power_helper_on_example_11_5() -> None:
     # P_max = |V_th|^2 / (8 R_th) = (500/9) / (8 * 44/15) = 7500/3168 W with amplitude phasors;
     # the same numbers read as rms phasors give |V|^2 / (4 R_th), twice as much.
     c, region = _example_11_5()
-    eq = equivalent(c, region=region, port=("a", "0"))
+    eq = equivalent(c, region=region, port=("a", "gnd"), freq=1e3)  # fixed impedances
     peak, rms = eq.max_power(), eq.max_power("rms")
     assert (peak.basis, rms.basis) == ("peak", "rms")
     assert close(peak.load, (44 - 67j) / 15)
@@ -275,15 +275,31 @@ def test_max_power_helper_on_example_11_5() -> None:
     assert close(peak.resistive_power, 0.5 * (500 / 9) * r / abs((44 + 67j) / 15 + r) ** 2)
 
 
+@pytest.mark.parametrize("basis", ["peak", "rms"])
+def test_max_power_at_dc_is_voc_squared_over_4r_in_either_basis(basis: str) -> None:
+    # common practice (maximum power transfer at DC): a source Voc behind R delivers
+    # Voc^2 / (4 R) into a matched load R; peak and rms are phasor conventions and do not apply.
+    # Divider: Voc = 10 V * 2k / (1k + 2k) = 20/3 V, R = 1k || 2k = 2000/3 Ω.
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 10)
+    c.resistor("R1", "in", "a", 1e3)
+    c.resistor("R2", "a", GROUND, 2e3)
+    c.resistor("RL", "a", GROUND, 5e3)
+    got = equivalent(c, region={"V1", "R1", "R2"}, port=("a", GROUND)).max_power(basis)
+    assert got.basis == "dc" and got.described() == "DC"
+    assert close(got.power, (20 / 3) ** 2 / (4 * 2000 / 3))
+    assert close(got.resistive_power, (20 / 3) ** 2 / (4 * 2000 / 3))  # |Z| = R at DC
+
+
 def test_max_power_has_no_finite_maximum_for_negative_resistance() -> None:
     # shared references (Alexander & Sadiku): no finite maximum where Re Z_th <= 0.
     c = Circuit()
-    c.voltage_source("V1", "in", "0", 3)
+    c.voltage_source("V1", "in", "gnd", 3)
     c.resistor("R1", "in", "a", "10k")
-    c.resistor("R2", "a", "0", "2k")
-    c.vccs("DS1", "0", "a", "a", "0", "1m")  # z = -2.5 kΩ (see test_against_sympy.py)
-    c.resistor("RL", "a", "0", "5k")
-    result = equivalent(c, region={"V1", "R1", "R2", "DS1"}, port=("a", "0")).max_power()
+    c.resistor("R2", "a", "gnd", "2k")
+    c.vccs("DS1", "gnd", "a", "a", "gnd", "1m")  # z = -2.5 kΩ (see test_against_sympy.py)
+    c.resistor("RL", "a", "gnd", "5k")
+    result = equivalent(c, region={"V1", "R1", "R2", "DS1"}, port=("a", "gnd")).max_power()
     assert result.power is None
     assert result.load is None
     assert "negative" in result.reason
@@ -292,9 +308,9 @@ def test_max_power_has_no_finite_maximum_for_negative_resistance() -> None:
 @pytest.mark.parametrize(("build", "port", "freq", "kind", "resistance", "value"), [
     # Common practice: a series R + C has z = R - j / (w C); a series R + L has z = R + j w L.
     # RC low-pass at its corner w = 1e4 rad/s: z = 500 - j500 Ω -> 500 Ω + 200 nF.
-    (_rc_low_pass, ("out", "0"), float(F_CORNER), "capacitor", 500.0, 200e-9),
+    (_rc_low_pass, ("out", "gnd"), float(F_CORNER), "capacitor", 500.0, 200e-9),
     # Example 11.5 (fixed impedances, read at 1 kHz): z = 44/15 + j 67/15 Ω -> L = X / w.
-    (_example_11_5, ("a", "0"), 1e3, "inductor", 44 / 15, 67 / 15 / (2 * math.pi * 1e3)),
+    (_example_11_5, ("a", "gnd"), 1e3, "inductor", 44 / 15, 67 / 15 / (2 * math.pi * 1e3)),
 ])
 def test_series_realisation_of_z(build: Callable[[], tuple[Circuit, set[str]]],
                                  port: tuple[str, str], freq: float, kind: str,
@@ -308,8 +324,8 @@ def test_series_realisation_of_z(build: Callable[[], tuple[Circuit, set[str]]],
 
 def test_no_series_realisation_without_a_thevenin_form() -> None:
     c = Circuit()
-    c.current_source("I1", "0", "a", "1m")
-    c.resistor("RL", "a", "0", "1k")
-    eq = equivalent(c, region={"I1"}, port=("a", "0"))
+    c.current_source("I1", "gnd", "a", "1m")
+    c.resistor("RL", "a", "gnd", "1k")
+    eq = equivalent(c, region={"I1"}, port=("a", "gnd"))
     with pytest.raises(CircuitError, match="no Thevenin form"):
         eq.realisation()

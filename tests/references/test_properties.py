@@ -59,8 +59,8 @@ class Grown:
     """A random region, the nets it was built on, and the port it is seen from."""
 
     circuit: Circuit = field(default_factory=Circuit)
-    nets: list[str] = field(default_factory=lambda: ["0"])
-    port: tuple[str, str] = ("n1", "0")
+    nets: list[str] = field(default_factory=lambda: ["gnd"])
+    port: tuple[str, str] = ("n1", "gnd")
     counter: itertools.count = field(default_factory=lambda: itertools.count(1))
 
     def name(self, prefix: str) -> str:
@@ -87,7 +87,7 @@ def regions(draw: st.DrawFn, motifs: tuple[str, ...] = ALL_MOTIFS,
     for motif in draw(st.lists(st.sampled_from(motifs), max_size=6)):
         _add_motif(draw, g, motif)
     plus = draw(st.sampled_from(g.nets[1:]))
-    others = [n for n in g.nets if n != plus] if floating_port else ["0"]
+    others = [n for n in g.nets if n != plus] if floating_port else ["gnd"]
     g.port = (plus, draw(st.sampled_from(others)))
     return g
 
@@ -115,7 +115,7 @@ def _add_motif(draw: st.DrawFn, g: Grown, motif: str) -> None:
             a, b = sense
             second = c.inductor(g.name("L"), a, behind_resistor(), draw(HENRIES))
             k = draw(st.sampled_from([-0.95, -0.5, 0.3, 0.8, 0.99]))
-            c.coupling(g.name("K"), first.name, second.name, k)
+            c.coupling(g.name("CP"), first.name, second.name, k)
     elif motif == "impedance":
         c.impedance(g.name("Z"), a, b, complex(draw(OHMS), draw(st.sampled_from([-1e3, 0, 50]))))
     elif motif == "voltage_source":
@@ -134,7 +134,7 @@ def _add_motif(draw: st.DrawFn, g: Grown, motif: str) -> None:
     elif motif == "opamp":  # a non-inverting stage from net a, its output through a resistor
         n, o = g.name("x"), g.name("x")
         c.opamp(g.name("U"), a, n, o)
-        c.resistor(g.name("R"), n, "0", draw(OHMS))
+        c.resistor(g.name("R"), n, "gnd", draw(OHMS))
         c.resistor(g.name("R"), n, o, draw(OHMS))
         c.resistor(g.name("R"), o, b, draw(OHMS))
 
@@ -156,8 +156,8 @@ def _close(got: complex, want: complex, floor: float = 0.0) -> bool:
 def voltage_scale(g: Grown, freq: float) -> float:
     """The largest open-circuit voltage of any net of the region against ground: the size of
     the solution that rounding is relative to where a port quantity cancels to near zero."""
-    found = [equivalent(g.circuit, region=g.region, port=(net, "0"), freq=freq)
-             for net in sorted(g.circuit.nets() - {"0"})]
+    found = [equivalent(g.circuit, region=g.region, port=(net, "gnd"), freq=freq)
+             for net in sorted(g.circuit.nets() - {"gnd"})]
     return max((abs(eq.voc) for eq in found if eq.has_thevenin), default=0.0)
 
 
@@ -202,12 +202,12 @@ def test_passive_regions_are_reciprocal(g: Grown, freq: float, drive: st.DataObj
     transfer = {}
     for into, seen in ((b, a), (a, b)):
         c = g.circuit.copy()
-        c.current_source("ITEST", "0", into, 1)
-        c.resistor("LOAD", seen, "0", "1k")
-        eq = solved(g, freq, c, (seen, "0"), {*g.region, "ITEST"})
+        c.current_source("ITEST", "gnd", into, 1)
+        c.resistor("LOAD", seen, "gnd", "1k")
+        eq = solved(g, freq, c, (seen, "gnd"), {*g.region, "ITEST"})
         assert eq.has_thevenin
         transfer[into] = eq.voc
-    driving = solved(g, freq, port=(a, "0")).z
+    driving = solved(g, freq, port=(a, "gnd")).z
     assert _close(transfer[a], transfer[b], floor=abs(driving))
 
 
@@ -249,7 +249,7 @@ def test_random_regions_match_the_exact_reference(g: Grown, freq: float) -> None
 
 
 # -- robustness ---------------------------------------------------------------------------------
-_NETS = ["0", "a", "b", "c", "d"]
+_NETS = ["gnd", "a", "b", "c", "d"]
 _VALUES = st.one_of(
     st.sampled_from([0, 1, -1, 1e-300, 1e300, "4k7", "bad", 1 + 1j, math.nan, math.inf, None]),
     st.floats(allow_nan=True, allow_infinity=True),
@@ -328,8 +328,8 @@ def test_collapse_seen_through_a_floating_port() -> None:
     # A shape the property above finds: ground lies only inside the region, the outside floats.
     # Outside, only voltage differences exist; the equivalent keeps V(x) - V(y) = 0.5 V exactly.
     c = Circuit()
-    c.voltage_source("V1", "x", "0", 1)
-    c.resistor("R1", "0", "y", "1k")
+    c.voltage_source("V1", "x", "gnd", 1)
+    c.resistor("R1", "gnd", "y", "1k")
     c.resistor("RL", "x", "y", "1k")
     report = _check_collapse(c, {"V1", "R1"}, ("x", "y"))
     assert report.within(RTOL), report
@@ -339,12 +339,12 @@ def test_collapse_of_a_region_whose_port_voltage_cancels() -> None:
     # Another shape it finds: 0.3 A circulates inside (3 V, 10 Ω and a wire in a loop) and the
     # port sees none of it, so voc = 0; outside, both circuits show 0 V up to rounding.
     c = Circuit()
-    c.resistor("R1", "n1", "0", 10)
+    c.resistor("R1", "n1", "gnd", 10)
     c.voltage_source("V1", "n1", "x", 3)
     c.resistor("R2", "x", "n3", 10)
     c.resistor("W1", "n3", "n1", 0)
-    c.resistor("RL", "n1", "0", "1k")
-    report = _check_collapse(c, {"R1", "V1", "R2", "W1"}, ("n1", "0"))
+    c.resistor("RL", "n1", "gnd", "1k")
+    report = _check_collapse(c, {"R1", "V1", "R2", "W1"}, ("n1", "gnd"))
     assert report.within(RTOL), report
 
 
