@@ -6,6 +6,8 @@ No Qt here. Public names:
 * :func:`parse_value`, :func:`format_eng` — SI / IEC 60062 values;
 * :func:`equivalent`, :func:`sweep`, :func:`collapse`, :func:`check_equivalence` and their
   results (:class:`Equivalent`, :class:`Sweep`, :class:`EquivalenceReport`); :func:`check_cut`;
+* :func:`sensitivity`, :func:`sensitivity_sweep` (:class:`Sensitivity`, :func:`influence`):
+  derivatives of the port quantities in every part value, by the adjoint method;
 * errors: :class:`CircuitError` and its subclasses.
 """
 
@@ -23,6 +25,7 @@ from .equivalent import (
     sweep,
 )
 from .errors import CircuitError, CutError, DocumentError, SingularCircuitError, ValueParseError
+from .sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
 from .topology import check_cut
 from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
 
@@ -39,6 +42,7 @@ __all__ = [
     "Part",
     "PowerTransfer",
     "Realisation",
+    "Sensitivity",
     "SingularCircuitError",
     "Sweep",
     "ValueParseError",
@@ -49,7 +53,10 @@ __all__ = [
     "format_complex",
     "format_eng",
     "format_phasor",
+    "influence",
     "parse_frequency",
     "parse_value",
+    "sensitivity",
+    "sensitivity_sweep",
     "sweep",
 ]
