@@ -8,6 +8,8 @@ No Qt here. Public names:
   results (:class:`Equivalent`, :class:`Sweep`, :class:`EquivalenceReport`); :func:`check_cut`;
 * :func:`sensitivity`, :func:`sensitivity_sweep` (:class:`Sensitivity`, :func:`influence`):
   derivatives of the port quantities in every part value, by the adjoint method;
+* :func:`noise`, :func:`noise_band` (:class:`Noise`, :class:`BandNoise`): thermal noise at
+  the port;
 * errors: :class:`CircuitError` and its subclasses.
 """
 
@@ -25,6 +27,7 @@ from .equivalent import (
     sweep,
 )
 from .errors import CircuitError, CutError, DocumentError, SingularCircuitError, ValueParseError
+from .noise import BandNoise, Noise, noise, noise_band
 from .sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
 from .topology import check_cut
 from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
@@ -32,6 +35,7 @@ from .units import format_complex, format_eng, format_phasor, parse_frequency, p
 __all__ = [
     "GROUND",
     "KINDS",
+    "BandNoise",
     "Circuit",
     "CircuitError",
     "CutError",
@@ -39,6 +43,7 @@ __all__ = [
     "EquivalenceReport",
     "Equivalent",
     "Forms",
+    "Noise",
     "Part",
     "PowerTransfer",
     "Realisation",
@@ -54,6 +59,8 @@ __all__ = [
     "format_eng",
     "format_phasor",
     "influence",
+    "noise",
+    "noise_band",
     "parse_frequency",
     "parse_value",
     "sensitivity",

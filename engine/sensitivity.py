@@ -19,12 +19,13 @@ import numpy as np
 
 from . import mna, topology
 from .circuit import Part
-from .equivalent import _equivalent_of, _frequencies, _port_of
+from .equivalent import Equivalent, _equivalent_of, _frequencies, _port_of
 from .errors import CircuitError
 from .mna import describe_freq
 from .units import parse_frequency
 
-__all__ = ["PARAMETER_KINDS", "Sensitivity", "influence", "sensitivity", "sensitivity_sweep"]
+__all__ = ["PARAMETER_KINDS", "PortSolution", "Sensitivity", "influence", "port_solution",
+           "sensitivity", "sensitivity_sweep"]
 
 #: Kinds with a value the port quantities depend on (an ideal op-amp has none).
 PARAMETER_KINDS = ("resistor", "capacitor", "inductor", "impedance", "voltage_source",
@@ -82,16 +83,36 @@ def sensitivity_sweep(circuit, region: Collection[str], freqs: Iterable[float],
             for name, first in points[0].items()}
 
 
-def _at(cut: topology.Cut, f: float) -> dict[str, Sensitivity]:
+@dataclass(frozen=True, slots=True, eq=False)
+class PortSolution:
+    """The open-port equations of a region solved at one frequency: ``eq`` its equivalent,
+    ``x[:, 0]`` the solution with the sources, ``x[:, 1]`` with 1 A into plus, and ``lam``
+    the adjoint (``A^T lam = e_k``): ``lam . r`` is the port voltage a right-hand side r makes."""
+
+    eq: Equivalent
+    system: mna.System
+    x: np.ndarray
+    lam: np.ndarray
+
+
+def port_solution(cut: topology.Cut, f: float, what: str) -> PortSolution:
+    """Solve ``cut``'s open-port equations at ``f`` Hz; ``what`` names the figures for the
+    message where the region has no Thevenin form (its open-port equations are singular)."""
     eq = _equivalent_of(cut, f)
     system = _port_of(cut, f == 0).open
     if system is None or not eq.has_thevenin:
         raise CircuitError(f"the region has no Thevenin form at {describe_freq(f)} (its "
-                           "impedance is infinite), so its sensitivities are not defined")
+                           f"impedance is infinite), so its {what} are not defined")
     unit = system.rhs(cut.port[0])
     factor = mna.Factor(system, f)
     x = factor.solve(np.column_stack((system.b, unit)).astype(complex))
     lam = x[:, 1] if system.symmetric else factor.solve(unit.astype(complex), transposed=True)
+    return PortSolution(eq, system, x, lam)
+
+
+def _at(cut: topology.Cut, f: float) -> dict[str, Sensitivity]:
+    solved = port_solution(cut, f, "sensitivities")
+    eq, system, x, lam = solved.eq, solved.system, solved.x, solved.lam
     parts = [p for p in cut.parts if p.kind in PARAMETER_KINDS]
     stamps = _Stamps(system, cut.parts, 2j * math.pi * f)
     for i, part in enumerate(parts):
