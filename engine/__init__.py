@@ -10,6 +10,7 @@ No Qt here. Public names:
   derivatives of the port quantities in every part value, by the adjoint method;
 * :func:`noise`, :func:`noise_band` (:class:`Noise`, :class:`BandNoise`): thermal noise at
   the port;
+* :func:`nearest`, :func:`best_pair`, :func:`realise`: IEC 60063 standard values;
 * errors: :class:`CircuitError` and its subclasses.
 """
 
@@ -27,6 +28,7 @@ from .equivalent import (
     sweep,
 )
 from .errors import CircuitError, CutError, DocumentError, SingularCircuitError, ValueParseError
+from .eseries import best_pair, nearest, realise
 from .noise import BandNoise, Noise, noise, noise_band
 from .sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
 from .topology import check_cut
@@ -51,6 +53,7 @@ __all__ = [
     "SingularCircuitError",
     "Sweep",
     "ValueParseError",
+    "best_pair",
     "check_cut",
     "check_equivalence",
     "collapse",
@@ -59,10 +62,12 @@ __all__ = [
     "format_eng",
     "format_phasor",
     "influence",
+    "nearest",
     "noise",
     "noise_band",
     "parse_frequency",
     "parse_value",
+    "realise",
     "sensitivity",
     "sensitivity_sweep",
     "sweep",
