@@ -11,6 +11,8 @@ No Qt here. Public names:
 * :func:`noise`, :func:`noise_band` (:class:`Noise`, :class:`BandNoise`): thermal noise at
   the port;
 * :func:`nearest`, :func:`best_pair`, :func:`realise`: IEC 60063 standard values;
+* :func:`parse_tolerance`, :func:`worst_case`, :func:`monte_carlo` (:class:`WorstCase`,
+  :class:`MonteCarlo`): part tolerances and their effect on the port;
 * errors: :class:`CircuitError` and its subclasses.
 """
 
@@ -31,6 +33,7 @@ from .errors import CircuitError, CutError, DocumentError, SingularCircuitError,
 from .eseries import best_pair, nearest, realise
 from .noise import BandNoise, Noise, noise, noise_band
 from .sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
+from .tolerance import MonteCarlo, WorstCase, monte_carlo, parse_tolerance, worst_case
 from .topology import check_cut
 from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
 
@@ -45,6 +48,7 @@ __all__ = [
     "EquivalenceReport",
     "Equivalent",
     "Forms",
+    "MonteCarlo",
     "Noise",
     "Part",
     "PowerTransfer",
@@ -53,6 +57,7 @@ __all__ = [
     "SingularCircuitError",
     "Sweep",
     "ValueParseError",
+    "WorstCase",
     "best_pair",
     "check_cut",
     "check_equivalence",
@@ -62,13 +67,16 @@ __all__ = [
     "format_eng",
     "format_phasor",
     "influence",
+    "monte_carlo",
     "nearest",
     "noise",
     "noise_band",
     "parse_frequency",
+    "parse_tolerance",
     "parse_value",
     "realise",
     "sensitivity",
     "sensitivity_sweep",
     "sweep",
+    "worst_case",
 ]
