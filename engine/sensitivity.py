@@ -12,6 +12,7 @@ of p, disc A, dz Ω.
 
 from __future__ import annotations
 
+import cmath
 import math
 from collections.abc import Collection, Iterable, Sequence
 from dataclasses import dataclass
@@ -118,13 +119,13 @@ def _at(cut: topology.Cut, f: float) -> dict[str, Sensitivity]:
     dvoc, dz = d_b - d_source, -d_unit
     parts = stamps.parts
     voc, z, isc = eq.voc, eq.z, eq.isc
+    p = stamps.values
+    disc = (dvoc - isc * dz) / z if eq.has_norton and z != 0 else np.full(len(parts), _NAN)
+    columns = (p, dvoc, disc, dz, _normalised(p, voc, dvoc), _normalised(p, isc, disc),
+               _normalised(p, z, dz))
     out = {}
-    for i, part in enumerate(parts):
-        disc = (dvoc[i] - isc * dz[i]) / z if eq.has_norton and z != 0 else _NAN
-        p = complex(part.value)
-        out[part.name] = Sensitivity(part.name, part.kind, p, complex(dvoc[i]), complex(disc),
-                                     complex(dz[i]), _normalised(p, voc, dvoc[i]),
-                                     _normalised(p, isc, disc), _normalised(p, z, dz[i]))
+    for part, *figures in zip(parts, *(c.tolist() for c in columns), strict=True):
+        out[part.name] = Sensitivity(part.name, part.kind, *figures)
     return out
 
 
@@ -133,7 +134,9 @@ def valued_parts(cut: topology.Cut) -> list[Part]:
     return [p for p in cut.parts if p.kind in PARAMETER_KINDS]
 
 
-def _normalised(p: complex, x: complex, dx: complex) -> complex:
-    if x == 0 or not np.isfinite(x) or not np.isfinite(dx):
-        return _NAN
-    return complex(p / x * dx)
+def _normalised(p: np.ndarray, x: complex, dx: np.ndarray) -> np.ndarray:
+    """(p / x) dx, nan where x is 0 or not finite, or dx not finite."""
+    if x == 0 or not cmath.isfinite(x):
+        return np.full(p.shape, _NAN)
+    with np.errstate(invalid="ignore"):
+        return np.where(np.isfinite(dx), p / x * dx, _NAN)

@@ -101,9 +101,8 @@ class _Builder:
         self.a: list[tuple[int, int, int, complex, int]] = []
         self.m: list[tuple[int, int, int, int, int, complex]] = []
         self.b: list[tuple[int, int, complex]] = []
-
-    def node(self, net: str) -> int:
-        return int(self.system.unknown_of_net[self.system.netlist.index[net]])
+        netlist = system.netlist
+        self.node = dict(zip(netlist.nets, system.unknown_of_net.tolist(), strict=True)).__getitem__
 
     def own(self, name: str) -> int:
         return self.system.branch_of.get(name, -1)
