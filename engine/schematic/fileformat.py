@@ -17,6 +17,7 @@ from typing import Any
 
 from ..atomic import write_atomically
 from ..errors import DocumentError, ValueParseError
+from ..tolerance import parse_tolerance
 from ..units import parse_frequency, parse_value
 from .document import Document
 from .model import (
@@ -41,6 +42,7 @@ __all__ = [
     "MAX_BLOCK_NESTING",
     "MAX_FILE_BYTES",
     "PORT_VERSION",
+    "TOLERANCE_VERSION",
     "VERSION",
     "dumps",
     "load",
@@ -50,10 +52,12 @@ __all__ = [
 
 FORMAT = "portcut-schematic"
 #: The newest file version this program writes and reads.
-VERSION = 2
+VERSION = 3
 #: The first version whose regions may hold a chosen port; a file without one is written as
 #: version 1, which older programs read.
 PORT_VERSION = 2
+#: The first version whose parts may carry a tolerance.
+TOLERANCE_VERSION = 3
 #: Largest grid coordinate (in either direction) a file may hold.
 COORD_LIMIT = 1_000_000
 #: Deepest nesting of collapsed blocks inside collapsed blocks.
@@ -64,7 +68,7 @@ _BASES = ("peak", "rms")
 _WIDTH = 120  # characters per line of the file: one element a line, mostly
 # Optional fields and the values they take when absent; the writer leaves out defaults.
 _PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
-                  "couples": []}
+                  "couples": [], "tolerance": ""}
 _LABEL_DEFAULTS = {"rotation": 0, "style": "label"}
 _REGION_DEFAULTS = {"outline": [], "swap": False, "port": None}
 _BLOCK_DEFAULTS = {"rotation": 0, "mirror": False, "stubs": []}
@@ -105,6 +109,9 @@ def _version_needed(doc: Document) -> int:
     """The lowest file version that holds ``doc``: 1 unless a region (on the sheet or inside
     a collapsed block) has a chosen port."""
     regions = (*doc.regions(), *(e for e in doc.collapsed() if isinstance(e, Region)))
+    parts = (*doc.parts(), *(e for e in doc.collapsed() if isinstance(e, PlacedPart)))
+    if any(p.tolerance for p in parts):
+        return TOLERANCE_VERSION
     return PORT_VERSION if any(r.port is not None for r in regions) else 1
 
 
@@ -121,7 +128,8 @@ def _contents_data(parts, wires, junctions, labels, blocks) -> Data:
         "parts": [_trimmed({"id": p.id, "kind": p.kind, "designator": p.designator,
                             "at": list(p.at), "rotation": p.rotation, "mirror": p.mirror,
                             "value": p.value, "phase_deg": p.phase_deg, "control": p.control,
-                            "couples": list(p.couples)}, _PART_DEFAULTS) for p in parts],
+                            "couples": list(p.couples), "tolerance": p.tolerance},
+                           _PART_DEFAULTS) for p in parts],
         "wires": [{"id": w.id, "points": _points(w.points)} for w in wires],
         "junctions": [{"id": j.id, "at": list(j.at)} for j in junctions],
         "labels": [_trimmed({"id": n.id, "name": n.name, "at": list(n.at),
@@ -278,7 +286,7 @@ class _Scope:
 
 def _elements(data: Data, base: str, depth: int, designators: dict[str, str],
               version: int) -> Iterator[tuple[str, Element]]:
-    yield from _each(data, "parts", _part, base)
+    yield from _each(data, "parts", lambda d, p: _part(d, p, version), base)
     yield from _each(data, "wires", _wire, base)
     yield from _each(data, "junctions", _junction, base)
     yield from _each(data, "labels", _label, base)
@@ -296,7 +304,7 @@ def _each(data: Data, key: str, read: Callable[[Any, str], Element],
         yield f"{path}[{i}]", read(item, f"{path}[{i}]")
 
 
-def _part(data: Any, path: str) -> PlacedPart:
+def _part(data: Any, path: str, version: int) -> PlacedPart:
     d = _fields(data, path, required=("id", "kind", "designator", "at"), defaults=_PART_DEFAULTS)
     kind = _choice(d["kind"], f"{path}.kind", PART_KINDS)
     designator = _text(d["designator"], f"{path}.designator")
@@ -305,11 +313,20 @@ def _part(data: Any, path: str) -> PlacedPart:
     _readable(value, f"{path}.value", f"{designator} value")
     _readable(phase, f"{path}.phase_deg", f"{designator} phase")
     couples = _list(d["couples"], f"{path}.couples")
+    tolerance = _text(d["tolerance"], f"{path}.tolerance")
+    if tolerance.strip():
+        try:
+            parse_tolerance(tolerance)
+        except ValueParseError as e:
+            raise DocumentError(f"{path}.tolerance: {designator}: {e}") from None
+        if version < TOLERANCE_VERSION:
+            raise DocumentError(f"{path}.tolerance: a part's tolerance needs file version "
+                                f"{TOLERANCE_VERSION} or later; this file says version {version}")
     return PlacedPart(
         _id(d["id"], f"{path}.id"), kind, designator, _point(d["at"], f"{path}.at"),
         _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
         _bool(d["mirror"], f"{path}.mirror"), value, phase, _text(d["control"], f"{path}.control"),
-        tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)))
+        tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)), tolerance)
 
 
 def _readable(text: str, path: str, what: str) -> None:

@@ -41,6 +41,7 @@ class PlacedPart:
     ``value``: resistance, capacitance, inductance, impedance, source magnitude, or gain, as
     text. ``phase_deg``: source phase in degrees (text, "" for 0). ``control``: the designator
     whose current controls a CCVS/CCCS. ``couples``: the two inductor designators of a coupling.
+    ``tolerance``: the value's tolerance as text, an IEC 60062 letter or a percentage ("" none).
     """
 
     id: str
@@ -53,6 +54,7 @@ class PlacedPart:
     phase_deg: str = ""
     control: str = ""
     couples: tuple[str, ...] = ()
+    tolerance: str = ""
 
 
 @dataclass(frozen=True, slots=True)

@@ -139,6 +139,23 @@ def test_a_chosen_port_is_written_as_version_2_and_read_back() -> None:
     assert json.loads(dumps(doc))["version"] == 1
 
 
+def test_a_tolerance_is_written_as_version_3_and_older_versions_refuse_it() -> None:
+    doc = rich_document()
+    doc.replace_fields("p1", tolerance="F")
+    text = dumps(doc)
+    data = json.loads(text)
+    assert data["version"] == fileformat.TOLERANCE_VERSION == 3
+    assert data["parts"][0]["tolerance"] == "F"
+    assert "tolerance" not in data["parts"][1]  # unset: left out
+    assert loads(text) == doc
+    data["version"] = 2
+    with pytest.raises(DocumentError, match=r"parts\[0\].tolerance: a part's tolerance needs "
+                                            "file version 3 or later; this file says version 2"):
+        loads(json.dumps(data))
+    doc.replace_fields("p1", tolerance="")  # no tolerance left: an older version again
+    assert json.loads(dumps(doc))["version"] < 3
+
+
 def test_a_chosen_port_kept_inside_a_collapsed_block_needs_version_2_too() -> None:
     doc = rich_document()
     block = doc.remove("b1")
@@ -342,9 +359,12 @@ REFUSALS = [
      'analysis.basis: expected one of "peak", "rms", got "average"'),
     (setter("parts", value={}), "parts: expected a list, got {}"),
     (setter("title", value=7), "title: expected text, got 7"),
-    (setter("version", value=3),
-     "written by a newer Portcut (version 3); this program reads up to version 2"),
-    (setter("version", value="1"), 'version: expected a whole number from 1 to 2, got "1"'),
+    (setter("version", value=4),
+     "written by a newer Portcut (version 4); this program reads up to version 3"),
+    (setter("parts", 0, "tolerance", value="Q"),
+     "parts[0].tolerance: L1: tolerance 'Q' is neither a letter code (B C D F G J K M) nor a "
+     "percentage such as 1 % or 0.5"),
+    (setter("version", value="1"), 'version: expected a whole number from 1 to 3, got "1"'),
     (setter("regions", 0, "port", value={"plus": "v_out", "minus": "0"}),
      "regions[0].port: a chosen port needs file version 2 or later; this file says version 1"),
     (chosen_port({"plus": "v_out", "minus": "0"}, swap=True),
