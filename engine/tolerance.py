@@ -71,7 +71,8 @@ class WorstCase:
     """Extremes of each figure of FIGURES under the tolerances.
 
     ``nominal`` per figure; ``linear`` (low, high) the first-order bound from the sensitivities
-    (valid for small tolerances); ``extremes`` (low, high) over the corners evaluated exactly;
+    (valid for small tolerances; a magnitude's low end is never below 0); ``extremes`` (low,
+    high) over the corners evaluated exactly;
     ``method`` says which corners: "all corners" (``corners`` of them) or "sensitivity signs"
     (the two corners each figure's sensitivity signs point to).
     """
@@ -168,8 +169,11 @@ def worst_case(circuit, region: Collection[str], tolerances: Mapping[str, float 
     nominal = {k: float(v[0]) for k, v in batch.figures(np.zeros((1, len(tol)))).items()}
     slopes = _slopes(sensitivity(circuit, region, cut.port, f), tol, batch)
     t = np.array(list(tol.values()))
-    linear = {k: (nominal[k] - float(np.abs(s) @ t), nominal[k] + float(np.abs(s) @ t))
-              for k, s in slopes.items()}
+    linear = {}
+    for k, s in slopes.items():
+        spread = float(np.abs(s) @ t)
+        low = nominal[k] - spread
+        linear[k] = (max(low, 0.0) if k != "z_deg" else low, nominal[k] + spread)  # |X| >= 0
     if len(tol) <= ALL_CORNERS_LIMIT:
         signs = np.array(list(itertools.product((-1.0, 1.0), repeat=len(tol))))
         method = "all corners"
