@@ -90,79 +90,97 @@ class ValueStamps:
 
 def value_stamps(system: mna.System, parts: Sequence[Part], s: complex) -> ValueStamps:
     """The value stamps of the valued ``parts`` (kinds in PARAMETER_KINDS) of ``system``'s
-    netlist at s = j 2 pi f; ``parts`` must hold every inductor a coupling names."""
-    return _Builder(system, parts, s).build()
+    netlist at s = j 2 pi f; ``parts`` must hold every inductor a coupling names. Built kind by
+    kind as array operations over the parts."""
+    parts = tuple(parts)
+    unknown = dict(zip(system.netlist.nets, system.unknown_of_net.tolist(), strict=True))
+    branch = system.branch_of
+    kind = np.array([p.kind for p in parts], dtype=object)
+    nodes = np.array([[unknown[n] for n in p.nodes] + [-1] * (4 - len(p.nodes)) for p in parts],
+                     dtype=np.intp).reshape(-1, 4)
+    own = np.array([branch.get(p.name, -1) for p in parts], dtype=np.intp)
+    control = np.array([branch[p.refs[0]] if p.kind in ("ccvs", "cccs") else -1
+                        for p in parts], dtype=np.intp)
+    n0, n1, n2, n3 = nodes.T
+    a = _Entries()
 
+    def of(*kinds: str, branch_current: bool | None = None) -> np.ndarray:
+        mask = np.isin(kind, kinds)
+        if branch_current is not None:
+            mask &= (own >= 0) == branch_current
+        return np.flatnonzero(mask)
 
-class _Builder:
-    def __init__(self, system: mna.System, parts: Sequence[Part], s: complex) -> None:
-        self.system, self.s, self.parts = system, s, tuple(parts)
-        self.position = {p.name: i for i, p in enumerate(self.parts)}
-        self.a: list[tuple[int, int, int, complex, int]] = []
-        self.m: list[tuple[int, int, int, int, int, complex]] = []
-        self.b: list[tuple[int, int, complex]] = []
-        netlist = system.netlist
-        self.node = dict(zip(netlist.nets, system.unknown_of_net.tolist(), strict=True)).__getitem__
-
-    def own(self, name: str) -> int:
-        return self.system.branch_of.get(name, -1)
-
-    def across(self, i: int, rows: tuple[int, int], cols: tuple[int, int], c: complex,
-               form: int) -> None:
-        """c (e_rows[0] - e_rows[1]) (e_cols[0] - e_cols[1])^T."""
+    def across(at: np.ndarray, rows: tuple, cols: tuple, coef: complex, form: int) -> None:
         (ra, rb), (ca, cb) = rows, cols
-        self.a += [(i, ra, ca, c, form), (i, ra, cb, -c, form), (i, rb, ca, -c, form),
-                   (i, rb, cb, c, form)]
+        for r, c, sign in ((ra, ca, 1), (ra, cb, -1), (rb, ca, -1), (rb, cb, 1)):
+            a.add(at, r[at], c[at], sign * coef, form)
 
-    def part(self, i: int, part: Part) -> None:
-        kind, own, s = part.kind, self.own(part.name), self.s
-        n = [self.node(net) for net in part.nodes]
-        if kind in ("resistor", "impedance", "capacitor") and own < 0:
-            if kind == "capacitor":
-                self.across(i, (n[0], n[1]), (n[0], n[1]), s, _LINEAR)
-            else:
-                self.across(i, (n[0], n[1]), (n[0], n[1]), 1, _INVERSE)
-        elif kind in ("resistor", "impedance"):
-            self.a.append((i, own, own, -1, _LINEAR))
-        elif kind == "capacitor":  # row: s C (V(a) - V(b)) - I = 0
-            self.a += [(i, own, n[0], s, _LINEAR), (i, own, n[1], -s, _LINEAR)]
-        elif kind == "inductor":
-            self.a.append((i, own, own, -s, _LINEAR))
-        elif kind == "coupling":
-            l1, l2 = (self.position[r] for r in part.refs)
-            k1, k2 = (self.own(r) for r in part.refs)
-            self.m += [(i, l1, l2, k1, k2, -s), (i, l1, l2, k2, k1, -s)]
-        elif kind == "voltage_source" or (kind == "current_source" and own >= 0):
-            self.b.append((i, own, 1))
-        elif kind == "current_source":  # drives its current out of n0 into n1
-            self.b += [(i, n[0], -1), (i, n[1], 1)]
-        elif kind in ("vcvs", "vccs") and own >= 0:
-            self.a += [(i, own, n[2], -1, _LINEAR), (i, own, n[3], 1, _LINEAR)]
-        elif kind == "vccs":
-            self.across(i, (n[0], n[1]), (n[2], n[3]), 1, _LINEAR)
-        elif kind in ("ccvs", "cccs"):
-            control = self.own(part.refs[0])
-            if own >= 0:
-                self.a.append((i, own, control, -1, _LINEAR))
-            else:
-                self.a += [(i, n[0], control, 1, _LINEAR), (i, n[1], control, -1, _LINEAR)]
-
-    def build(self) -> ValueStamps:
-        for i, part in enumerate(self.parts):
-            self.part(i, part)
-        a = _columns(self.a, (int, int, int, complex, int))
-        m = _columns(self.m, (int, int, int, int, int, complex))
-        b = _columns(self.b, (int, int, complex))
-        values = np.array([complex(p.value) for p in self.parts], dtype=complex)
-        return ValueStamps(self.parts, values, *a, np.column_stack(m[:5]).astype(np.intp)
-                           if self.m else np.zeros((0, 5), dtype=np.intp), m[5], *b)
+    # resistors, impedances and capacitors without a branch current: admittances between nets
+    at = of("resistor", "impedance", branch_current=False)
+    across(at, (n0, n1), (n0, n1), 1, _INVERSE)
+    at = of("capacitor", branch_current=False)
+    across(at, (n0, n1), (n0, n1), s, _LINEAR)
+    at = of("resistor", "impedance", branch_current=True)
+    a.add(at, own[at], own[at], -1, _LINEAR)
+    at = of("capacitor", branch_current=True)  # row: s C (V(a) - V(b)) - I = 0
+    a.add(at, own[at], n0[at], s, _LINEAR)
+    a.add(at, own[at], n1[at], -s, _LINEAR)
+    at = of("inductor")
+    a.add(at, own[at], own[at], -s, _LINEAR)
+    at = of("vcvs", "vccs", branch_current=True)
+    a.add(at, own[at], n2[at], -1, _LINEAR)
+    a.add(at, own[at], n3[at], 1, _LINEAR)
+    at = of("vccs", branch_current=False)
+    across(at, (n0, n1), (n2, n3), 1, _LINEAR)
+    at = of("ccvs", "cccs", branch_current=True)
+    a.add(at, own[at], control[at], -1, _LINEAR)
+    at = of("cccs", branch_current=False)
+    a.add(at, n0[at], control[at], 1, _LINEAR)
+    a.add(at, n1[at], control[at], -1, _LINEAR)
+    b = _Entries()
+    at = np.union1d(of("voltage_source"), of("current_source", branch_current=True))
+    b.add(at, own[at], None, 1, _LINEAR)
+    at = of("current_source", branch_current=False)  # drives its current out of n0 into n1
+    b.add(at, n0[at], None, -1, _LINEAR)
+    b.add(at, n1[at], None, 1, _LINEAR)
+    mutual, mutual_coef = _mutual(parts, branch, s)
+    values = np.array([complex(p.value) for p in parts], dtype=complex)
+    (part, row, col, coef, form), (rhs_part, rhs_row, _, rhs_coef, _) = a.arrays(), b.arrays()
+    return ValueStamps(parts, values, part, row, col, coef, form, mutual, mutual_coef,
+                       rhs_part, rhs_row, rhs_coef)
 
 
-def _columns(rows: list[tuple], types: tuple[type, ...]) -> list[np.ndarray]:
-    if not rows:
-        return [np.zeros(0, dtype=complex if t is complex else np.intp) for t in types]
-    return [np.array(col, dtype=complex if t is complex else np.intp)
-            for col, t in zip(zip(*rows, strict=True), types, strict=True)]
+class _Entries:
+    """Stamp entries collected as arrays, kind by kind."""
+
+    def __init__(self) -> None:
+        self.columns: list[list[np.ndarray]] = [[], [], [], [], []]
+
+    def add(self, part: np.ndarray, row: np.ndarray, col: np.ndarray | None, coef: complex,
+            form: int) -> None:
+        for column, values in zip(self.columns, (part, row, row if col is None else col,
+                                                 np.full(part.size, coef, dtype=complex),
+                                                 np.full(part.size, form, dtype=np.intp)),
+                                  strict=True):
+            column.append(values)
+
+    def arrays(self) -> list[np.ndarray]:
+        return [np.concatenate(c) if c else np.zeros(0, dtype=np.intp) for c in self.columns]
+
+
+def _mutual(parts: Sequence[Part], branch: dict[str, int], s: complex
+            ) -> tuple[np.ndarray, np.ndarray]:
+    """Each coupling's two mutual entries: (k, l1, l2, row, col) part indices and unknowns."""
+    couplings = [i for i, p in enumerate(parts) if p.kind == "coupling"]
+    position = {p.name: i for i, p in enumerate(parts)} if couplings else {}
+    rows = []
+    for i in couplings:
+        refs = parts[i].refs
+        l1, l2 = (position[r] for r in refs)
+        k1, k2 = (branch[r] for r in refs)
+        rows += [(i, l1, l2, k1, k2), (i, l1, l2, k2, k1)]
+    mutual = np.array(rows, dtype=np.intp).reshape(-1, 5)
+    return mutual, np.full(len(rows), -s, dtype=complex)
 
 
 def _padded(v: np.ndarray) -> np.ndarray:
