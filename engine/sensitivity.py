@@ -22,7 +22,7 @@ import numpy as np
 from . import mna, topology
 from .circuit import Part
 from .equivalent import Equivalent, _equivalent_of, _frequencies, _port_of
-from .errors import CircuitError
+from .errors import CircuitError, SingularCircuitError
 from .mna import describe_freq
 from .stamps import PARAMETER_KINDS, value_stamps
 from .units import parse_frequency
@@ -97,17 +97,36 @@ class PortSolution:
 
 def port_solution(cut: topology.Cut, f: float, what: str) -> PortSolution:
     """Solve ``cut``'s open-port equations at ``f`` Hz; ``what`` names the figures for the
-    message where the region has no Thevenin form (its open-port equations are singular)."""
-    eq = _equivalent_of(cut, f)
+    message where the region has no Thevenin form (its open-port equations are singular).
+
+    Where z stands clear of its error bound (the equivalent's own test, engine/equivalent.py)
+    the equivalent is read from this one factorization; otherwise :func:`engine.equivalent`
+    decides it."""
     system = _port_of(cut, f == 0).open
-    if system is None or not eq.has_thevenin:
-        raise CircuitError(f"the region has no Thevenin form at {describe_freq(f)} (its "
-                           f"impedance is infinite), so its {what} are not defined")
+    if system is None:
+        raise _no_thevenin(f, what)
     unit = system.rhs(cut.port[0])
-    factor = mna.Factor(system, f)
-    x = factor.solve(np.column_stack((system.b, unit)).astype(complex))
-    lam = x[:, 1] if system.symmetric else factor.solve(unit.astype(complex), transposed=True)
+    try:
+        factor = mna.Factor(system, f)
+        x = factor.solve(np.column_stack((system.b, unit)).astype(complex))
+        lam = x[:, 1] if system.symmetric else factor.solve(unit.astype(complex),
+                                                            transposed=True)
+    except SingularCircuitError:
+        raise _no_thevenin(f, what) from None
+    k = int(system.unknown_of_net[cut.netlist.index[cut.port[0]]])
+    voc, z = complex(x[k, 0]), complex(x[k, 1])
+    if abs(z) > factor.error_bound(x[:, 1], unit, lam):
+        eq = Equivalent(cut.port, f, voc, voc / z, z, True, True)
+    else:
+        eq = _equivalent_of(cut, f)
+        if not eq.has_thevenin:
+            raise _no_thevenin(f, what)
     return PortSolution(eq, system, x, lam)
+
+
+def _no_thevenin(f: float, what: str) -> CircuitError:
+    return CircuitError(f"the region has no Thevenin form at {describe_freq(f)} (its impedance "
+                        f"is infinite), so its {what} are not defined")
 
 
 def _at(cut: topology.Cut, f: float) -> dict[str, Sensitivity]:
