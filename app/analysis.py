@@ -49,7 +49,7 @@ from .workbench import Workbench
 __all__ = ["LiveAnalysis", "sweep_region"]
 
 #: PlacedPart fields a value edit may change without touching nets or names.
-_VALUE_FIELDS = frozenset({"value", "phase_deg"})
+_VALUE_FIELDS = frozenset({"value", "phase_deg", "tolerance"})
 #: Kinds whose parts refer to others by name: a new value means rebuilding the circuit.
 _REFERRING = frozenset({"coupling", "ccvs", "cccs"})
 

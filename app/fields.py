@@ -19,6 +19,7 @@ from portcut.engine.errors import CircuitError, DocumentError, ValueParseError
 from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart
 from portcut.engine.schematic.ports import follow_renames
 from portcut.engine.schematic.text import text_problem
+from portcut.engine.tolerance import parse_tolerance
 from portcut.engine.units import VALUE_UNITS, implausible, parse_value
 
 __all__ = ["QUANTITY", "Field", "fields_for"]
@@ -120,6 +121,12 @@ def _phase(doc: Document, part: PlacedPart, text: str) -> list[Element]:
     return [replace(part, phase_deg=text.strip())]
 
 
+def _tolerance(doc: Document, part: PlacedPart, text: str) -> list[Element]:
+    if text.strip():
+        parse_tolerance(text)
+    return [replace(part, tolerance=text.strip())]
+
+
 def _control(doc: Document, part: PlacedPart, text: str) -> list[Element]:
     name = text.strip()
     where = f"{part.designator} control"
@@ -180,6 +187,10 @@ def fields_for(element: Element) -> list[Field]:
         out.append(Field("value", QUANTITY[kind], f"SI prefixes (4.7k, 100n, 2M; u or µ for "
                          f"micro) or IEC 60062 codes (4k7, 2R2, R47, 4n7), e.g. "
                          f"{_EXAMPLE[kind]}", _value, unit, _value_warning))
+    if kind in QUANTITY:
+        out.append(Field("tolerance", "Tolerance", "IEC 60062 letter (B 0.1 %, C 0.25 %, "
+                         "D 0.5 %, F 1 %, G 2 %, J 5 %, K 10 %, M 20 %) or a percentage, e.g. "
+                         "1 %; empty for none", _tolerance))
     if kind in ("voltage_source", "current_source"):
         out.append(Field("phase_deg", "Phase", "Phase of the source phasor in degrees; empty "
                          "for 0", _phase, "°"))

@@ -6,6 +6,13 @@ No Qt here. Public names:
 * :func:`parse_value`, :func:`format_eng` — SI / IEC 60062 values;
 * :func:`equivalent`, :func:`sweep`, :func:`collapse`, :func:`check_equivalence` and their
   results (:class:`Equivalent`, :class:`Sweep`, :class:`EquivalenceReport`); :func:`check_cut`;
+* :func:`sensitivity`, :func:`sensitivity_sweep` (:class:`Sensitivity`, :func:`influence`):
+  derivatives of the port quantities in every part value, by the adjoint method;
+* :func:`noise`, :func:`noise_band` (:class:`Noise`, :class:`BandNoise`): thermal noise at
+  the port;
+* :func:`nearest`, :func:`best_pair`, :func:`realise`: IEC 60063 standard values;
+* :func:`parse_tolerance`, :func:`worst_case`, :func:`monte_carlo` (:class:`WorstCase`,
+  :class:`MonteCarlo`): part tolerances and their effect on the port;
 * errors: :class:`CircuitError` and its subclasses.
 """
 
@@ -23,12 +30,17 @@ from .equivalent import (
     sweep,
 )
 from .errors import CircuitError, CutError, DocumentError, SingularCircuitError, ValueParseError
+from .eseries import best_pair, nearest, realise
+from .noise import BandNoise, Noise, noise, noise_band
+from .sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
+from .tolerance import MonteCarlo, WorstCase, monte_carlo, parse_tolerance, worst_case
 from .topology import check_cut
 from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
 
 __all__ = [
     "GROUND",
     "KINDS",
+    "BandNoise",
     "Circuit",
     "CircuitError",
     "CutError",
@@ -36,12 +48,17 @@ __all__ = [
     "EquivalenceReport",
     "Equivalent",
     "Forms",
+    "MonteCarlo",
+    "Noise",
     "Part",
     "PowerTransfer",
     "Realisation",
+    "Sensitivity",
     "SingularCircuitError",
     "Sweep",
     "ValueParseError",
+    "WorstCase",
+    "best_pair",
     "check_cut",
     "check_equivalence",
     "collapse",
@@ -49,7 +66,17 @@ __all__ = [
     "format_complex",
     "format_eng",
     "format_phasor",
+    "influence",
+    "monte_carlo",
+    "nearest",
+    "noise",
+    "noise_band",
     "parse_frequency",
+    "parse_tolerance",
     "parse_value",
+    "realise",
+    "sensitivity",
+    "sensitivity_sweep",
     "sweep",
+    "worst_case",
 ]

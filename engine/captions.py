@@ -15,6 +15,7 @@ from typing import Protocol
 from .errors import CircuitError
 from .mna import describe_freq
 from .schematic.model import PlacedPart
+from .tolerance import parse_tolerance
 from .units import format_complex, format_phasor, parse_value
 
 __all__ = [
@@ -63,7 +64,7 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
         return part.value.strip()
     if part.kind == "coupling":
         named = f" ({', '.join(part.couples)})" if part.couples else ""
-        return f"k = {value:.4g}{named}"
+        return f"k = {value:.4g}{named}{_tolerance_suffix(part)}"
     unit = UNITS[part.kind]
     if part.kind in ("voltage_source", "current_source") and (ac or phase is not None):
         phasor = value if phase is None else cmath.rect(value, math.radians(phase))
@@ -72,7 +73,17 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
         text = format_complex(value, unit)
     if part.kind in ("ccvs", "cccs") and part.control:
         text = f"{text} × current in {part.control}"
-    return text
+    return text + _tolerance_suffix(part)
+
+
+def _tolerance_suffix(part: PlacedPart) -> str:
+    """`` ±1 %`` where the part carries a readable tolerance."""
+    if not part.tolerance.strip():
+        return ""
+    try:
+        return f" ±{parse_tolerance(part.tolerance) * 100:g} %"
+    except CircuitError:
+        return f" {part.tolerance.strip()}"
 
 
 def drawn_form(eq: Equivalent, form: str) -> str:

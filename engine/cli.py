@@ -33,6 +33,7 @@ from .schematic.document import Document
 from .schematic.fileformat import load
 from .schematic.model import Region
 from .schematic.reduction import collapse_region, region_part_names, swapped
+from .sensitivity import Sensitivity, influence, sensitivity
 from .svg import document_svg
 from .tables import sweep_csv
 from .units import denoised, format_complex, format_eng, parse_frequency
@@ -147,6 +148,8 @@ def _parser() -> tuple[_Parser, dict[str, _Parser]]:
                           help="the form to list first (default: the document's)")
     reducing.add_argument("--json", action="store_true",
                           help="print one JSON object instead of the table")
+    reducing.add_argument("--sensitivity", action="store_true",
+                          help="also list how much each part's value moves Voc, Isc and Z")
 
     sweeping = commands.add_parser("sweep", help="equivalent over a frequency range",
                                    description="Evaluate the equivalent of a region at "
@@ -338,17 +341,58 @@ def _reduce_table(eq: Equivalent, sel: _Selection, form: str, basis: str) -> str
     return "\n".join(out)
 
 
+_UNIT = {"resistor": "Ω", "impedance": "Ω", "capacitor": "F", "inductor": "H",
+         "voltage_source": "V", "current_source": "A", "vccs": "S", "ccvs": "Ω"}
+_FIGURES = ("value", "dvoc", "disc", "dz", "svoc", "sisc", "sz")
+
+
+def _sensitivity_json(table: dict[str, Sensitivity]) -> dict[str, dict[str, Any]]:
+    """Per part: its value and the seven figures of :class:`engine.Sensitivity` as
+    {"re", "im"} (null where undefined): dX/dp in V, A or Ω per unit of the value, and the
+    normalised (p / X) dX/dp."""
+    return {name: {"kind": s.kind, **{k: _json_complex(getattr(s, k)) for k in _FIGURES}}
+            for name, s in sorted(table.items())}
+
+
+def _ratio_text(x: complex) -> str:
+    """A normalised sensitivity: real where its imaginary part is rounding, else a + j b."""
+    if cmath.isnan(x):
+        return "-"
+    if abs(x.imag) <= 1e-9 * abs(x):
+        return f"{x.real:+.4f}"
+    return f"{x.real:+.3f}{x.imag:+.3f}j"
+
+
+def _sensitivity_table(table: dict[str, Sensitivity]) -> str:
+    """The parts by influence, most first, with the % change of each figure per % of the part."""
+    out = ["", "Sensitivity: % change of each figure per % change of the part, most "
+           "influential first", f"  {'Part':8} {'Value':>14} {'Voc':>16} {'Isc':>16} {'Z':>16}"]
+    for s in sorted(table.values(), key=lambda s: (-influence(s), s.name)):
+        unit = _UNIT.get(s.kind, "")
+        value = format_complex(s.value, unit) if s.value.imag else format_eng(s.value.real, unit,
+                                                                              4)
+        out.append(f"  {s.name:8} {value:>14} {_ratio_text(s.svoc):>16} "
+                   f"{_ratio_text(s.sisc):>16} {_ratio_text(s.sz):>16}")
+    return "\n".join(out)
+
+
 def _run_reduce(args: argparse.Namespace, out: TextIO) -> int:
     doc = _document(args.file)
     freq = parse_frequency(doc.analysis.freq) if args.freq is None else args.freq
     sel = _selection(doc, args)
     solved = _solve(doc, sel, args.port, freq)
+    table = sensitivity(solved.circuit, solved.names, solved.eq.port, freq) \
+        if args.sensitivity else None
     if args.json:
         data = _reduce_json(solved.eq, sel, solved.names)
+        if table is not None:
+            data["sensitivity"] = _sensitivity_json(table)
         out.write(json.dumps(data, ensure_ascii=False) + "\n")
     else:
         form = args.form or doc.analysis.form
         out.write(_reduce_table(solved.eq, sel, form, doc.analysis.basis) + "\n")
+        if table is not None:
+            out.write(_sensitivity_table(table) + "\n")
     _caution(solved.circuit, [solved.eq], doc.analysis.basis, sys.stderr)
     return 0
 

@@ -284,7 +284,7 @@ def _valued(part: PlacedPart) -> PlacedPart:
     """The part reduced to what its caption depends on, so sheets that repeat values (most
     do) read each value once."""
     return PlacedPart("", part.kind, "", (0, 0), value=part.value, phase_deg=part.phase_deg,
-                      control=part.control)
+                      control=part.control, tolerance=part.tolerance)
 
 
 @cache

@@ -1,4 +1,5 @@
-"""Docked panels: part palette, inspector, undo history, wiring checks, live equivalent, sweep.
+"""Docked panels: part palette, inspector, undo history, wiring checks, live equivalent, sweep,
+design insight.
 
 :func:`install` adds them to a main window; a further panel is a QDockWidget given to
 ``MainWindow.add_dock``. The equivalent and sweep panels read the live analysis of the current
@@ -18,6 +19,7 @@ from ..canvas.tools.boundary import BoundaryTool
 from .checks import ChecksDock
 from .equivalent import EquivalentDock
 from .history import HistoryDock
+from .insight import InsightDock
 from .inspector import FieldEditor, InspectorDock
 from .palette import PaletteDock, entry_icon
 from .sweep import SweepDock
@@ -25,8 +27,8 @@ from .sweep import SweepDock
 if TYPE_CHECKING:
     from ..window import MainWindow
 
-__all__ = ["ChecksDock", "EquivalentDock", "FieldEditor", "HistoryDock", "InspectorDock",
-           "PaletteDock", "SweepDock", "entry_icon", "install"]
+__all__ = ["ChecksDock", "EquivalentDock", "FieldEditor", "HistoryDock", "InsightDock",
+           "InspectorDock", "PaletteDock", "SweepDock", "entry_icon", "install"]
 
 
 #: The share of the window's height the sweep panel opens at: the sheet stays the main view.
@@ -60,7 +62,10 @@ def install_reduction(window: MainWindow) -> None:
     window.sweep_dock = SweepDock(live, window)
     window.add_dock(window.equivalent_dock, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+4")
     window.add_dock(window.sweep_dock, Qt.DockWidgetArea.BottomDockWidgetArea, "Ctrl+5")
+    window.insight_dock = InsightDock(window.canvas, live, window)
+    window.add_dock(window.insight_dock, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+6")
     window.tabifyDockWidget(window.history, window.equivalent_dock)
+    window.tabifyDockWidget(window.equivalent_dock, window.insight_dock)
     window.equivalent_dock.raise_()
     window.sweep_dock.hide()
     window.equivalent_dock.sweep_button.clicked.connect(lambda: _show_sweep(window))

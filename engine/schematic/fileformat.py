@@ -19,6 +19,7 @@ from typing import Any
 from ..atomic import write_atomically
 from ..circuit import GROUND
 from ..errors import DocumentError, ValueParseError
+from ..tolerance import parse_tolerance
 from ..units import parse_frequency, parse_value
 from .document import Document
 from .model import (
@@ -46,6 +47,7 @@ __all__ = [
     "MAX_FILE_BYTES",
     "NAMES_VERSION",
     "PORT_VERSION",
+    "TOLERANCE_VERSION",
     "VERSION",
     "dumps",
     "load",
@@ -65,6 +67,8 @@ NAMES_VERSION = 3
 CAPTION_VERSION = 3
 #: Largest caption offset from its part, grid units.
 CAPTION_REACH = 1000.0
+#: The first version whose parts may carry a tolerance.
+TOLERANCE_VERSION = 3
 #: Largest grid coordinate (in either direction) a file may hold.
 COORD_LIMIT = 1_000_000
 #: Deepest nesting of collapsed blocks inside collapsed blocks.
@@ -76,7 +80,7 @@ _BASES = ("peak", "rms")
 _WIDTH = 120  # characters per line of the file: one element a line, mostly
 # Optional fields and the values they take when absent; the writer leaves out defaults.
 _PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
-                  "couples": [], "captions": {}}
+                  "couples": [], "captions": {}, "tolerance": ""}
 _LABEL_DEFAULTS = {"rotation": 0, "style": "label"}
 _REGION_DEFAULTS = {"outline": [], "swap": False, "port": None}
 _BLOCK_DEFAULTS = {"rotation": 0, "mirror": False, "stubs": []}
@@ -127,7 +131,8 @@ def _contents_data(parts, wires, junctions, labels, blocks) -> Data:
                             "at": list(p.at), "rotation": p.rotation, "mirror": p.mirror,
                             "value": p.value, "phase_deg": p.phase_deg, "control": p.control,
                             "couples": list(p.couples),
-                            "captions": {role: [dx, dy] for role, dx, dy in p.captions}},
+                            "captions": {role: [dx, dy] for role, dx, dy in p.captions},
+                            "tolerance": p.tolerance},
                            _PART_DEFAULTS) for p in parts],
         "wires": [{"id": w.id, "points": _points(w.points)} for w in wires],
         "junctions": [{"id": j.id, "at": list(j.at)} for j in junctions],
@@ -351,12 +356,21 @@ def _part(data: Any, path: str, version: int) -> PlacedPart:
     _readable(value, f"{path}.value", f"{designator} value")
     _readable(phase, f"{path}.phase_deg", f"{designator} phase")
     couples = _list(d["couples"], f"{path}.couples")
+    tolerance = _text(d["tolerance"], f"{path}.tolerance")
+    if tolerance.strip():
+        try:
+            parse_tolerance(tolerance)
+        except ValueParseError as e:
+            raise DocumentError(f"{path}.tolerance: {designator}: {e}") from None
+        if version < TOLERANCE_VERSION:
+            raise DocumentError(f"{path}.tolerance: a part's tolerance needs file version "
+                                f"{TOLERANCE_VERSION} or later; this file says version {version}")
     return PlacedPart(
         _id(d["id"], f"{path}.id"), kind, designator, _point(d["at"], f"{path}.at"),
         _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
         _bool(d["mirror"], f"{path}.mirror"), value, phase, _text(d["control"], f"{path}.control"),
         tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)),
-        _captions(d["captions"], f"{path}.captions", version))
+        _captions(d["captions"], f"{path}.captions", version), tolerance)
 
 
 def _captions(value: Any, path: str, version: int) -> tuple[tuple[str, float, float], ...]:

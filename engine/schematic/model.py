@@ -47,6 +47,7 @@ class PlacedPart:
     ``captions``: (role, dx, dy) for each caption the user dragged: its anchor point (text
     centred on it) relative to ``at``, grid units; the other captions are placed automatically
     (engine.placement).
+    ``tolerance``: the value's tolerance as text, an IEC 60062 letter or a percentage ("" none).
     """
 
     id: str
@@ -60,6 +61,7 @@ class PlacedPart:
     control: str = ""
     couples: tuple[str, ...] = ()
     captions: tuple[tuple[str, float, float], ...] = ()
+    tolerance: str = ""
 
 
 @dataclass(frozen=True, slots=True)

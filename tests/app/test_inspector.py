@@ -76,6 +76,24 @@ def test_an_unusual_magnitude_is_taken_with_a_visible_warning(window, drive):
     assert drive.by("C1").value == "10u" and not editor.caution.isVisible()
 
 
+def test_tolerance_is_kept_and_captioned(window, drive):
+    # IEC 60062 tolerance letters (from memory): F is ±1 %, J ±5 %.
+    drive.place("resistor", (0, 0))
+    drive.click((0, 0))
+    editor = window.inspector.editors["tolerance"]
+    _type(editor, "F")
+    assert drive.by("R1").tolerance == "F" and not editor.in_error
+    assert any("±1 %" in c for c in drive.canvas.scene.item(drive.by("R1").id).captions())
+    _type(editor, "7 percent")
+    assert editor.in_error and "tolerance" in editor.error.text()
+    assert drive.by("R1").tolerance == "F"
+    QTest.keyClick(editor.edit, Qt.Key.Key_Escape)
+    _type(editor, "J")
+    assert drive.by("R1").tolerance == "J"
+    drive.key(Qt.Key.Key_Z, CTRL)  # every edit is undoable
+    assert drive.by("R1").tolerance == "F"
+
+
 def test_coupling_coefficient_beyond_one_is_refused(window, drive):
     drive.place("coupling", (0, 0))
     drive.click((0, 0))

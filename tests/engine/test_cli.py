@@ -119,6 +119,25 @@ def test_reduce_json_of_a_divider(capsys, divider):
     assert data["region"] == "src" and data["parts"] == ["R1", "R2", "V1"]
 
 
+def test_reduce_sensitivity_json_and_table(capsys, divider):
+    # Common practice: voc = V R2 / (R1 + R2), so (R2 / voc) dvoc/dR2 = R1 / (R1 + R2) = 1/2
+    # and dz/dR1 = (R2 / (R1 + R2))^2 = 1/4; isc = V / R1 does not depend on R2.
+    data = _json(capsys, divider, "--sensitivity")
+    table = data["sensitivity"]
+    assert set(table) == {"V1", "R1", "R2"}
+    assert _c(table["R2"]["svoc"]) == pytest.approx(0.5)
+    assert _c(table["R1"]["svoc"]) == pytest.approx(-0.5)
+    assert _c(table["R1"]["dz"]) == pytest.approx(0.25)
+    assert _c(table["V1"]["dvoc"]) == pytest.approx(0.5)
+    assert abs(_c(table["R2"]["disc"])) < 1e-15
+    assert table["R1"]["kind"] == "resistor" and _c(table["R1"]["value"]) == 1000
+    code, out, _ = _run(capsys, "reduce", divider, "--sensitivity")
+    assert code == 0
+    rows = out[out.index("Sensitivity"):].splitlines()[2:]
+    assert [r.split()[0] for r in rows] == ["V1", "R1", "R2"]  # V1 moves voc by +1 % per %
+    assert rows[1].split()[1:] == ["1", "kΩ", "-0.5000", "-1.0000", "+0.5000"]
+
+
 def test_reduce_by_parts_and_swapped_port(capsys, divider):
     by_parts = _json(capsys, divider, "--parts", "V1,R1,R2")
     assert by_parts["region"] is None and _c(by_parts["voc"]) == pytest.approx(5.0)

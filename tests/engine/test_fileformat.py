@@ -145,6 +145,21 @@ def test_every_file_is_written_as_version_3_with_or_without_a_chosen_port() -> N
     assert loads(text) == doc
 
 
+def test_a_tolerance_is_written_as_version_3_and_older_versions_refuse_it() -> None:
+    doc = rich_document()
+    doc.replace_fields("p1", tolerance="F")
+    text = dumps(doc)
+    data = json.loads(text)
+    assert data["version"] == fileformat.TOLERANCE_VERSION == 3
+    assert data["parts"][0]["tolerance"] == "F"
+    assert "tolerance" not in data["parts"][1]  # unset: left out
+    assert loads(text) == doc
+    data["version"] = 2
+    with pytest.raises(DocumentError, match=r"parts\[0\].tolerance: a part's tolerance needs "
+                                            "file version 3 or later; this file says version 2"):
+        loads(json.dumps(data))
+
+
 def test_a_chosen_port_kept_inside_a_collapsed_block_reads_back() -> None:
     doc = rich_document()
     block = doc.remove("b1")
@@ -423,6 +438,9 @@ REFUSALS = [
     (setter("title", value=7), "title: expected text, got 7"),
     (setter("version", value=4),
      "written by a newer Portcut (version 4); this program reads up to version 3"),
+    (setter("parts", 0, "tolerance", value="Q"),
+     "parts[0].tolerance: L1: tolerance 'Q' is neither a letter code (B C D F G J K M) nor a "
+     "percentage such as 1 % or 0.5"),
     (setter("version", value="1"), 'version: expected a whole number from 1 to 3, got "1"'),
     (version_1(setter("parts", 0, "captions", value={"value": [1, -2]})),
      "parts[0].captions: caption offsets need file version 3 or later; this file says "

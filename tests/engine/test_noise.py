@@ -1,63 +1,128 @@
-"""Rounding noise is shown as zero, the same way in every output: a component of a result far
-below the result's own error scale (NOISE_RTOL of its larger component) reads 0, and JSON never
-holds -0.0."""
+"""Thermal noise at the port (engine/noise.py).
+
+References: Nyquist, "Thermal agitation of electric charge in conductors", Phys. Rev. 32, 1928:
+a passive network (R, L, C, couplings) in equilibrium at T shows at its terminals the open-
+circuit noise density e_n² = 4 k T Re Z at every frequency. k = 1.380649e-23 J/K is exact in the
+2019 SI (BIPM SI Brochure, 9th edition). The brute-force check drives each noisy part's own
+noise current through the engine's equivalent one part at a time, independent of the adjoint.
+"""
 
 from __future__ import annotations
 
-import csv
-import io
 import math
+from dataclasses import replace
 
 import pytest
 
-from portcut.engine import GROUND
-from portcut.engine.cli import _json_complex
-from portcut.engine.equivalent import Equivalent
-from portcut.engine.tables import sweep_csv
-from portcut.engine.units import NOISE_RTOL, UNDEFINED, denoised
+from portcut.engine import GROUND, Circuit, CircuitError, equivalent
+from portcut.engine.noise import BOLTZMANN, noise, noise_band, thermal_conductance
 
-# A resistive 100 Ω region seen with noise of the size a sparse solve leaves (IEEE 754 double:
-# about 1e-16 relative per operation, well below NOISE_RTOL): j 3.675 pΩ and -j 55.51 zA.
-NOISY = Equivalent(("out", GROUND), 1e3, -0.1 + 1e-18j, -1e-3 - 55.51e-21j,
-                   100 + 3.675e-12j, True, True)
+T = 290.0
 
 
-@pytest.mark.parametrize(("z", "expected"), [
-    (100 + 3.675e-12j, 100 + 0j), (-1e-3 - 55.51e-21j, -1e-3 + 0j), (1e-20 + 1j, 1j),
-    (complex(-0.0, 5), 5j), (complex(3, -0.0), 3 + 0j), (1 + 1e-6j, 1 + 1e-6j), (0j, 0j),
-])
-def test_a_component_below_the_error_scale_reads_zero(z: complex, expected: complex) -> None:
-    got = denoised(z)
-    assert got == expected
-    assert all(math.copysign(1, part) == 1 for part in (got.real, got.imag) if part == 0)
+def passive() -> Circuit:
+    """R, L, C, a coupled pair and a lossy impedance part; the load RL stays outside."""
+    c = Circuit()
+    c.resistor("R1", "a", GROUND, "1k")
+    c.inductor("L1", "a", "b", "10m")
+    c.resistor("R2", "b", "out", "220")
+    c.capacitor("C1", "out", GROUND, "100n")
+    c.inductor("L2", "s", GROUND, "4m")
+    c.coupling("K1", "L1", "L2", 0.7)
+    c.resistor("R3", "s", GROUND, "47")
+    c.impedance("Z1", "out", GROUND, 300 + 150j)
+    c.resistor("RL", "out", GROUND, "10k")
+    return c
 
 
-def test_an_error_bound_given_replaces_the_relative_scale() -> None:
-    assert denoised(1 + 1e-6j, scale=1e-5) == 1
-    assert denoised(1 + 1e-6j, scale=1e-7) == 1 + 1e-6j
-    assert denoised(complex(math.inf, 1)) == complex(math.inf, 1)
-    assert NOISE_RTOL == 1e-12
+PASSIVE = {"R1", "L1", "R2", "C1", "L2", "K1", "R3", "Z1"}
 
 
-def test_the_tables_print_the_noise_as_zero() -> None:
-    rect, polar = NOISY.rectangular(), NOISY.polar()
-    assert (rect.z, rect.isc, rect.voc) == ("100 Ω", "-1 mA", "-100 mV")
-    assert polar.z == "100 Ω ∠ 0°" and polar.isc == "1 mA ∠ 180°"
+def test_a_lone_resistor_shows_4ktr() -> None:
+    # Common practice: 1 kΩ at 290 K gives sqrt(4 k T R) = 4.00 nV/√Hz.
+    c = Circuit()
+    c.resistor("R1", "out", GROUND, "1k")
+    c.resistor("RL", "out", GROUND, "1k")
+    n = noise(c, {"R1"}, freq=1e3, temp_k=T)
+    assert n.en == pytest.approx(math.sqrt(4 * BOLTZMANN * T * 1e3), rel=1e-12)
+    assert n.en == pytest.approx(4.0e-9, rel=1e-3)
+    assert n.in_ == pytest.approx(n.en / 1e3, rel=1e-12)
 
 
-def test_csv_and_json_keep_full_precision_without_noise_or_negative_zero() -> None:
-    row = next(r for i, r in enumerate(csv.reader(io.StringIO(sweep_csv([NOISY])))) if i == 1)
-    assert row[1:3] == ["-0.1", "0.0"] and row[5:7] == ["-0.001", "0.0"]
-    assert row[9:11] == ["100.0", "0.0"] and row[12] == "0.0"
-    assert _json_complex(NOISY.z) == {"re": 100.0, "im": 0.0}
-    got = _json_complex(complex(-0.0, 2.5))
-    assert got == {"re": 0.0, "im": 2.5} and math.copysign(1, got["re"]) == 1
+@pytest.mark.parametrize("freq", [0.0, 50.0, 1e3, 20e3, 1e6])
+def test_passive_region_obeys_nyquist(freq: float) -> None:
+    c = passive()
+    eq = equivalent(c, PASSIVE, ("out", GROUND), freq=freq)
+    n = noise(c, PASSIVE, ("out", GROUND), freq=freq, temp_k=T)
+    assert n.en ** 2 == pytest.approx(4 * BOLTZMANN * T * eq.z.real, rel=1e-9)
 
 
-def test_an_undefined_quantity_reads_the_same_in_the_tables_and_the_csv() -> None:
-    # an ideal 5 V source at the port (common practice): Z = 0, so there is no Norton form and
-    # Isc does not exist; reduce, sweep and the CSV all write the one word.
-    stiff = Equivalent(("a", GROUND), 0.0, 5 + 0j, complex(math.inf, 0), 0j, True, False)
-    assert stiff.rectangular().isc == stiff.polar().isc == UNDEFINED == "undefined"
-    row = list(csv.reader(io.StringIO(sweep_csv([stiff]))))[1]
-    assert row[5:9] == [UNDEFINED] * 4
+def active() -> Circuit:
+    """A stage with gain and feedback: Nyquist does not hold, the brute-force sum does."""
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 1)
+    c.resistor("R1", "in", "a", "10k")
+    c.resistor("R2", "a", GROUND, "4k7")
+    c.vcvs("E1", "b", GROUND, "a", GROUND, 20)
+    c.resistor("R3", "b", "out", "1k")
+    c.resistor("R4", "out", "a", "100k")
+    c.cccs("F1", GROUND, "out", "R2", 3)
+    c.impedance("Z1", "out", GROUND, 2e3 - 500j)
+    c.resistor("RL", "out", GROUND, "10k")
+    return c
+
+
+ACTIVE = {"V1", "R1", "R2", "E1", "R3", "R4", "F1", "Z1"}
+
+
+@pytest.mark.parametrize("freq", [0.0, 1e3])
+def test_adjoint_sum_equals_brute_force_over_the_parts(freq: float) -> None:
+    c = active()
+    n = noise(c, ACTIVE, ("out", GROUND), freq=freq, temp_k=T)
+    quiet = c.replaced(replace(p, value=0.0) for p in c if p.is_independent_source)
+    total = 0.0
+    for part in (c[name] for name in sorted(ACTIVE)):
+        g = thermal_conductance(part)
+        if g == 0:
+            continue
+        driven = quiet.copy()
+        driven.current_source("INOISE", part.nodes[0], part.nodes[1], 1)
+        voc = equivalent(driven, ACTIVE | {"INOISE"}, ("out", GROUND), freq=freq).voc
+        share = 4 * BOLTZMANN * T * g * abs(voc) ** 2
+        assert n.shares[part.name] == pytest.approx(share, rel=1e-9)
+        total += share
+    assert n.en ** 2 == pytest.approx(total, rel=1e-9)
+    assert list(n.shares) == sorted(n.shares, key=lambda k: -n.shares[k])
+
+
+def _rc() -> Circuit:
+    c = Circuit()
+    c.resistor("R1", "out", GROUND, "10k")
+    c.capacitor("C1", "out", GROUND, "10n")
+    c.resistor("RL", "out", GROUND, "1M")
+    return c
+
+
+@pytest.mark.parametrize("band", [(20.0, 20e3), (0.0, 10.0), (0.0, 1e6)])
+def test_band_of_an_rc_matches_the_closed_form(band: tuple[float, float]) -> None:
+    # Common practice: e_n² = 4kTR / (1 + (w R C)²), whose integral from f1 to f2 is
+    # (4kTR / (2 pi R C)) (atan(2 pi f2 R C) - atan(2 pi f1 R C)); to infinity, kT/C.
+    r, cap = 1e4, 1e-8
+    lo, hi = band
+    got = noise_band(_rc(), {"R1", "C1"}, lo, hi, temp_k=T)
+    tau = 2 * math.pi * r * cap
+    want = 4 * BOLTZMANN * T * r / tau * (math.atan(tau * hi) - math.atan(tau * lo))
+    assert got.vrms ** 2 == pytest.approx(want, rel=1e-5)
+    assert got.freqs[0] == lo and got.freqs[-1] == hi
+
+
+def test_bad_input_is_named() -> None:
+    with pytest.raises(CircuitError, match="temperature"):
+        noise(_rc(), {"R1", "C1"}, temp_k=-3)
+    with pytest.raises(CircuitError, match="lower to a higher"):
+        noise_band(_rc(), {"R1", "C1"}, "20k", "20")
+    c = Circuit()
+    c.current_source("I1", GROUND, "out", "1m")
+    c.resistor("RL", "out", GROUND, "1k")
+    with pytest.raises(CircuitError, match="no Thevenin form"):
+        noise(c, {"I1"}, ("out", GROUND))
