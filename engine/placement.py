@@ -67,7 +67,8 @@ WIRE_HALF = STROKE_WIDTH / 2
 def part_texts(part: PlacedPart, *, ac: bool = False) -> dict[str, tuple[str, ...]]:
     """The lines drawn beside ``part`` per role: its designator and its value (``"no value"``
     where one is missing; a coupling adds the inductors it joins)."""
-    value = _value_text(part.kind, part.value, part.phase_deg, part.control, part.couples, ac)
+    value = _value_text(part.kind, part.value, part.phase_deg, part.control, part.couples,
+                        part.tolerance, ac)
     if not value and part.kind != "opamp":
         value = "no value"
     if part.kind == "coupling" and part.couples:
@@ -77,10 +78,11 @@ def part_texts(part: PlacedPart, *, ac: bool = False) -> dict[str, tuple[str, ..
 
 @cache
 def _value_text(kind: str, value: str, phase: str, control: str, couples: tuple[str, ...],
-                ac: bool) -> str:
+                tolerance: str, ac: bool) -> str:
     """Cached: sheets repeat their values."""
     return value_caption(PlacedPart("", kind, "", (0, 0), value=value, phase_deg=phase,
-                                    control=control, couples=couples), ac=ac)
+                                    control=control, couples=couples, tolerance=tolerance),
+                         ac=ac)
 
 
 def text_box(lines: tuple[str, ...], at: FPoint, align: str,

@@ -51,7 +51,7 @@ def test_a_missing_file_is_named_once_and_no_platform_note_reaches_stderr(tmp_pa
     # a run of its own: the process's stderr as a user sees it
     missing = tmp_path / "missing.json"
     env = {k: v for k, v in os.environ.items() if k != "QT_QPA_PLATFORM"}  # as a user runs it
-    done = subprocess.run([sys.executable, "-m", "app", str(missing), "--screenshot",
+    done = subprocess.run([sys.executable, "-m", "portcut", str(missing), "--screenshot",
                            str(tmp_path / "x.png")], capture_output=True, text=True, env=env,
                           cwd=Path(__file__).parents[2], timeout=120)
     assert done.returncode == 1
