@@ -1,0 +1,246 @@
+"""Small-signal device parts: a bipolar transistor (hybrid-π), a MOSFET and a finite-gain op-amp.
+
+Each device is one part to the user (one symbol, one entry in the document and the file) and
+expands here, deterministically, into primitive parts the solver already knows. Member parts are
+named ``<device>:<role>`` (``Q1:rpi``, ``Q1:gm``) and internal nets ``<device>:<node>``
+(``Q1:b'``), so the expansion of a device is the same every time and never clashes with parts a
+user names (a designator holds no colon in the editor).
+
+Models (small-signal, linear; NPN and PNP, n- and p-channel give the same model, since the
+small-signal currents and voltages are increments about the bias point):
+
+* bipolar transistor: rπ from the inner base ``b'`` to e, a VCCS gm·v(b', e) from c to e, ro
+  from c to e, optional rx from b to b' (else b' is b), Cπ across b'-e and Cμ across b'-c.
+  From the bias point: gm = I_C / V_T with V_T = k T / q, rπ = β / gm, ro = V_A / I_C.
+* MOSFET: a VCCS gm·v(g, s) from d to s, ro from d to s, optional Cgs and Cgd.
+  From the bias point: gm = 2 I_D / V_ov, ro = 1 / (λ I_D).
+* op-amp of finite gain: Rin across the inputs, a VCVS of gain A0 on the difference, one pole at
+  f_p = GBW / A0 (an RC low-pass of 1 Ω and 1/(2π f_p) F buffered by a unity VCVS), and Rout in
+  series with the output. Its output is referred to ground, as the ideal op-amp's.
+
+A parameter left out is absent from the model: no ro (V_A, λ or ro not given) is an ideal
+current source; no rx, Cπ, Cμ, Cgs, Cgd leaves that part out; no GBW gives a gain flat with
+frequency; no Rin is an open input; no Rout (or 0) a stiff output.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+
+from .errors import CircuitError
+from .units import parse_value
+
+__all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "Device", "Member", "derived",
+           "expand", "thermal_voltage"]
+
+#: SI exact values (2019 redefinition): J/K and C.
+BOLTZMANN = 1.380649e-23
+ELEMENTARY_CHARGE = 1.602176634e-19
+
+#: Each device kind with the roles of its nets.
+DEVICE_KINDS: dict[str, tuple[str, ...]] = {
+    "bjt": ("b", "c", "e"),
+    "mosfet": ("g", "d", "s"),
+    "opamp_finite": ("inp", "inn", "out"),
+}
+
+#: Parameters each kind accepts: (name, what it is, unit) — for messages and entry forms.
+PARAMETERS: dict[str, tuple[tuple[str, str, str], ...]] = {
+    "bjt": (("ic", "collector current I_C", "A"), ("beta", "current gain β", ""),
+            ("va", "Early voltage V_A", "V"), ("temp_k", "temperature T", "K"),
+            ("gm", "transconductance gm", "S"), ("rpi", "input resistance rπ", "Ω"),
+            ("ro", "output resistance ro", "Ω"), ("rx", "base resistance rx", "Ω"),
+            ("cpi", "capacitance Cπ", "F"), ("cmu", "capacitance Cμ", "F")),
+    "mosfet": (("id", "drain current I_D", "A"), ("vov", "overdrive V_ov", "V"),
+               ("lam", "channel-length modulation λ", "1/V"),
+               ("gm", "transconductance gm", "S"), ("ro", "output resistance ro", "Ω"),
+               ("cgs", "capacitance Cgs", "F"), ("cgd", "capacitance Cgd", "F")),
+    "opamp_finite": (("a0", "open-loop DC gain A0", ""), ("gbw", "gain-bandwidth product", "Hz"),
+                     ("rin", "input resistance Rin", "Ω"), ("rout", "output resistance Rout",
+                                                           "Ω")),
+}
+
+#: Default temperature of a bias-point entry, kelvin.
+DEFAULT_TEMP_K = 300.0
+
+
+def thermal_voltage(temp_k: float) -> float:
+    """V_T = k T / q in volts at ``temp_k`` kelvin."""
+    return BOLTZMANN * temp_k / ELEMENTARY_CHARGE
+
+
+@dataclass(frozen=True, slots=True)
+class Member:
+    """One primitive part of an expansion: the arguments of a Circuit builder call."""
+
+    kind: str
+    name: str
+    nodes: tuple[str, ...]
+    value: float
+
+
+@dataclass(frozen=True, slots=True)
+class Device:
+    """A device part as the user entered it: ``params`` maps parameter names to numbers."""
+
+    name: str
+    kind: str
+    nodes: tuple[str, ...]
+    params: Mapping[str, float]
+
+    @property
+    def form(self) -> str:
+        """``"bias"`` where the small-signal values come from a bias point, else ``"direct"``
+        (an op-amp has one form, ``"direct"``)."""
+        return "bias" if {"ic", "id"} & set(self.params) else "direct"
+
+
+def _read_params(name: str, kind: str, given: Mapping[str, object]) -> dict[str, float]:
+    known = {p[0]: p for p in PARAMETERS[kind]}
+    out: dict[str, float] = {}
+    for key, raw in given.items():
+        if raw is None:
+            continue
+        if key not in known:
+            raise CircuitError(f"{name}: a {kind} has no parameter {key!r}; "
+                               f"it takes {', '.join(known)}")
+        value = parse_value(raw, what=f"{name} {known[key][1]}")
+        if isinstance(value, complex) or not math.isfinite(value):
+            raise CircuitError(f"{name}: {known[key][1]} must be a finite real number, "
+                               f"not {raw!r}")
+        out[key] = float(value)
+    return out
+
+
+def _positive(name: str, kind: str, params: Mapping[str, float], keys: tuple[str, ...], *,
+              zero_ok: bool = False) -> None:
+    labels = {p[0]: p[1] for p in PARAMETERS[kind]}
+    for key in keys:
+        if key in params and (params[key] < 0 or (params[key] == 0 and not zero_ok)):
+            bound = "0 or more" if zero_ok else "more than 0"
+            raise CircuitError(f"{name}: {labels[key]} must be {bound}, not {params[key]!r}")
+
+
+def _one_form(name: str, kind: str, params: Mapping[str, float], bias: tuple[str, ...],
+              direct: tuple[str, ...]) -> str:
+    """Which entry form ``params`` use; refuses a mix or an incomplete form."""
+    labels = {p[0]: p[1] for p in PARAMETERS[kind]}
+    used_bias = [k for k in bias if k in params]
+    used_direct = [k for k in direct if k in params]
+    if used_bias and used_direct:
+        raise CircuitError(f"{name}: give either the bias point ({', '.join(bias)}) or the "
+                           f"small-signal values ({', '.join(direct)}), not both: got "
+                           f"{', '.join(used_bias + used_direct)}")
+    required = {"bjt": (("ic", "beta"), ("gm", "rpi")), "mosfet": (("id", "vov"), ("gm",))}[kind]
+    form, needs = ("bias", required[0]) if used_bias else ("direct", required[1])
+    missing = [labels[k] for k in needs if k not in params]
+    if missing:
+        raise CircuitError(f"{name}: missing {', '.join(missing)} ({form} entry of a {kind}; "
+                           f"the other form takes {', '.join(required[form == 'bias'])})")
+    return form
+
+
+def derived(device: Device) -> dict[str, float]:
+    """The small-signal values the model uses (SI units), from either entry form.
+
+    bjt: gm, rpi, beta, ro (inf where absent), vt (bias form only); mosfet: gm, ro;
+    opamp_finite: a0, pole_hz (inf where no GBW), rin, rout (inf / 0 where absent).
+    """
+    p = device.params
+    inf = math.inf
+    if device.kind == "bjt":
+        if device.form == "bias":
+            vt = thermal_voltage(p.get("temp_k", DEFAULT_TEMP_K))
+            gm = p["ic"] / vt
+            return {"vt": vt, "gm": gm, "rpi": p["beta"] / gm, "beta": p["beta"],
+                    "ro": p["va"] / p["ic"] if "va" in p else inf}
+        return {"gm": p["gm"], "rpi": p["rpi"], "beta": p["gm"] * p["rpi"],
+                "ro": p.get("ro", inf)}
+    if device.kind == "mosfet":
+        if device.form == "bias":
+            return {"gm": 2 * p["id"] / p["vov"],
+                    "ro": 1 / (p["lam"] * p["id"]) if p.get("lam") else inf}
+        return {"gm": p["gm"], "ro": p.get("ro", inf)}
+    a0 = p["a0"]
+    return {"a0": a0, "pole_hz": p["gbw"] / a0 if "gbw" in p else inf,
+            "rin": p.get("rin", inf), "rout": p.get("rout", 0.0)}
+
+
+def make(name: str, kind: str, nodes: tuple[str, ...], given: Mapping[str, object]) -> Device:
+    """A validated :class:`Device`; CircuitError names the part and the field at fault."""
+    params = _read_params(name, kind, given)
+    if kind == "bjt":
+        _one_form(name, kind, params, ("ic", "beta", "va", "temp_k"), ("gm", "rpi", "ro"))
+        _positive(name, kind, params, ("ic", "beta", "va", "temp_k", "gm", "rpi", "ro"))
+        _positive(name, kind, params, ("rx", "cpi", "cmu"), zero_ok=True)
+    elif kind == "mosfet":
+        _one_form(name, kind, params, ("id", "vov", "lam"), ("gm", "ro"))
+        _positive(name, kind, params, ("id", "vov", "gm", "ro"))
+        _positive(name, kind, params, ("lam", "cgs", "cgd"), zero_ok=True)
+    else:
+        if "a0" not in params:
+            raise CircuitError(f"{name}: missing open-loop DC gain A0 (a0) of a finite op-amp")
+        _positive(name, kind, params, ("a0", "gbw", "rin"))
+        _positive(name, kind, params, ("rout",), zero_ok=True)
+    return Device(name, kind, tuple(nodes), params)
+
+
+def expand(device: Device, ground: str) -> list[Member]:
+    """The primitive parts of ``device``, in a fixed order; ``ground`` is the ground net."""
+    return _EXPANDERS[device.kind](device, derived(device), ground)
+
+
+def _bjt(d: Device, v: dict[str, float], ground: str) -> list[Member]:
+    n, p = d.name, d.params
+    b, c, e = d.nodes
+    inner = f"{n}:b'" if p.get("rx") else b
+    out = [Member("resistor", f"{n}:rx", (b, inner), p["rx"])] if p.get("rx") else []
+    out += [Member("resistor", f"{n}:rpi", (inner, e), v["rpi"]),
+            Member("vccs", f"{n}:gm", (c, e, inner, e), v["gm"])]
+    if math.isfinite(v["ro"]):
+        out.append(Member("resistor", f"{n}:ro", (c, e), v["ro"]))
+    if p.get("cpi"):
+        out.append(Member("capacitor", f"{n}:cpi", (inner, e), p["cpi"]))
+    if p.get("cmu"):
+        out.append(Member("capacitor", f"{n}:cmu", (inner, c), p["cmu"]))
+    return out
+
+
+def _mosfet(d: Device, v: dict[str, float], ground: str) -> list[Member]:
+    n, p = d.name, d.params
+    g, dr, s = d.nodes
+    out = [Member("vccs", f"{n}:gm", (dr, s, g, s), v["gm"])]
+    if math.isfinite(v["ro"]):
+        out.append(Member("resistor", f"{n}:ro", (dr, s), v["ro"]))
+    if p.get("cgs"):
+        out.append(Member("capacitor", f"{n}:cgs", (g, s), p["cgs"]))
+    if p.get("cgd"):
+        out.append(Member("capacitor", f"{n}:cgd", (g, dr), p["cgd"]))
+    return out
+
+
+def _opamp(d: Device, v: dict[str, float], ground: str) -> list[Member]:
+    n = d.name
+    inp, inn, out_net = d.nodes
+    out: list[Member] = []
+    if math.isfinite(v["rin"]):
+        out.append(Member("resistor", f"{n}:rin", (inp, inn), v["rin"]))
+    drive = f"{n}:drive" if v["rout"] else out_net
+    if math.isfinite(v["pole_hz"]):
+        # gain, then the pole (1 Ω into 1/(2π f_p) F), then a unity buffer to the output stage
+        out += [Member("vcvs", f"{n}:a0", (f"{n}:gain", ground, inp, inn), v["a0"]),
+                Member("resistor", f"{n}:rp", (f"{n}:gain", f"{n}:pole"), 1.0),
+                Member("capacitor", f"{n}:cp", (f"{n}:pole", ground),
+                       1 / (2 * math.pi * v["pole_hz"])),
+                Member("vcvs", f"{n}:buf", (drive, ground, f"{n}:pole", ground), 1.0)]
+    else:
+        out.append(Member("vcvs", f"{n}:a0", (drive, ground, inp, inn), v["a0"]))
+    if v["rout"]:
+        out.append(Member("resistor", f"{n}:rout", (drive, out_net), v["rout"]))
+    return out
+
+
+_EXPANDERS: dict[str, Callable[[Device, dict[str, float], str], list[Member]]] = {
+    "bjt": _bjt, "mosfet": _mosfet, "opamp_finite": _opamp}
