@@ -12,6 +12,7 @@ import math
 from collections.abc import Iterable
 from typing import Protocol
 
+from .devices import DEVICE_KINDS, PARAMETERS, SYMBOLS
 from .errors import CircuitError
 from .mna import describe_freq
 from .schematic.model import PlacedPart
@@ -24,6 +25,7 @@ __all__ = [
     "UNITS",
     "above_extra_low_voltage",
     "block_caption",
+    "device_caption",
     "drawn_form",
     "value_caption",
 ]
@@ -52,8 +54,11 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
     sources print as phasors.
 
     Text that cannot be read is shown as typed (building the circuit reports it); an ideal
-    op-amp has no value and gives ``""``.
+    op-amp has no value and gives ``""``. A device part shows the parameters entered, in the
+    form chosen (bias point or small-signal values), two to a line, lines parted by ``"\n"``.
     """
+    if part.kind in DEVICE_KINDS:
+        return device_caption(part)
     if part.kind == "opamp" or not part.value.strip():
         return ""
     try:
@@ -73,6 +78,22 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
     if part.kind in ("ccvs", "cccs") and part.control:
         text = f"{text} · I({part.control})"
     return text
+
+
+def device_caption(part: PlacedPart) -> str:
+    """``"I_C = 1 mA, β = 100\nV_A = 50 V"``: a device part's entered parameters."""
+    units = {name: unit for name, _, unit in PARAMETERS[part.kind]}
+    shown = []
+    for name, text in part.params:
+        if not text.strip():
+            continue
+        try:
+            value = parse_value(text)
+        except CircuitError:
+            shown.append(f"{SYMBOLS[name]} = {text.strip()}")
+            continue
+        shown.append(f"{SYMBOLS[name]} = {format_complex(value, units[name])}")
+    return "\n".join(", ".join(shown[i:i + 2]) for i in range(0, len(shown), 2))
 
 
 def drawn_form(eq: Equivalent, form: str) -> str:

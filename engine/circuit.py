@@ -173,6 +173,20 @@ class Circuit:
                 out.update(found)
         return out
 
+    def add_device(self, name: str, kind: str, nodes: Iterable[str],
+                   params: dict[str, object]) -> _devices.Device:
+        """Add a device part of ``kind`` (a key of engine.devices.DEVICE_KINDS) on ``nodes``
+        in the kind's order, with ``params`` (numbers or value text) by parameter name."""
+        if kind not in _devices.DEVICE_KINDS:
+            raise CircuitError(f"{name}: unknown device kind {kind!r}; known kinds: "
+                               f"{', '.join(_devices.DEVICE_KINDS)}")
+        nodes = tuple(nodes)
+        roles = _devices.DEVICE_KINDS[kind]
+        if len(nodes) != len(roles):
+            raise CircuitError(f"{name}: a {kind} takes {len(roles)} nets "
+                               f"({', '.join(roles)}), got {len(nodes)}")
+        return self._add_device(_devices.make(name, kind, nodes, params))
+
     def _add_device(self, device: _devices.Device) -> _devices.Device:
         if not isinstance(device.name, str) or not device.name.strip():
             raise CircuitError(f"a part name must be non-empty text, not {device.name!r}")

@@ -32,8 +32,8 @@ from dataclasses import dataclass
 from .errors import CircuitError
 from .units import parse_value
 
-__all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "Device", "Member", "derived",
-           "expand", "thermal_voltage"]
+__all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "PARAMETERS", "SYMBOLS", "Device",
+           "Member", "derived", "expand", "make", "thermal_voltage"]
 
 #: SI exact values (2019 redefinition): J/K and C.
 BOLTZMANN = 1.380649e-23
@@ -60,6 +60,13 @@ PARAMETERS: dict[str, tuple[tuple[str, str, str], ...]] = {
     "opamp_finite": (("a0", "open-loop DC gain A0", ""), ("gbw", "gain-bandwidth product", "Hz"),
                      ("rin", "input resistance Rin", "Ω"), ("rout", "output resistance Rout",
                                                            "Ω")),
+}
+
+#: How each parameter is written in a caption or an entry form's label.
+SYMBOLS: dict[str, str] = {
+    "ic": "I_C", "beta": "β", "va": "V_A", "temp_k": "T", "gm": "gm", "rpi": "rπ", "ro": "ro",
+    "rx": "rx", "cpi": "Cπ", "cmu": "Cμ", "id": "I_D", "vov": "V_ov", "lam": "λ", "cgs": "Cgs",
+    "cgd": "Cgd", "a0": "A0", "gbw": "GBW", "rin": "Rin", "rout": "Rout",
 }
 
 #: Default temperature of a bias-point entry, kelvin.

@@ -195,7 +195,7 @@ def _element_group(parent: ET.Element, cls: str, element_id: str, tooltip: str) 
 
 def _draw_part(sheet: _Sheet, part: PlacedPart, style: str, ac: bool) -> None:
     group = _element_group(sheet.layer("parts"), "part", part.id, part.designator)
-    texts = {"designator": [part.designator], "value": [value_caption(part, ac=ac)]}
+    texts = {"designator": [part.designator], "value": value_caption(part, ac=ac).split("\n")}
     _draw_symbol(sheet, group, part.kind, part.at, part.rotation, part.mirror, style, texts=texts)
 
 

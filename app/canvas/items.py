@@ -23,6 +23,7 @@ from PySide6.QtWidgets import (
 )
 
 from engine.captions import block_caption, value_caption
+from engine.devices import DEVICE_KINDS
 from engine.errors import CircuitError
 from engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
 from engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point
@@ -260,7 +261,7 @@ def _valued(part: PlacedPart) -> PlacedPart:
     """The part reduced to what its caption depends on, so sheets that repeat values (most
     do) read each value once."""
     return PlacedPart("", part.kind, "", (0, 0), value=part.value, phase_deg=part.phase_deg,
-                      control=part.control)
+                      control=part.control, params=part.params)
 
 
 @cache
@@ -274,6 +275,11 @@ def _readable(part: PlacedPart) -> bool:
     if part.kind == "opamp":
         return True
     try:
+        if part.kind in DEVICE_KINDS:
+            for _, text in part.params:
+                if text.strip():
+                    parse_value(text)
+            return True
         parse_value(part.value)
         if part.phase_deg.strip():
             parse_value(part.phase_deg)
@@ -294,6 +300,8 @@ class PartItem(SymbolItem):
         value = _caption(_valued(part), self.look.ac)
         if not value and part.kind != "opamp":
             value = "no value"
+        if part.kind in DEVICE_KINDS:
+            return {"designator": [part.designator], "value": value.split("\n")}
         if part.kind == "coupling" and part.couples:
             return {"designator": [part.designator], "value": [value, " · ".join(part.couples)]}
         return {"designator": [part.designator], "value": [value] if value else []}

@@ -16,6 +16,7 @@ from collections.abc import Callable, Iterator
 from typing import Any
 
 from ..atomic import write_atomically
+from ..devices import DEVICE_KINDS, PARAMETERS
 from ..errors import DocumentError, ValueParseError
 from ..units import parse_frequency, parse_value
 from .document import Document
@@ -50,10 +51,13 @@ __all__ = [
 
 FORMAT = "portcut-schematic"
 #: The newest file version this program writes and reads.
-VERSION = 2
+VERSION = 3
 #: The first version whose regions may hold a chosen port; a file without one is written as
 #: version 1, which older programs read.
 PORT_VERSION = 2
+#: The first version whose parts may be device parts (transistors, finite op-amps) with their
+#: ``params``.
+DEVICE_VERSION = 3
 #: Largest grid coordinate (in either direction) a file may hold.
 COORD_LIMIT = 1_000_000
 #: Deepest nesting of collapsed blocks inside collapsed blocks.
@@ -64,7 +68,7 @@ _BASES = ("peak", "rms")
 _WIDTH = 120  # characters per line of the file: one element a line, mostly
 # Optional fields and the values they take when absent; the writer leaves out defaults.
 _PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
-                  "couples": []}
+                  "couples": [], "params": {}}
 _LABEL_DEFAULTS = {"rotation": 0, "style": "label"}
 _REGION_DEFAULTS = {"outline": [], "swap": False, "port": None}
 _BLOCK_DEFAULTS = {"rotation": 0, "mirror": False, "stubs": []}
@@ -104,6 +108,9 @@ def _document_data(doc: Document) -> Data:
 def _version_needed(doc: Document) -> int:
     """The lowest file version that holds ``doc``: 1 unless a region (on the sheet or inside
     a collapsed block) has a chosen port."""
+    if any(p.kind in DEVICE_KINDS for p in (*doc.parts(), *doc.collapsed())
+           if isinstance(p, PlacedPart)):
+        return DEVICE_VERSION
     regions = (*doc.regions(), *(e for e in doc.collapsed() if isinstance(e, Region)))
     return PORT_VERSION if any(r.port is not None for r in regions) else 1
 
@@ -121,7 +128,8 @@ def _contents_data(parts, wires, junctions, labels, blocks) -> Data:
         "parts": [_trimmed({"id": p.id, "kind": p.kind, "designator": p.designator,
                             "at": list(p.at), "rotation": p.rotation, "mirror": p.mirror,
                             "value": p.value, "phase_deg": p.phase_deg, "control": p.control,
-                            "couples": list(p.couples)}, _PART_DEFAULTS) for p in parts],
+                            "couples": list(p.couples), "params": dict(p.params)},
+                           _PART_DEFAULTS) for p in parts],
         "wires": [{"id": w.id, "points": _points(w.points)} for w in wires],
         "junctions": [{"id": j.id, "at": list(j.at)} for j in junctions],
         "labels": [_trimmed({"id": n.id, "name": n.name, "at": list(n.at),
@@ -278,7 +286,7 @@ class _Scope:
 
 def _elements(data: Data, base: str, depth: int, designators: dict[str, str],
               version: int) -> Iterator[tuple[str, Element]]:
-    yield from _each(data, "parts", _part, base)
+    yield from _each(data, "parts", lambda d, p: _part(d, p, version), base)
     yield from _each(data, "wires", _wire, base)
     yield from _each(data, "junctions", _junction, base)
     yield from _each(data, "labels", _label, base)
@@ -296,9 +304,12 @@ def _each(data: Data, key: str, read: Callable[[Any, str], Element],
         yield f"{path}[{i}]", read(item, f"{path}[{i}]")
 
 
-def _part(data: Any, path: str) -> PlacedPart:
+def _part(data: Any, path: str, version: int) -> PlacedPart:
     d = _fields(data, path, required=("id", "kind", "designator", "at"), defaults=_PART_DEFAULTS)
     kind = _choice(d["kind"], f"{path}.kind", PART_KINDS)
+    if kind in DEVICE_KINDS and version < DEVICE_VERSION:
+        raise DocumentError(f"{path}.kind: a {kind} part needs file version {DEVICE_VERSION} "
+                            f"or later; this file says version {version}")
     designator = _text(d["designator"], f"{path}.designator")
     value = _text(d["value"], f"{path}.value")
     phase = _text(d["phase_deg"], f"{path}.phase_deg")
@@ -309,7 +320,28 @@ def _part(data: Any, path: str) -> PlacedPart:
         _id(d["id"], f"{path}.id"), kind, designator, _point(d["at"], f"{path}.at"),
         _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
         _bool(d["mirror"], f"{path}.mirror"), value, phase, _text(d["control"], f"{path}.control"),
-        tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)))
+        tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)),
+        _params(d["params"], f"{path}.params", kind, designator))
+
+
+def _params(data: Any, path: str, kind: str, designator: str) -> tuple[tuple[str, str], ...]:
+    """A device part's parameters, as (name, text) in engine.devices.PARAMETERS order."""
+    if not isinstance(data, dict):
+        raise DocumentError(f"{path}: expected an object of parameter texts, got {_shown(data)}")
+    if data and kind not in DEVICE_KINDS:
+        raise DocumentError(f"{path}: a {kind} part takes no parameters")
+    known = [name for name, _, _ in PARAMETERS.get(kind, ())]
+    for key in data:
+        if key not in known:
+            raise DocumentError(f"{path}.{key}: a {kind} has no such parameter; it takes "
+                                f"{', '.join(known)}")
+    out = []
+    for key in known:
+        if key in data:
+            text = _text(data[key], f"{path}.{key}")
+            _readable(text, f"{path}.{key}", f"{designator} {key}")
+            out.append((key, text))
+    return tuple(out)
 
 
 def _readable(text: str, path: str, what: str) -> None:

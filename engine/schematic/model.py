@@ -28,7 +28,7 @@ __all__ = [
 #: Kinds a PlacedPart may have (engine.circuit.KINDS); ground and net names are NetLabels.
 PART_KINDS: tuple[str, ...] = (
     "resistor", "capacitor", "inductor", "impedance", "voltage_source", "current_source",
-    "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling",
+    "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling", "bjt", "mosfet", "opamp_finite",
 )
 ANALYSIS_FORMS = ("thevenin", "norton")
 ROTATIONS = (0, 90, 180, 270)
@@ -41,6 +41,8 @@ class PlacedPart:
     ``value``: resistance, capacitance, inductance, impedance, source magnitude, or gain, as
     text. ``phase_deg``: source phase in degrees (text, "" for 0). ``control``: the designator
     whose current controls a CCVS/CCCS. ``couples``: the two inductor designators of a coupling.
+    ``params``: a device part's parameters (engine.devices.PARAMETERS) as (name, text) pairs in
+    that table's order, only those given.
     """
 
     id: str
@@ -53,6 +55,7 @@ class PlacedPart:
     phase_deg: str = ""
     control: str = ""
     couples: tuple[str, ...] = ()
+    params: tuple[tuple[str, str], ...] = ()
 
 
 @dataclass(frozen=True, slots=True)

@@ -282,7 +282,7 @@ REFUSALS = [
     (setter("parts", 1, "kind", value="diode"),
      'parts[1].kind: expected one of "resistor", "capacitor", "inductor", "impedance", '
      '"voltage_source", "current_source", "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling", '
-     'got "diode"'),
+     '"bjt", "mosfet", "opamp_finite", got "diode"'),
     (setter("parts", 1, "value", value="40 furlongs"),
      "parts[1].value: L2 value: cannot read '40 furlongs'; use a number"),
     (setter("parts", 1, "value", value="1e999999999"), "parts[1].value: L2 value: "),
@@ -342,9 +342,9 @@ REFUSALS = [
      'analysis.basis: expected one of "peak", "rms", got "average"'),
     (setter("parts", value={}), "parts: expected a list, got {}"),
     (setter("title", value=7), "title: expected text, got 7"),
-    (setter("version", value=3),
-     "written by a newer Portcut (version 3); this program reads up to version 2"),
-    (setter("version", value="1"), 'version: expected a whole number from 1 to 2, got "1"'),
+    (setter("version", value=4),
+     "written by a newer Portcut (version 4); this program reads up to version 3"),
+    (setter("version", value="1"), 'version: expected a whole number from 1 to 3, got "1"'),
     (setter("regions", 0, "port", value={"plus": "v_out", "minus": "0"}),
      "regions[0].port: a chosen port needs file version 2 or later; this file says version 1"),
     (chosen_port({"plus": "v_out", "minus": "0"}, swap=True),
