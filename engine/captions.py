@@ -12,7 +12,7 @@ import math
 from collections.abc import Iterable
 from typing import Protocol
 
-from .devices import DEVICE_KINDS, PARAMETERS, SYMBOLS
+from .devices import DEVICE_KINDS, PARAMETERS, SYMBOLS, derived, make
 from .errors import CircuitError
 from .mna import describe_freq
 from .schematic.model import PlacedPart
@@ -25,6 +25,7 @@ __all__ = [
     "UNITS",
     "above_extra_low_voltage",
     "block_caption",
+    "derived_caption",
     "device_caption",
     "drawn_form",
     "value_caption",
@@ -94,6 +95,35 @@ def device_caption(part: PlacedPart) -> str:
             continue
         shown.append(f"{SYMBOLS[name]} = {format_complex(value, units[name])}")
     return "\n".join(", ".join(shown[i:i + 2]) for i in range(0, len(shown), 2))
+
+
+#: The derived values shown for each device kind: (key of engine.devices.derived, symbol, unit).
+_DERIVED = {
+    "bjt": (("gm", "gm", "S"), ("rpi", "rπ", "Ω"), ("ro", "ro", "Ω"), ("beta", "β", ""),
+            ("vt", "V_T", "V")),
+    "mosfet": (("gm", "gm", "S"), ("ro", "ro", "Ω")),
+    "opamp_finite": (("a0", "A0", ""), ("pole_hz", "pole", "Hz"), ("rin", "Rin", "Ω"),
+                     ("rout", "Rout", "Ω")),
+}
+
+
+def derived_caption(part: PlacedPart) -> str:
+    """The small-signal values a device part's model uses, one per line (``"gm = 38.68 mS"``),
+    or what is missing or wrong in its parameters. ``inf`` reads "∞ (left out)"."""
+    try:
+        device = make(part.designator or part.kind, part.kind, ("a", "b", "c"),
+                      {k: v for k, v in part.params if v.strip()})
+    except CircuitError as e:
+        return str(e)
+    values = derived(device)
+    lines = []
+    for key, sym, unit in _DERIVED[part.kind]:
+        if key not in values:
+            continue
+        v = values[key]
+        shown = "∞ (left out)" if math.isinf(v) else format_complex(v, unit)
+        lines.append(f"{sym} = {shown}")
+    return "\n".join(lines)
 
 
 def drawn_form(eq: Equivalent, form: str) -> str:

@@ -32,8 +32,8 @@ from dataclasses import dataclass
 from .errors import CircuitError
 from .units import parse_value
 
-__all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "PARAMETERS", "SYMBOLS", "Device",
-           "Member", "derived", "expand", "make", "thermal_voltage"]
+__all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "FORMS", "PARAMETERS", "SYMBOLS",
+           "Device", "Member", "derived", "expand", "make", "thermal_voltage"]
 
 #: SI exact values (2019 redefinition): J/K and C.
 BOLTZMANN = 1.380649e-23
@@ -130,17 +130,26 @@ def _positive(name: str, kind: str, params: Mapping[str, float], keys: tuple[str
             raise CircuitError(f"{name}: {labels[key]} must be {bound}, not {params[key]!r}")
 
 
-def _one_form(name: str, kind: str, params: Mapping[str, float], bias: tuple[str, ...],
-              direct: tuple[str, ...]) -> str:
+#: The two entry forms of a transistor: (bias-point parameters, small-signal parameters).
+FORMS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
+    "bjt": (("ic", "beta", "va", "temp_k"), ("gm", "rpi", "ro")),
+    "mosfet": (("id", "vov", "lam"), ("gm", "ro")),
+}
+#: The parameters each form needs (the others of the form are optional).
+_REQUIRED = {"bjt": (("ic", "beta"), ("gm", "rpi")), "mosfet": (("id", "vov"), ("gm",))}
+
+
+def _one_form(name: str, kind: str, params: Mapping[str, float]) -> str:
     """Which entry form ``params`` use; refuses a mix or an incomplete form."""
     labels = {p[0]: p[1] for p in PARAMETERS[kind]}
+    bias, direct = FORMS[kind]
     used_bias = [k for k in bias if k in params]
     used_direct = [k for k in direct if k in params]
     if used_bias and used_direct:
         raise CircuitError(f"{name}: give either the bias point ({', '.join(bias)}) or the "
                            f"small-signal values ({', '.join(direct)}), not both: got "
                            f"{', '.join(used_bias + used_direct)}")
-    required = {"bjt": (("ic", "beta"), ("gm", "rpi")), "mosfet": (("id", "vov"), ("gm",))}[kind]
+    required = _REQUIRED[kind]
     form, needs = ("bias", required[0]) if used_bias else ("direct", required[1])
     missing = [labels[k] for k in needs if k not in params]
     if missing:
@@ -179,11 +188,11 @@ def make(name: str, kind: str, nodes: tuple[str, ...], given: Mapping[str, objec
     """A validated :class:`Device`; CircuitError names the part and the field at fault."""
     params = _read_params(name, kind, given)
     if kind == "bjt":
-        _one_form(name, kind, params, ("ic", "beta", "va", "temp_k"), ("gm", "rpi", "ro"))
+        _one_form(name, kind, params)
         _positive(name, kind, params, ("ic", "beta", "va", "temp_k", "gm", "rpi", "ro"))
         _positive(name, kind, params, ("rx", "cpi", "cmu"), zero_ok=True)
     elif kind == "mosfet":
-        _one_form(name, kind, params, ("id", "vov", "lam"), ("gm", "ro"))
+        _one_form(name, kind, params)
         _positive(name, kind, params, ("id", "vov", "gm", "ro"))
         _positive(name, kind, params, ("lam", "cgs", "cgd"), zero_ok=True)
     else:

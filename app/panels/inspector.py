@@ -15,6 +15,8 @@ from PySide6.QtCore import Qt
 from PySide6.QtGui import QUndoCommand
 from PySide6.QtWidgets import QDockWidget, QFormLayout, QLabel, QVBoxLayout, QWidget
 
+from engine.captions import derived_caption
+from engine.devices import DEVICE_KINDS
 from engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
 
 from ..canvas import Canvas
@@ -90,10 +92,16 @@ class InspectorDock(QDockWidget):
         self.heading.setWordWrap(True)
         self.details = QLabel()
         self.details.setWordWrap(True)
+        # a device part's small-signal values, worked out from what was entered (read-only)
+        self.derived = QLabel()
+        self.derived.setObjectName("derived")
+        self.derived.setWordWrap(True)
+        self.derived.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         self.form = QFormLayout()
         outer = QVBoxLayout(body)
         outer.addWidget(self.heading)
         outer.addLayout(self.form)
+        outer.addWidget(self.derived)
         outer.addWidget(self.details)
         outer.addStretch(1)
         self.setWidget(body)
@@ -138,6 +146,15 @@ class InspectorDock(QDockWidget):
             element = doc[self._shown]
             for editor in self.editors.values():
                 editor.show_element(element)
+            self._show_derived(element)
+
+    def _show_derived(self, element: Element | None) -> None:
+        if isinstance(element, PlacedPart) and element.kind in DEVICE_KINDS:
+            self.derived.setText("Derived (read-only):\n" + derived_caption(element))
+            self.derived.show()
+        else:
+            self.derived.clear()
+            self.derived.hide()
 
     def _sheet_summary(self) -> str:
         doc = self.workbench.doc
@@ -153,6 +170,7 @@ class InspectorDock(QDockWidget):
             return
         self._clear()
         self._shown = target
+        self._show_derived(doc[target] if target else None)
         if target is None:
             self.heading.setText(f"{len(ids)} elements selected")
             self.details.setText("Select one element to edit it.")

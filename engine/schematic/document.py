@@ -36,7 +36,8 @@ __all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
 DESIGNATOR_PREFIX: dict[str, str] = {
     "resistor": "R", "capacitor": "C", "inductor": "L", "impedance": "Z",
     "voltage_source": "V", "current_source": "I", "vcvs": "DS", "vccs": "DS", "ccvs": "DS",
-    "cccs": "DS", "opamp": "U", "coupling": "K", "block": "EQ",
+    "cccs": "DS", "opamp": "U", "coupling": "K", "block": "EQ", "bjt": "Q", "mosfet": "Q",
+    "opamp_finite": "U",
 }
 T = TypeVar("T")
 _ID_PREFIX = {PlacedPart: "p", Wire: "w", Junction: "j", NetLabel: "n", Region: "r", Block: "b"}

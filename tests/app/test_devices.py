@@ -1,0 +1,74 @@
+"""Device parts in the editor: placed from the palette with real clicks, their bias fields typed
+into the inspector, the derived small-signal values read back (gm = I_C / V_T, rπ = β / gm,
+ro = V_A / I_C; MOSFET gm = 2 I_D / V_ov, ro = 1 / (λ I_D): common practice), and an edit
+undone."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt
+from PySide6.QtTest import QTest
+
+CTRL = Qt.KeyboardModifier.ControlModifier
+
+
+def _type(editor, text: str) -> None:
+    edit = editor.edit
+    edit.setFocus()
+    edit.selectAll()
+    QTest.keyClicks(edit, text)
+    QTest.keyClick(edit, Qt.Key.Key_Return)
+
+
+def test_transistor_bias_fields_give_derived_values(window, drive):
+    drive.place("bjt", (0, 0))
+    q = drive.by("Q1")
+    assert q.kind == "bjt"
+    drive.click((0, 0))
+    editors = window.inspector.editors
+    _type(editors["param:ic"], "2m")
+    _type(editors["param:beta"], "150")
+    _type(editors["param:va"], "60")
+    assert dict(drive.by("Q1").params) == {"ic": "2m", "beta": "150", "va": "60",
+                                           "temp_k": "300"}
+    derived = window.inspector.derived.text()
+    # V_T(300 K) = 25.85 mV: gm = 2 mA / V_T = 77.36 mS, rπ = 150 / gm = 1.939 kΩ, ro = 30 kΩ
+    assert "gm = 77.36 mS" in derived
+    assert "rπ = 1.939 kΩ" in derived
+    assert "ro = 30 kΩ" in derived
+    caption = drive.canvas.scene.item(q.id).captions()
+    assert any("I_C = 2 mA" in line for line in caption)
+
+
+def test_typing_a_small_signal_value_switches_the_form(window, drive):
+    drive.place("bjt", (0, 0))
+    drive.click((0, 0))
+    editors = window.inspector.editors
+    _type(editors["param:gm"], "40m")
+    # a direct entry clears the bias point, so the part holds one form; rπ is still missing
+    assert dict(drive.by("Q1").params) == {"gm": "40m"}
+    assert "missing input resistance rπ" in window.inspector.derived.text()
+    _type(editors["param:rpi"], "2k5")
+    assert "β = 100" in window.inspector.derived.text()
+    QTest.keyClick(drive.viewport, Qt.Key.Key_Z, CTRL)
+    assert dict(drive.by("Q1").params) == {"gm": "40m"}
+
+
+def test_bad_bias_entry_is_refused_with_the_field_named(window, drive):
+    drive.place("mosfet", (0, 0))
+    drive.click((0, 0))
+    editor = window.inspector.editors["param:vov"]
+    _type(editor, "-0.2")
+    assert editor.in_error and "Q1 overdrive V_ov" in editor.error.text()
+    assert dict(drive.by("Q1").params)["vov"] == "200m"
+    _type(window.inspector.editors["param:id"], "500u")
+    # gm = 2 · 0.5 mA / 0.2 V = 5 mS, ro = 1 / (0.02 · 0.5 mA) = 100 kΩ
+    derived = window.inspector.derived.text()
+    assert "gm = 5 mS" in derived and "ro = 100 kΩ" in derived
+
+
+def test_finite_opamp_shows_its_pole(window, drive):
+    drive.place("opamp_finite", (0, 0))
+    drive.click((0, 0))
+    _type(window.inspector.editors["param:gbw"], "10M")
+    # one pole at GBW / A0 = 10 MHz / 100 k = 100 Hz
+    assert "pole = 100 Hz" in window.inspector.derived.text()
