@@ -7,12 +7,16 @@ ro = V_A / I_C; MOSFET gm = 2 I_D / V_ov, ro = 1 / (λ I_D).
 
 from __future__ import annotations
 
+import json
 import math
 
 import pytest
 
+import assets
 from engine import GROUND, Circuit, CircuitError, equivalent
 from engine.devices import derived, thermal_voltage
+from engine.schematic import build_circuit, load
+from engine.schematic.fileformat import dumps, loads
 
 
 def test_thermal_voltage_at_300_k() -> None:
@@ -122,3 +126,18 @@ def test_opamp_pole_sits_at_gbw_over_a0() -> None:
     voc = equivalent(c, {"VIN", "U1"}, port=("out", GROUND), freq=f_pole).voc
     # one pole: A0 / (1 + j f / f_p), |.| = A0 / √2 at f_p
     assert abs(voc) == pytest.approx(1e5 / math.sqrt(2), rel=1e-9)
+
+
+def test_device_part_round_trips_as_one_part_in_file_version_3() -> None:
+    doc = load(assets.example_path("emitter_follower"))
+    text = dumps(doc)
+    data = json.loads(text)
+    assert data["version"] == 3
+    (q,) = [p for p in data["parts"] if p["kind"] == "bjt"]
+    assert q["params"] == {"ic": "1m", "beta": "120", "va": "80", "temp_k": "300"}
+    again = loads(text)
+    assert [p for p in again.parts()] == [p for p in doc.parts()]
+    assert "Q1" in build_circuit(again).devices
+    data["version"] = 2
+    with pytest.raises(CircuitError, match=r"parts\[2\]\.kind: a bjt part needs file version 3"):
+        loads(json.dumps(data))
