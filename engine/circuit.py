@@ -342,6 +342,13 @@ class Circuit:
         """
         return self._add_device(_devices.make(name, "bjt", (b, c, e), params))
 
+    def measured_source(self, name: str, p: str, n: str, **params: object) -> _devices.Device:
+        """A source known from measurements (engine/measured.py), drawn as Voc in series with
+        R between ``p`` (plus) and ``n``: either ``voc`` (V), ``rl`` (Ω) and ``vl`` (V, the
+        voltage under rl), or ``table``: (load Ω, volts) pairs or their text, fitted by least
+        squares."""
+        return self._add_device(_devices.make(name, "measured_source", (p, n), params))
+
     def mosfet(self, name: str, g: str, d: str, s: str, **params: object) -> _devices.Device:
         """Small-signal MOSFET (n- and p-channel alike): either ``id`` (A), ``vov`` (V),
         optional ``lam`` (1/V), or ``gm`` (S), optional ``ro`` (Ω); optional ``cgs``, ``cgd``

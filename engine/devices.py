@@ -29,6 +29,7 @@ import math
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
+from . import measured
 from .errors import CircuitError
 from .units import parse_value
 
@@ -44,6 +45,7 @@ DEVICE_KINDS: dict[str, tuple[str, ...]] = {
     "bjt": ("b", "c", "e"),
     "mosfet": ("g", "d", "s"),
     "opamp_finite": ("inp", "inn", "out"),
+    "measured_source": ("p", "n"),
 }
 
 #: Parameters each kind accepts: (name, what it is, unit) — for messages and entry forms.
@@ -60,13 +62,17 @@ PARAMETERS: dict[str, tuple[tuple[str, str, str], ...]] = {
     "opamp_finite": (("a0", "open-loop DC gain A0", ""), ("gbw", "gain-bandwidth product", "Hz"),
                      ("rin", "input resistance Rin", "Ω"), ("rout", "output resistance Rout",
                                                            "Ω")),
+    "measured_source": (("voc", "open-circuit voltage Voc", "V"), ("rl", "known load R_L", "Ω"),
+                        ("vl", "voltage under load V_L", "V"),
+                        ("table", "readings (load, voltage)", "")),
 }
 
 #: How each parameter is written in a caption or an entry form's label.
 SYMBOLS: dict[str, str] = {
     "ic": "I_C", "beta": "β", "va": "V_A", "temp_k": "T", "gm": "gm", "rpi": "rπ", "ro": "ro",
     "rx": "rx", "cpi": "Cπ", "cmu": "Cμ", "id": "I_D", "vov": "V_ov", "lam": "λ", "cgs": "Cgs",
-    "cgd": "Cgd", "a0": "A0", "gbw": "GBW", "rin": "Rin", "rout": "Rout",
+    "cgd": "Cgd", "a0": "A0", "gbw": "GBW", "rin": "Rin", "rout": "Rout", "voc": "Voc",
+    "rl": "R_L", "vl": "V_L", "table": "Readings",
 }
 
 #: Default temperature of a bias-point entry, kelvin.
@@ -95,24 +101,31 @@ class Device:
     name: str
     kind: str
     nodes: tuple[str, ...]
-    params: Mapping[str, float]
+    params: Mapping[str, object]
 
     @property
     def form(self) -> str:
-        """``"bias"`` where the small-signal values come from a bias point, else ``"direct"``
-        (an op-amp has one form, ``"direct"``)."""
+        """``"bias"`` where the small-signal values come from a bias point, ``"table"`` for a
+        measured source fitted to readings, else ``"direct"`` (an op-amp and a two-point
+        measured source have that one)."""
+        if "table" in self.params:
+            return "table"
         return "bias" if {"ic", "id"} & set(self.params) else "direct"
 
 
-def _read_params(name: str, kind: str, given: Mapping[str, object]) -> dict[str, float]:
+def _read_params(name: str, kind: str, given: Mapping[str, object]) -> dict[str, object]:
     known = {p[0]: p for p in PARAMETERS[kind]}
-    out: dict[str, float] = {}
+    out: dict[str, object] = {}
     for key, raw in given.items():
         if raw is None:
             continue
         if key not in known:
             raise CircuitError(f"{name}: a {kind} has no parameter {key!r}; "
                                f"it takes {', '.join(known)}")
+        if key == "table":
+            out[key] = tuple(measured.parse_table(raw, name=f"{name} readings")
+                             if isinstance(raw, str) else raw)
+            continue
         value = parse_value(raw, what=f"{name} {known[key][1]}")
         if isinstance(value, complex) or not math.isfinite(value):
             raise CircuitError(f"{name}: {known[key][1]} must be a finite real number, "
@@ -179,9 +192,20 @@ def derived(device: Device) -> dict[str, float]:
             return {"gm": 2 * p["id"] / p["vov"],
                     "ro": 1 / (p["lam"] * p["id"]) if p.get("lam") else inf}
         return {"gm": p["gm"], "ro": p.get("ro", inf)}
+    if device.kind == "measured_source":
+        fit = _fit(device)
+        return {"voc": fit.voc, "r": fit.r, "points": fit.points, "residual": fit.residual,
+                "u_voc": fit.u_voc, "u_r": fit.u_r}
     a0 = p["a0"]
     return {"a0": a0, "pole_hz": p["gbw"] / a0 if "gbw" in p else inf,
             "rin": p.get("rin", inf), "rout": p.get("rout", 0.0)}
+
+
+def _fit(device: Device) -> measured.Fit:
+    p = device.params
+    if "table" in p:
+        return measured.fit_table(p["table"], name=device.name)
+    return measured.fit_two_point(p["voc"], p["rl"], p["vl"], name=device.name)
 
 
 def make(name: str, kind: str, nodes: tuple[str, ...], given: Mapping[str, object]) -> Device:
@@ -195,6 +219,16 @@ def make(name: str, kind: str, nodes: tuple[str, ...], given: Mapping[str, objec
         _one_form(name, kind, params)
         _positive(name, kind, params, ("id", "vov", "gm", "ro"))
         _positive(name, kind, params, ("lam", "cgs", "cgd"), zero_ok=True)
+    elif kind == "measured_source":
+        if "table" in params and set(params) != {"table"}:
+            raise CircuitError(f"{name}: give either readings (a table) or Voc, R_L and V_L, "
+                               "not both")
+        missing = [k for k in ("voc", "rl", "vl") if k not in params]
+        if "table" not in params and missing:
+            raise CircuitError(f"{name}: missing {', '.join(missing)}: a measured source "
+                               "takes the open-circuit voltage voc, a known load rl and the "
+                               "voltage vl under it, or a table of (load, voltage) readings")
+        _fit(Device(name, kind, tuple(nodes), params))  # refuses readings that do not fit
     else:
         if "a0" not in params:
             raise CircuitError(f"{name}: missing open-loop DC gain A0 (a0) of a finite op-amp")
@@ -258,5 +292,15 @@ def _opamp(d: Device, v: dict[str, float], ground: str) -> list[Member]:
     return out
 
 
+def _measured(d: Device, v: dict[str, float], ground: str) -> list[Member]:
+    # the Thevenin form of a collapsed block: Voc from p to an inner node, R from it to n
+    n = d.name
+    p_net, n_net = d.nodes
+    if v["r"] == 0:
+        return [Member("voltage_source", f"{n}:voc", (p_net, n_net), v["voc"])]
+    return [Member("voltage_source", f"{n}:voc", (p_net, f"{n}:mid"), v["voc"]),
+            Member("resistor", f"{n}:r", (f"{n}:mid", n_net), v["r"])]
+
+
 _EXPANDERS: dict[str, Callable[[Device, dict[str, float], str], list[Member]]] = {
-    "bjt": _bjt, "mosfet": _mosfet, "opamp_finite": _opamp}
+    "bjt": _bjt, "mosfet": _mosfet, "opamp_finite": _opamp, "measured_source": _measured}

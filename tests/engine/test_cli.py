@@ -328,7 +328,7 @@ def test_bench_is_handed_its_arguments(monkeypatch):
 
 
 def test_commands_match_the_launcher():
-    assert {"reduce", "sweep", "export", "bench"} == cli.COMMANDS
+    assert {"reduce", "sweep", "export", "fit", "bench"} == cli.COMMANDS
 
 
 # -- the bundled demo, headless ------------------------------------------------------------------
