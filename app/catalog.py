@@ -59,6 +59,11 @@ ENTRIES: tuple[Entry, ...] = (
     Entry("mosfet", "MOSFET", "Small-signal enhancement MOSFET (n- and p-channel alike): from "
           "the bias point I_D, V_ov, λ or from gm, ro", "", "mosfet", "Devices",
           (("id", "1m"), ("vov", "200m"), ("lam", "20m"))),
+    Entry("measured_source", "Measured source", "A source known from bench readings, drawn as "
+          "its Thevenin block: Voc and the voltage V_L under a known load R_L, or readings "
+          "(load, voltage; one pair a line or ;-separated, 'open' for no load) fitted by least "
+          "squares", "", "measured_source", "Sources",
+          (("voc", "5"), ("rl", "1k"), ("vl", "4.5"))),
     Entry("ground", "Ground", "The reference net, 0", icon="ground", group="Connections"),
     Entry("label", "Net label", "Names a net; equal names join anywhere on the sheet",
           icon="label", group="Connections"),

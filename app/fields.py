@@ -17,6 +17,7 @@ from dataclasses import dataclass, replace
 from engine.captions import UNITS
 from engine.devices import DEVICE_KINDS, FORMS, PARAMETERS, SYMBOLS
 from engine.errors import DocumentError, ValueParseError
+from engine.measured import fit_table, parse_table
 from engine.schematic import Block, Document, Element, NetLabel, PlacedPart
 from engine.schematic.ports import follow_renames
 from engine.units import parse_value
@@ -145,7 +146,7 @@ def _name(doc: Document, label: NetLabel, text: str) -> list[Element]:
 
 #: Device parameters a part may leave empty (the model then leaves that element out).
 _OPTIONAL = frozenset({"va", "temp_k", "ro", "rx", "cpi", "cmu", "lam", "cgs", "cgd", "gbw",
-                       "rin", "rout"})
+                       "rin", "rout", "voc", "rl", "vl", "table"})
 #: Parameters that may be 0 (an element of zero size: left out).
 _ZERO_OK = frozenset({"rx", "cpi", "cmu", "lam", "cgs", "cgd", "rout"})
 
@@ -157,7 +158,9 @@ def _param_field(kind: str, name: str, description: str, unit: str) -> Field:
     def write(doc: Document, part: PlacedPart, text: str) -> list[Element]:
         what = f"{part.designator} {description}"
         text = text.strip()
-        if text:
+        if text and name == "table":
+            fit_table(parse_table(text, name=what), name=what)
+        elif text:
             value = parse_value(text, what=what)
             if isinstance(value, complex) or value != value or abs(value) == float("inf"):
                 raise ValueParseError(f"{what}: {text!r} must be a finite real number")

@@ -82,7 +82,10 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
 
 
 def device_caption(part: PlacedPart) -> str:
-    """``"I_C = 1 mA, β = 100\nV_A = 50 V"``: a device part's entered parameters."""
+    """``"I_C = 1 mA, β = 100\nV_A = 50 V"``: a device part's entered parameters. A measured
+    source shows the Thevenin values it stands for and what they came from."""
+    if part.kind == "measured_source":
+        return _measured_caption(part)
     units = {name: unit for name, _, unit in PARAMETERS[part.kind]}
     shown = []
     for name, text in part.params:
@@ -104,7 +107,24 @@ _DERIVED = {
     "mosfet": (("gm", "gm", "S"), ("ro", "ro", "Ω")),
     "opamp_finite": (("a0", "A0", ""), ("pole_hz", "pole", "Hz"), ("rin", "Rin", "Ω"),
                      ("rout", "Rout", "Ω")),
+    "measured_source": (("voc", "Voc", "V"), ("r", "R", "Ω"), ("u_voc", "u(Voc)", "V"),
+                        ("u_r", "u(R)", "Ω"), ("residual", "residual (rms)", "V")),
 }
+
+
+def _measured_caption(part: PlacedPart) -> str:
+    given = {k: v for k, v in part.params if v.strip()}
+    try:
+        values = derived(make(part.designator or "source", part.kind, ("a", "b"), given))
+    except CircuitError:
+        return "no fit: see the inspector"
+    def pm(key: str, unit: str) -> str:
+        u = values[f"u_{key}"]
+        shown = format_complex(values[key], unit)
+        return shown if math.isnan(u) else f"{shown} ± {format_complex(u, unit, 2)}"
+    source = (f"fitted to {values['points']} readings" if "table" in given
+              else f"from Voc and V_L under {format_complex(parse_value(given['rl']), 'Ω')}")
+    return f"Voc = {pm('voc', 'V')}\nR = {pm('r', 'Ω')}\n{source}"
 
 
 def derived_caption(part: PlacedPart) -> str:
@@ -121,6 +141,8 @@ def derived_caption(part: PlacedPart) -> str:
         if key not in values:
             continue
         v = values[key]
+        if math.isnan(v):
+            continue
         shown = "∞ (left out)" if math.isinf(v) else format_complex(v, unit)
         lines.append(f"{sym} = {shown}")
     return "\n".join(lines)

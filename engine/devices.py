@@ -147,6 +147,7 @@ def _positive(name: str, kind: str, params: Mapping[str, float], keys: tuple[str
 FORMS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "bjt": (("ic", "beta", "va", "temp_k"), ("gm", "rpi", "ro")),
     "mosfet": (("id", "vov", "lam"), ("gm", "ro")),
+    "measured_source": (("table",), ("voc", "rl", "vl")),
 }
 #: The parameters each form needs (the others of the form are optional).
 _REQUIRED = {"bjt": (("ic", "beta"), ("gm", "rpi")), "mosfet": (("id", "vov"), ("gm",))}

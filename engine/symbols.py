@@ -81,6 +81,7 @@ PINS: dict[str, tuple[Point, ...]] = {
     "opamp_finite": ((-3, 1), (-3, -1), (3, 0)),
     "bjt": ((-2, 0), (1, -2), (1, 2)),
     "mosfet": ((-2, 0), (1, -2), (1, 2)),
+    "measured_source": ((3, -2), (3, 2)),
     "coupling": (),
     "ground": ((0, 0),),
     "label": ((0, 0),),
@@ -552,6 +553,8 @@ _BODIES = {
     "opamp_finite": _opamp_finite,
     "bjt": _bjt,
     "mosfet": _mosfet,
+    # a source known from measurements is drawn as the Thevenin block it stands for
+    "measured_source": lambda style: _block(style, "thevenin"),
     "coupling": _coupling,
     "ground": _ground,
     "label": _label,

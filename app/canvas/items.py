@@ -23,7 +23,7 @@ from PySide6.QtWidgets import (
 )
 
 from engine.captions import block_caption, value_caption
-from engine.devices import DEVICE_KINDS
+from engine.devices import DEVICE_KINDS, make
 from engine.errors import CircuitError
 from engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
 from engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point
@@ -275,10 +275,9 @@ def _readable(part: PlacedPart) -> bool:
     if part.kind == "opamp":
         return True
     try:
-        if part.kind in DEVICE_KINDS:
-            for _, text in part.params:
-                if text.strip():
-                    parse_value(text)
+        if part.kind in DEVICE_KINDS:  # complete and consistent, or drawn as at fault
+            make(part.designator or part.kind, part.kind, ("a", "b", "c")[:len(
+                DEVICE_KINDS[part.kind])], {k: v for k, v in part.params if v.strip()})
             return True
         parse_value(part.value)
         if part.phase_deg.strip():

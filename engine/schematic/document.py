@@ -37,7 +37,7 @@ DESIGNATOR_PREFIX: dict[str, str] = {
     "resistor": "R", "capacitor": "C", "inductor": "L", "impedance": "Z",
     "voltage_source": "V", "current_source": "I", "vcvs": "DS", "vccs": "DS", "ccvs": "DS",
     "cccs": "DS", "opamp": "U", "coupling": "K", "block": "EQ", "bjt": "Q", "mosfet": "Q",
-    "opamp_finite": "U",
+    "opamp_finite": "U", "measured_source": "MS",
 }
 T = TypeVar("T")
 _ID_PREFIX = {PlacedPart: "p", Wire: "w", Junction: "j", NetLabel: "n", Region: "r", Block: "b"}

@@ -17,7 +17,8 @@ from typing import Any
 
 from ..atomic import write_atomically
 from ..devices import DEVICE_KINDS, PARAMETERS
-from ..errors import DocumentError, ValueParseError
+from ..errors import CircuitError, DocumentError, ValueParseError
+from ..measured import parse_table
 from ..units import parse_frequency, parse_value
 from .document import Document
 from .model import (
@@ -339,7 +340,13 @@ def _params(data: Any, path: str, kind: str, designator: str) -> tuple[tuple[str
     for key in known:
         if key in data:
             text = _text(data[key], f"{path}.{key}")
-            _readable(text, f"{path}.{key}", f"{designator} {key}")
+            if key == "table":
+                try:
+                    parse_table(text, name=f"{designator} readings")
+                except CircuitError as e:
+                    raise DocumentError(f"{path}.{key}: {e}") from None
+            else:
+                _readable(text, f"{path}.{key}", f"{designator} {key}")
             out.append((key, text))
     return tuple(out)
 

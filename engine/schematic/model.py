@@ -29,6 +29,7 @@ __all__ = [
 PART_KINDS: tuple[str, ...] = (
     "resistor", "capacitor", "inductor", "impedance", "voltage_source", "current_source",
     "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling", "bjt", "mosfet", "opamp_finite",
+    "measured_source",
 )
 ANALYSIS_FORMS = ("thevenin", "norton")
 ROTATIONS = (0, 90, 180, 270)

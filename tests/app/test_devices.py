@@ -72,3 +72,18 @@ def test_finite_opamp_shows_its_pole(window, drive):
     _type(window.inspector.editors["param:gbw"], "10M")
     # one pole at GBW / A0 = 10 MHz / 100 k = 100 Hz
     assert "pole = 100 Hz" in window.inspector.derived.text()
+
+
+def test_measured_source_from_typed_readings(window, drive):
+    drive.place("measured_source", (0, 0))
+    drive.click((0, 0))
+    editors = window.inspector.editors
+    # two-point form first: R = R_L (Voc / V_L - 1) = 1 kΩ (5 / 4.5 - 1) = 111.1 Ω
+    assert "R = 111.1 Ω" in window.inspector.derived.text()
+    _type(editors["param:table"], "open, 6; 100, 3; 50, 2")
+    # V = Voc - R I through (0 A, 6 V), (30 mA, 3 V), (40 mA, 2 V) exactly: Voc = 6 V, R = 100 Ω
+    assert dict(drive.by("MS1").params) == {"table": "open, 6; 100, 3; 50, 2"}
+    derived = window.inspector.derived.text()
+    assert "Voc = 6 V" in derived and "R = 100 Ω" in derived
+    caption = drive.canvas.scene.item(drive.by("MS1").id).captions()
+    assert any("fitted to 3 readings" in line for line in caption)
