@@ -96,7 +96,9 @@ def device_caption(part: PlacedPart) -> str:
         except CircuitError:
             shown.append(f"{SYMBOLS[name]} = {text.strip()}")
             continue
-        shown.append(f"{SYMBOLS[name]} = {format_complex(value, units[name])}")
+        # λ in 1/V reads badly with a prefix (20 m1/V): a plain number
+        text = f"{value:g} 1/V" if name == "lam" else format_complex(value, units[name])
+        shown.append(f"{SYMBOLS[name]} = {text}")
     return "\n".join(", ".join(shown[i:i + 2]) for i in range(0, len(shown), 2))
 
 
