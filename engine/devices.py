@@ -243,33 +243,31 @@ def expand(device: Device, ground: str) -> list[Member]:
     return _EXPANDERS[device.kind](device, derived(device), ground)
 
 
+def _transconductor(d: Device, v: dict[str, float], out: str, common: str, control: str,
+                    caps: tuple[tuple[str, str, str], ...]) -> list[Member]:
+    """The VCCS gm·v(control, common) from ``out`` into ``common``, ro across it where finite,
+    and each capacitance of ``caps`` (parameter, first net, second net) that is given."""
+    n, p = d.name, d.params
+    members = [Member("vccs", f"{n}:gm", (out, common, control, common), v["gm"])]
+    if math.isfinite(v["ro"]):
+        members.append(Member("resistor", f"{n}:ro", (out, common), v["ro"]))
+    members += [Member("capacitor", f"{n}:{key}", (a, b), p[key])
+                for key, a, b in caps if p.get(key)]
+    return members
+
+
 def _bjt(d: Device, v: dict[str, float], ground: str) -> list[Member]:
     n, p = d.name, d.params
     b, c, e = d.nodes
     inner = f"{n}:b'" if p.get("rx") else b
     out = [Member("resistor", f"{n}:rx", (b, inner), p["rx"])] if p.get("rx") else []
-    out += [Member("resistor", f"{n}:rpi", (inner, e), v["rpi"]),
-            Member("vccs", f"{n}:gm", (c, e, inner, e), v["gm"])]
-    if math.isfinite(v["ro"]):
-        out.append(Member("resistor", f"{n}:ro", (c, e), v["ro"]))
-    if p.get("cpi"):
-        out.append(Member("capacitor", f"{n}:cpi", (inner, e), p["cpi"]))
-    if p.get("cmu"):
-        out.append(Member("capacitor", f"{n}:cmu", (inner, c), p["cmu"]))
-    return out
+    out.append(Member("resistor", f"{n}:rpi", (inner, e), v["rpi"]))
+    return out + _transconductor(d, v, c, e, inner, (("cpi", inner, e), ("cmu", inner, c)))
 
 
 def _mosfet(d: Device, v: dict[str, float], ground: str) -> list[Member]:
-    n, p = d.name, d.params
     g, dr, s = d.nodes
-    out = [Member("vccs", f"{n}:gm", (dr, s, g, s), v["gm"])]
-    if math.isfinite(v["ro"]):
-        out.append(Member("resistor", f"{n}:ro", (dr, s), v["ro"]))
-    if p.get("cgs"):
-        out.append(Member("capacitor", f"{n}:cgs", (g, s), p["cgs"]))
-    if p.get("cgd"):
-        out.append(Member("capacitor", f"{n}:cgd", (g, dr), p["cgd"]))
-    return out
+    return _transconductor(d, v, dr, s, g, (("cgs", g, s), ("cgd", g, dr)))
 
 
 def _opamp(d: Device, v: dict[str, float], ground: str) -> list[Member]:

@@ -7,16 +7,13 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
+from sheets import type_into
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 
 
 def _type(editor, text: str) -> None:
-    edit = editor.edit
-    edit.setFocus()
-    edit.selectAll()
-    QTest.keyClicks(edit, text)
-    QTest.keyClick(edit, Qt.Key.Key_Return)
+    type_into(editor.edit, text)
 
 
 def test_transistor_bias_fields_give_derived_values(window, drive):
