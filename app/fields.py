@@ -144,7 +144,7 @@ def _name(doc: Document, label: NetLabel, text: str) -> list[Element]:
     return [new] if new == label else [new, *follow_renames(doc, [new])]
 
 
-#: Device parameters a part may leave empty (the model then leaves that element out).
+#: Device parameters the model does without (it then leaves that element out).
 _OPTIONAL = frozenset({"va", "temp_k", "ro", "rx", "cpi", "cmu", "lam", "cgs", "cgd", "gbw",
                        "rin", "rout", "voc", "rl", "vl", "table"})
 #: Parameters that may be 0 (an element of zero size: left out).
@@ -167,8 +167,8 @@ def _param_field(kind: str, name: str, description: str, unit: str) -> Field:
             if value < 0 or (value == 0 and name not in _ZERO_OK):
                 bound = "0 or more" if name in _ZERO_OK else "more than 0"
                 raise ValueParseError(f"{what}: {text!r} must be {bound}")
-        elif name not in _OPTIONAL:
-            raise ValueParseError(f"{what}: enter a value; it cannot be left empty")
+        # an empty field is taken: the other form's fields stand empty, and a part left
+        # incomplete says what it misses under its derived values
         given = dict(part.params)
         other = [f for f in FORMS.get(kind, ()) if name not in f]
         for key in (other[0] if len(other) == 1 else ()):
