@@ -13,12 +13,22 @@ from dataclasses import dataclass
 
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QUndoCommand
-from PySide6.QtWidgets import QDockWidget, QFormLayout, QLabel, QVBoxLayout, QWidget
+from PySide6.QtWidgets import (
+    QDockWidget,
+    QFormLayout,
+    QLabel,
+    QPushButton,
+    QVBoxLayout,
+    QWidget,
+)
 
 from engine.captions import derived_caption
 from engine.devices import DEVICE_KINDS
+from engine.errors import CircuitError
+from engine.measured import read_csv
 from engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
 
+from .. import dialogs
 from ..canvas import Canvas
 from ..catalog import entry
 from ..commands import ReplaceElements, SetTitle
@@ -102,6 +112,11 @@ class InspectorDock(QDockWidget):
         outer.addWidget(self.heading)
         outer.addLayout(self.form)
         outer.addWidget(self.derived)
+        self.import_readings = QPushButton("Import readings (CSV)…")
+        self.import_readings.setToolTip("Fill the Readings field from a CSV file of load "
+                                        "ohms, volts (a header line is skipped)")
+        self.import_readings.clicked.connect(self._import_readings)
+        outer.addWidget(self.import_readings)
         outer.addWidget(self.details)
         outer.addStretch(1)
         self.setWidget(body)
@@ -155,6 +170,25 @@ class InspectorDock(QDockWidget):
         else:
             self.derived.clear()
             self.derived.hide()
+        measured = isinstance(element, PlacedPart) and element.kind == "measured_source"
+        self.import_readings.setVisible(measured)
+
+    def _import_readings(self) -> None:
+        """Read a CSV of readings into the shown measured source's Readings field (one undo
+        step); a file that cannot be read leaves the part as it was and says why."""
+        editor = self.editors.get("param:table")
+        path = dialogs.ask_readings_file(self)
+        if editor is None or not path:
+            return
+        try:
+            pairs = read_csv(path)
+        except CircuitError as e:
+            dialogs.show_error(self, "Import readings", str(e))
+            return
+        text = "; ".join(f"{'open' if load == float('inf') else f'{load:g}'}, {volts:g}"
+                         for load, volts in pairs)
+        editor.edit.setText(text)
+        editor.commit()  # as if typed: checked, then one undoable edit
 
     def _sheet_summary(self) -> str:
         doc = self.workbench.doc

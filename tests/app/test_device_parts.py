@@ -7,7 +7,9 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
-from sheets import type_into
+from sheets import click_button, type_into
+
+from app import dialogs
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 
@@ -84,3 +86,17 @@ def test_measured_source_from_typed_readings(window, drive):
     assert "Voc = 6 V" in derived and "R = 100 Ω" in derived
     caption = drive.canvas.scene.item(drive.by("MS1").id).captions()
     assert any("fitted to 3 readings" in line for line in caption)
+
+
+def test_measured_source_readings_imported_from_csv(window, drive, tmp_path, monkeypatch):
+    path = tmp_path / "bench.csv"
+    path.write_text("load,volts\nopen,6\n100,3\n50,2\n", encoding="utf-8")
+    monkeypatch.setattr(dialogs, "ask_readings_file", lambda *a: str(path))
+    drive.place("measured_source", (0, 0))
+    drive.click((0, 0))
+    click_button(window.inspector.import_readings)
+    # the exact line through (0 A, 6 V), (30 mA, 3 V), (40 mA, 2 V): Voc = 6 V, R = 100 Ω
+    assert dict(drive.by("MS1").params) == {"table": "open, 6; 100, 3; 50, 2"}
+    assert "R = 100 Ω" in window.inspector.derived.text()
+    QTest.keyClick(drive.viewport, Qt.Key.Key_Z, CTRL)
+    assert dict(drive.by("MS1").params) == {"voc": "5", "rl": "1k", "vl": "4.5"}
