@@ -24,6 +24,7 @@ class Entry:
     value: str = ""
     icon: str = ""
     group: str = "Passive"
+    params: tuple[tuple[str, str], ...] = ()
 
 
 ENTRIES: tuple[Entry, ...] = (
@@ -49,6 +50,21 @@ ENTRIES: tuple[Entry, ...] = (
           "the controlling part", "10", "cccs", "Controlled"),
     Entry("opamp", "Op-amp", "Ideal operational amplifier (nullor), output referred to ground",
           "", "opamp", "Controlled"),
+    Entry("opamp_finite", "Op-amp, finite gain", "Operational amplifier of open-loop gain A0 "
+          "with one pole (gain-bandwidth product), input and output resistance", "",
+          "opamp_finite", "Controlled",
+          (("a0", "100k"), ("gbw", "1M"), ("rin", "1M"), ("rout", "75"))),
+    Entry("bjt", "Bipolar transistor", "Small-signal bipolar transistor (hybrid-π; NPN and PNP "
+          "alike): from the bias point I_C, β, V_A, T or from gm, rπ, ro", "", "bjt",
+          "Devices", (("ic", "1m"), ("beta", "100"), ("va", "50"), ("temp_k", "300"))),
+    Entry("mosfet", "MOSFET", "Small-signal enhancement MOSFET (n- and p-channel alike): from "
+          "the bias point I_D, V_ov, λ or from gm, ro", "", "mosfet", "Devices",
+          (("id", "1m"), ("vov", "200m"), ("lam", "20m"))),
+    Entry("measured_source", "Measured source", "A source known from bench readings, drawn as "
+          "its Thevenin block: Voc and the voltage V_L under a known load R_L, or readings "
+          "(load, voltage; one pair a line or ;-separated, 'open' for no load) fitted by least "
+          "squares", "", "measured_source", "Sources",
+          (("voc", "5"), ("rl", "1k"), ("vl", "4.5"))),
     Entry("ground", "Ground", "The reference net, gnd", icon="ground", group="Connections"),
     Entry("label", "Net label", "Names a net; equal names join anywhere on the sheet",
           icon="label", group="Connections"),
@@ -79,4 +95,4 @@ def prototype(doc: Document, key: str, at: Point, couples: tuple[str, ...] = ())
         return NetLabel(doc.new_id(NetLabel), name, at, style=key)
     return PlacedPart(doc.new_id(PlacedPart), key, doc.next_designator(key), at,
                       value=_BY_KEY[key].value,
-                      couples=couples if key == "coupling" else ())
+                      couples=couples if key == "coupling" else (), params=_BY_KEY[key].params)

@@ -9,9 +9,9 @@ from __future__ import annotations
 
 from enum import Enum
 
-from PySide6.QtWidgets import QMessageBox, QWidget
+from PySide6.QtWidgets import QFileDialog, QMessageBox, QWidget
 
-__all__ = ["SaveChoice", "ask_restore", "ask_save_changes", "show_error"]
+__all__ = ["SaveChoice", "ask_readings_file", "ask_restore", "ask_save_changes", "show_error"]
 
 
 class SaveChoice(Enum):
@@ -29,6 +29,13 @@ def show_error(parent: QWidget, title: str, text: str, details: str = "") -> QMe
         box.setInformativeText(details)
     box.open()
     return box
+
+
+def ask_readings_file(parent: QWidget) -> str:
+    """The CSV file of bench readings to import, "" when cancelled."""
+    path, _ = QFileDialog.getOpenFileName(parent, "Import readings", "",
+                                          "Readings (*.csv *.txt);;All files (*)")
+    return path
 
 
 def ask_save_changes(parent: QWidget, name: str) -> SaveChoice:

@@ -15,7 +15,9 @@ from collections.abc import Callable
 from dataclasses import dataclass, replace
 
 from portcut.engine.captions import UNITS
+from portcut.engine.devices import DEVICE_KINDS, FORMS, PARAMETERS, SYMBOLS
 from portcut.engine.errors import CircuitError, DocumentError, ValueParseError
+from portcut.engine.measured import fit_table, parse_table
 from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart
 from portcut.engine.schematic.ports import follow_renames
 from portcut.engine.schematic.text import text_problem
@@ -50,8 +52,11 @@ class Field:
     writer: Writer
     unit: str = ""
     warner: Callable[[Element, str], str] | None = None
+    reader: Callable[[Element], str] | None = None
 
     def read(self, element: Element) -> str:
+        if self.reader is not None:
+            return self.reader(element)
         value = getattr(element, self.name)
         return ", ".join(value) if isinstance(value, tuple) else str(value)
 
@@ -165,6 +170,48 @@ def _name(doc: Document, label: NetLabel, text: str) -> list[Element]:
     return [new] if new == label else [new, *follow_renames(doc, [new])]
 
 
+#: Device parameters the model does without (it then leaves that element out).
+_OPTIONAL = frozenset({"va", "temp_k", "ro", "rx", "cpi", "cmu", "lam", "cgs", "cgd", "gbw",
+                       "rin", "rout", "voc", "rl", "vl", "table"})
+#: Parameters that may be 0 (an element of zero size: left out).
+_ZERO_OK = frozenset({"rx", "cpi", "cmu", "lam", "cgs", "cgd", "rout"})
+
+
+def _param_field(kind: str, name: str, description: str, unit: str) -> Field:
+    """The field of one device parameter. Typing a parameter of one entry form clears the
+    other form's, so the part always holds one form (bias point or small-signal values)."""
+
+    def write(doc: Document, part: PlacedPart, text: str) -> list[Element]:
+        what = f"{part.designator} {description}"
+        text = text.strip()
+        if text and name == "table":
+            fit_table(parse_table(text, name=what), name=what)
+        elif text:
+            value = parse_value(text, what=what)
+            if isinstance(value, complex) or value != value or abs(value) == float("inf"):
+                raise ValueParseError(f"{what}: {text!r} must be a finite real number")
+            if value < 0 or (value == 0 and name not in _ZERO_OK):
+                bound = "0 or more" if name in _ZERO_OK else "more than 0"
+                raise ValueParseError(f"{what}: {text!r} must be {bound}")
+        # an empty field is taken: the other form's fields stand empty, and a part left
+        # incomplete says what it misses under its derived values
+        given = dict(part.params)
+        other = [f for f in FORMS.get(kind, ()) if name not in f]
+        for key in (other[0] if len(other) == 1 else ()):
+            given.pop(key, None)
+        given[name] = text
+        order = [p[0] for p in PARAMETERS[kind]]
+        return [replace(part, params=tuple((k, given[k]) for k in order if given.get(k)))]
+
+    return Field(f"param:{name}", SYMBOLS[name], f"{description[0].upper()}{description[1:]}"
+                 f"{' (optional)' if name in _OPTIONAL else ''}", write, unit,
+                 reader=lambda part: dict(part.params).get(name, ""))
+
+
+def _device_fields(kind: str) -> list[Field]:
+    return [_param_field(kind, *p) for p in PARAMETERS[kind]]
+
+
 _DESIGNATOR = Field("designator", "Designator", "Reference designator, unique on the sheet: "
                     "a letter, then letters, digits or _", _designator)
 
@@ -198,6 +245,8 @@ def fields_for(element: Element) -> list[Field]:
         out.append(Field("control", "Controlled by", "Designator of the part whose current "
                          "(first pin to second, inside the part) controls this source",
                          _control))
+    if kind in DEVICE_KINDS:
+        out += _device_fields(kind)
     if kind == "coupling":
         out.append(Field("couples", "Couples", "The two inductors coupled, e.g. L1, L2; their "
                          "dots mark each one's first pin", _couples))

@@ -20,7 +20,7 @@ _NO_DISPLAY = (
     "portcut: no display to open the window on (neither DISPLAY nor WAYLAND_DISPLAY is set), so "
     "here is the sheet's equivalent in the terminal.\n"
     "Run it in a graphical session for the workbench, use the headless commands (portcut reduce "
-    "| sweep | export --help), or render the window with: portcut FILE --screenshot OUT.png\n"
+    "| sweep | export | fit --help), or render the window with: portcut FILE --screenshot OUT.png\n"
 )
 
 

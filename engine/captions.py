@@ -12,6 +12,7 @@ import math
 from collections.abc import Iterable
 from typing import Protocol
 
+from .devices import DEVICE_KINDS, PARAMETERS, SYMBOLS, derived, make
 from .errors import CircuitError
 from .mna import describe_freq
 from .schematic.model import PlacedPart
@@ -25,6 +26,8 @@ __all__ = [
     "UNITS",
     "above_extra_low_voltage",
     "block_caption",
+    "derived_caption",
+    "device_caption",
     "drawn_form",
     "value_caption",
 ]
@@ -53,8 +56,11 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
     sources print as phasors.
 
     Text that cannot be read is shown as typed (building the circuit reports it); an ideal
-    op-amp has no value and gives ``""``.
+    op-amp has no value and gives ``""``. A device part shows the parameters entered, in the
+    form chosen (bias point or small-signal values), two to a line, lines parted by ``"\n"``.
     """
+    if part.kind in DEVICE_KINDS:
+        return device_caption(part)
     if part.kind == "opamp" or not part.value.strip():
         return ""
     try:
@@ -84,6 +90,75 @@ def _tolerance_suffix(part: PlacedPart) -> str:
         return f" ±{parse_tolerance(part.tolerance) * 100:g} %"
     except CircuitError:
         return f" {part.tolerance.strip()}"
+
+
+def device_caption(part: PlacedPart) -> str:
+    """``"I_C = 1 mA, β = 100\nV_A = 50 V"``: a device part's entered parameters. A measured
+    source shows the Thevenin values it stands for and what they came from."""
+    if part.kind == "measured_source":
+        return _measured_caption(part)
+    units = {name: unit for name, _, unit in PARAMETERS[part.kind]}
+    shown = []
+    for name, text in part.params:
+        if not text.strip():
+            continue
+        try:
+            value = parse_value(text)
+        except CircuitError:
+            shown.append(f"{SYMBOLS[name]} = {text.strip()}")
+            continue
+        # λ in 1/V reads badly with a prefix (20 m1/V): a plain number
+        text = f"{value:g} 1/V" if name == "lam" else format_complex(value, units[name])
+        shown.append(f"{SYMBOLS[name]} = {text}")
+    return "\n".join(", ".join(shown[i:i + 2]) for i in range(0, len(shown), 2))
+
+
+#: The derived values shown for each device kind: (key of engine.devices.derived, symbol, unit).
+_DERIVED = {
+    "bjt": (("gm", "gm", "S"), ("rpi", "rπ", "Ω"), ("ro", "ro", "Ω"), ("beta", "β", ""),
+            ("vt", "V_T", "V")),
+    "mosfet": (("gm", "gm", "S"), ("ro", "ro", "Ω")),
+    "opamp_finite": (("a0", "A0", ""), ("pole_hz", "pole", "Hz"), ("rin", "Rin", "Ω"),
+                     ("rout", "Rout", "Ω")),
+    "measured_source": (("voc", "Voc", "V"), ("r", "R", "Ω"), ("u_voc", "u(Voc)", "V"),
+                        ("u_r", "u(R)", "Ω"), ("residual", "residual (rms)", "V")),
+}
+
+
+def _measured_caption(part: PlacedPart) -> str:
+    given = {k: v for k, v in part.params if v.strip()}
+    try:
+        values = derived(make(part.designator or "source", part.kind, ("a", "b"), given))
+    except CircuitError:
+        return "no fit: see the inspector"
+    def pm(key: str, unit: str) -> str:
+        u = values[f"u_{key}"]
+        shown = format_complex(values[key], unit)
+        return shown if math.isnan(u) else f"{shown} ± {format_complex(u, unit, 2)}"
+    source = (f"fitted to {values['points']} readings" if "table" in given
+              else f"from Voc and V_L under {format_complex(parse_value(given['rl']), 'Ω')}")
+    return f"Voc = {pm('voc', 'V')}\nR = {pm('r', 'Ω')}\n{source}"
+
+
+def derived_caption(part: PlacedPart) -> str:
+    """The small-signal values a device part's model uses, one per line (``"gm = 38.68 mS"``),
+    or what is missing or wrong in its parameters. ``inf`` reads "∞ (left out)"."""
+    try:
+        device = make(part.designator or part.kind, part.kind, ("a", "b", "c"),
+                      {k: v for k, v in part.params if v.strip()})
+    except CircuitError as e:
+        return str(e)
+    values = derived(device)
+    lines = []
+    for key, sym, unit in _DERIVED[part.kind]:
+        if key not in values:
+            continue
+        v = values[key]
+        if math.isnan(v):
+            continue
+        shown = "∞ (left out)" if math.isinf(v) else format_complex(v, unit)
+        lines.append(f"{sym} = {shown}")
+    return "\n".join(lines)
 
 
 def drawn_form(eq: Equivalent, form: str) -> str:

@@ -8,7 +8,10 @@ Sign conventions (kept by every module and stated in docs/method.md):
 * a voltage-type source with nodes ``(p, n)`` sets ``V(p) - V(n)``;
 * a coupling's dots sit at each inductor's first node; the mutual inductance is
   ``M = k * sqrt(L1 * L2)``;
-* the ideal op-amp (nullor) holds ``V(inp) = V(inn)`` and drives its output from ground.
+* the ideal op-amp (nullor) holds ``V(inp) = V(inn)`` and drives its output from ground;
+* a device part (bipolar transistor, MOSFET, finite op-amp: engine/devices.py) is one name to
+  the user and a few primitive parts ``<device>:<role>`` here; a region naming the device takes
+  all of them.
 """
 
 from __future__ import annotations
@@ -22,6 +25,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from . import devices as _devices
 from .errors import CircuitError
 from .units import VALUE_UNITS, parse_value
 
@@ -99,6 +103,8 @@ class Circuit:
     def __init__(self, parts: Iterable[Part] = ()) -> None:
         self._parts: dict[str, Part] = {}
         self._store = _Store()
+        self._devices: dict[str, _devices.Device] = {}
+        self._members: dict[str, tuple[str, ...]] = {}
         for part in parts:
             self.add(part)
 
@@ -135,7 +141,67 @@ class Circuit:
     def copy(self) -> Circuit:
         new = Circuit()
         new._parts, new._store = dict(self._parts), self._store.copy(self._parts)
+        new._devices, new._members = dict(self._devices), dict(self._members)
         return new
+
+    # -- device parts -------------------------------------------------------------------------
+    @property
+    def devices(self) -> dict[str, _devices.Device]:
+        """The device parts (transistors, finite op-amps) by name, in the order added."""
+        return dict(self._devices)
+
+    @property
+    def has_devices(self) -> bool:
+        return bool(self._members)
+
+    def members(self, name: str) -> tuple[str, ...]:
+        """The primitive parts device ``name`` expands into, in expansion order."""
+        try:
+            return self._members[name]
+        except KeyError:
+            raise CircuitError(f"there is no device part named {name!r} in the circuit") \
+                from None
+
+    def expand_names(self, names: Iterable[str]) -> set[str]:
+        """``names`` with each device name replaced by its primitive parts."""
+        out: set[str] = set()
+        for name in names:
+            found = self._members.get(name) if isinstance(name, str) else None
+            if found is None:
+                out.add(name)
+            else:
+                out.update(found)
+        return out
+
+    def add_device(self, name: str, kind: str, nodes: Iterable[str],
+                   params: dict[str, object]) -> _devices.Device:
+        """Add a device part of ``kind`` (a key of engine.devices.DEVICE_KINDS) on ``nodes``
+        in the kind's order, with ``params`` (numbers or value text) by parameter name."""
+        if kind not in _devices.DEVICE_KINDS:
+            raise CircuitError(f"{name}: unknown device kind {kind!r}; known kinds: "
+                               f"{', '.join(_devices.DEVICE_KINDS)}")
+        nodes = tuple(nodes)
+        roles = _devices.DEVICE_KINDS[kind]
+        if len(nodes) != len(roles):
+            raise CircuitError(f"{name}: a {kind} takes {len(roles)} nets "
+                               f"({', '.join(roles)}), got {len(nodes)}")
+        return self._add_device(_devices.make(name, kind, nodes, params))
+
+    def _add_device(self, device: _devices.Device) -> _devices.Device:
+        if not isinstance(device.name, str) or not device.name.strip():
+            raise CircuitError(f"a part name must be non-empty text, not {device.name!r}")
+        if device.name in self._parts or device.name in self._devices:
+            raise CircuitError(f"{device.name}: a part of that name is already in the circuit")
+        for role, net in zip(_devices.DEVICE_KINDS[device.kind], device.nodes, strict=True):
+            if not isinstance(net, str) or not net.strip():
+                raise CircuitError(f"{device.name}: net {role!r} must be a non-empty name, "
+                                   f"not {net!r}")
+        members = _devices.expand(device, GROUND)
+        for m in members:
+            self.add(Part(m.name, m.kind, m.nodes, m.value))
+        self._devices[device.name] = device
+        self._members[device.name] = tuple(m.name for m in members)
+        return device
 
     def rows_of(self, names: set[str] | frozenset[str]) -> np.ndarray | None:
         """Rows (circuit order) of the parts named in ``names``, None where it names every
@@ -152,17 +218,26 @@ class Circuit:
 
     def without(self, names: Iterable[str]) -> Circuit:
         """A new circuit without the named parts (unknown names are refused)."""
-        drop = set(names)
+        drop = self.expand_names(names)
         for name in drop:
             self[name]
-        return Circuit(p for p in self if p.name not in drop)
+        return self._keeping(p for p in self if p.name not in drop)
 
     def subcircuit(self, names: Iterable[str]) -> Circuit:
         """A new circuit of only the named parts, in this circuit's order."""
-        keep = set(names)
+        keep = self.expand_names(names)
         for name in keep:
             self[name]
-        return Circuit(p for p in self if p.name in keep)
+        return self._keeping(p for p in self if p.name in keep)
+
+    def _keeping(self, parts: Iterable[Part]) -> Circuit:
+        """A new circuit of ``parts`` (of this one), keeping the devices all of whose
+        members are among them."""
+        new = Circuit(parts)
+        for name, members in self._members.items():
+            if all(m in new for m in members):
+                new._devices[name], new._members[name] = self._devices[name], members
+        return new
 
     def with_value(self, name: str, value: object) -> Circuit:
         """A new circuit in which part ``name`` has a new value (validated as on creation)."""
@@ -186,6 +261,7 @@ class Circuit:
             new._parts[part.name] = stored[part.name] = _validated(part, value, new,
                                                                    replacing=True)
         new._store = self._store.replaced(self._parts, list(stored.values()))
+        new._devices, new._members = self._devices, self._members
         return new
 
     # -- building -----------------------------------------------------------------------------
@@ -242,9 +318,42 @@ class Circuit:
         """Drives gain * I(control) from ``n_from`` through itself into ``n_to``."""
         return self.add(Part(name, "cccs", (n_from, n_to), gain, (control,)))
 
-    def opamp(self, name: str, inp: str, inn: str, out: str) -> Part:
-        """Ideal op-amp (nullor): V(inp) = V(inn), output driven from ground, no input current."""
+    def opamp(self, name: str, inp: str, inn: str, out: str, *, a0: object = None,
+              gbw: object = None, rin: object = None,
+              rout: object = None) -> Part | _devices.Device:
+        """Ideal op-amp (nullor): V(inp) = V(inn), output driven from ground, no input current.
+
+        With ``a0`` (open-loop DC gain) it is a finite op-amp device instead: optional ``gbw``
+        (Hz, one pole at gbw / a0), ``rin`` (Ω across the inputs) and ``rout`` (Ω in series
+        with the output); see engine/devices.py.
+        """
+        finite = {"a0": a0, "gbw": gbw, "rin": rin, "rout": rout}
+        if any(v is not None for v in finite.values()):
+            return self._add_device(_devices.make(name, "opamp_finite", (inp, inn, out),
+                                                  finite))
         return self.add(Part(name, "opamp", (inp, inn, out), 0.0))
+
+    def bjt(self, name: str, b: str, c: str, e: str, **params: object) -> _devices.Device:
+        """Small-signal bipolar transistor (hybrid-π; NPN and PNP alike).
+
+        Either the bias point ``ic`` (A), ``beta``, optional ``va`` (V) and ``temp_k`` (K,
+        300 by default), or ``gm`` (S), ``rpi`` (Ω), optional ``ro`` (Ω); optional ``rx`` (Ω),
+        ``cpi`` and ``cmu`` (F) with either.
+        """
+        return self._add_device(_devices.make(name, "bjt", (b, c, e), params))
+
+    def measured_source(self, name: str, p: str, n: str, **params: object) -> _devices.Device:
+        """A source known from measurements (engine/measured.py), drawn as Voc in series with
+        R between ``p`` (plus) and ``n``: either ``voc`` (V), ``rl`` (Ω) and ``vl`` (V, the
+        voltage under rl), or ``table``: (load Ω, volts) pairs or their text, fitted by least
+        squares."""
+        return self._add_device(_devices.make(name, "measured_source", (p, n), params))
+
+    def mosfet(self, name: str, g: str, d: str, s: str, **params: object) -> _devices.Device:
+        """Small-signal MOSFET (n- and p-channel alike): either ``id`` (A), ``vov`` (V),
+        optional ``lam`` (1/V), or ``gm`` (S), optional ``ro`` (Ω); optional ``cgs``, ``cgd``
+        (F)."""
+        return self._add_device(_devices.make(name, "mosfet", (g, d, s), params))
 
     def coupling(self, name: str, l1: str, l2: str, k: object) -> Part:
         """Magnetic coupling of inductors l1 and l2, coefficient |k| <= 1."""

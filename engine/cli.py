@@ -12,6 +12,7 @@ from __future__ import annotations
 import argparse
 import cmath
 import json
+import math
 import sys
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
@@ -22,6 +23,7 @@ import numpy as np
 
 from portcut import assets
 
+from . import measured
 from .atomic import write_atomically
 from .captions import SAFETY_CAUTION, above_extra_low_voltage
 from .circuit import Circuit
@@ -45,6 +47,7 @@ COMMAND_SUMMARIES = {
     "reduce": "the equivalent of a region seen from its two port nets, at one frequency",
     "sweep": "the same over a log-spaced frequency range, as a table or a CSV file",
     "export": "the sheet as an SVG drawing (or PNG, where the window's libraries are installed)",
+    "fit": "a measured source's Thevenin values fitted to bench readings in a CSV file",
     "bench": "the performance benchmark",
 }
 COMMANDS = frozenset(COMMAND_SUMMARIES)
@@ -189,8 +192,19 @@ def _parser() -> tuple[_Parser, dict[str, _Parser]]:
     exporting.add_argument("--form", choices=("thevenin", "norton"),
                            help="with --reduced: the block's form (default: the document's)")
 
+    fitting = commands.add_parser("fit", help="Thevenin values of a source from measurements",
+                                  description="Fit Voc and R of a measured source to (load "
+                                              "ohms, volts) readings in a CSV file by least "
+                                              "squares; a load of inf or open is an "
+                                              "open-circuit reading.")
+    fitting.add_argument("csv", metavar="CSV", type=Path,
+                         help="two columns: load in ohms, voltage in volts (a header line "
+                              "is skipped)")
+    fitting.add_argument("--json", action="store_true",
+                         help="print one JSON object instead of the table")
+
     commands.add_parser("bench", help="performance benchmark", add_help=False)
-    return top, {"reduce": reducing, "sweep": sweeping, "export": exporting}
+    return top, {"reduce": reducing, "sweep": sweeping, "export": exporting, "fit": fitting}
 
 
 # -- selecting what to reduce --------------------------------------------------------------------
@@ -477,7 +491,36 @@ def _run_export(args: argparse.Namespace, out: TextIO,
     return 0
 
 
-_RUN = {"reduce": _run_reduce, "sweep": _run_sweep}
+def _run_fit(args: argparse.Namespace, out: TextIO) -> int:
+    fit = measured.fit_table(measured.read_csv(args.csv), name=str(args.csv))
+    if args.json:
+        def number(x: float) -> float | None:
+            return None if math.isnan(x) else x
+        json.dump({"voc": fit.voc, "r": fit.r, "points": fit.points,
+                   "residual": fit.residual, "u_voc": number(fit.u_voc),
+                   "u_r": number(fit.u_r)}, out)
+        out.write("\n")
+        return 0
+    for line in fit_lines(fit):
+        out.write(line + "\n")
+    return 0
+
+
+def fit_lines(fit: measured.Fit) -> list[str]:
+    """The fit as text lines: Voc and R with their standard uncertainties, the residual."""
+    def pm(value: float, u: float, unit: str) -> str:
+        shown = format_eng(value, unit, 5)
+        return shown if math.isnan(u) else f"{shown} ± {format_eng(u, unit, 2)}"
+    lines = [f"Voc = {pm(fit.voc, fit.u_voc, 'V')}", f"R   = {pm(fit.r, fit.u_r, 'Ω')}",
+             f"from {fit.points} readings"]
+    if fit.points > 2:
+        lines.append(f"residual (rms) = {format_eng(fit.residual, 'V', 3)}")
+    else:
+        lines.append("two readings: an exact fit, no residual or uncertainty")
+    return lines
+
+
+_RUN = {"reduce": _run_reduce, "sweep": _run_sweep, "fit": _run_fit}
 
 
 def main(argv: Sequence[str], writers: Mapping[str, Writer] | None = None) -> int:

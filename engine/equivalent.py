@@ -576,7 +576,7 @@ def collapse(circuit: Circuit, region: Collection[str], port: Sequence[str] | No
                            "is zero (e.g. an ideal voltage source across the port); use "
                            "form='thevenin'")
     inside = {p.name for p in cut.parts}
-    reduced = Circuit(p for p in circuit if p.name not in inside)
+    reduced = circuit.without(inside)
     stem = _free_prefix(circuit)
     if form == "thevenin":
         if eq.z == 0:

@@ -26,6 +26,7 @@ from itertools import pairwise
 import numpy as np
 
 from .captions import value_caption
+from .devices import DEVICE_KINDS
 from .schematic.document import Document
 from .schematic.model import CAPTION_ROLES, Block, Element, Junction, NetLabel, PlacedPart, Wire
 from .symbols import (
@@ -68,9 +69,11 @@ def part_texts(part: PlacedPart, *, ac: bool = False) -> dict[str, tuple[str, ..
     """The lines drawn beside ``part`` per role: its designator and its value (``"no value"``
     where one is missing; a coupling adds the inductors it joins)."""
     value = _value_text(part.kind, part.value, part.phase_deg, part.control, part.couples,
-                        part.tolerance, ac)
+                        part.tolerance, part.params, ac)
     if not value and part.kind != "opamp":
         value = "no value"
+    if part.kind in DEVICE_KINDS:  # the entered parameters, a line each
+        return {"designator": (part.designator,), "value": tuple(value.split("\n"))}
     if part.kind == "coupling" and part.couples:
         return {"designator": (part.designator,), "value": (value, " · ".join(part.couples))}
     return {"designator": (part.designator,), "value": (value,) if value else ()}
@@ -78,11 +81,11 @@ def part_texts(part: PlacedPart, *, ac: bool = False) -> dict[str, tuple[str, ..
 
 @cache
 def _value_text(kind: str, value: str, phase: str, control: str, couples: tuple[str, ...],
-                tolerance: str, ac: bool) -> str:
+                tolerance: str, params: tuple[tuple[str, str], ...], ac: bool) -> str:
     """Cached: sheets repeat their values."""
     return value_caption(PlacedPart("", kind, "", (0, 0), value=value, phase_deg=phase,
-                                    control=control, couples=couples, tolerance=tolerance),
-                         ac=ac)
+                                    control=control, couples=couples, tolerance=tolerance,
+                                    params=params), ac=ac)
 
 
 def text_box(lines: tuple[str, ...], at: FPoint, align: str,

@@ -80,6 +80,10 @@ PINS: dict[str, tuple[Point, ...]] = {
     "vcvs": ((2, -2), (2, 2), (-2, -2), (-2, 2)),
     "vccs": ((2, -2), (2, 2), (-2, -2), (-2, 2)),
     "opamp": ((-3, 1), (-3, -1), (3, 0)),
+    "opamp_finite": ((-3, 1), (-3, -1), (3, 0)),
+    "bjt": ((-2, 0), (1, -2), (1, 2)),
+    "mosfet": ((-2, 0), (1, -2), (1, 2)),
+    "measured_source": ((3, -2), (3, 2)),
     "coupling": (),
     "ground": ((0, 0),),
     "label": ((0, 0),),
@@ -475,6 +479,49 @@ def _opamp(style: str) -> Body:
     return shapes, anchors
 
 
+def _opamp_finite(style: str) -> Body:
+    """The op-amp triangle with a letter A drawn in it: a gain of its own, not infinite."""
+    shapes, anchors = _opamp(style)
+    letter = (_line((-0.9, 0.45), (-0.55, -0.45), (-0.2, 0.45)), _line((-0.77, 0.1), (-0.33, 0.1)))
+    # its parameters take two lines: set them clear of the triangle's lower corner
+    lowered = tuple(TextAnchor(a.role, (0.3, 2.3), a.align) if a.role == "value" else a
+                    for a in anchors)
+    return (*shapes, *letter), lowered
+
+
+def _device_labels() -> tuple[TextAnchor, ...]:
+    # the designator left of the body above the base/gate lead, the values right of the
+    # collector/drain and emitter/source leads
+    return (TextAnchor("designator", (-0.8, -1.2), "w"), TextAnchor("value", (1.6, 0.0), "e"))
+
+
+def _envelope(style: str) -> tuple[Shape, ...]:
+    # IEEE 315 draws a transistor inside a circle; IEC 60617 leaves the envelope out
+    return (Circle((0.25, 0.0), 1.45),) if style == "ieee" else ()
+
+
+def _bjt(style: str) -> Body:
+    """A bipolar transistor (drawn NPN; a PNP has the same small-signal model): base pin on the
+    left, collector top right, emitter bottom right with the arrow pointing out."""
+    shapes = (_line((-2, 0), (-0.4, 0)), _line((-0.4, -0.9), (-0.4, 0.9)),
+              _line((-0.4, -0.4), (1, -1.1), (1, -2)), _line((1, 1.1), (1, 2)),
+              *_arrow((-0.4, 0.4), (1, 1.1), 0.45, 0.4), *_envelope(style))
+    return shapes, _device_labels()
+
+
+def _mosfet(style: str) -> Body:
+    """An enhancement MOSFET (drawn n-channel; a p-channel has the same small-signal model):
+    gate on the left, drain top right, source bottom right; the broken channel line marks
+    enhancement, the arrow on the body lead points into the channel."""
+    channel = tuple(_line((-0.2, y0), (-0.2, y1)) for y0, y1 in ((-1, -0.5), (-0.25, 0.25),
+                                                                  (0.5, 1)))
+    shapes = (_line((-2, 0), (-0.65, 0)), _line((-0.65, -0.8), (-0.65, 0.8)), *channel,
+              _line((-0.2, -0.75), (1, -0.75), (1, -2)), _line((1, 0.75), (1, 2)),
+              _line((-0.2, 0.75), (1, 0.75)), _line((1, 0), (1, 0.75)),
+              *_arrow((1, 0), (-0.2, 0), 0.45, 0.4), *_envelope(style))
+    return shapes, _device_labels()
+
+
 def _coupling(style: str) -> Body:
     # two parallel bars: a magnetic core, standing for the coupling of two named inductors
     return ((_line((-0.2, -1), (-0.2, 1)), _line((0.2, -1), (0.2, 1))),
@@ -537,6 +584,11 @@ _BODIES = {
     "vcvs": lambda style: _controlled_four(voltage=True),
     "vccs": lambda style: _controlled_four(voltage=False),
     "opamp": _opamp,
+    "opamp_finite": _opamp_finite,
+    "bjt": _bjt,
+    "mosfet": _mosfet,
+    # a source known from measurements is drawn as the Thevenin block it stands for
+    "measured_source": lambda style: _block(style, "thevenin"),
     "coupling": _coupling,
     "ground": _ground,
     "label": _label,

@@ -162,6 +162,8 @@ def check_cut(circuit: Circuit, region: Collection[str],
 def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = None) -> Cut:
     """:func:`check_cut`, returning the :class:`Cut` with the region's netlist."""
     names = _region_names(region)
+    if circuit.has_devices:
+        names = circuit.expand_names(names)
     columns = circuit.columns()
     rows = _region_rows(circuit, names)
     flipped = _coupling_sides(columns, names)

@@ -27,6 +27,7 @@ from PySide6.QtWidgets import (
 )
 
 from portcut.engine.captions import block_caption
+from portcut.engine.devices import DEVICE_KINDS, make
 from portcut.engine.errors import CircuitError
 from portcut.engine.placement import Placement, part_texts
 from portcut.engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
@@ -284,7 +285,7 @@ def _valued(part: PlacedPart) -> PlacedPart:
     """The part reduced to what its caption depends on, so sheets that repeat values (most
     do) read each value once."""
     return PlacedPart("", part.kind, "", (0, 0), value=part.value, phase_deg=part.phase_deg,
-                      control=part.control, tolerance=part.tolerance)
+                      control=part.control, tolerance=part.tolerance, params=part.params)
 
 
 @cache
@@ -298,6 +299,10 @@ def _readable(part: PlacedPart) -> bool:
     if part.kind == "opamp":
         return True
     try:
+        if part.kind in DEVICE_KINDS:  # complete and consistent, or drawn as at fault
+            make(part.designator or part.kind, part.kind, ("a", "b", "c")[:len(
+                DEVICE_KINDS[part.kind])], {k: v for k, v in part.params if v.strip()})
+            return True
         parse_value(part.value)
         if part.phase_deg.strip():
             parse_value(part.phase_deg)

@@ -76,7 +76,9 @@ def boundary_text(analysis: RegionAnalysis) -> list[str]:
         sides: tuple[set[str], set[str]] = (set(), set())
         for part in analysis.circuit:
             if net in part.nets:
-                sides[part.name not in analysis.part_names].add(part.name.split(".")[0])
+                # a block's parts and a device's members by their designator
+                sides[part.name not in analysis.part_names].add(
+                    part.name.split(".")[0].split(":")[0])
         inside, outside = (sorted(side) for side in sides)
         lines.append(f"On {net}: {_names(inside)} inside, {_names(outside)} outside")
     return lines

@@ -13,12 +13,23 @@ from dataclasses import dataclass
 
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QUndoCommand
-from PySide6.QtWidgets import QDockWidget, QFormLayout, QLabel, QPushButton, QVBoxLayout, QWidget
+from PySide6.QtWidgets import (
+    QDockWidget,
+    QFormLayout,
+    QLabel,
+    QPushButton,
+    QVBoxLayout,
+    QWidget,
+)
 
+from portcut.engine.captions import derived_caption
+from portcut.engine.devices import DEVICE_KINDS
 from portcut.engine.errors import CircuitError
+from portcut.engine.measured import read_csv
 from portcut.engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
 from portcut.engine.units import parse_frequency
 
+from .. import dialogs
 from ..canvas import Canvas
 from ..catalog import entry
 from ..commands import ReplaceElements, SetTitle
@@ -109,10 +120,21 @@ class InspectorDock(QDockWidget):
         self.expand_button = QPushButton("Expand")
         self.expand_button.clicked.connect(self.expand)
         self.expand_button.hide()
+        # a device part's small-signal values, worked out from what was entered (read-only)
+        self.derived = QLabel()
+        self.derived.setObjectName("derived")
+        self.derived.setWordWrap(True)
+        self.derived.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         self.form = QFormLayout()
         outer = QVBoxLayout(body)
         outer.addWidget(self.heading)
         outer.addLayout(self.form)
+        outer.addWidget(self.derived)
+        self.import_readings = QPushButton("Import readings (CSV)…")
+        self.import_readings.setToolTip("Fill the Readings field from a CSV file of load "
+                                        "ohms, volts (a header line is skipped)")
+        self.import_readings.clicked.connect(self._import_readings)
+        outer.addWidget(self.import_readings)
         outer.addWidget(self.details)
         outer.addWidget(self.expand_button)
         outer.addStretch(1)
@@ -161,6 +183,34 @@ class InspectorDock(QDockWidget):
             element = doc[self._shown]
             for editor in self.editors.values():
                 editor.show_element(element)
+            self._show_derived(element)
+
+    def _show_derived(self, element: Element | None) -> None:
+        if isinstance(element, PlacedPart) and element.kind in DEVICE_KINDS:
+            self.derived.setText("Derived (read-only):\n" + derived_caption(element))
+            self.derived.show()
+        else:
+            self.derived.clear()
+            self.derived.hide()
+        measured = isinstance(element, PlacedPart) and element.kind == "measured_source"
+        self.import_readings.setVisible(measured)
+
+    def _import_readings(self) -> None:
+        """Read a CSV of readings into the shown measured source's Readings field (one undo
+        step); a file that cannot be read leaves the part as it was and says why."""
+        editor = self.editors.get("param:table")
+        path = dialogs.ask_readings_file(self)
+        if editor is None or not path:
+            return
+        try:
+            pairs = read_csv(path)
+        except CircuitError as e:
+            dialogs.show_error(self, "Import readings", str(e))
+            return
+        text = "; ".join(f"{'open' if load == float('inf') else f'{load:g}'}, {volts:g}"
+                         for load, volts in pairs)
+        editor.edit.setText(text)
+        editor.commit()  # as if typed: checked, then one undoable edit
 
     def _sheet_summary(self) -> str:
         doc = self.workbench.doc
@@ -176,6 +226,7 @@ class InspectorDock(QDockWidget):
             return
         self._clear()
         self._shown = target
+        self._show_derived(doc[target] if target else None)
         if target is None:
             self.heading.setText(f"{len(ids)} elements selected")
             self.details.setText("Select one element to edit it.")

@@ -41,6 +41,7 @@ from scipy.sparse import csr_array
 from scipy.sparse.csgraph import connected_components
 
 from ..circuit import GROUND, KINDS, Circuit, Part
+from ..devices import DEVICE_KINDS
 from ..equivalent import Equivalent, collapse, equivalent
 from ..errors import CircuitError
 from ..symbols import Point, pin_positions
@@ -66,7 +67,9 @@ _CONTROLLED_BY_CURRENT = frozenset({"ccvs", "cccs"})
 _SOURCES = frozenset({"voltage_source", "current_source"})
 _REFERENCING = _CONTROLLED_BY_CURRENT | {"coupling"}
 #: A number for each kind of pin owner that a designator names, for comparing kinds in arrays.
-_KIND_CODE = {kind: code for code, kind in enumerate([*KINDS, "block"])}
+_KIND_CODE = {kind: code for code, kind in enumerate([*KINDS, *DEVICE_KINDS, "block"])}
+#: The node roles of every kind a placed part may have: primitive kinds and device kinds.
+_ROLES: dict[str, tuple[str, ...]] = {**KINDS, **DEVICE_KINDS}
 #: What each kind's value means, with an example, for the message when it is missing.
 _QUANTITY: dict[str, tuple[str, str]] = {
     "resistor": ("resistance", "4k7"), "capacitor": ("capacitance", "100n"),
@@ -158,7 +161,7 @@ def _pin_offsets(e: PlacedPart | Block | NetLabel) -> tuple[Point, ...]:
 
 
 def _roles(e: PlacedPart | Block) -> tuple[str, ...]:
-    return KINDS[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
+    return _ROLES[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
 
 
 def _same_slot(old: Element, new: Element) -> bool:
@@ -740,7 +743,7 @@ def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str
         problem = _reference_problem(part, by_designator, blocks)
         if problem:
             raise CircuitError(problem)
-        _add_part(circuit, part, nets(part.id, len(KINDS[part.kind])))
+        _add_part(circuit, part, nets(part.id, len(_ROLES[part.kind])))
     if blocks:  # the names a block's internal net must avoid
         taken = {*conn.net_of_pin.values(), *conn.net_of_wire.values(), *rename.values()}
         for block in blocks:
@@ -753,6 +756,9 @@ def _add_part(circuit: Circuit, part: PlacedPart, nodes: list[str]) -> None:
     name, kind = part.designator, part.kind
     if kind == "opamp":
         circuit.opamp(name, *nodes)
+        return
+    if kind in DEVICE_KINDS:
+        circuit.add_device(name, kind, nodes, {k: v for k, v in part.params if v.strip()})
         return
     if not part.value.strip():
         quantity, example = _QUANTITY[kind]

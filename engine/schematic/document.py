@@ -37,7 +37,8 @@ __all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
 DESIGNATOR_PREFIX: dict[str, str] = {
     "resistor": "R", "capacitor": "C", "inductor": "L", "impedance": "Z",
     "voltage_source": "V", "current_source": "I", "vcvs": "DS", "vccs": "DS", "ccvs": "DS",
-    "cccs": "DS", "opamp": "U", "coupling": "CP", "block": "EQ",
+    "cccs": "DS", "opamp": "U", "coupling": "CP", "block": "EQ", "bjt": "Q", "mosfet": "Q",
+    "opamp_finite": "U", "measured_source": "MS",
 }
 T = TypeVar("T")
 _ID_PREFIX = {PlacedPart: "p", Wire: "w", Junction: "j", NetLabel: "n", Region: "r", Block: "b"}

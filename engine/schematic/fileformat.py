@@ -18,7 +18,9 @@ from typing import Any
 
 from ..atomic import write_atomically
 from ..circuit import GROUND
-from ..errors import DocumentError, ValueParseError
+from ..devices import DEVICE_KINDS, PARAMETERS
+from ..errors import CircuitError, DocumentError, ValueParseError
+from ..measured import parse_table
 from ..tolerance import parse_tolerance
 from ..units import parse_frequency, parse_value
 from .document import Document
@@ -69,6 +71,9 @@ CAPTION_VERSION = 3
 CAPTION_REACH = 1000.0
 #: The first version whose parts may carry a tolerance.
 TOLERANCE_VERSION = 3
+#: The first version whose parts may be device parts (transistors, finite op-amps) with their
+#: ``params``.
+DEVICE_VERSION = 3
 #: Largest grid coordinate (in either direction) a file may hold.
 COORD_LIMIT = 1_000_000
 #: Deepest nesting of collapsed blocks inside collapsed blocks.
@@ -80,7 +85,7 @@ _BASES = ("peak", "rms")
 _WIDTH = 120  # characters per line of the file: one element a line, mostly
 # Optional fields and the values they take when absent; the writer leaves out defaults.
 _PART_DEFAULTS = {"rotation": 0, "mirror": False, "value": "", "phase_deg": "", "control": "",
-                  "couples": [], "captions": {}, "tolerance": ""}
+                  "couples": [], "captions": {}, "tolerance": "", "params": {}}
 _LABEL_DEFAULTS = {"rotation": 0, "style": "label"}
 _REGION_DEFAULTS = {"outline": [], "swap": False, "port": None}
 _BLOCK_DEFAULTS = {"rotation": 0, "mirror": False, "stubs": []}
@@ -132,7 +137,7 @@ def _contents_data(parts, wires, junctions, labels, blocks) -> Data:
                             "value": p.value, "phase_deg": p.phase_deg, "control": p.control,
                             "couples": list(p.couples),
                             "captions": {role: [dx, dy] for role, dx, dy in p.captions},
-                            "tolerance": p.tolerance},
+                            "tolerance": p.tolerance, "params": dict(p.params)},
                            _PART_DEFAULTS) for p in parts],
         "wires": [{"id": w.id, "points": _points(w.points)} for w in wires],
         "junctions": [{"id": j.id, "at": list(j.at)} for j in junctions],
@@ -350,6 +355,9 @@ def _each(data: Data, key: str, read: Callable[[Any, str], Element],
 def _part(data: Any, path: str, version: int) -> PlacedPart:
     d = _fields(data, path, required=("id", "kind", "designator", "at"), defaults=_PART_DEFAULTS)
     kind = _choice(d["kind"], f"{path}.kind", PART_KINDS)
+    if kind in DEVICE_KINDS and version < DEVICE_VERSION:
+        raise DocumentError(f"{path}.kind: a {kind} part needs file version {DEVICE_VERSION} "
+                            f"or later; this file says version {version}")
     designator = _text(d["designator"], f"{path}.designator")
     value = _text(d["value"], f"{path}.value")
     phase = _text(d["phase_deg"], f"{path}.phase_deg")
@@ -370,7 +378,8 @@ def _part(data: Any, path: str, version: int) -> PlacedPart:
         _choice(d["rotation"], f"{path}.rotation", ROTATIONS),
         _bool(d["mirror"], f"{path}.mirror"), value, phase, _text(d["control"], f"{path}.control"),
         tuple(_text(c, f"{path}.couples[{i}]") for i, c in enumerate(couples)),
-        _captions(d["captions"], f"{path}.captions", version), tolerance)
+        _captions(d["captions"], f"{path}.captions", version), tolerance,
+        _params(d["params"], f"{path}.params", kind, designator))
 
 
 def _captions(value: Any, path: str, version: int) -> tuple[tuple[str, float, float], ...]:
@@ -391,6 +400,33 @@ def _captions(value: Any, path: str, version: int) -> tuple[tuple[str, float, fl
                                 f"-{CAPTION_REACH:g} to {CAPTION_REACH:g}, got {_shown(offset)}")
         out.append((role, float(pair[0]), float(pair[1])))
     return tuple(sorted(out))
+
+
+
+def _params(data: Any, path: str, kind: str, designator: str) -> tuple[tuple[str, str], ...]:
+    """A device part's parameters, as (name, text) in engine.devices.PARAMETERS order."""
+    if not isinstance(data, dict):
+        raise DocumentError(f"{path}: expected an object of parameter texts, got {_shown(data)}")
+    if data and kind not in DEVICE_KINDS:
+        raise DocumentError(f"{path}: a {kind} part takes no parameters")
+    known = [name for name, _, _ in PARAMETERS.get(kind, ())]
+    for key in data:
+        if key not in known:
+            raise DocumentError(f"{path}.{key}: a {kind} has no such parameter; it takes "
+                                f"{', '.join(known)}")
+    out = []
+    for key in known:
+        if key in data:
+            text = _text(data[key], f"{path}.{key}")
+            if key == "table":
+                try:
+                    parse_table(text, name=f"{designator} readings")
+                except CircuitError as e:
+                    raise DocumentError(f"{path}.{key}: {e}") from None
+            else:
+                _readable(text, f"{path}.{key}", f"{designator} {key}")
+            out.append((key, text))
+    return tuple(out)
 
 
 def _readable(text: str, path: str, what: str) -> None:

@@ -29,7 +29,8 @@ __all__ = [
 #: Kinds a PlacedPart may have (engine.circuit.KINDS); ground and net names are NetLabels.
 PART_KINDS: tuple[str, ...] = (
     "resistor", "capacitor", "inductor", "impedance", "voltage_source", "current_source",
-    "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling",
+    "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling", "bjt", "mosfet", "opamp_finite",
+    "measured_source",
 )
 ANALYSIS_FORMS = ("thevenin", "norton")
 #: The captions of a part that are placed automatically and may be dragged.
@@ -48,6 +49,8 @@ class PlacedPart:
     centred on it) relative to ``at``, grid units; the other captions are placed automatically
     (engine.placement).
     ``tolerance``: the value's tolerance as text, an IEC 60062 letter or a percentage ("" none).
+    ``params``: a device part's parameters (engine.devices.PARAMETERS) as (name, text) pairs in
+    that table's order, only those given.
     """
 
     id: str
@@ -62,6 +65,7 @@ class PlacedPart:
     couples: tuple[str, ...] = ()
     captions: tuple[tuple[str, float, float], ...] = ()
     tolerance: str = ""
+    params: tuple[tuple[str, str], ...] = ()
 
 
 @dataclass(frozen=True, slots=True)

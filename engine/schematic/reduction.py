@@ -124,12 +124,13 @@ def _merged(kept: list[Element], added: Iterable[Element]) -> list[str]:
 
 
 def region_part_names(doc: Document, region: Region, circuit: Circuit) -> frozenset[str]:
-    """Circuit part names standing for the region's members: designators of parts, and the
-    ``<designator>.*`` parts that stand in for a member block."""
+    """Circuit part names standing for the region's members: designators of parts (a device
+    part by the primitive parts it expands into), and the ``<designator>.*`` parts that stand
+    in for a member block."""
     names: set[str] = set()
     for element in (doc[m] for m in region.members if m in doc):
         if isinstance(element, PlacedPart):
-            names.add(element.designator)
+            names.update(circuit.expand_names((element.designator,)))
         elif isinstance(element, Block):
             prefix = f"{element.designator}."
             names.update(n for n in circuit.names if n.startswith(prefix))

@@ -16,12 +16,13 @@ import sympy
 
 from portcut import assets
 from portcut.engine import Circuit
+from portcut.engine.devices import derived
 from portcut.engine.equivalent import Equivalent, equivalent
 from portcut.engine.schematic import Document, Region, build_circuit, extract, load
 from portcut.engine.units import parse_frequency
 
-EXAMPLES = ["audio_crossover", "ce_stage_output", "opamp_stage_output", "rc_antialias",
-            "strain_gauge_bridge", "transformer_coupling"]
+EXAMPLES = ["audio_crossover", "ce_stage_output", "emitter_follower", "noninverting_driver",
+            "opamp_stage_output", "rc_antialias", "strain_gauge_bridge", "transformer_coupling"]
 RTOL = 1e-9  # well-conditioned small circuits: the solve is good to ~1e-13 here
 
 
@@ -58,7 +59,7 @@ def check(eq: Equivalent, voc: complex, z: complex) -> None:
     assert eq.isc == pytest.approx(voc / z, rel=RTOL)  # Norton current of the same source
 
 
-def test_the_examples_are_the_six_scenarios_and_the_demo_is_one() -> None:
+def test_the_examples_are_the_eight_scenarios_and_the_demo_is_one() -> None:
     assert assets.example_names() == EXAMPLES
     assert assets.DEMO in EXAMPLES
 
@@ -105,13 +106,59 @@ def test_rc_antialias() -> None:
 
 def test_ce_stage_output() -> None:
     eq, c, _ = reduce("ce_stage_output", ("collector", "gnd"))
-    v, rs, rpi, gm = (value(c, n) for n in ("V1", "R1", "R2", "DS1"))
-    ro, rc = value(c, "R3"), value(c, "R4")
+    v, rs, rc = value(c, "V1"), value(c, "R1"), value(c, "R4")
+    q = derived(c.devices["Q1"])
+    # the transistor's bias point gives gm = I_C / V_T, rπ = β / gm, ro = V_A / I_C
+    # (common practice; Sedra & Smith, Microelectronic Circuits, from memory)
+    vt = 1.380649e-23 * 300 / 1.602176634e-19
+    gm, rpi, ro = 1e-3 / vt, 100 / (1e-3 / vt), 100 / 1e-3
+    assert (q["gm"], q["rpi"], q["ro"]) == pytest.approx((gm, rpi, ro), rel=1e-12)
     # common practice: hybrid-pi small-signal model, v_be = v rpi/(rs + rpi); the collector
     # current gm v_be flows into the collector node's load ro || Rc, so voc = -gm v_be (ro || Rc)
     # and the output resistance is ro || Rc
     vbe = v * rpi / (rs + rpi)
     check(eq, -gm * vbe * par(ro, rc), par(ro, rc))
+
+
+def test_emitter_follower() -> None:
+    eq, c, _ = reduce("emitter_follower", ("emitter", "0"))
+    v, rs, re = value(c, "V1"), value(c, "R1"), value(c, "R2")
+    q = derived(c.devices["Q1"])
+    gm, rpi, ro, beta = q["gm"], q["rpi"], q["ro"], q["beta"]
+    # common practice (hybrid-π, collector at signal ground): looking into the emitter,
+    # (rπ + R_S) / (β + 1), in parallel with ro and the emitter resistor; the open-circuit
+    # voltage is v (β + 1) R / (R_S + rπ + (β + 1) R) with R = ro ∥ R_E
+    load = par(ro, re)
+    check(eq, v * (beta + 1) * load / (rs + rpi + (beta + 1) * load),
+          par((rpi + rs) / (beta + 1), load))
+    # the usual estimate 1/gm + R_S / (β + 1) of the follower's own output resistance
+    assert par(1 / gm + rs / (beta + 1), load) == pytest.approx(eq.z.real, rel=0.01)
+
+
+def test_noninverting_driver() -> None:
+    eq, c, _ = reduce("noninverting_driver", ("out", "0"))
+    v, rf, rg = value(c, "V1"), value(c, "R1"), value(c, "R2")
+    u = derived(c.devices["U1"])
+    a0, rin, rout = u["a0"], u["rin"], u["rout"]
+    # DC nodal analysis of the finite op-amp (gain A0 on the input difference behind Rout, Rin
+    # across the inputs; common practice): with the source zeroed the feedback divider returns
+    # b = G_F / (G_F + G_G + G_in) of the output to the inverting input, so
+    # 1/Z = (1 + A0 b) / Rout + (1 - b) / R_F
+    gf, gg, gi = 1 / rf, 1 / rg, 1 / rin
+    b = gf / (gf + gg + gi)
+    z = 1 / ((1 + a0 * b) / rout + (1 - b) / rf)
+    # open circuit: the inverting input settles at v_n with
+    # v_n (G_F + G_G + G_in) = G_F v_o + G_in v and
+    # v_o (1/Rout + G_F) = A0 (v - v_n) / Rout + G_F v_n (solved exactly by sympy)
+    vn, vo = sympy.symbols("vn vo")
+    gf_, gg_, gi_, vs, a, ro_ = map(exact, (gf, gg, gi, v, a0, rout))
+    sol = sympy.solve([vn * (gf_ + gg_ + gi_) - gf_ * vo - gi_ * vs,
+                       vo * (1 / ro_ + gf_) - a * (vs - vn) / ro_ - gf_ * vn], [vn, vo])
+    check(eq, complex(sol[vo]), z)
+    # the closed-loop output resistance R_out / (1 + A0 β_fb), β_fb = R_G / (R_F + R_G), is the
+    # leading term (common practice)
+    assert eq.z.real == pytest.approx(rout / (1 + a0 * rg / (rf + rg)), rel=1e-3)
+    assert eq.voc.real == pytest.approx(v * (1 + rf / rg), rel=1e-3)
 
 
 def test_audio_crossover() -> None:

@@ -376,7 +376,7 @@ REFUSALS = [
     (setter("parts", 1, "kind", value="diode"),
      'parts[1].kind: expected one of "resistor", "capacitor", "inductor", "impedance", '
      '"voltage_source", "current_source", "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling", '
-     'got "diode"'),
+     '"bjt", "mosfet", "opamp_finite", "measured_source", got "diode"'),
     (setter("parts", 1, "value", value="40 furlongs"),
      "parts[1].value: L2 value: cannot read '40 furlongs'; use a number"),
     (setter("parts", 1, "value", value="1e999999999"), "parts[1].value: L2 value: "),
