@@ -15,7 +15,7 @@ import pytest
 import sympy
 
 from portcut import assets
-from portcut.engine import Circuit
+from portcut.engine import GROUND, Circuit
 from portcut.engine.devices import derived
 from portcut.engine.equivalent import Equivalent, equivalent
 from portcut.engine.schematic import Document, Region, build_circuit, extract, load
@@ -121,7 +121,7 @@ def test_ce_stage_output() -> None:
 
 
 def test_emitter_follower() -> None:
-    eq, c, _ = reduce("emitter_follower", ("emitter", "0"))
+    eq, c, _ = reduce("emitter_follower", ("emitter", GROUND))
     v, rs, re = value(c, "V1"), value(c, "R1"), value(c, "R2")
     q = derived(c.devices["Q1"])
     gm, rpi, ro, beta = q["gm"], q["rpi"], q["ro"], q["beta"]
@@ -136,7 +136,7 @@ def test_emitter_follower() -> None:
 
 
 def test_noninverting_driver() -> None:
-    eq, c, _ = reduce("noninverting_driver", ("out", "0"))
+    eq, c, _ = reduce("noninverting_driver", ("out", GROUND))
     v, rf, rg = value(c, "V1"), value(c, "R1"), value(c, "R2")
     u = derived(c.devices["U1"])
     a0, rin, rout = u["a0"], u["rin"], u["rout"]
