@@ -263,8 +263,9 @@ def _undefined_ratio(numerator: np.ndarray) -> np.ndarray:
 class _Port:
     """One region's port problem at one frequency class (DC, or any non-zero frequency).
 
-    The open-port system (the region alone, port minus as reference) is assembled once; the
-    shorted-port system only when the open one cannot decide.
+    The open-port system (the region alone, port minus as reference) is assembled once per
+    formulation (plain, or wide: see :class:`engine.mna.Branches`); the shorted-port system
+    only when the open one cannot decide.
     """
 
     def __init__(self, netlist: mna.Netlist, port: tuple[str, str], dc: bool) -> None:
@@ -273,27 +274,52 @@ class _Port:
         found = topology.islands(netlist, dc, (minus,))
         found.raise_problems(skip=found.island(plus))
         topology.check_voltage_loops(netlist, dc)
-        self.open = mna.assemble(netlist, found.pinned) if found.joined(plus) else None
-        self._shorted: mna.System | None = None
+        self._pinned = found.pinned if found.joined(plus) else None
+        self._open: dict[bool, mna.System | None] = {}
+        self._shorted: dict[bool, mna.System] = {}
+        self._short_pinned: np.ndarray | None = None
 
-    def shorted(self) -> mna.System:
-        if self._shorted is None:
-            ids = (self.netlist.index[self.port[0]], self.netlist.index[self.port[1]])
+    def open(self, wide: bool) -> mna.System | None:
+        if wide not in self._open:
+            self._open[wide] = None if self._pinned is None else \
+                mna.assemble(self.netlist, self._pinned, wide=wide)
+        return self._open[wide]
+
+    def shorted(self, wide: bool) -> mna.System:
+        ids = (self.netlist.index[self.port[0]], self.netlist.index[self.port[1]])
+        if self._short_pinned is None:
             found = topology.islands(self.netlist, self.dc, (self.port[1],), short=ids)
             found.raise_problems()
             topology.check_voltage_loops(self.netlist, self.dc, short=ids)
-            self._shorted = mna.assemble(self.netlist, found.pinned, short=ids)
-        return self._shorted
+            self._short_pinned = found.pinned
+        if wide not in self._shorted:
+            self._shorted[wide] = mna.assemble(self.netlist, self._short_pinned, short=ids,
+                                               wide=wide)
+        return self._shorted[wide]
 
     def values(self, freqs: np.ndarray) -> _Values:
-        """Decide voc, isc, z at every frequency (all zero or all non-zero)."""
+        """Decide voc, isc, z at every frequency (all zero or all non-zero); frequencies where
+        the part impedances span more than ``mna.WIDE_SPAN`` are solved in the wide form."""
+        lo, hi = self.netlist.impedance_range(freqs)
+        with np.errstate(invalid="ignore", over="ignore"):
+            wide = (lo > 0) & np.isfinite(hi) & (hi > mna.WIDE_SPAN * lo)
+        if not wide.any():
+            return self._values(freqs, False)
+        out = _Values(freqs.size)
+        for form in (False, True):
+            if (wide == form).any():
+                out.take(wide == form, self._values(freqs[wide == form], form))
+        return out
+
+    def _values(self, freqs: np.ndarray, wide: bool) -> _Values:
         out = _Values(freqs.size)
         todo = np.ones(freqs.size, dtype=bool)
         failure: SingularCircuitError | None = None
-        if self.open is not None:
-            k = int(self.open.unknown_of_net[self.netlist.index[self.port[0]]])
-            rhs = self.open.rhs(self.port[0])
-            solved = _solve(self.open, freqs, rhs, k)
+        system = self.open(wide)
+        if system is not None:
+            k = int(system.unknown_of_net[self.netlist.index[self.port[0]]])
+            rhs = system.rhs(self.port[0])
+            solved = _solve(system, freqs, rhs, k)
             failure = solved.failure
             voc, z = solved.x[:, 0], solved.x[:, 1]
             resolved = solved.ok & (np.abs(z) > solved.bound)
@@ -307,13 +333,13 @@ class _Port:
                 out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False)
                 todo &= ~zero
         if todo.any():
-            self._from_short(freqs, todo, out, failure)
+            self._from_short(freqs, todo, out, failure, wide)
         return out
 
     def _from_short(self, freqs: np.ndarray, todo: np.ndarray, out: _Values,
-                    failure: SingularCircuitError | None) -> None:
+                    failure: SingularCircuitError | None, wide: bool) -> None:
         try:
-            system = self.shorted()
+            system = self.shorted(wide)
             solved = _solve(system, freqs[todo], system.rhs(None), system.short)
         except SingularCircuitError as exc:
             raise self._neither(failure, exc) from None
