@@ -96,6 +96,9 @@ class Equivalent:
     ``port`` (plus, minus); ``freq`` in Hz (0 = DC); ``voc`` V, ``isc`` A, ``z`` Ω (complex).
     ``z == 0`` without a Norton form, ``z`` infinite without a Thevenin form; ``voc``/``isc``
     are infinite or nan where their form does not exist. Phasors are peak values.
+    ``voc_error`` (V) and ``z_error`` (Ω) bound the floating-point error of ``voc`` and ``z``
+    (the residual of the solve carried to the port, plus a rounding of every matrix entry; see
+    docs/method.md); nan where the quantity does not exist.
     """
 
     port: tuple[str, str]
@@ -105,6 +108,8 @@ class Equivalent:
     z: complex
     has_thevenin: bool
     has_norton: bool
+    voc_error: float = math.nan
+    z_error: float = math.nan
 
     def rectangular(self, digits: int = 4) -> Forms:
         """``voc``, ``isc``, ``z`` as ``a + j b`` with SI prefixes (``"1 kΩ + j 2 kΩ"``)."""
@@ -187,7 +192,8 @@ def _no_maximum(eq: Equivalent) -> str | None:
 
 @dataclass(frozen=True, slots=True, eq=False)
 class Sweep:
-    """Equivalents over frequency: read-only arrays, one entry per point of ``freqs`` (Hz)."""
+    """Equivalents over frequency: read-only arrays, one entry per point of ``freqs`` (Hz);
+    ``voc_error`` and ``z_error`` as in :class:`Equivalent`."""
 
     port: tuple[str, str]
     freqs: np.ndarray
@@ -196,6 +202,8 @@ class Sweep:
     z: np.ndarray
     has_thevenin: np.ndarray
     has_norton: np.ndarray
+    voc_error: np.ndarray
+    z_error: np.ndarray
 
     def __len__(self) -> int:
         return len(self.freqs)
@@ -203,7 +211,8 @@ class Sweep:
     def __getitem__(self, i: int) -> Equivalent:
         return Equivalent(self.port, float(self.freqs[i]), complex(self.voc[i]),
                           complex(self.isc[i]), complex(self.z[i]), bool(self.has_thevenin[i]),
-                          bool(self.has_norton[i]))
+                          bool(self.has_norton[i]), float(self.voc_error[i]),
+                          float(self.z_error[i]))
 
 
 @dataclass(frozen=True, slots=True)
@@ -244,14 +253,17 @@ class _Values:
         self.z = np.full(size, _NAN)
         self.thevenin = np.zeros(size, dtype=bool)
         self.norton = np.zeros(size, dtype=bool)
+        self.voc_error = np.full(size, math.nan)
+        self.z_error = np.full(size, math.nan)
 
     def put(self, where: np.ndarray, voc: np.ndarray, isc: np.ndarray, z: np.ndarray,
-            thevenin: bool, norton: bool) -> None:
+            thevenin: bool, norton: bool, errors: tuple[np.ndarray, np.ndarray]) -> None:
         self.voc[where], self.isc[where], self.z[where] = voc, isc, z
         self.thevenin[where], self.norton[where] = thevenin, norton
+        self.voc_error[where], self.z_error[where] = errors
 
     def take(self, where: np.ndarray, other: _Values) -> None:
-        for name in ("voc", "isc", "z", "thevenin", "norton"):
+        for name in ("voc", "isc", "z", "thevenin", "norton", "voc_error", "z_error"):
             getattr(self, name)[where] = getattr(other, name)
 
 
@@ -322,15 +334,17 @@ class _Port:
             solved = _solve(system, freqs, rhs, k)
             failure = solved.failure
             voc, z = solved.x[:, 0], solved.x[:, 1]
-            resolved = solved.ok & (np.abs(z) > solved.bound)
+            resolved = solved.ok & (np.abs(z) > solved.bound[:, 1])
             with np.errstate(all="ignore"):
                 out.put(resolved, voc[resolved], voc[resolved] / z[resolved], z[resolved],
-                        True, True)
+                        True, True, (solved.bound[resolved, 0], solved.bound[resolved, 1]))
             todo = ~resolved
             if (solved.ok & todo).any():
                 # z unresolved from 0 while the bound is within the parts' impedances: z = 0
-                zero = solved.ok & todo & (solved.bound <= self.netlist.impedance_range(freqs)[1])
-                out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False)
+                zero = solved.ok & todo & (solved.bound[:, 1]
+                                           <= self.netlist.impedance_range(freqs)[1])
+                out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False,
+                        (solved.bound[zero, 0], solved.bound[zero, 1]))
                 todo &= ~zero
         if todo.any():
             self._from_short(freqs, todo, out, failure, wide)
@@ -348,8 +362,8 @@ class _Port:
         isc, y = solved.x[:, 0], -solved.x[:, 1]
         with np.errstate(divide="ignore"):
             y_hi = 1 / self.netlist.impedance_range(freqs[todo])[0]
-        resolved = np.abs(y) > solved.bound
-        open_port = ~resolved & (solved.bound <= y_hi)
+        resolved = np.abs(y) > solved.bound[:, 1]
+        open_port = ~resolved & (solved.bound[:, 1] <= y_hi)
         if not (resolved | open_port).all():
             f = freqs[todo][~(resolved | open_port)][0]
             raise SingularCircuitError(
@@ -359,9 +373,13 @@ class _Port:
         index = np.flatnonzero(todo)
         with np.errstate(all="ignore"):
             z = 1 / y[resolved]
-            out.put(index[resolved], isc[resolved] * z, isc[resolved], z, True, True)
+            # first order: z = 1 / y and voc = isc z carry the errors of isc and y along
+            z_error = solved.bound[resolved, 1] * np.abs(z) ** 2
+            voc_error = solved.bound[resolved, 0] * np.abs(z) + np.abs(isc[resolved]) * z_error
+            out.put(index[resolved], isc[resolved] * z, isc[resolved], z, True, True,
+                    (voc_error, z_error))
         out.put(index[open_port], _undefined_ratio(isc[open_port]), isc[open_port], _INF,
-                False, True)
+                False, True, (math.nan, math.nan))
 
     def _neither(self, failure: SingularCircuitError | None,
                  short_failure: SingularCircuitError | None) -> SingularCircuitError:
@@ -375,7 +393,7 @@ class _Port:
 @dataclass(frozen=True, slots=True, eq=False)
 class _Solved:
     """Two solutions at F frequencies, read at one unknown: ``x[:, 0]`` for the sources,
-    ``x[:, 1]`` for the unit excitation; ``bound`` is the error bound on ``x[:, 1]``."""
+    ``x[:, 1]`` for the unit excitation; ``bound[:, j]`` is the error bound on ``x[:, j]``."""
 
     x: np.ndarray
     bound: np.ndarray
@@ -392,7 +410,7 @@ def _solve(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int) -> _S
 def _solve_sparse(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int) -> _Solved:
     """One SuperLU factorization per frequency, solving both right-hand sides."""
     x = np.full((freqs.size, 2), _NAN)
-    bound = np.full(freqs.size, math.inf)
+    bound = np.full((freqs.size, 2), math.inf)
     ok = np.zeros(freqs.size, dtype=bool)
     failure = None
     both = np.column_stack((system.b, rhs))
@@ -405,7 +423,7 @@ def _solve_sparse(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int
             failure = exc
             continue
         x[i] = sol[k]
-        bound[i] = factor.error_bound(sol[:, 1], rhs, adjoint)
+        bound[i] = [factor.error_bound(sol[:, j], both[:, j], adjoint) for j in (0, 1)]
         ok[i] = True
     return _Solved(x, bound, ok, failure)
 
@@ -437,14 +455,16 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
     ok &= np.isfinite(x).all(axis=(1, 2))
     if adjoint is not None:
         ok &= np.isfinite(adjoint).all(axis=1)
-    unit = x[:, :, 1]
-    with np.errstate(all="ignore"):
-        gx, mx = (g @ unit.T).T, (m @ unit.T).T
-        residual = rhs - gx - s[:, None] * mx
-        abs_ax = (abs(g) @ np.abs(unit).T).T + np.abs(s)[:, None] * (abs(m) @ np.abs(unit).T).T
     gamma = mna.rounding((g + m).tocsc())
-    bound = mna.bound(unit if adjoint is None else adjoint, residual, abs_ax, rhs, gamma)
-    solved = _Solved(x[:, k, :], np.where(ok, bound, math.inf), ok, None)
+    bound = np.empty((freqs.size, 2))
+    for j, b in enumerate(both.T):
+        col = x[:, :, j]
+        with np.errstate(all="ignore"):
+            residual = b - (g @ col.T).T - s[:, None] * (m @ col.T).T
+            abs_ax = (abs(g) @ np.abs(col).T).T + np.abs(s)[:, None] * (abs(m) @ np.abs(col).T).T
+        bound[:, j] = mna.bound(x[:, :, 1] if adjoint is None else adjoint, residual, abs_ax, b,
+                                gamma)
+    solved = _Solved(x[:, k, :], np.where(ok[:, None], bound, math.inf), ok, None)
     if ok.all():
         return solved
     # A chunk with a singular matrix: those frequencies again, one factorization each
@@ -481,7 +501,8 @@ def _port_of(cut: topology.Cut, dc: bool) -> _Port:
 def _equivalent_of(cut: topology.Cut, f: float) -> Equivalent:
     values = _port_of(cut, f == 0).values(np.array([f]))
     return Equivalent(cut.port, f, complex(values.voc[0]), complex(values.isc[0]),
-                      complex(values.z[0]), bool(values.thevenin[0]), bool(values.norton[0]))
+                      complex(values.z[0]), bool(values.thevenin[0]), bool(values.norton[0]),
+                      float(values.voc_error[0]), float(values.z_error[0]))
 
 
 def sweep(circuit: Circuit, region: Collection[str], freqs: Iterable[float],
@@ -499,7 +520,7 @@ def sweep(circuit: Circuit, region: Collection[str], freqs: Iterable[float],
         where = (f == 0) if dc else (f > 0)
         if where.any():
             out.take(where, _port_of(cut, dc).values(f[where]))
-    arrays = (f, out.voc, out.isc, out.z, out.thevenin, out.norton)
+    arrays = (f, out.voc, out.isc, out.z, out.thevenin, out.norton, out.voc_error, out.z_error)
     for a in arrays:
         a.flags.writeable = False
     return Sweep(cut.port, *arrays)
