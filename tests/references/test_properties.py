@@ -131,7 +131,8 @@ def _add_motif(draw: st.DrawFn, g: Grown, motif: str) -> None:
             k = draw(st.sampled_from([-0.95, -0.5, 0.3, 0.8, 0.99]))
             c.coupling(g.name("K"), first.name, second.name, k)
     elif motif == "impedance":
-        c.impedance(g.name("Z"), a, b, complex(draw(g.ranges.ohms), draw(st.sampled_from([-1e3, 0, 50]))))
+        c.impedance(g.name("Z"), a, b,
+                    complex(draw(g.ranges.ohms), draw(st.sampled_from([-1e3, 0, 50]))))
     elif motif == "voltage_source":
         c.voltage_source(g.name("V"), a, behind_resistor(), draw(PHASORS))
     elif motif == "current_source":

@@ -23,7 +23,7 @@ from test_properties import ALL_MOTIFS, Grown, Ranges, regions, with_load
 from engine import GROUND, Circuit, Equivalent, SingularCircuitError, equivalent, sweep
 
 RTOL = 1e-9
-WIDE_SETTINGS = settings(max_examples=25, deadline=None,
+WIDE_SETTINGS = settings(max_examples=12, deadline=None,
                          suppress_health_check=[HealthCheck.too_slow])
 
 
@@ -68,25 +68,34 @@ def assert_matches(eq: Equivalent, ref: PortReference) -> None:
         assert cmath.isinf(eq.z)
 
 
+def _reference(parts: Circuit, port: tuple[str, str], w: float) -> PortReference | None:
+    try:
+        return port_reference(parts, port, _exact_freq(w))
+    except ValueError:  # exactly singular, e.g. a net floating behind a capacitor at DC
+        return None
+
+
 def _compare(circuit: Circuit, region: set[str], port: tuple[str, str], parts: Circuit) -> None:
     """Single-frequency results and one sweep over all three frequencies against the
-    reference, and the sweep's points equal to the single-frequency calls."""
+    reference, and so the sweep's points against the single-frequency calls."""
     freqs = [w / (2 * math.pi) for w in OMEGAS]
+    refs = [_reference(parts, port, w) for w in OMEGAS]
     try:
-        singles = [equivalent(circuit, region=region, port=port, freq=f) for f in freqs]
         swept = sweep(circuit, region, freqs, port=port)
     except SingularCircuitError:
-        refs = []
-        for w in OMEGAS:
-            try:
-                refs.append(port_reference(parts, port, _exact_freq(w)))
-            except ValueError:
-                return  # exactly singular somewhere: refusing it is right
-        raise AssertionError("the engine refused a region that has a unique solution") from None
-    for w, single, i in zip(OMEGAS, singles, range(len(freqs)), strict=True):
-        ref = port_reference(parts, port, _exact_freq(w))
+        assert None in refs, "the engine refused a sweep of a region with unique solutions"
+        swept = None
+    for i, (f, ref) in enumerate(zip(freqs, refs, strict=True)):
+        try:
+            single = equivalent(circuit, region=region, port=port, freq=f)
+        except SingularCircuitError:
+            assert ref is None, f"the engine refused a region with a unique solution at {f} Hz"
+            continue
+        if ref is None:  # the engine may still decide a port that a floating net leaves alone
+            continue
         assert_matches(single, ref)
-        assert_matches(swept[i], ref)
+        if swept is not None:
+            assert_matches(swept[i], ref)
 
 
 @st.composite
