@@ -155,9 +155,13 @@ class Equivalent:
             raise CircuitError(f"z = {format_complex(self.z, 'Ω')} is reactive at DC (a fixed "
                                "impedance part), which no inductor or capacitor realises")
         w = 2 * math.pi * self.freq
-        if x > 0:
-            return Realisation(r, "inductor", x / w, self.freq)
-        return Realisation(r, "capacitor", -1 / (w * x), self.freq)
+        kind, value = ("inductor", x / w) if x > 0 else ("capacitor", -(1 / w) / x)
+        if not (math.isfinite(value) and value > 0):
+            raise CircuitError(
+                f"z = {self.z.real:.4g} {self.z.imag:+.4g}j Ω at {self.freq:.4g} Hz needs a series "
+                f"{kind} outside the range of double precision; analyse at a frequency nearer "
+                "the parts' own scale")
+        return Realisation(r, kind, value, self.freq)
 
     def max_power(self, basis: str = "peak") -> PowerTransfer:
         """Power into a conjugate-matched load: |voc|^2 / (8 Re z) for peak phasors, / (4 Re z)
@@ -168,10 +172,17 @@ class Equivalent:
         if reason:
             return PowerTransfer(basis, None, None, None, None, reason)
         share = 0.5 if basis == "peak" else 1.0
-        v2 = abs(self.voc) ** 2
-        r_best = abs(self.z)
-        return PowerTransfer(basis, self.z.conjugate(), share * v2 / (4 * self.z.real), r_best,
-                             share * v2 * r_best / abs(self.z + r_best) ** 2, None)
+        v, r_best = abs(self.voc), abs(self.z)
+        # as products of ratios, so that no intermediate square overflows or underflows
+        matched = share * (v / 2) * (v / (2 * self.z.real))
+        into_r = v / abs(self.z + r_best)
+        resistive = share * into_r * (into_r * r_best)
+        if not (math.isfinite(matched) and math.isfinite(resistive)):
+            return PowerTransfer(basis, None, None, None, None,
+                                 f"the available power with |voc| = {v:.4g} V and "
+                                 f"Re z = {self.z.real:.4g} Ω exceeds the range of "
+                                 "double precision")
+        return PowerTransfer(basis, self.z.conjugate(), matched, r_best, resistive, None)
 
 
 def _no_maximum(eq: Equivalent) -> str | None:

@@ -480,3 +480,37 @@ def test_formatted_forms_and_summary() -> None:
     open_.current_source("I1", GROUND, "a", 0)
     open_.resistor("RL", "a", GROUND, 1)
     assert equivalent(open_, {"I1"}, ("a", GROUND)).polar().voc == "undefined"
+
+
+def _source_behind(volts: float, ohms: float) -> Circuit:
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, volts)
+    c.resistor("R1", "in", "a", ohms)
+    c.capacitor("C1", "a", GROUND, 1e-6)
+    return c
+
+
+def test_available_power_beyond_double_range_is_refused_with_a_reason() -> None:
+    # |voc|^2 / (8 R) for 1e160 V behind 1 kΩ is 1.25e316 W, past the largest double (common
+    # practice: IEEE 754 binary64 tops out near 1.8e308)
+    c = _source_behind(1e160, 1e3)
+    found = equivalent(c, set(c.names), ("a", GROUND)).max_power()
+    assert found.power is None and "range of double precision" in found.reason
+
+
+def test_available_power_of_a_tiny_impedance_is_finite() -> None:
+    # 1 V behind 1e-300 Ω: |voc|^2 / (8 R) = 1.25e299 W; into R = |z| the same (matched)
+    c = _source_behind(1.0, 1e-300)
+    found = equivalent(c, set(c.names), ("a", GROUND)).max_power()
+    assert found.power == pytest.approx(1.25e299, rel=1e-12)
+    assert found.resistive_power == pytest.approx(1.25e299, rel=1e-12)
+
+
+def test_realisation_outside_double_range_is_refused_by_name() -> None:
+    # at 1e-300 Hz, z = 1 kΩ - j w C (1 kΩ)^2 = 1 kΩ - j 6.3e-300 Ω (common practice: R || C
+    # to first order in w), so the series capacitor 1 / (w |X|) is about 2.5e597 F: no double
+    c = _source_behind(1.0, 1e3)
+    eq = equivalent(c, set(c.names), ("a", GROUND), 1e-300)
+    assert eq.has_norton and cmath.isfinite(eq.isc)
+    with pytest.raises(CircuitError, match="capacitor outside the range of double precision"):
+        eq.realisation()
