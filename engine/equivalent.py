@@ -323,9 +323,7 @@ class _Port:
     def values(self, freqs: np.ndarray) -> _Values:
         """Decide voc, isc, z at every frequency (all zero or all non-zero); frequencies where
         the part impedances span more than ``mna.WIDE_SPAN`` are solved in the wide form."""
-        lo, hi = self.netlist.impedance_range(freqs)
-        with np.errstate(invalid="ignore", over="ignore"):
-            wide = (lo > 0) & np.isfinite(hi) & (hi > mna.WIDE_SPAN * lo)
+        wide = self.netlist.wide(freqs)
         if not wide.any():
             return self._values(freqs, False)
         out = _Values(freqs.size)
@@ -716,7 +714,7 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
         found = topology.islands(netlist, dc, anchors)
         found.raise_problems()
         topology.check_voltage_loops(netlist, dc)
-        system = mna.assemble(netlist, found.pinned)
+        system = mna.assemble(netlist, found.pinned, wide=bool(netlist.wide(np.array([f]))[0]))
         x = mna.Factor(system, f).solve(system.b)
     except SingularCircuitError as exc:
         raise SingularCircuitError(f"{what} has no unique solution: {exc}") from None

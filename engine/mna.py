@@ -289,6 +289,13 @@ class Netlist:
             found = self.memo[key] = Branches(self, wide)
         return found
 
+    def wide(self, freqs: np.ndarray) -> np.ndarray:
+        """Per frequency: True where the part impedances span more than ``WIDE_SPAN``, so the
+        system is to be assembled with the wide branches (:class:`Branches`)."""
+        lo, hi = self.impedance_range(freqs)
+        with np.errstate(invalid="ignore", over="ignore"):
+            return (lo > 0) & np.isfinite(hi) & (hi > WIDE_SPAN * lo)
+
     def impedance_range(self, freqs: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Smallest and largest non-zero impedance magnitude (ohms) of the parts at each freq.
 
