@@ -456,9 +456,10 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
         stack[:, m.row, m.col] += s[part, None] * m.data
         try:
             with np.errstate(all="ignore"):
-                x[part] = np.linalg.solve(stack, both)
+                x[part] = _dense_solve(stack, both, system.refined)
                 if adjoint is not None:
-                    adjoint[part] = np.linalg.solve(stack.transpose(0, 2, 1), rhs)
+                    adjoint[part] = _dense_solve(stack.transpose(0, 2, 1), rhs[:, None],
+                                                 system.refined)[..., 0]
         except np.linalg.LinAlgError:
             ok[part] = False
     ok &= np.isfinite(x).all(axis=(1, 2))
@@ -480,6 +481,15 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
     redo = _solve_sparse(system, freqs[~ok], rhs, k)
     solved.x[~ok], solved.bound[~ok], solved.ok[~ok] = redo.x, redo.bound, redo.ok
     return _Solved(solved.x, solved.bound, solved.ok, redo.failure)
+
+
+def _dense_solve(stack: np.ndarray, rhs: np.ndarray, refined: bool) -> np.ndarray:
+    """``stack^{-1} rhs`` for a stack of matrices and one (n, k) right-hand side; refined by
+    one step with the residual as :meth:`engine.mna.Factor.solve` does."""
+    x = np.linalg.solve(stack, rhs)
+    if refined:
+        x = x + np.linalg.solve(stack, rhs - stack @ x)
+    return x
 
 
 # -- public functions ---------------------------------------------------------------------------

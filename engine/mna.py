@@ -404,10 +404,10 @@ class Branches:
     ``V(a) - V(b) - Z I = 0`` (a capacitor's ``s C (V(a) - V(b)) - I = 0``) keeps every digit.
     """
 
-    __slots__ = ("_offsets", "count", "netlist", "offset")
+    __slots__ = ("_offsets", "count", "netlist", "offset", "wide")
 
     def __init__(self, netlist: Netlist, wide: bool = False) -> None:
-        self.netlist = netlist
+        self.netlist, self.wide = netlist, wide
         flags = kind_mask(_WIDE_BRANCH if wide else _ALWAYS_BRANCH).take(netlist.codes)
         if netlist.has_controlled:
             flags |= netlist.controlling()
@@ -531,7 +531,10 @@ class System:
         self.b = b
         self._g, self._m = g, m
         self._layouts: dict[tuple[bool, ...], tuple[np.ndarray, ...]] = {}
-        self.symmetric = not netlist.has_dependent
+        # a capacitor's branch row holds s C where its incidence column holds 1
+        self.symmetric = not netlist.has_dependent and not (branches.of("capacitor") >= 0).any()
+        #: Solves are refined by one step with the residual (see :meth:`Factor.solve`).
+        self.refined = branches.wide
         self._branch_of: dict[str, int] | None = None
         self._last: tuple[float, sp.csc_matrix] | None = None
 
@@ -930,13 +933,22 @@ class Factor:
             raise Singular(system, freq, self.matrix) from None
 
     def solve(self, rhs: np.ndarray, transposed: bool = False) -> np.ndarray:
-        """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k)."""
+        """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k); refined by one step
+        where the system is in the wide form."""
         data = rhs.astype(self.matrix.dtype if not np.iscomplexobj(rhs) else complex)
         if np.iscomplexobj(data) and not np.iscomplexobj(self.matrix.data):
             # SuperLU solves in the factor's own dtype: real factor, complex rhs in two parts
             return self.solve(data.real, transposed) + 1j * self.solve(data.imag, transposed)
+        trans = "T" if transposed else "N"
         try:  # (SuperLU's solve raises; it neither warns nor heeds NumPy's error state)
-            x = self._lu.solve(data, trans="T" if transposed else "N")
+            x = self._lu.solve(data, trans=trans)
+            if self.system.refined:
+                # One step of refinement with the residual: the wide form's rows mix scales,
+                # where the pivots SuperLU picks can leave an error well above the rounding
+                # of the data; one step brings it back (docs/method.md).
+                a = self.matrix.T if transposed else self.matrix
+                with np.errstate(all="ignore"):
+                    x = x + self._lu.solve(data - a @ x, trans=trans)
         except (RuntimeError, ValueError, ArithmeticError):
             raise Singular(self.system, self.freq, self.matrix) from None
         if not np.isfinite(x).all():
