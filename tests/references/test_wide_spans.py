@@ -23,7 +23,7 @@ from test_properties import ALL_MOTIFS, Grown, Ranges, regions, with_load
 from engine import GROUND, Circuit, Equivalent, SingularCircuitError, equivalent, sweep
 
 RTOL = 1e-9
-WIDE_SETTINGS = settings(max_examples=12, deadline=None,
+WIDE_SETTINGS = settings(max_examples=30, deadline=None,
                          suppress_health_check=[HealthCheck.too_slow])
 
 
