@@ -278,6 +278,18 @@ class _Values:
             getattr(self, name)[where] = getattr(other, name)
 
 
+def _refuse_overflow(freqs: np.ndarray, out: _Values) -> None:
+    """Raise where a form was found but its quantity is not a finite number: part impedances
+    past double range at that frequency (e.g. 1 µF at 1e-310 Hz) leave only inf and nan."""
+    bad = ((out.thevenin & ~np.isfinite(out.voc)) | (out.norton & ~np.isfinite(out.isc))
+           | (out.thevenin & out.norton & ~np.isfinite(out.z)))
+    if bad.any():
+        f = float(freqs[bad][0])
+        raise SingularCircuitError(
+            f"at {f:.4g} Hz some part impedances overflow double precision, so the port "
+            "quantities are not numbers; analyse at a frequency nearer the parts' own scale")
+
+
 def _undefined_ratio(numerator: np.ndarray) -> np.ndarray:
     """What ``numerator / 0`` means for a port quantity: infinite, or nan where 0/0."""
     return np.where(numerator == 0, _NAN, _INF)
@@ -325,11 +337,13 @@ class _Port:
         the part impedances span more than ``mna.WIDE_SPAN`` are solved in the wide form."""
         wide = self.netlist.wide(freqs)
         if not wide.any():
-            return self._values(freqs, False)
-        out = _Values(freqs.size)
-        for form in (False, True):
-            if (wide == form).any():
-                out.take(wide == form, self._values(freqs[wide == form], form))
+            out = self._values(freqs, False)
+        else:
+            out = _Values(freqs.size)
+            for form in (False, True):
+                if (wide == form).any():
+                    out.take(wide == form, self._values(freqs[wide == form], form))
+        _refuse_overflow(freqs, out)
         return out
 
     def _values(self, freqs: np.ndarray, wide: bool) -> _Values:

@@ -514,3 +514,13 @@ def test_realisation_outside_double_range_is_refused_by_name() -> None:
     assert eq.has_norton and cmath.isfinite(eq.isc)
     with pytest.raises(CircuitError, match="capacitor outside the range of double precision"):
         eq.realisation()
+
+
+def test_a_frequency_whose_impedances_overflow_is_refused_by_name() -> None:
+    # 1 µF at 1e-310 Hz: 1 / (w C) = 1.6e315 Ω, past the largest double (common practice:
+    # IEEE 754 binary64 tops out near 1.8e308); no form may be claimed with a quantity of nan
+    c = Circuit()
+    c.current_source("I1", GROUND, "a", 1)
+    c.capacitor("C1", "a", GROUND, 1e-6)
+    with pytest.raises(CircuitError, match="1e-310 Hz some part impedances overflow"):
+        equivalent(c, set(c.names), ("a", GROUND), 1e-310)
