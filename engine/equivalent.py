@@ -728,7 +728,8 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
                       ) -> tuple[np.ndarray, complex, float, float]:
     """Voltages of ``nets`` and the port current, with ``inner`` fed through the probe, and the
     scales of the whole solution: the largest net voltage (at least the largest current times
-    the smallest part impedance) and the largest current (a branch's or a current source's)."""
+    the smallest part impedance) and the largest current (a branch's or a current source's, at
+    least the largest voltage over the largest part impedance)."""
     moved = [replace(p, nodes=tuple(probe.side if n == probe.net else n for n in p.nodes))
              for p in inner]
     wire = Part(probe.name, "resistor", (probe.net, probe.side), 0.0)
@@ -751,6 +752,11 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
     peak_i = max(float(np.abs(branch_part).max(initial=0)), abs(current),
                  float(sources.max(initial=0)))
     # a current circulating in wires leaves every voltage at rounding level: the voltages
-    # such a current makes across the smallest part impedance are the scale of that noise
-    smallest = float(netlist.impedance_range(np.array([f]))[0][0])
-    return volts, current, max(float(np.abs(node_part).max(initial=0)), peak_i * smallest), peak_i
+    # such a current makes across the smallest part impedance are the scale of that noise;
+    # and where every current is rounding noise (an open outside, say), the currents that the
+    # voltages drive through the largest part impedance are the scale of that noise
+    smallest, largest = (float(z[0]) for z in netlist.impedance_range(np.array([f])))
+    peak_v = float(np.abs(node_part).max(initial=0))
+    with np.errstate(all="ignore"):
+        through_largest = peak_v / largest if math.isfinite(largest) else 0.0
+    return volts, current, max(peak_v, peak_i * smallest), max(peak_i, through_largest)
