@@ -376,4 +376,8 @@ def test_loaded_port_voltage_is_the_divider_of_the_equivalent(g: Grown, freq: fl
     c.resistor("LOAD", *g.port, 1e3)
     loaded = solved(g, freq, c, g.port, {*g.region, "ZL"})
     want = eq.voc * load / (eq.z + load)
-    assert _close(loaded.voc, want, floor=voltage_scale(g, freq))
+    # where every voltage cancels to rounding level, the engine's reported error bounds are
+    # the measure of that rounding
+    noise = loaded.voc_error + abs(load / (eq.z + load)) * eq.voc_error
+    assert _close(loaded.voc, want, floor=voltage_scale(g, freq)) \
+        or abs(loaded.voc - want) <= noise
