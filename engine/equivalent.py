@@ -118,6 +118,9 @@ class Equivalent:
     ``port`` (plus, minus); ``freq`` in Hz (0 = DC); ``voc`` V, ``isc`` A, ``z`` Ω (complex).
     ``z == 0`` without a Norton form, ``z`` infinite without a Thevenin form; ``voc``/``isc``
     are infinite or nan where their form does not exist. Phasors are peak values.
+    ``voc_error`` (V) and ``z_error`` (Ω) bound the floating-point error of ``voc`` and ``z``
+    (the residual of the solve carried to the port, plus a rounding of every matrix entry; see
+    docs/method.md); nan where the quantity does not exist.
     """
 
     port: tuple[str, str]
@@ -127,6 +130,8 @@ class Equivalent:
     z: complex
     has_thevenin: bool
     has_norton: bool
+    voc_error: float = math.nan
+    z_error: float = math.nan
 
     def rectangular(self, digits: int = 4) -> Forms:
         """``voc``, ``isc``, ``z`` as ``a + j b`` with SI prefixes (``"1 kΩ + j 2 kΩ"``)."""
@@ -176,9 +181,13 @@ class Equivalent:
             raise CircuitError(f"Z = {format_complex(self.z, 'Ω')} is reactive at DC (a fixed "
                                "impedance part), which no inductor or capacitor realises")
         w = 2 * math.pi * self.freq
-        if x > 0:
-            return Realisation(r, "inductor", x / w, self.freq)
-        return Realisation(r, "capacitor", -1 / (w * x), self.freq)
+        kind, value = ("inductor", x / w) if x > 0 else ("capacitor", -(1 / w) / x)
+        if not (math.isfinite(value) and value > 0):
+            raise CircuitError(
+                f"z = {self.z.real:.4g} {self.z.imag:+.4g}j Ω at {self.freq:.4g} Hz needs a series "
+                f"{kind} outside the range of double precision; analyse at a frequency nearer "
+                "the parts' own scale")
+        return Realisation(r, kind, value, self.freq)
 
     def max_power(self, basis: str = "peak") -> PowerTransfer:
         """Power into a conjugate-matched load: |voc|^2 / (8 Re z) for peak phasors, / (4 Re z)
@@ -191,10 +200,17 @@ class Equivalent:
         if reason:
             return PowerTransfer(basis, None, None, None, None, reason)
         share = 0.5 if basis == "peak" else 1.0  # a peak phasor's average power is half
-        v2 = abs(self.voc) ** 2
-        r_best = abs(self.z)
-        return PowerTransfer(basis, self.z.conjugate(), share * v2 / (4 * self.z.real), r_best,
-                             share * v2 * r_best / abs(self.z + r_best) ** 2, None)
+        v, r_best = abs(self.voc), abs(self.z)
+        # as products of ratios, so that no intermediate square overflows or underflows
+        matched = share * (v / 2) * (v / (2 * self.z.real))
+        into_r = v / abs(self.z + r_best)
+        resistive = share * into_r * (into_r * r_best)
+        if not (math.isfinite(matched) and math.isfinite(resistive)):
+            return PowerTransfer(basis, None, None, None, None,
+                                 f"the available power with |voc| = {v:.4g} V and "
+                                 f"Re z = {self.z.real:.4g} Ω exceeds the range of "
+                                 "double precision")
+        return PowerTransfer(basis, self.z.conjugate(), matched, r_best, resistive, None)
 
 
 def _no_maximum(eq: Equivalent) -> str | None:
@@ -215,7 +231,8 @@ def _no_maximum(eq: Equivalent) -> str | None:
 
 @dataclass(frozen=True, slots=True, eq=False)
 class Sweep:
-    """Equivalents over frequency: read-only arrays, one entry per point of ``freqs`` (Hz)."""
+    """Equivalents over frequency: read-only arrays, one entry per point of ``freqs`` (Hz);
+    ``voc_error`` and ``z_error`` as in :class:`Equivalent`."""
 
     port: tuple[str, str]
     freqs: np.ndarray
@@ -224,6 +241,8 @@ class Sweep:
     z: np.ndarray
     has_thevenin: np.ndarray
     has_norton: np.ndarray
+    voc_error: np.ndarray
+    z_error: np.ndarray
 
     def __len__(self) -> int:
         return len(self.freqs)
@@ -231,7 +250,8 @@ class Sweep:
     def __getitem__(self, i: int) -> Equivalent:
         return Equivalent(self.port, float(self.freqs[i]), complex(self.voc[i]),
                           complex(self.isc[i]), complex(self.z[i]), bool(self.has_thevenin[i]),
-                          bool(self.has_norton[i]))
+                          bool(self.has_norton[i]), float(self.voc_error[i]),
+                          float(self.z_error[i]))
 
 
 @dataclass(frozen=True, slots=True)
@@ -272,15 +292,30 @@ class _Values:
         self.z = np.full(size, _NAN)
         self.thevenin = np.zeros(size, dtype=bool)
         self.norton = np.zeros(size, dtype=bool)
+        self.voc_error = np.full(size, math.nan)
+        self.z_error = np.full(size, math.nan)
 
     def put(self, where: np.ndarray, voc: np.ndarray, isc: np.ndarray, z: np.ndarray,
-            thevenin: bool, norton: bool) -> None:
+            thevenin: bool, norton: bool, errors: tuple[np.ndarray, np.ndarray]) -> None:
         self.voc[where], self.isc[where], self.z[where] = voc, isc, z
         self.thevenin[where], self.norton[where] = thevenin, norton
+        self.voc_error[where], self.z_error[where] = errors
 
     def take(self, where: np.ndarray, other: _Values) -> None:
-        for name in ("voc", "isc", "z", "thevenin", "norton"):
+        for name in ("voc", "isc", "z", "thevenin", "norton", "voc_error", "z_error"):
             getattr(self, name)[where] = getattr(other, name)
+
+
+def _refuse_overflow(freqs: np.ndarray, out: _Values) -> None:
+    """Raise where a form was found but its quantity is not a finite number: part impedances
+    past double range at that frequency (e.g. 1 µF at 1e-310 Hz) leave only inf and nan."""
+    bad = ((out.thevenin & ~np.isfinite(out.voc)) | (out.norton & ~np.isfinite(out.isc))
+           | (out.thevenin & out.norton & ~np.isfinite(out.z)))
+    if bad.any():
+        f = float(freqs[bad][0])
+        raise SingularCircuitError(
+            f"at {f:.4g} Hz some part impedances overflow double precision, so the port "
+            "quantities are not numbers; analyse at a frequency nearer the parts' own scale")
 
 
 def _undefined_ratio(numerator: np.ndarray) -> np.ndarray:
@@ -291,8 +326,9 @@ def _undefined_ratio(numerator: np.ndarray) -> np.ndarray:
 class _Port:
     """One region's port problem at one frequency class (DC, or any non-zero frequency).
 
-    The open-port system (the region alone, port minus as reference) is assembled once; the
-    shorted-port system only when the open one cannot decide.
+    The open-port system (the region alone, port minus as reference) is assembled once per
+    formulation (plain, or wide: see :class:`engine.mna.Branches`); the shorted-port system
+    only when the open one cannot decide.
     """
 
     def __init__(self, netlist: mna.Netlist, port: tuple[str, str], dc: bool) -> None:
@@ -301,47 +337,74 @@ class _Port:
         found = topology.islands(netlist, dc, (minus,))
         found.raise_problems(skip=found.island(plus))
         topology.check_voltage_loops(netlist, dc)
-        self.open = mna.assemble(netlist, found.pinned) if found.joined(plus) else None
-        self._shorted: mna.System | None = None
+        self._pinned = found.pinned if found.joined(plus) else None
+        self._open: dict[bool, mna.System | None] = {}
+        self._shorted: dict[bool, mna.System] = {}
+        self._short_pinned: np.ndarray | None = None
 
-    def shorted(self) -> mna.System:
-        if self._shorted is None:
-            ids = (self.netlist.index[self.port[0]], self.netlist.index[self.port[1]])
+    def open(self, wide: bool) -> mna.System | None:
+        if wide not in self._open:
+            self._open[wide] = None if self._pinned is None else \
+                mna.assemble(self.netlist, self._pinned, wide=wide)
+        return self._open[wide]
+
+    def shorted(self, wide: bool) -> mna.System:
+        ids = (self.netlist.index[self.port[0]], self.netlist.index[self.port[1]])
+        if self._short_pinned is None:
             found = topology.islands(self.netlist, self.dc, (self.port[1],), short=ids)
             found.raise_problems()
             topology.check_voltage_loops(self.netlist, self.dc, short=ids)
-            self._shorted = mna.assemble(self.netlist, found.pinned, short=ids)
-        return self._shorted
+            self._short_pinned = found.pinned
+        if wide not in self._shorted:
+            self._shorted[wide] = mna.assemble(self.netlist, self._short_pinned, short=ids,
+                                               wide=wide)
+        return self._shorted[wide]
 
     def values(self, freqs: np.ndarray) -> _Values:
-        """Decide voc, isc, z at every frequency (all zero or all non-zero)."""
+        """Decide voc, isc, z at every frequency (all zero or all non-zero); frequencies where
+        the part impedances span more than ``mna.WIDE_SPAN`` are solved in the wide form."""
+        wide = self.netlist.wide(freqs)
+        if not wide.any():
+            out = self._values(freqs, False)
+        else:
+            out = _Values(freqs.size)
+            for form in (False, True):
+                if (wide == form).any():
+                    out.take(wide == form, self._values(freqs[wide == form], form))
+        _refuse_overflow(freqs, out)
+        return out
+
+    def _values(self, freqs: np.ndarray, wide: bool) -> _Values:
         out = _Values(freqs.size)
         todo = np.ones(freqs.size, dtype=bool)
         failure: SingularCircuitError | None = None
-        if self.open is not None:
-            k = int(self.open.unknown_of_net[self.netlist.index[self.port[0]]])
-            rhs = self.open.rhs(self.port[0])
-            solved = _solve(self.open, freqs, rhs, k)
+        system = self.open(wide)
+        if system is not None:
+            k = int(system.unknown_of_net[self.netlist.index[self.port[0]]])
+            rhs = system.rhs(self.port[0])
+            solved = _solve(system, freqs, rhs, k)
             failure = solved.failure
             voc, z = solved.x[:, 0], solved.x[:, 1]
-            resolved = solved.ok & (np.abs(z) > solved.bound)
+            resolved = solved.ok & (np.abs(z) > solved.bound[:, 1])
             with np.errstate(all="ignore"):
                 out.put(resolved, voc[resolved], voc[resolved] / z[resolved], z[resolved],
-                        True, True)
+                        True, True, (solved.bound[resolved, 0], solved.bound[resolved, 1]))
             todo = ~resolved
             if (solved.ok & todo).any():
                 # z unresolved from 0 while the bound is within the parts' impedances: z = 0
-                zero = solved.ok & todo & (solved.bound <= self.netlist.impedance_range(freqs)[1])
-                out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False)
+                zero = solved.ok & todo & (solved.bound[:, 1]
+                                           <= self.netlist.impedance_range(freqs)[1])
+                out.put(zero, voc[zero], _undefined_ratio(voc[zero]), 0j, True, False,
+                        (solved.bound[zero, 0], solved.bound[zero, 1]))
                 todo &= ~zero
         if todo.any():
-            self._from_short(freqs, todo, out, failure)
+            self._from_short(freqs, todo, out, failure, wide)
         return out
 
     def _from_short(self, freqs: np.ndarray, todo: np.ndarray, out: _Values,
-                    failure: SingularCircuitError | None) -> None:
+                    failure: SingularCircuitError | None, wide: bool) -> None:
         try:
-            system = self.shorted()
+            system = self.shorted(wide)
             solved = _solve(system, freqs[todo], system.rhs(None), system.short)
         except SingularCircuitError as exc:
             raise self._neither(failure, exc) from None
@@ -350,8 +413,8 @@ class _Port:
         isc, y = solved.x[:, 0], -solved.x[:, 1]
         with np.errstate(divide="ignore"):
             y_hi = 1 / self.netlist.impedance_range(freqs[todo])[0]
-        resolved = np.abs(y) > solved.bound
-        open_port = ~resolved & (solved.bound <= y_hi)
+        resolved = np.abs(y) > solved.bound[:, 1]
+        open_port = ~resolved & (solved.bound[:, 1] <= y_hi)
         if not (resolved | open_port).all():
             f = freqs[todo][~(resolved | open_port)][0]
             raise SingularCircuitError(
@@ -361,9 +424,13 @@ class _Port:
         index = np.flatnonzero(todo)
         with np.errstate(all="ignore"):
             z = 1 / y[resolved]
-            out.put(index[resolved], isc[resolved] * z, isc[resolved], z, True, True)
+            # first order: z = 1 / y and voc = isc z carry the errors of isc and y along
+            z_error = solved.bound[resolved, 1] * np.abs(z) ** 2
+            voc_error = solved.bound[resolved, 0] * np.abs(z) + np.abs(isc[resolved]) * z_error
+            out.put(index[resolved], isc[resolved] * z, isc[resolved], z, True, True,
+                    (voc_error, z_error))
         out.put(index[open_port], _undefined_ratio(isc[open_port]), isc[open_port], _INF,
-                False, True)
+                False, True, (math.nan, math.nan))
 
     def _neither(self, failure: SingularCircuitError | None,
                  short_failure: SingularCircuitError | None) -> SingularCircuitError:
@@ -377,7 +444,7 @@ class _Port:
 @dataclass(frozen=True, slots=True, eq=False)
 class _Solved:
     """Two solutions at F frequencies, read at one unknown: ``x[:, 0]`` for the sources,
-    ``x[:, 1]`` for the unit excitation; ``bound`` is the error bound on ``x[:, 1]``."""
+    ``x[:, 1]`` for the unit excitation; ``bound[:, j]`` is the error bound on ``x[:, j]``."""
 
     x: np.ndarray
     bound: np.ndarray
@@ -394,7 +461,7 @@ def _solve(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int) -> _S
 def _solve_sparse(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int) -> _Solved:
     """One SuperLU factorization per frequency, solving both right-hand sides."""
     x = np.full((freqs.size, 2), _NAN)
-    bound = np.full(freqs.size, math.inf)
+    bound = np.full((freqs.size, 2), math.inf)
     ok = np.zeros(freqs.size, dtype=bool)
     failure = None
     both = np.column_stack((system.b, rhs))
@@ -407,7 +474,7 @@ def _solve_sparse(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int
             failure = exc
             continue
         x[i] = sol[k]
-        bound[i] = factor.error_bound(sol[:, 1], rhs, adjoint)
+        bound[i] = [factor.error_bound(sol[:, j], both[:, j], adjoint) for j in (0, 1)]
         ok[i] = True
     return _Solved(x, bound, ok, failure)
 
@@ -431,28 +498,40 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
         stack[:, m.row, m.col] += s[part, None] * m.data
         try:
             with np.errstate(all="ignore"):
-                x[part] = np.linalg.solve(stack, both)
+                x[part] = _dense_solve(stack, both, system.refined)
                 if adjoint is not None:
-                    adjoint[part] = np.linalg.solve(stack.transpose(0, 2, 1), rhs)
+                    adjoint[part] = _dense_solve(stack.transpose(0, 2, 1), rhs[:, None],
+                                                 system.refined)[..., 0]
         except np.linalg.LinAlgError:
             ok[part] = False
     ok &= np.isfinite(x).all(axis=(1, 2))
     if adjoint is not None:
         ok &= np.isfinite(adjoint).all(axis=1)
-    unit = x[:, :, 1]
-    with np.errstate(all="ignore"):
-        gx, mx = (g @ unit.T).T, (m @ unit.T).T
-        residual = rhs - gx - s[:, None] * mx
-        abs_ax = (abs(g) @ np.abs(unit).T).T + np.abs(s)[:, None] * (abs(m) @ np.abs(unit).T).T
     gamma = mna.rounding((g + m).tocsc())
-    bound = mna.bound(unit if adjoint is None else adjoint, residual, abs_ax, rhs, gamma)
-    solved = _Solved(x[:, k, :], np.where(ok, bound, math.inf), ok, None)
+    bound = np.empty((freqs.size, 2))
+    for j, b in enumerate(both.T):
+        col = x[:, :, j]
+        with np.errstate(all="ignore"):
+            residual = b - (g @ col.T).T - s[:, None] * (m @ col.T).T
+            abs_ax = (abs(g) @ np.abs(col).T).T + np.abs(s)[:, None] * (abs(m) @ np.abs(col).T).T
+        bound[:, j] = mna.bound(x[:, :, 1] if adjoint is None else adjoint, residual, abs_ax, b,
+                                gamma)
+    solved = _Solved(x[:, k, :], np.where(ok[:, None], bound, math.inf), ok, None)
     if ok.all():
         return solved
     # A chunk with a singular matrix: those frequencies again, one factorization each
     redo = _solve_sparse(system, freqs[~ok], rhs, k)
     solved.x[~ok], solved.bound[~ok], solved.ok[~ok] = redo.x, redo.bound, redo.ok
     return _Solved(solved.x, solved.bound, solved.ok, redo.failure)
+
+
+def _dense_solve(stack: np.ndarray, rhs: np.ndarray, refined: bool) -> np.ndarray:
+    """``stack^{-1} rhs`` for a stack of matrices and one (n, k) right-hand side; refined by
+    one step with the residual as :meth:`engine.mna.Factor.solve` does."""
+    x = np.linalg.solve(stack, rhs)
+    if refined:
+        x = x + np.linalg.solve(stack, rhs - stack @ x)
+    return x
 
 
 # -- public functions ---------------------------------------------------------------------------
@@ -495,7 +574,8 @@ def _port_of(cut: topology.Cut, dc: bool) -> _Port:
 def _equivalent_of(cut: topology.Cut, f: float) -> Equivalent:
     values = _port_of(cut, f == 0).values(np.array([f]))
     return Equivalent(cut.port, f, complex(values.voc[0]), complex(values.isc[0]),
-                      complex(values.z[0]), bool(values.thevenin[0]), bool(values.norton[0]))
+                      complex(values.z[0]), bool(values.thevenin[0]), bool(values.norton[0]),
+                      float(values.voc_error[0]), float(values.z_error[0]))
 
 
 def sweep(circuit: Circuit, region: Collection[str], freqs: Iterable[float],
@@ -525,7 +605,7 @@ def sweep(circuit: Circuit, region: Collection[str], freqs: Iterable[float],
         where = (f == 0) if dc else (f > 0)
         if where.any():
             out.take(where, _port_of(cut, dc).values(f[where]))
-    arrays = (f, out.voc, out.isc, out.z, out.thevenin, out.norton)
+    arrays = (f, out.voc, out.isc, out.z, out.thevenin, out.norton, out.voc_error, out.z_error)
     for a in arrays:
         a.flags.writeable = False
     return Sweep(cut.port, *arrays)
@@ -700,7 +780,8 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
                       ) -> tuple[np.ndarray, complex, float, float]:
     """Voltages of ``nets`` and the port current, with ``inner`` fed through the probe, and the
     scales of the whole solution: the largest net voltage (at least the largest current times
-    the smallest part impedance) and the largest current (a branch's or a current source's)."""
+    the smallest part impedance) and the largest current (a branch's or a current source's, at
+    least the largest voltage over the largest part impedance)."""
     moved = [replace(p, nodes=tuple(probe.side if n == probe.net else n for n in p.nodes))
              for p in inner]
     wire = Part(probe.name, "resistor", (probe.net, probe.side), 0.0)
@@ -710,7 +791,7 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
         found = topology.islands(netlist, dc, anchors)
         found.raise_problems()
         topology.check_voltage_loops(netlist, dc)
-        system = mna.assemble(netlist, found.pinned)
+        system = mna.assemble(netlist, found.pinned, wide=bool(netlist.wide(np.array([f]))[0]))
         x = mna.Factor(system, f).solve(system.b)
     except SingularCircuitError as exc:
         raise SingularCircuitError(f"{what} has no unique solution: {exc}") from None
@@ -723,6 +804,11 @@ def _outside_solution(outside: list[Part], inner: list[Part], probe: _Probe, f: 
     peak_i = max(float(np.abs(branch_part).max(initial=0)), abs(current),
                  float(sources.max(initial=0)))
     # a current circulating in wires leaves every voltage at rounding level: the voltages
-    # such a current makes across the smallest part impedance are the scale of that noise
-    smallest = float(netlist.impedance_range(np.array([f]))[0][0])
-    return volts, current, max(float(np.abs(node_part).max(initial=0)), peak_i * smallest), peak_i
+    # such a current makes across the smallest part impedance are the scale of that noise;
+    # and where every current is rounding noise (an open outside, say), the currents that the
+    # voltages drive through the largest part impedance are the scale of that noise
+    smallest, largest = (float(z[0]) for z in netlist.impedance_range(np.array([f])))
+    peak_v = float(np.abs(node_part).max(initial=0))
+    with np.errstate(all="ignore"):
+        through_largest = peak_v / largest if math.isfinite(largest) else 0.0
+    return volts, current, max(peak_v, peak_i * smallest), max(peak_i, through_largest)

@@ -43,8 +43,8 @@ from .errors import CircuitError, SingularCircuitError
 from .units import format_eng
 
 __all__ = [
-    "EPS", "Branches", "Factor", "Group", "Netlist", "Singular", "System", "assemble", "bound",
-    "describe_freq", "rounding",
+    "EPS", "WIDE_SPAN", "Branches", "Factor", "Group", "Netlist", "Singular", "System", "assemble",
+    "bound", "describe_freq", "rounding",
 ]
 
 EPS = float(np.finfo(float).eps)
@@ -58,6 +58,12 @@ _SOURCES = ("voltage_source", "current_source")
 #: Group-2 parts (a branch-current unknown) always; any other part whose current controls a
 #: CCVS or CCCS, and a 0 Ω resistor, is one too.
 _ALWAYS_BRANCH = ("voltage_source", "vcvs", "ccvs", "inductor", "opamp")
+#: ... and in a system assembled for wide impedance spans (:class:`Branches`).
+_WIDE_BRANCH = (*_ALWAYS_BRANCH, "resistor", "impedance", "capacitor")
+#: Impedance spans (largest / smallest part impedance at one frequency) beyond this are solved
+#: with the wide branches: past it, a node sum of admittances keeps fewer than 10 of its 16
+#: digits (docs/method.md).
+WIDE_SPAN = 1e6
 
 
 def describe_freq(freq: float) -> str:
@@ -274,12 +280,21 @@ class Netlist:
         """True when a controlled source or op-amp makes the system non-reciprocal."""
         return any(kind in self.groups for kind in ("vcvs", "vccs", "ccvs", "cccs", "opamp"))
 
-    def branches(self) -> Branches:
-        """The group-2 parts (kept in ``memo``: a pure function of the parts)."""
-        found = self.memo.get("branches")
+    def branches(self, wide: bool = False) -> Branches:
+        """The group-2 parts (kept in ``memo``: a pure function of the parts); ``wide``: every
+        resistor, impedance and capacitor too (see :class:`Branches`)."""
+        key = ("branches", wide)
+        found = self.memo.get(key)
         if found is None:
-            found = self.memo["branches"] = Branches(self)
+            found = self.memo[key] = Branches(self, wide)
         return found
+
+    def wide(self, freqs: np.ndarray) -> np.ndarray:
+        """Per frequency: True where the part impedances span more than ``WIDE_SPAN``, so the
+        system is to be assembled with the wide branches (:class:`Branches`)."""
+        lo, hi = self.impedance_range(freqs)
+        with np.errstate(invalid="ignore", over="ignore"):
+            return (lo > 0) & np.isfinite(hi) & (hi > WIDE_SPAN * lo)
 
     def impedance_range(self, freqs: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Smallest and largest non-zero impedance magnitude (ohms) of the parts at each freq.
@@ -380,13 +395,20 @@ def _picked(items: list[str], rows: np.ndarray | None) -> list[str]:
 class Branches:
     """Group-2 parts of a netlist (those with a branch-current unknown), numbered in the
     netlist's part order: ``offset[i]`` is the i-th part's offset among the branch unknowns,
-    -1 where it has none; ``count`` how many there are."""
+    -1 where it has none; ``count`` how many there are.
 
-    __slots__ = ("_offsets", "count", "netlist", "offset")
+    ``wide``: every resistor, impedance and capacitor has a branch current too. Where part
+    impedances span many decades, a tiny impedance stamped as an admittance is summed at a node
+    with tiny admittances whose digits the sum loses, and its current is the difference of two
+    nearly equal node voltages; as a branch its current is an unknown of its own and its row
+    ``V(a) - V(b) - Z I = 0`` (a capacitor's ``s C (V(a) - V(b)) - I = 0``) keeps every digit.
+    """
 
-    def __init__(self, netlist: Netlist) -> None:
-        self.netlist = netlist
-        flags = kind_mask(_ALWAYS_BRANCH).take(netlist.codes)
+    __slots__ = ("_offsets", "count", "netlist", "offset", "wide")
+
+    def __init__(self, netlist: Netlist, wide: bool = False) -> None:
+        self.netlist, self.wide = netlist, wide
+        flags = kind_mask(_WIDE_BRANCH if wide else _ALWAYS_BRANCH).take(netlist.codes)
         if netlist.has_controlled:
             flags |= netlist.controlling()
         wires = netlist["resistor"]
@@ -499,8 +521,9 @@ class System:
     """
 
     def __init__(self, netlist: Netlist, unknown_of_net: np.ndarray, n_nodes: int,
-                 short: int | None, g: _Entries, m: _Entries, b: np.ndarray) -> None:
-        self.netlist = netlist
+                 short: int | None, g: _Entries, m: _Entries, b: np.ndarray,
+                 branches: Branches) -> None:
+        self.netlist, self.branches = netlist, branches
         self.unknown_of_net = unknown_of_net
         self.n_nodes = n_nodes
         self.short = short
@@ -508,7 +531,10 @@ class System:
         self.b = b
         self._g, self._m = g, m
         self._layouts: dict[tuple[bool, ...], tuple[np.ndarray, ...]] = {}
-        self.symmetric = not netlist.has_dependent
+        # a capacitor's branch row holds s C where its incidence column holds 1
+        self.symmetric = not netlist.has_dependent and not (branches.of("capacitor") >= 0).any()
+        #: Solves are refined by one step with the residual (see :meth:`Factor.solve`).
+        self.refined = branches.wide
         self._branch_of: dict[str, int] | None = None
         self._last: tuple[float, sp.csc_matrix] | None = None
 
@@ -516,7 +542,7 @@ class System:
     def branch_of(self) -> dict[str, int]:
         """Branch-current unknown of each group-2 part, by name."""
         if self._branch_of is None:
-            offsets = self.netlist.branches().offset_of
+            offsets = self.branches.offset_of
             self._branch_of = {name: self.n_nodes + k for name, k in offsets.items()}
         return self._branch_of
 
@@ -629,11 +655,12 @@ class System:
 
 
 def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
-             short: tuple[int, int] | None = None) -> System:
+             short: tuple[int, int] | None = None, wide: bool = False) -> System:
     """Assemble the MNA system of ``netlist`` with the net ids in ``pinned`` as references.
 
     ``short``: net ids (plus, minus) joined by an ideal 0 V branch (the shorted port), whose
     current (from plus through the short into minus) is the unknown ``System.short``.
+    ``wide``: every resistor, impedance and capacitor with a branch current (:class:`Branches`).
     Raises :class:`~engine.errors.SingularCircuitError` where a CCVS/CCCS names a controller
     that is not among the parts analysed, or a coupling an inductor that is not.
     """
@@ -645,7 +672,7 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
     n_nodes = int(np.count_nonzero(is_node))
     u[:n_nets][is_node] = np.arange(n_nodes, dtype=np.int32)
 
-    branches = netlist.branches()
+    branches = netlist.branches(wide)
     size = n_nodes + branches.count
     short_index = size if short is not None else None
     size += short is not None
@@ -662,13 +689,14 @@ def assemble(netlist: Netlist, pinned: Sequence[int] | np.ndarray,
             target.admittance(nodes[:, 0], nodes[:, 1], values if target is m else 1 / values)
     _stamp_by_table(netlist, branches, u, n_nodes, g, m, b)
     if "coupling" in netlist.groups:
-        _stamp_couplings(netlist, n_nodes, m)
+        _stamp_couplings(netlist, branches, n_nodes, m)
     if short is not None:  # a 0 V branch from plus to minus, stamped as a voltage source's
         operands = [int(u[short[0]]), int(u[short[1]]), -1, -1, short_index, -1, -1]
         for _, row, col, (one, _) in _SERIES:
             g.add((np.array([operands[row]]),), (np.array([operands[col]]),),
                   (np.array([float(one)]),))
-    return System(netlist, u[:n_nets], n_nodes, short_index, g.entries(), m.entries(), b)
+    return System(netlist, u[:n_nets], n_nodes, short_index, g.entries(), m.entries(), b,
+                  branches)
 
 
 # -- the stamp table ----------------------------------------------------------------------------
@@ -778,7 +806,7 @@ def _stamp_by_table(netlist: Netlist, branches: Branches, u: np.ndarray, n_nodes
     operands[:, _OWN] = np.where(own >= 0, own + n_nodes, -1)
     operands[:, _CONTROL:] = -1
     if netlist.has_controlled:
-        controls = _control_indices(netlist, n_nodes)
+        controls = _control_indices(netlist, branches, n_nodes)
         for kind in _CONTROLLED:
             span = netlist[kind].span
             start = int(np.searchsorted(sel, span.start))
@@ -800,9 +828,10 @@ def _stamp_by_table(netlist: Netlist, branches: Branches, u: np.ndarray, n_nodes
         target.add((rows,), (cols,), (weights,))
 
 
-def _control_indices(netlist: Netlist, n_nodes: int) -> dict[str, np.ndarray]:
+def _control_indices(netlist: Netlist, branches: Branches, n_nodes: int
+                     ) -> dict[str, np.ndarray]:
     """For the CCVS and the CCCS, the branch unknown of each one's controlling part."""
-    by_row = netlist.branches().by_row()
+    by_row = branches.by_row()
     result = {}
     for kind in _CONTROLLED:
         offsets = by_row[netlist.referred(kind)[:, 0]]
@@ -822,7 +851,8 @@ def _sources_complex(netlist: Netlist) -> bool:
                for kind in ("voltage_source", "current_source"))
 
 
-def _stamp_couplings(netlist: Netlist, n_nodes: int, m: _Triplets) -> None:
+def _stamp_couplings(netlist: Netlist, branches: Branches, n_nodes: int, m: _Triplets
+                     ) -> None:
     group, inductors = netlist["coupling"], netlist["inductor"]
     # per row of the columns (and a spare -1 for a missing part): position among the inductors
     position = _filled(len(netlist.columns) + 1, -1, np.intp)
@@ -840,7 +870,7 @@ def _stamp_couplings(netlist: Netlist, n_nodes: int, m: _Triplets) -> None:
         raise CircuitError(f"{name} couples inductors of opposite signs; M = k sqrt(L1 L2) needs "
                            "both inductances of one sign")
     mutual = -group.values * np.sqrt(product)
-    k1, k2 = (n_nodes + netlist.branches().of("inductor").take(at[:, i]) for i in (0, 1))
+    k1, k2 = (n_nodes + branches.of("inductor").take(at[:, i]) for i in (0, 1))
     m.add((k1, k2), (k2, k1), (mutual, mutual))
 
 
@@ -903,13 +933,22 @@ class Factor:
             raise Singular(system, freq, self.matrix) from None
 
     def solve(self, rhs: np.ndarray, transposed: bool = False) -> np.ndarray:
-        """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k)."""
+        """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k); refined by one step
+        where the system is in the wide form."""
         data = rhs.astype(self.matrix.dtype if not np.iscomplexobj(rhs) else complex)
         if np.iscomplexobj(data) and not np.iscomplexobj(self.matrix.data):
             # SuperLU solves in the factor's own dtype: real factor, complex rhs in two parts
             return self.solve(data.real, transposed) + 1j * self.solve(data.imag, transposed)
+        trans = "T" if transposed else "N"
         try:  # (SuperLU's solve raises; it neither warns nor heeds NumPy's error state)
-            x = self._lu.solve(data, trans="T" if transposed else "N")
+            x = self._lu.solve(data, trans=trans)
+            if self.system.refined:
+                # One step of refinement with the residual: the wide form's rows mix scales,
+                # where the pivots SuperLU picks can leave an error well above the rounding
+                # of the data; one step brings it back (docs/method.md).
+                a = self.matrix.T if transposed else self.matrix
+                with np.errstate(all="ignore"):
+                    x = x + self._lu.solve(data - a @ x, trans=trans)
         except (RuntimeError, ValueError, ArithmeticError):
             raise Singular(self.system, self.freq, self.matrix) from None
         if not np.isfinite(x).all():

@@ -499,3 +499,48 @@ def test_a_purely_reactive_z_is_named_with_a_capital_z() -> None:
     c.resistor("RL", "a", GROUND, 1)
     got = equivalent(c, {"V1", "C1"}, ("a", GROUND), 1e3).max_power()
     assert got.reason.startswith("no finite maximum: Z is purely reactive")
+
+
+def _source_behind(volts: float, ohms: float) -> Circuit:
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, volts)
+    c.resistor("R1", "in", "a", ohms)
+    c.capacitor("C1", "a", GROUND, 1e-6)
+    return c
+
+
+def test_available_power_beyond_double_range_is_refused_with_a_reason() -> None:
+    # at DC Voc^2 / (4 R) for 1e160 V behind 1 kΩ is 2.5e316 W, past the largest double (common
+    # practice: IEEE 754 binary64 tops out near 1.8e308)
+    c = _source_behind(1e160, 1e3)
+    found = equivalent(c, set(c.names), ("a", GROUND)).max_power()
+    assert found.power is None and "range of double precision" in found.reason
+
+
+def test_available_power_of_a_tiny_impedance_is_finite() -> None:
+    # 1 V behind 1e-300 Ω at DC: Voc^2 / (4 R) = 2.5e299 W (common practice: maximum power
+    # transfer); into R = |z| the same (matched)
+    c = _source_behind(1.0, 1e-300)
+    found = equivalent(c, set(c.names), ("a", GROUND)).max_power()
+    assert found.power == pytest.approx(2.5e299, rel=1e-12)
+    assert found.resistive_power == pytest.approx(2.5e299, rel=1e-12)
+
+
+def test_realisation_outside_double_range_is_refused_by_name() -> None:
+    # at 1e-300 Hz, z = 1 kΩ - j w C (1 kΩ)^2 = 1 kΩ - j 6.3e-300 Ω (common practice: R || C
+    # to first order in w), so the series capacitor 1 / (w |X|) is about 2.5e597 F: no double
+    c = _source_behind(1.0, 1e3)
+    eq = equivalent(c, set(c.names), ("a", GROUND), 1e-300)
+    assert eq.has_norton and cmath.isfinite(eq.isc)
+    with pytest.raises(CircuitError, match="capacitor outside the range of double precision"):
+        eq.realisation()
+
+
+def test_a_frequency_whose_impedances_overflow_is_refused_by_name() -> None:
+    # 1 µF at 1e-310 Hz: 1 / (w C) = 1.6e315 Ω, past the largest double (common practice:
+    # IEEE 754 binary64 tops out near 1.8e308); no form may be claimed with a quantity of nan
+    c = Circuit()
+    c.current_source("I1", GROUND, "a", 1)
+    c.capacitor("C1", "a", GROUND, 1e-6)
+    with pytest.raises(CircuitError, match="1e-310 Hz some part impedances overflow"):
+        equivalent(c, set(c.names), ("a", GROUND), 1e-310)

@@ -141,9 +141,30 @@ def port_reference(parts: Iterable[ReferencePart], port: tuple[str, str],
         driven = _solve(parts, s, port, extra="drive", sources=False)
         assert driven is not None  # same matrix as the open port plus one decoupled unknown
         z = driven.across(port)
-    return PortReference(voc, isc, z,
-                         voltage_scale=0.0 if opened is None else _largest(opened.volt.values()),
+    # A current circulating through wires leaves the node voltages at rounding level; what it
+    # drives across the smallest part impedance is the scale of that rounding.
+    currents = [*(opened.amp.values() if opened else ()), *(shorted.amp.values() if shorted
+                                                            else ())]
+    voltage_scale = max(0.0 if opened is None else _largest(opened.volt.values()),
+                        _largest(currents) * _smallest_impedance(parts, s))
+    return PortReference(voc, isc, z, voltage_scale=voltage_scale,
                          current_scale=0.0 if shorted is None else _largest(shorted.amp.values()))
+
+
+def _smallest_impedance(parts: Sequence[ReferencePart], s: sympy.Expr) -> float:
+    """The smallest non-zero impedance magnitude of the resistors, impedances, capacitors and
+    inductors at ``s`` (0 where there is none)."""
+    found = []
+    for part in parts:
+        value = abs(_complex(exact(part.value)))
+        w = abs(_complex(s))
+        if part.kind in ("resistor", "impedance"):
+            found.append(value)
+        elif part.kind == "capacitor" and w and value:
+            found.append(1 / (w * value))
+        elif part.kind == "inductor" and w:
+            found.append(w * value)
+    return min((z for z in found if z > 0), default=0.0)
 
 
 def _branches(parts: Sequence[ReferencePart], port: tuple[str, str],

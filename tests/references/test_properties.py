@@ -49,6 +49,18 @@ HENRIES = st.sampled_from([100e-6, 400e-6, 2.5e-3, 10e-3])
 GAINS = st.sampled_from([-20.0, -2.0, -0.5, 0.5, 2.0, 20.0])
 SIEMENS = st.sampled_from([-10e-3, -1e-3, 1e-3, 10e-3])
 PHASORS = st.builds(complex, st.integers(-5, 5), st.integers(-5, 5)).filter(lambda v: v != 0)
+
+
+@dataclass(frozen=True)
+class Ranges:
+    """Where a grown region draws its part values from."""
+
+    ohms: st.SearchStrategy[float]
+    farads: st.SearchStrategy[float]
+    henries: st.SearchStrategy[float]
+
+
+NARROW = Ranges(OHMS, FARADS, HENRIES)
 PASSIVE_MOTIFS = ("resistor", "capacitor", "inductor", "coupled", "wire")
 ALL_MOTIFS = (*PASSIVE_MOTIFS, "impedance", "voltage_source", "current_source", "vcvs", "vccs",
               "ccvs", "cccs", "opamp")
@@ -61,6 +73,7 @@ class Grown:
     circuit: Circuit = field(default_factory=Circuit)
     nets: list[str] = field(default_factory=lambda: ["gnd"])
     port: tuple[str, str] = ("n1", "gnd")
+    ranges: Ranges = NARROW
     counter: itertools.count = field(default_factory=lambda: itertools.count(1))
 
     def name(self, prefix: str) -> str:
@@ -73,16 +86,17 @@ class Grown:
 
 @st.composite
 def regions(draw: st.DrawFn, motifs: tuple[str, ...] = ALL_MOTIFS,
-            floating_port: bool = True) -> Grown:
-    """A well-posed random region and a port on it (see the module docstring)."""
-    g = Grown()
+            floating_port: bool = True, ranges: Ranges = NARROW) -> Grown:
+    """A well-posed random region and a port on it (see the module docstring), its values
+    drawn from ``ranges``."""
+    g = Grown(ranges=ranges)
     c = g.circuit
     for i in range(draw(st.integers(2, 5))):
         net, other = f"n{i + 1}", draw(st.sampled_from(g.nets))
         if "wire" in motifs and draw(st.integers(0, 4)) == 0:
             c.resistor(g.name("W"), net, other, 0)
         else:
-            c.resistor(g.name("R"), net, other, draw(OHMS))
+            c.resistor(g.name("R"), net, other, draw(ranges.ohms))
         g.nets.append(net)
     for motif in draw(st.lists(st.sampled_from(motifs), max_size=6)):
         _add_motif(draw, g, motif)
@@ -100,24 +114,25 @@ def _add_motif(draw: st.DrawFn, g: Grown, motif: str) -> None:
 
     def behind_resistor() -> str:  # a fresh net joined to b through a resistor
         x = g.name("x")
-        c.resistor(g.name("R"), x, b, draw(OHMS))
+        c.resistor(g.name("R"), x, b, draw(g.ranges.ohms))
         return x
 
     if motif == "resistor":
-        c.resistor(g.name("R"), a, b, draw(OHMS))
+        c.resistor(g.name("R"), a, b, draw(g.ranges.ohms))
     elif motif == "wire":  # may close a loop of wires: a singular draw, rejected
         c.resistor(g.name("W"), a, b, 0)
     elif motif == "capacitor":
-        c.capacitor(g.name("C"), a, b, draw(FARADS))
+        c.capacitor(g.name("C"), a, b, draw(g.ranges.farads))
     elif motif in ("inductor", "coupled"):
-        first = c.inductor(g.name("L"), a, behind_resistor(), draw(HENRIES))
+        first = c.inductor(g.name("L"), a, behind_resistor(), draw(g.ranges.henries))
         if motif == "coupled":
             a, b = sense
-            second = c.inductor(g.name("L"), a, behind_resistor(), draw(HENRIES))
+            second = c.inductor(g.name("L"), a, behind_resistor(), draw(g.ranges.henries))
             k = draw(st.sampled_from([-0.95, -0.5, 0.3, 0.8, 0.99]))
             c.coupling(g.name("CP"), first.name, second.name, k)
     elif motif == "impedance":
-        c.impedance(g.name("Z"), a, b, complex(draw(OHMS), draw(st.sampled_from([-1e3, 0, 50]))))
+        c.impedance(g.name("Z"), a, b,
+                    complex(draw(g.ranges.ohms), draw(st.sampled_from([-1e3, 0, 50]))))
     elif motif == "voltage_source":
         c.voltage_source(g.name("V"), a, behind_resistor(), draw(PHASORS))
     elif motif == "current_source":
@@ -134,9 +149,9 @@ def _add_motif(draw: st.DrawFn, g: Grown, motif: str) -> None:
     elif motif == "opamp":  # a non-inverting stage from net a, its output through a resistor
         n, o = g.name("x"), g.name("x")
         c.opamp(g.name("U"), a, n, o)
-        c.resistor(g.name("R"), n, "gnd", draw(OHMS))
-        c.resistor(g.name("R"), n, o, draw(OHMS))
-        c.resistor(g.name("R"), o, b, draw(OHMS))
+        c.resistor(g.name("R"), n, "gnd", draw(g.ranges.ohms))
+        c.resistor(g.name("R"), n, o, draw(g.ranges.ohms))
+        c.resistor(g.name("R"), o, b, draw(g.ranges.ohms))
 
 
 def with_load(g: Grown, port: tuple[str, str] | None = None) -> Circuit:
@@ -361,4 +376,8 @@ def test_loaded_port_voltage_is_the_divider_of_the_equivalent(g: Grown, freq: fl
     c.resistor("LOAD", *g.port, 1e3)
     loaded = solved(g, freq, c, g.port, {*g.region, "ZL"})
     want = eq.voc * load / (eq.z + load)
-    assert _close(loaded.voc, want, floor=voltage_scale(g, freq))
+    # where every voltage cancels to rounding level, the engine's reported error bounds are
+    # the measure of that rounding
+    noise = loaded.voc_error + abs(load / (eq.z + load)) * eq.voc_error
+    assert _close(loaded.voc, want, floor=voltage_scale(g, freq)) \
+        or abs(loaded.voc - want) <= noise
