@@ -102,7 +102,8 @@ def port_solution(cut: topology.Cut, f: float, what: str) -> PortSolution:
     Where z stands clear of its error bound (the equivalent's own test, engine/equivalent.py)
     the equivalent is read from this one factorization; otherwise :func:`engine.equivalent`
     decides it."""
-    system = _port_of(cut, f == 0).open
+    # the nodal form: the stamps' derivatives (engine/stamps.py) are written for it
+    system = _port_of(cut, f == 0).open(False)
     if system is None:
         raise _no_thevenin(f, what)
     unit = system.rhs(cut.port[0])

@@ -526,13 +526,24 @@ def test_available_power_of_a_tiny_impedance_is_finite() -> None:
     assert found.resistive_power == pytest.approx(2.5e299, rel=1e-12)
 
 
-def test_realisation_outside_double_range_is_refused_by_name() -> None:
+def test_realisation_at_an_absurdly_low_frequency_never_divides_by_zero() -> None:
     # at 1e-300 Hz, z = 1 kΩ - j w C (1 kΩ)^2 = 1 kΩ - j 6.3e-300 Ω (common practice: R || C
-    # to first order in w), so the series capacitor 1 / (w |X|) is about 2.5e597 F: no double
+    # to first order in w): the reactance is far below z's rounding, so z reads as 1 kΩ
     c = _source_behind(1.0, 1e3)
     eq = equivalent(c, set(c.names), ("a", GROUND), 1e-300)
     assert eq.has_norton and cmath.isfinite(eq.isc)
-    with pytest.raises(CircuitError, match="capacitor outside the range of double precision"):
+    got = eq.realisation()
+    assert got.kind is None and got.resistance == pytest.approx(1e3, rel=1e-12)
+
+
+def test_realisation_outside_double_range_is_refused_by_name() -> None:
+    # an impedance of j 1e10 Ω at 1e-300 Hz is an inductance X / w = 1.6e309 H, past the
+    # largest double (common practice: IEEE 754 binary64 tops out near 1.8e308)
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 1.0)
+    c.impedance("Z1", "in", "a", 1e10j)
+    eq = equivalent(c, set(c.names), ("a", GROUND), 1e-300)
+    with pytest.raises(CircuitError, match="inductor outside the range of double precision"):
         eq.realisation()
 
 

@@ -153,10 +153,14 @@ def port_reference(parts: Iterable[ReferencePart], port: tuple[str, str],
 
 def _smallest_impedance(parts: Sequence[ReferencePart], s: sympy.Expr) -> float:
     """The smallest non-zero impedance magnitude of the resistors, impedances, capacitors and
-    inductors at ``s`` (0 where there is none)."""
+    inductors at ``s`` (0 where there is none); a part given as a symbol (to differentiate
+    in it) has no magnitude and is passed over."""
     found = []
     for part in parts:
-        value = abs(_complex(exact(part.value)))
+        held = exact(part.value)
+        if getattr(held, "free_symbols", None):
+            continue
+        value = abs(_complex(held))
         w = abs(_complex(s))
         if part.kind in ("resistor", "impedance"):
             found.append(value)
