@@ -42,7 +42,7 @@ from portcut.engine.schematic.reduction import (
     expand_block,
     region_part_names,
 )
-from portcut.engine.units import parse_frequency
+from portcut.engine.solve.units import parse_frequency
 
 from .workbench import Workbench
 

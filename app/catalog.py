@@ -6,9 +6,9 @@ from __future__ import annotations
 import itertools
 from dataclasses import dataclass
 
-from portcut.engine.circuit import GROUND
 from portcut.engine.schematic import Document, Element, Junction, NetLabel, PlacedPart
-from portcut.engine.symbols import Point
+from portcut.engine.schematic.symbols import Point
+from portcut.engine.solve.circuit import GROUND
 
 __all__ = ["ENTRIES", "GROUPS", "Entry", "entry", "next_label_name", "prototype"]
 
@@ -16,7 +16,8 @@ __all__ = ["ENTRIES", "GROUPS", "Entry", "entry", "next_label_name", "prototype"
 @dataclass(frozen=True)
 class Entry:
     """One placeable thing. ``key`` is a part kind or "ground", "label", "junction";
-    ``icon`` the engine.symbols kind its icon shows ("" for a junction, drawn as a dot)."""
+    ``icon`` the engine.schematic.symbols kind its icon shows ("" for a junction, drawn as a
+    dot)."""
 
     key: str
     title: str

@@ -24,7 +24,7 @@ from portcut.engine.schematic import (
     Region,
     Wire,
 )
-from portcut.engine.symbols import Point
+from portcut.engine.schematic.symbols import Point
 
 from .sheet import SheetIndex, element_pins
 

@@ -14,15 +14,15 @@ import re
 from collections.abc import Callable
 from dataclasses import dataclass, replace
 
-from portcut.engine.captions import UNITS
-from portcut.engine.devices import DEVICE_KINDS, FORMS, PARAMETERS, SYMBOLS
 from portcut.engine.errors import CircuitError, DocumentError, ValueParseError
-from portcut.engine.measured import fit_table, parse_table
 from portcut.engine.schematic import Block, Document, Element, NetLabel, PlacedPart
+from portcut.engine.schematic.captions import UNITS
 from portcut.engine.schematic.ports import follow_renames
 from portcut.engine.schematic.text import text_problem
-from portcut.engine.tolerance import parse_tolerance
-from portcut.engine.units import VALUE_UNITS, implausible, parse_value
+from portcut.engine.solve.devices import DEVICE_KINDS, FORMS, PARAMETERS, SYMBOLS
+from portcut.engine.solve.measured import fit_table, parse_table
+from portcut.engine.solve.tolerance import parse_tolerance
+from portcut.engine.solve.units import VALUE_UNITS, implausible, parse_value
 
 __all__ = ["QUANTITY", "Field", "fields_for"]
 

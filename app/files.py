@@ -13,11 +13,11 @@ from pathlib import Path
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtWidgets import QFileDialog, QWidget
 
-from portcut.engine.atomic import write_atomically
+from portcut.engine.drawing.svg import document_svg
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Document
+from portcut.engine.schematic.atomic import write_atomically
 from portcut.engine.schematic.fileformat import load, save
-from portcut.engine.svg import document_svg
 
 from . import dialogs
 from .settings import Settings

@@ -1,4 +1,5 @@
-"""The ``portcut`` command: headless sub-commands go to engine.cli, anything else opens the window.
+"""The ``portcut`` command: headless sub-commands go to engine.cli.commands, anything else opens
+the window.
 
 Qt is imported only when the window (or a PNG) is wanted, so ``portcut reduce`` runs on a machine
 with no display and no Qt libraries.
@@ -34,7 +35,7 @@ options:
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the console script; returns the process exit code."""
     args = sys.argv[1:] if argv is None else list(argv)
-    from portcut.engine import cli
+    from portcut.engine.cli import commands as cli
 
     first = args[0] if args else ""
     if first in ("-h", "--help"):

@@ -66,7 +66,7 @@ def run(argv: list[str]) -> int:
         _quiet_platform_notes()
     elif not _has_display():
         print(_NO_DISPLAY, file=sys.stderr)
-        from portcut.engine import cli
+        from portcut.engine.cli import commands as cli
 
         return cli.main(["reduce", *([str(args.file)] if args.file is not None else [])])
 

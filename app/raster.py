@@ -5,7 +5,7 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-from portcut.engine.atomic import write_atomically
+from portcut.engine.schematic.atomic import write_atomically
 
 __all__ = ["PNG_WRITERS", "svg_to_png"]
 

@@ -22,9 +22,9 @@ from pathlib import Path
 
 from PySide6.QtCore import QLockFile, QObject, QTimer, Signal
 
-from portcut.engine.atomic import remove_stale_temporaries, write_atomically
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Document
+from portcut.engine.schematic.atomic import remove_stale_temporaries, write_atomically
 from portcut.engine.schematic.fileformat import load, save
 
 from .workbench import Workbench

@@ -8,10 +8,10 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import replace
 
-from portcut.engine.circuit import GROUND
 from portcut.engine.errors import DocumentError
 from portcut.engine.schematic import Document, Region
 from portcut.engine.schematic.text import text_problem
+from portcut.engine.solve.circuit import GROUND
 
 __all__ = ["ROLES", "net_shown", "port_text", "renamed", "with_port_net"]
 

@@ -17,7 +17,7 @@ from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QPainterPath, QPolygonF
 
 from portcut.engine.schematic import Block, Connectivity, Document, PlacedPart, Region
-from portcut.engine.symbols import placed_bounds
+from portcut.engine.schematic.symbols import placed_bounds
 
 from .sheet import element_pins
 

@@ -1,15 +1,16 @@
-"""Which sources of a sheet are above extra-low voltage (engine.captions holds the limits, the
+"""Which sources of a sheet are above extra-low voltage (engine.schematic.captions holds the
+limits, the
 rule and the caution's wording). Qt-free."""
 
 from __future__ import annotations
 
 from collections.abc import Iterable
 
-from portcut.engine.captions import ELV_AC_RMS, ELV_DC, SAFETY_CAUTION
-from portcut.engine.captions import above_extra_low_voltage as _above
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Document, Element, PlacedPart
-from portcut.engine.units import parse_frequency, parse_value
+from portcut.engine.schematic.captions import ELV_AC_RMS, ELV_DC, SAFETY_CAUTION
+from portcut.engine.schematic.captions import above_extra_low_voltage as _above
+from portcut.engine.solve.units import parse_frequency, parse_value
 
 __all__ = ["AC_RMS_LIMIT", "CAUTION", "DC_LIMIT", "above_extra_low_voltage"]
 

@@ -7,7 +7,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QByteArray, QSettings
 
-from portcut.engine.symbols import STYLES
+from portcut.engine.schematic.symbols import STYLES
 
 from .theme import THEMES
 

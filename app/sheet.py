@@ -14,7 +14,7 @@ from collections.abc import Iterable, Iterator
 from itertools import pairwise
 
 from portcut.engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Wire
-from portcut.engine.symbols import Point, pin_positions
+from portcut.engine.schematic.symbols import Point, pin_positions
 
 __all__ = ["SheetIndex", "element_pins", "segments"]
 
@@ -24,7 +24,8 @@ _BUCKET = 16
 
 
 def element_pins(element: Element) -> tuple[Point, ...]:
-    """Sheet positions of an element's pins (engine.symbols.PINS order); () for wires etc."""
+    """Sheet positions of an element's pins (engine.schematic.symbols.PINS order); () for wires
+    etc."""
     if isinstance(element, PlacedPart):
         return pin_positions(element.kind, element.at, element.rotation, element.mirror)
     if isinstance(element, Block):

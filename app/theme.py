@@ -1,4 +1,5 @@
-"""Canvas colours: the light theme is the shared drawing palette (engine.palette, which the SVG
+"""Canvas colours: the light theme is the shared drawing palette (engine.drawing.palette, which the
+SVG
 writer uses too); the dark theme is its night counterpart, our own.
 
 A calm, neutral sheet with dark strokes; one accent colour kept for regions and blocks, one error
@@ -12,7 +13,7 @@ from dataclasses import dataclass
 
 from PySide6.QtGui import QColor
 
-from portcut.engine.palette import PALETTE
+from portcut.engine.drawing.palette import PALETTE
 
 __all__ = ["DARK", "LIGHT", "THEMES", "Theme", "qcolor"]
 

@@ -11,7 +11,8 @@ Three figures, each printed beside a floor measured in the same run on the same 
   connectivity re-extraction the live analysis then runs (engine.schematic.connectivity.extract
   given the previous result) — against moving one bare item and repainting. A first extraction
   of the whole sheet (no previous result) is printed beside it;
-* captions: placing every caption of the sheet (engine.placement, part of the open) against the
+* captions: placing every caption of the sheet (engine.schematic.placement, part of the open)
+against the
   bare open, and re-placing them after a move (part of the move) against the bare move.
 
 Run from the repository root: ``python3 benchmarks/canvas.py [--parts N]`` (offscreen unless a
@@ -47,10 +48,10 @@ from portcut.app.commands import MoveElements
 from portcut.app.editing import RigidMap, plan_placement
 from portcut.app.workbench import Workbench
 from portcut.engine import GROUND
-from portcut.engine.placement import Placement
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire
 from portcut.engine.schematic.connectivity import extract
 from portcut.engine.schematic.fileformat import dumps, loads
+from portcut.engine.schematic.placement import Placement
 
 VIEW_SIZE = (1400, 900)
 CELL = 8   # grid units per ladder cell

@@ -22,16 +22,9 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 import numpy as np
 
-from portcut.engine import (
-    GROUND,
-    Circuit,
-    equivalent,
-    monte_carlo,
-    sensitivity,
-    tolerance,
-    topology,
-)
-from portcut.engine.topology import forget_netlists
+from portcut.engine import GROUND, Circuit, equivalent, monte_carlo, sensitivity
+from portcut.engine.solve import tolerance, topology
+from portcut.engine.solve.topology import forget_netlists
 
 SAMPLES = 10_000
 

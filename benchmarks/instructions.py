@@ -7,7 +7,7 @@ timed loop only, and callgrind's "Collected" total divided by N is the cost of o
         --toggle-collect=map_next --callgrind-out-file=/dev/null \\
         .venv/bin/python benchmarks/instructions.py first 30
 
-Cases as in ``engine.bench``: ``first`` (nothing kept), ``edit`` (after a value edit of one
+Cases as in ``engine.cli.bench``: ``first`` (nothing kept), ``edit`` (after a value edit of one
 resistor), ``again`` (the same parts). Without valgrind it simply runs the calls.
 """
 
@@ -19,9 +19,9 @@ import shutil
 import subprocess
 from dataclasses import replace
 
-from portcut.engine.bench import FREQ, mixed_circuit
-from portcut.engine.equivalent import equivalent
-from portcut.engine.topology import forget_netlists
+from portcut.engine.cli.bench import FREQ, mixed_circuit
+from portcut.engine.solve.equivalent import equivalent
+from portcut.engine.solve.topology import forget_netlists
 
 
 def main() -> None:

@@ -41,7 +41,7 @@ from portcut.app.settings import Settings
 from portcut.app.window import MainWindow
 from portcut.engine import GROUND, equivalent
 from portcut.engine.schematic import Analysis, Document, NetLabel, PlacedPart, Region, Wire
-from portcut.engine.topology import forget_netlists
+from portcut.engine.solve.topology import forget_netlists
 
 CELLS, PER_ROW, INSIDE = 250, 25, 200
 CELL, ROW = 6, 8  # grid units per cell and per row

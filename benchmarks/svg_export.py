@@ -1,4 +1,5 @@
-"""SVG export benchmark: engine.svg.document_svg on generated ladder sheets of 2,000 and 20,000
+"""SVG export benchmark: engine.drawing.svg.document_svg on generated ladder sheets of 2,000 and
+20,000
 parts (benchmarks/canvas.py's generator: two parts, two wires and a tee per cell), laid out in
 rows of 40 cells and as one long row (every tee on one rail: where a count of the segments
 through each point per line grows with the square of the line's length).
@@ -26,8 +27,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from canvas import generated_sheet
 
+from portcut.engine.drawing.svg import document_svg
 from portcut.engine.schematic import Document
-from portcut.engine.svg import document_svg
 
 
 def _seconds(fn: Callable[[], object], repeats: int) -> float:

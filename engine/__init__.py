@@ -16,8 +16,9 @@ No Qt here. Public names:
 * errors: :class:`CircuitError` and its subclasses.
 """
 
-from .circuit import GROUND, KINDS, Circuit, Part
-from .equivalent import (
+from .errors import CircuitError, CutError, DocumentError, SingularCircuitError, ValueParseError
+from .solve.circuit import GROUND, KINDS, Circuit, Part
+from .solve.equivalent import (
     EquivalenceReport,
     Equivalent,
     Forms,
@@ -29,13 +30,12 @@ from .equivalent import (
     equivalent,
     sweep,
 )
-from .errors import CircuitError, CutError, DocumentError, SingularCircuitError, ValueParseError
-from .eseries import best_pair, nearest, realise
-from .noise import BandNoise, Noise, noise, noise_band
-from .sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
-from .tolerance import MonteCarlo, WorstCase, monte_carlo, parse_tolerance, worst_case
-from .topology import check_cut
-from .units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
+from .solve.eseries import best_pair, nearest, realise
+from .solve.noise import BandNoise, Noise, noise, noise_band
+from .solve.sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
+from .solve.tolerance import MonteCarlo, WorstCase, monte_carlo, parse_tolerance, worst_case
+from .solve.topology import check_cut
+from .solve.units import format_complex, format_eng, format_phasor, parse_frequency, parse_value
 
 __all__ = [
     "GROUND",

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from portcut.engine.circuit import GROUND
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire
+from portcut.engine.solve.circuit import GROUND
 
 
 def ladder(pitch: int, cells: int = 8) -> Document:

@@ -79,6 +79,9 @@ def bad_tree(tmp_path: Path) -> Path:
     (top / "engine" / "__init__.py").write_text("")
     (top / "engine" / "sub" / "__init__.py").write_text("")
     (top / "engine" / "sub" / "view.py").write_text("from portcut.app import window\n")
+    for layer in ("cli", "drawing", "schematic", "solve"):  # the layers the contract names
+        (top / "engine" / layer).mkdir()
+        (top / "engine" / layer / "__init__.py").write_text("")
     (top / "app").mkdir()
     (top / "app" / "__init__.py").write_text("")
     (top / "app" / "window.py").write_text("")
@@ -101,6 +104,17 @@ def test_import_linter_contract_is_kept(tmp_path: Path) -> None:
     result = _run(_LINT, installed_layout(tmp_path))
     assert result.returncode == 0, result.stdout + result.stderr
     assert "engine is independent of Qt and of the app KEPT" in result.stdout
+    assert "engine layers: cli over drawing over schematic over solve KEPT" in result.stdout
+
+
+def test_the_layer_contract_catches_a_solver_that_reads_the_schematic(tmp_path: Path) -> None:
+    layout = installed_layout(tmp_path)
+    topology = layout / "portcut" / "engine" / "solve" / "topology.py"
+    topology.write_text(topology.read_text(encoding="utf-8") + "\nfrom ..schematic import model\n",
+                        encoding="utf-8")
+    result = _run(_LINT, layout)
+    assert result.returncode != 0
+    assert "engine layers: cli over drawing over schematic over solve BROKEN" in result.stdout
 
 
 def test_import_linter_contract_catches_an_engine_to_app_import(bad_tree: Path) -> None:

@@ -13,7 +13,6 @@ from dataclasses import replace
 from PySide6.QtCore import QMimeData, QObject, QPointF, Qt, Signal
 from PySide6.QtGui import QUndoCommand
 
-from portcut.engine.placement import dragged
 from portcut.engine.schematic import (
     Block,
     Connectivity,
@@ -25,7 +24,8 @@ from portcut.engine.schematic import (
     extract,
 )
 from portcut.engine.schematic.connectivity import joined_nets
-from portcut.engine.symbols import Point
+from portcut.engine.schematic.placement import dragged
+from portcut.engine.schematic.symbols import Point
 
 from ..clipboard import copyable, elements_from, mime_for
 from ..commands import AddElements, MoveElements, ReplaceElements, delete_command

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import QPointF
 
-from portcut.engine.symbols import Point
+from portcut.engine.schematic.symbols import Point
 
 __all__ = ["UNIT", "snap", "to_grid", "to_scene"]
 

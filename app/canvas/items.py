@@ -1,11 +1,15 @@
 """Graphics items: one class per kind of document element, each drawing what the document holds.
 
 An item keeps the last version of its element it was given (:meth:`ElementItem.sync`) and
-derives all geometry from it, engine.symbols and the scene's :class:`Look`; it holds no state of
+derives all geometry from it, engine.schematic.symbols and the scene's :class:`Look`; it holds no
+state of
 its own. Items are Qt's native path, text and ellipse items, so painting runs in C++ and Python
-is involved only when an element changes; symbols come from engine.symbols only (painting.py
-turns them into paths), caption texts from engine.captions and where a part's captions go from
-engine.placement (the scene keeps one :class:`~engine.placement.Placement` in the Look).
+is involved only when an element changes; symbols come from engine.schematic.symbols only
+(painting.py
+turns them into paths), caption texts from engine.schematic.captions and where a part's captions go
+from
+engine.schematic.placement (the scene keeps one :class:`~engine.schematic.placement.Placement` in
+the Look).
 """
 
 from __future__ import annotations
@@ -26,13 +30,19 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from portcut.engine.captions import block_caption
-from portcut.engine.devices import DEVICE_KINDS, make
 from portcut.engine.errors import CircuitError
-from portcut.engine.placement import Placement, part_texts
 from portcut.engine.schematic import Block, Element, Junction, NetLabel, PlacedPart, Region, Wire
-from portcut.engine.symbols import FONT_SIZE, JUNCTION_RADIUS, STROKE_WIDTH, Point, TextAnchor
-from portcut.engine.units import parse_value
+from portcut.engine.schematic.captions import block_caption
+from portcut.engine.schematic.placement import Placement, part_texts
+from portcut.engine.schematic.symbols import (
+    FONT_SIZE,
+    JUNCTION_RADIUS,
+    STROKE_WIDTH,
+    Point,
+    TextAnchor,
+)
+from portcut.engine.solve.devices import DEVICE_KINDS, make
+from portcut.engine.solve.units import parse_value
 
 from ..theme import LIGHT, Theme
 from .grid import UNIT, to_scene
@@ -241,7 +251,7 @@ class SymbolItem(ElementItem):
             text.setBrush(_brush(colour if plain else roles.get(role, theme.text)))
 
     def symbol_key(self) -> tuple[str, str]:
-        """(engine.symbols kind, block form)."""
+        """(engine.schematic.symbols kind, block form)."""
         raise NotImplementedError
 
     def orient(self) -> tuple[int, bool]:
@@ -325,7 +335,7 @@ class PartItem(SymbolItem):
 
     def caption_layout(self, anchors: tuple[TextAnchor, ...], rotation: int,
                        mirror: bool) -> list[Caption]:
-        """The captions where engine.placement put them; a part not yet in the document (a
+        """The captions where engine.schematic.placement put them; a part not yet in the document (a
         preview of a new part) has them at its symbol's anchors."""
         placed = None if self.preview else self.look.placement.around(self.element.id)
         if placed is None:

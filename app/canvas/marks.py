@@ -17,7 +17,7 @@ from shiboken6 import isValid
 
 from portcut.engine.schematic import Block, PlacedPart, Region, Wire
 from portcut.engine.schematic.reduction import RegionAnalysis
-from portcut.engine.symbols import MARK_FONT_SIZE, MARK_TEXT, STROKE_WIDTH
+from portcut.engine.schematic.symbols import MARK_FONT_SIZE, MARK_TEXT, STROKE_WIDTH
 
 from ..analysis import LiveAnalysis
 from ..regions import PortMark, body_bounds, port_marks

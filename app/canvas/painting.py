@@ -1,8 +1,8 @@
-"""Qt paths and text layout for engine.symbols drawings; no geometry of its own.
+"""Qt paths and text layout for engine.schematic.symbols drawings; no geometry of its own.
 
 Symbol shapes become cached QPainterPaths in the symbol's local frame (scene units); a placed
 symbol is drawn through :func:`orientation`, and its texts stay upright at the anchors that
-engine.symbols.place and text_baselines give, exactly as the SVG writer sets them.
+engine.schematic.symbols.place and text_baselines give, exactly as the SVG writer sets them.
 """
 
 from __future__ import annotations
@@ -13,7 +13,7 @@ from functools import cache
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QFont, QFontMetricsF, QPainterPath, QTransform
 
-from portcut.engine.symbols import (
+from portcut.engine.schematic.symbols import (
     COUPLING_DOT_RADIUS,
     MARK_FONT_SIZE,
     MARK_TEXT,
@@ -56,7 +56,8 @@ def symbol_paths(kind: str, style: str, form: str = "thevenin") -> SymbolPaths:
         elif isinstance(shape, Arc):
             (cx, cy), r = shape.center, shape.radius
             box = QRectF((cx - r) * UNIT, (cy - r) * UNIT, 2 * r * UNIT, 2 * r * UNIT)
-            # Qt's arc angles, like engine.symbols', are counterclockwise on screen from +x
+            # Qt's arc angles, like engine.schematic.symbols', are counterclockwise on screen from
+            # +x
             strokes.arcMoveTo(box, shape.start_deg)
             strokes.arcTo(box, shape.start_deg, shape.span_deg)
         elif isinstance(shape, Circle):
@@ -80,7 +81,7 @@ def symbol_paths(kind: str, style: str, form: str = "thevenin") -> SymbolPaths:
 
 @cache
 def orientation(rotation: int, mirror: bool) -> QTransform:
-    """The linear map of engine.symbols.transform (mirror x, then turn clockwise) as a
+    """The linear map of engine.schematic.symbols.transform (mirror x, then turn clockwise) as a
     QTransform, for painting a symbol's local paths on the sheet."""
     ex, ey = transform((1, 0), rotation, mirror), transform((0, 1), rotation, mirror)
     return QTransform(ex[0], ex[1], ey[0], ey[1], 0.0, 0.0)
@@ -88,7 +89,8 @@ def orientation(rotation: int, mirror: bool) -> QTransform:
 
 @cache
 def caption_font(size: float) -> QFont:
-    """The font for text of ``size`` grid units (engine.symbols.FONT_SIZE and the like)."""
+    """The font for text of ``size`` grid units (engine.schematic.symbols.FONT_SIZE and the
+    like)."""
     font = QFont()
     font.setPixelSize(round(size * UNIT))
     return font

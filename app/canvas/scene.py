@@ -14,10 +14,10 @@ from PySide6.QtGui import QColor, QPainter, QPen
 from PySide6.QtWidgets import QGraphicsEllipseItem, QGraphicsItem, QGraphicsScene
 
 from portcut.engine.errors import CircuitError
-from portcut.engine.placement import Placement
 from portcut.engine.schematic import Change, Document, Element, PlacedPart
-from portcut.engine.symbols import Point
-from portcut.engine.units import parse_frequency
+from portcut.engine.schematic.placement import Placement
+from portcut.engine.schematic.symbols import Point
+from portcut.engine.solve.units import parse_frequency
 
 from ..sheet import SheetIndex
 from ..theme import qcolor

@@ -23,7 +23,7 @@ from PySide6.QtGui import (
 )
 from PySide6.QtWidgets import QGraphicsView
 
-from portcut.engine.symbols import FONT_SIZE, Point
+from portcut.engine.schematic.symbols import FONT_SIZE, Point
 
 from ..theme import qcolor
 from .grid import UNIT, to_scene

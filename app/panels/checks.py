@@ -13,7 +13,7 @@ from shiboken6 import isValid
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Change, Connectivity, Document, extract
 from portcut.engine.schematic.checks import SheetCheck, circuit_checks, drawing_checks
-from portcut.engine.units import parse_frequency
+from portcut.engine.solve.units import parse_frequency
 
 from ..canvas import Canvas
 from ..canvas.grid import to_scene

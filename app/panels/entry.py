@@ -9,8 +9,8 @@ from collections.abc import Callable
 from PySide6.QtCore import QEvent, QObject, Qt, Signal
 from PySide6.QtWidgets import QLabel, QLineEdit, QVBoxLayout, QWidget
 
+from portcut.engine.drawing.palette import PALETTE
 from portcut.engine.errors import CircuitError
-from portcut.engine.palette import PALETTE
 
 __all__ = ["ERROR_STYLE", "CheckedEntry", "mark_error"]
 

@@ -30,15 +30,15 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from portcut.engine.captions import block_caption, drawn_form
-from portcut.engine.equivalent import EquivalenceReport, Equivalent
 from portcut.engine.errors import CircuitError
-from portcut.engine.mna import describe_freq
 from portcut.engine.schematic import Block, Change, Document, Region
+from portcut.engine.schematic.captions import block_caption, drawn_form
 from portcut.engine.schematic.connectivity import block_equivalent, extract
 from portcut.engine.schematic.ports import region_nets
 from portcut.engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
-from portcut.engine.units import format_complex, format_eng, parse_frequency
+from portcut.engine.solve.equivalent import EquivalenceReport, Equivalent
+from portcut.engine.solve.mna import describe_freq
+from portcut.engine.solve.units import format_complex, format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas

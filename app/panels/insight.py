@@ -31,13 +31,13 @@ from PySide6.QtWidgets import (
 )
 
 from portcut.engine.errors import CircuitError
-from portcut.engine.eseries import SERIES, best_pair, nearest, realise
-from portcut.engine.noise import noise, noise_band
 from portcut.engine.schematic import PlacedPart
 from portcut.engine.schematic.reduction import RegionAnalysis
-from portcut.engine.sensitivity import influence, sensitivity
-from portcut.engine.tolerance import FIGURES, MonteCarlo, monte_carlo, worst_case
-from portcut.engine.units import format_eng, parse_frequency
+from portcut.engine.solve.eseries import SERIES, best_pair, nearest, realise
+from portcut.engine.solve.noise import noise, noise_band
+from portcut.engine.solve.sensitivity import influence, sensitivity
+from portcut.engine.solve.tolerance import FIGURES, MonteCarlo, monte_carlo, worst_case
+from portcut.engine.solve.units import format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas

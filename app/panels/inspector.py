@@ -22,12 +22,12 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from portcut.engine.captions import derived_caption
-from portcut.engine.devices import DEVICE_KINDS
 from portcut.engine.errors import CircuitError
-from portcut.engine.measured import read_csv
 from portcut.engine.schematic import Block, Change, Document, Element, NetLabel, PlacedPart, Wire
-from portcut.engine.units import parse_frequency
+from portcut.engine.schematic.captions import derived_caption
+from portcut.engine.solve.devices import DEVICE_KINDS
+from portcut.engine.solve.measured import read_csv
+from portcut.engine.solve.units import parse_frequency
 
 from .. import dialogs
 from ..canvas import Canvas

@@ -7,7 +7,7 @@ from PySide6.QtCore import QMimeData, QRectF, QSize, Qt
 from PySide6.QtGui import QBrush, QColor, QIcon, QPainter, QPen, QPixmap
 from PySide6.QtWidgets import QDockWidget, QListWidget, QListWidgetItem, QWidget
 
-from portcut.engine.symbols import JUNCTION_RADIUS, STROKE_WIDTH, placed_bounds
+from portcut.engine.schematic.symbols import JUNCTION_RADIUS, STROKE_WIDTH, placed_bounds
 
 from ..canvas import ENTRY_MIME, Canvas
 from ..canvas.grid import UNIT

@@ -26,13 +26,13 @@ from PySide6.QtWidgets import (
 )
 
 from portcut.engine import Sweep
-from portcut.engine.atomic import write_atomically
+from portcut.engine.drawing.palette import PALETTE
 from portcut.engine.errors import CircuitError, ValueParseError
-from portcut.engine.mna import describe_freq
-from portcut.engine.palette import PALETTE
-from portcut.engine.tables import SWEEP_COLUMNS
-from portcut.engine.tables import sweep_csv as rows_csv
-from portcut.engine.units import UNDEFINED, format_eng, parse_frequency
+from portcut.engine.schematic.atomic import write_atomically
+from portcut.engine.solve.mna import describe_freq
+from portcut.engine.solve.tables import SWEEP_COLUMNS
+from portcut.engine.solve.tables import sweep_csv as rows_csv
+from portcut.engine.solve.units import UNDEFINED, format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from .entry import ERROR_STYLE, CheckedEntry, mark_error

@@ -1,6 +1,6 @@
 """Engine benchmark: each figure is printed as a ratio against a floor measured in the same run.
 
-``python3 -m engine.bench`` (or ``portcut bench``) times, on generated circuits:
+``python3 -m engine.cli.bench`` (or ``portcut bench``) times, on generated circuits:
 
 * ``equivalent()`` of an RC mesh region of 10,000 and 100,000 nets at 1 kHz, against the floor
   of SciPy's own work on the same system assembled here directly: one SuperLU factorization
@@ -16,7 +16,8 @@ Times are wall-clock (CPU time would count the BLAS threads' spinning); engine a
 alternately, each engine run followed by a floor run, and a ratio is the median over those pairs
 (a shared machine's load drifts between pairs far more than within one); times printed are
 medians, and the small circuit's figure is its median time. "first" clears the netlists the
-engine keeps (engine.topology.netlist_of), "after a value edit" changes one resistor first (as a
+engine keeps (engine.solve.topology.netlist_of), "after a value edit" changes one resistor first
+(as a
 live view sees an edit), "again" re-analyses the same parts.
 Figures go to docs/performance.md.
 """
@@ -36,14 +37,14 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 
-from . import topology
-from .circuit import GROUND, Circuit
-from .equivalent import equivalent, sweep
-from .mna import ORDERING
-from .topology import forget_netlists
+from ..solve import topology
+from ..solve.circuit import GROUND, Circuit
+from ..solve.equivalent import equivalent, sweep
+from ..solve.mna import ORDERING
+from ..solve.topology import forget_netlists
 
 #: The module (its name is shadowed by the function in the package), for its two sweep solvers.
-_SOLVERS = importlib.import_module(".equivalent", __package__)
+_SOLVERS = importlib.import_module("..solve.equivalent", __package__)
 
 __all__ = ["Row", "main", "mesh", "mixed_circuit", "run"]
 

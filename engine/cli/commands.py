@@ -23,22 +23,22 @@ import numpy as np
 
 from portcut import assets
 
-from . import measured
-from .atomic import write_atomically
-from .captions import SAFETY_CAUTION, above_extra_low_voltage
-from .circuit import Circuit
-from .equivalent import Equivalent, equivalent, sweep
-from .errors import CircuitError
-from .mna import describe_freq
-from .schematic.connectivity import build_circuit
-from .schematic.document import Document
-from .schematic.fileformat import load
-from .schematic.model import Region
-from .schematic.reduction import collapse_region, region_part_names, swapped
-from .sensitivity import Sensitivity, influence, sensitivity
-from .svg import document_svg
-from .tables import sweep_csv
-from .units import denoised, format_complex, format_eng, parse_frequency
+from ..drawing.svg import document_svg
+from ..errors import CircuitError
+from ..schematic.atomic import write_atomically
+from ..schematic.captions import SAFETY_CAUTION, above_extra_low_voltage
+from ..schematic.connectivity import build_circuit
+from ..schematic.document import Document
+from ..schematic.fileformat import load
+from ..schematic.model import Region
+from ..schematic.reduction import collapse_region, region_part_names, swapped
+from ..solve import measured
+from ..solve.circuit import Circuit
+from ..solve.equivalent import Equivalent, equivalent, sweep
+from ..solve.mna import describe_freq
+from ..solve.sensitivity import Sensitivity, influence, sensitivity
+from ..solve.tables import sweep_csv
+from ..solve.units import denoised, format_complex, format_eng, parse_frequency
 
 __all__ = ["COMMANDS", "COMMAND_SUMMARIES", "Writer", "main"]
 

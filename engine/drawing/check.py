@@ -1,9 +1,11 @@
 """Measures a drawn sheet for what makes it hard to read: texts over texts or symbols, wires
 through symbols, markers and blocks run into each other, and strokes of different nets touching.
 
-It measures the geometry the canvas and the SVG writer draw: symbol bodies (engine.symbols,
+It measures the geometry the canvas and the SVG writer draw: symbol bodies
+(engine.schematic.symbols,
 without the leads, which meet other strokes at pins), leads and wire strokes, and the captions
-of engine.placement (net names and block captions at their symbol's anchors). Units are grid
+of engine.schematic.placement (net names and block captions at their symbol's anchors). Units are
+grid
 units. Each fault names the elements involved, so a test can say which part is crowded.
 """
 
@@ -13,13 +15,13 @@ from dataclasses import dataclass
 from functools import cache
 from itertools import combinations, pairwise
 
-from .captions import block_caption
-from .errors import CircuitError
-from .placement import Placement, overlap, text_box
-from .schematic.connectivity import block_equivalent, extract
-from .schematic.document import Document
-from .schematic.model import Block, NetLabel, PlacedPart
-from .symbols import (
+from ..errors import CircuitError
+from ..schematic.captions import block_caption
+from ..schematic.connectivity import block_equivalent, extract
+from ..schematic.document import Document
+from ..schematic.model import Block, NetLabel, PlacedPart
+from ..schematic.placement import Placement, overlap, text_box
+from ..schematic.symbols import (
     Bounds,
     FPoint,
     Line,

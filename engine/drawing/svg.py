@@ -1,14 +1,14 @@
 """SVG 1.1 drawing of a schematic document, headless: the export of Portcut.
 
-Every symbol comes from engine.symbols and is drawn as one ``<g class="symbol">`` whose
+Every symbol comes from engine.schematic.symbols and is drawn as one ``<g class="symbol">`` whose
 ``transform`` places it (translate, rotate clockwise, mirror), inside a ``<g>`` for its element
 (``class`` "part", "block", "label" or "ground") that also holds its upright ``<text>``
-elements, one per line: the designator, the value (engine.captions: 4.7 kΩ, 100 nF,
-3.33 V ∠ 0°) where engine.placement puts them, and any polarity marks.
+elements, one per line: the designator, the value (engine.schematic.captions: 4.7 kΩ, 100 nF,
+3.33 V ∠ 0°) where engine.schematic.placement puts them, and any polarity marks.
 Wires are ``<polyline class="wire">``; junction dots ``<circle class="junction">`` sit on
 explicit junctions and wherever three or more connections meet; regions are outlined in the
 accent colour with a light fill; a collapsed block shows its equivalent at the analysis
-frequency. Colours come from engine.palette, weights from engine.symbols.
+frequency. Colours come from engine.drawing.palette, weights from engine.schematic.symbols.
 
 Coordinates: :data:`SCALE` SVG user units (px) per grid unit; the viewBox encloses every shape
 and every text with a margin.
@@ -24,15 +24,13 @@ from collections import Counter, defaultdict
 from collections.abc import Iterable, Sequence
 from itertools import pairwise
 
-from .captions import block_caption, drawn_form
-from .errors import CircuitError, ValueParseError
-from .mna import describe_freq
-from .palette import PALETTE, Palette
-from .placement import PlacedCaption, Placement
-from .schematic.connectivity import block_equivalent
-from .schematic.document import Document
-from .schematic.model import Block, NetLabel, PlacedPart, Region
-from .symbols import (
+from ..errors import CircuitError, ValueParseError
+from ..schematic.captions import block_caption, drawn_form
+from ..schematic.connectivity import block_equivalent
+from ..schematic.document import Document
+from ..schematic.model import Block, NetLabel, PlacedPart, Region
+from ..schematic.placement import PlacedCaption, Placement
+from ..schematic.symbols import (
     CAP_HEIGHT,
     COUPLING_DOT_RADIUS,
     FONT_SIZE,
@@ -57,7 +55,9 @@ from .symbols import (
     text_bounds,
     transform,
 )
-from .units import parse_frequency
+from ..solve.mna import describe_freq
+from ..solve.units import parse_frequency
+from .palette import PALETTE, Palette
 
 __all__ = ["SCALE", "document_svg", "junction_points"]
 
@@ -200,7 +200,7 @@ def _element_group(parent: ET.Element, cls: str, element_id: str, tooltip: str) 
 
 def _draw_part(sheet: _Sheet, part: PlacedPart, style: str,
                captions: Iterable[PlacedCaption]) -> None:
-    """The part's symbol and its captions where engine.placement put them."""
+    """The part's symbol and its captions where engine.schematic.placement put them."""
     group = _element_group(sheet.layer("parts"), "part", part.id, part.designator)
     _draw_symbol(sheet, group, part.kind, part.at, part.rotation, part.mirror, style, texts={})
     for c in captions:

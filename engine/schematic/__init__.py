@@ -1,4 +1,9 @@
-"""The schematic document (placed parts, wires, labels, regions, collapsed blocks) and its views."""
+"""The schematic document (placed parts, wires, labels, regions, collapsed blocks) and its views:
+connectivity, the file format, reduction and block layout, wiring checks, and the geometry that
+every drawing shares (symbols, captions and their placement).
+
+Builds on :mod:`portcut.engine.solve`; knows nothing of the SVG writer or the command line.
+"""
 
 from .connectivity import (
     BLOCK_ROLES,

@@ -1,7 +1,8 @@
 """Where a collapsed block goes and how its two leads reach the sheet, clear of everything drawn.
 
 The sheet is read as the SVG writer and the canvas draw it: every symbol's body
-(engine.symbols.placed_bounds), every caption's box (engine.symbols.text_bounds at the symbol's
+(engine.schematic.symbols.placed_bounds), every caption's box (engine.schematic.symbols.text_bounds
+at the symbol's
 anchors) and every grid point a wire or pin of each net occupies. :class:`Obstacles` holds that
 picture; :func:`place_block` finds the free spot nearest to where the region stood for the
 block with its captions; :func:`route` finds an orthogonal lead on the integer grid by A*
@@ -22,9 +23,12 @@ from collections.abc import Iterable, Iterator
 from dataclasses import dataclass, field
 from itertools import count, pairwise
 
-from ..captions import block_caption, drawn_form, value_caption
 from ..errors import CircuitError
-from ..symbols import (
+from .captions import block_caption, drawn_form, value_caption
+from .connectivity import Connectivity, block_equivalent
+from .document import Document
+from .model import Block, NetLabel, PlacedPart
+from .symbols import (
     FONT_SIZE,
     MARK_FONT_SIZE,
     MARK_TEXT,
@@ -38,9 +42,6 @@ from ..symbols import (
     symbol,
     text_bounds,
 )
-from .connectivity import Connectivity, block_equivalent
-from .document import Document
-from .model import Block, NetLabel, PlacedPart
 
 __all__ = ["CLEAR", "Obstacles", "block_boxes", "corners", "element_boxes", "grid_walk", "grown",
            "marker_body", "place_block", "place_marker", "route", "union"]
@@ -148,7 +149,7 @@ class Obstacles:
         """The drawing of ``doc``, its captions as they read at ``freq`` hertz."""
         # the captions where the drawing puts them (placement reads the document package,
         # which holds this module, so it is imported when first needed)
-        from ..placement import Placement
+        from .placement import Placement
 
         placement = Placement.of(doc, style, ac=freq > 0)
         found = cls()

@@ -1,7 +1,7 @@
 """The texts drawn beside symbols: part values with SI prefixes and units, and block equivalents.
 
 One place for the wording, so the canvas, the SVG writer and the command line agree: 4.7 kΩ,
-100 nF, 10 mH, 5 V, 3.33 V ∠ 30° (µ is U+00B5, from engine.units). At a frequency above DC a
+100 nF, 10 mH, 5 V, 3.33 V ∠ 30° (µ is U+00B5, from engine.solve.units). At a frequency above DC a
 source or equivalent value prints as a phasor, magnitude ∠ degrees; at DC as a signed real.
 """
 
@@ -12,12 +12,12 @@ import math
 from collections.abc import Iterable
 from typing import Protocol
 
-from .devices import DEVICE_KINDS, PARAMETERS, SYMBOLS, derived, make
-from .errors import CircuitError
-from .mna import describe_freq
-from .schematic.model import PlacedPart
-from .tolerance import parse_tolerance
-from .units import format_complex, format_phasor, parse_value
+from ..errors import CircuitError
+from ..solve.devices import DEVICE_KINDS, PARAMETERS, SYMBOLS, derived, make
+from ..solve.mna import describe_freq
+from ..solve.tolerance import parse_tolerance
+from ..solve.units import format_complex, format_phasor, parse_value
+from .model import PlacedPart
 
 __all__ = [
     "ELV_AC_RMS",
@@ -41,7 +41,7 @@ UNITS: dict[str, str] = {
 
 
 class Equivalent(Protocol):
-    """What a caption reads from engine.equivalent's result."""
+    """What a caption reads from engine.solve.equivalent's result."""
 
     voc: complex
     isc: complex
@@ -113,7 +113,8 @@ def device_caption(part: PlacedPart) -> str:
     return "\n".join(", ".join(shown[i:i + 2]) for i in range(0, len(shown), 2))
 
 
-#: The derived values shown for each device kind: (key of engine.devices.derived, symbol, unit).
+#: The derived values shown for each device kind: (key of engine.solve.devices.derived, symbol,
+# unit).
 _DERIVED = {
     "bjt": (("gm", "gm", "S"), ("rpi", "rπ", "Ω"), ("ro", "ro", "Ω"), ("beta", "β", ""),
             ("vt", "V_T", "V")),

@@ -3,7 +3,8 @@
 Two sources, one list: the drawing faults that extraction finds (a pin joined to nothing, a
 two-pin part with both pins on one net, parts stacked, bad references; see
 :mod:`engine.schematic.connectivity`), and the existence faults of the circuit they make at the
-analysis frequency (:mod:`engine.topology`): an island of nets that nothing conducting joins to
+analysis frequency (:mod:`engine.solve.topology`): an island of nets that nothing conducting joins
+to
 the ground island, and a loop of ideal voltage-defined branches (two ideal sources in
 parallel, a source shorted by a wire). A sheet whose values do not read yet gets the drawing
 checks only; its value errors are the inspector's to show.
@@ -14,13 +15,13 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
-from .. import mna, topology
-from ..circuit import GROUND, Part
 from ..errors import CircuitError, SingularCircuitError
-from ..symbols import Point
+from ..solve import mna, topology
+from ..solve.circuit import GROUND, Part
 from .connectivity import Connectivity, build_circuit
 from .document import Document
 from .model import Block, PlacedPart
+from .symbols import Point
 
 __all__ = ["SheetCheck", "circuit_checks", "drawing_checks", "sheet_checks"]
 

@@ -40,14 +40,14 @@ import numpy as np
 from scipy.sparse import csr_array
 from scipy.sparse.csgraph import connected_components
 
-from ..circuit import GROUND, KINDS, Circuit, Part
-from ..devices import DEVICE_KINDS
-from ..equivalent import Equivalent, collapse, equivalent
 from ..errors import CircuitError
-from ..symbols import Point, pin_positions
-from ..units import VALUE_UNITS, parse_value
+from ..solve.circuit import GROUND, KINDS, Circuit, Part
+from ..solve.devices import DEVICE_KINDS
+from ..solve.equivalent import Equivalent, collapse, equivalent
+from ..solve.units import VALUE_UNITS, parse_value
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Wire
+from .symbols import Point, pin_positions
 
 __all__ = [
     "BLOCK_ROLES",
@@ -100,7 +100,8 @@ class Connectivity:
     """The nets of a document.
 
     ``net_of_pin[(element_id, pin_index)]`` for every pin of a part, block or net marker
-    (pin order of engine.symbols.PINS); ``net_of_wire[wire_id]``; ``warnings`` in a stable order;
+    (pin order of engine.schematic.symbols.PINS); ``net_of_wire[wire_id]``; ``warnings`` in a
+    stable order;
     ``nets[name]`` the grid points of each net (its pins, wire vertices and junctions),
     gathered on first use. Read-only: a later ``extract(doc, previous=...)`` starts from it.
     """

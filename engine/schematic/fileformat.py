@@ -16,13 +16,13 @@ import re
 from collections.abc import Callable, Iterator
 from typing import Any
 
-from ..atomic import write_atomically
-from ..circuit import GROUND
-from ..devices import DEVICE_KINDS, PARAMETERS
 from ..errors import CircuitError, DocumentError, ValueParseError
-from ..measured import parse_table
-from ..tolerance import parse_tolerance
-from ..units import parse_frequency, parse_value
+from ..solve.circuit import GROUND
+from ..solve.devices import DEVICE_KINDS, PARAMETERS
+from ..solve.measured import parse_table
+from ..solve.tolerance import parse_tolerance
+from ..solve.units import parse_frequency, parse_value
+from .atomic import write_atomically
 from .document import Document
 from .model import (
     ANALYSIS_FORMS,
@@ -404,7 +404,7 @@ def _captions(value: Any, path: str, version: int) -> tuple[tuple[str, float, fl
 
 
 def _params(data: Any, path: str, kind: str, designator: str) -> tuple[tuple[str, str], ...]:
-    """A device part's parameters, as (name, text) in engine.devices.PARAMETERS order."""
+    """A device part's parameters, as (name, text) in engine.solve.devices.PARAMETERS order."""
     if not isinstance(data, dict):
         raise DocumentError(f"{path}: expected an object of parameter texts, got {_shown(data)}")
     if data and kind not in DEVICE_KINDS:

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..symbols import Point
+from .symbols import Point
 
 __all__ = [
     "ANALYSIS_FORMS",
@@ -26,7 +26,7 @@ __all__ = [
     "port_problem",
 ]
 
-#: Kinds a PlacedPart may have (engine.circuit.KINDS); ground and net names are NetLabels.
+#: Kinds a PlacedPart may have (engine.solve.circuit.KINDS); ground and net names are NetLabels.
 PART_KINDS: tuple[str, ...] = (
     "resistor", "capacitor", "inductor", "impedance", "voltage_source", "current_source",
     "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling", "bjt", "mosfet", "opamp_finite",
@@ -47,9 +47,10 @@ class PlacedPart:
     whose current controls a CCVS/CCCS. ``couples``: the two inductor designators of a coupling.
     ``captions``: (role, dx, dy) for each caption the user dragged: its anchor point (text
     centred on it) relative to ``at``, grid units; the other captions are placed automatically
-    (engine.placement).
+    (engine.schematic.placement).
     ``tolerance``: the value's tolerance as text, an IEC 60062 letter or a percentage ("" none).
-    ``params``: a device part's parameters (engine.devices.PARAMETERS) as (name, text) pairs in
+    ``params``: a device part's parameters (engine.solve.devices.PARAMETERS) as (name, text) pairs
+    in
     that table's order, only those given.
     """
 
@@ -131,7 +132,8 @@ class Contents:
 
 @dataclass(frozen=True, slots=True)
 class Block:
-    """A collapsed region drawn as its equivalent (pins: plus, minus; engine.symbols.PINS).
+    """A collapsed region drawn as its equivalent (pins: plus, minus;
+    engine.schematic.symbols.PINS).
 
     ``contents`` are the removed elements; ``port`` holds, for the plus and then the minus net,
     every pin position inside ``contents`` that lay on that net (the port nets' wires stay on the

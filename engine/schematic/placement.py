@@ -25,10 +25,10 @@ from itertools import pairwise
 
 import numpy as np
 
+from ..solve.devices import DEVICE_KINDS
 from .captions import value_caption
-from .devices import DEVICE_KINDS
-from .schematic.document import Document
-from .schematic.model import CAPTION_ROLES, Block, Element, Junction, NetLabel, PlacedPart, Wire
+from .document import Document
+from .model import CAPTION_ROLES, Block, Element, Junction, NetLabel, PlacedPart, Wire
 from .symbols import (
     CAP_HEIGHT,
     FONT_SIZE,

@@ -13,11 +13,11 @@ from __future__ import annotations
 from collections.abc import Iterable
 from dataclasses import replace
 
-from ..circuit import GROUND
-from ..symbols import PINS
+from ..solve.circuit import GROUND
 from .connectivity import Connectivity, _natural_key, extract
 from .document import Document
 from .model import Block, Element, PlacedPart, Region
+from .symbols import PINS
 
 __all__ = ["follow_renames", "lost_port_nets", "region_nets"]
 

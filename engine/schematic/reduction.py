@@ -20,18 +20,16 @@ from collections.abc import Iterable
 from dataclasses import dataclass, replace
 from itertools import pairwise
 
-from ..captions import block_caption, drawn_form
-from ..circuit import GROUND, Circuit
-from ..equivalent import (
+from ..errors import CircuitError, CutError, DocumentError
+from ..solve.circuit import GROUND, Circuit
+from ..solve.equivalent import (
     EquivalenceReport,
     Equivalent,
     check_equivalence,
     collapse,
     equivalent,
 )
-from ..errors import CircuitError, CutError, DocumentError
-from ..symbols import Bounds, Point, pin_positions, placed_bounds
-from ..units import parse_frequency
+from ..solve.units import parse_frequency
 from .block_layout import (
     CLEAR,
     MARGIN,
@@ -46,10 +44,12 @@ from .block_layout import (
     route,
     union,
 )
+from .captions import block_caption, drawn_form
 from .connectivity import Connectivity, _natural_key, build_circuit, extract, net_at
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Region, Wire
 from .ports import lost_port_nets, region_nets
+from .symbols import Bounds, Point, pin_positions, placed_bounds
 
 __all__ = [
     "Edit",

@@ -66,7 +66,7 @@ FPoint = tuple[float, float]
 Bounds = tuple[float, float, float, float]
 
 #: Pin positions in the symbol's own frame, in the order of the kind's node roles
-#: (engine.circuit.KINDS). "ground" and "label" are net markers; "block" is a collapsed region
+#: (engine.solve.circuit.KINDS). "ground" and "label" are net markers; "block" is a collapsed region
 #: (pins: plus, minus).
 PINS: dict[str, tuple[Point, ...]] = {
     "resistor": ((-2, 0), (2, 0)),

@@ -9,7 +9,7 @@ Sign conventions (kept by every module and stated in docs/method.md):
 * a coupling's dots sit at each inductor's first node; the mutual inductance is
   ``M = k * sqrt(L1 * L2)``;
 * the ideal op-amp (nullor) holds ``V(inp) = V(inn)`` and drives its output from ground;
-* a device part (bipolar transistor, MOSFET, finite op-amp: engine/devices.py) is one name to
+* a device part (bipolar transistor, MOSFET, finite op-amp: engine/solve/devices.py) is one name to
   the user and a few primitive parts ``<device>:<role>`` here; a region naming the device takes
   all of them.
 """
@@ -25,8 +25,8 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from ..errors import CircuitError
 from . import devices as _devices
-from .errors import CircuitError
 from .units import VALUE_UNITS, parse_value
 
 __all__ = ["GROUND", "KINDS", "REFERRING", "Circuit", "Columns", "Part", "References"]
@@ -175,7 +175,7 @@ class Circuit:
 
     def add_device(self, name: str, kind: str, nodes: Iterable[str],
                    params: dict[str, object]) -> _devices.Device:
-        """Add a device part of ``kind`` (a key of engine.devices.DEVICE_KINDS) on ``nodes``
+        """Add a device part of ``kind`` (a key of engine.solve.devices.DEVICE_KINDS) on ``nodes``
         in the kind's order, with ``params`` (numbers or value text) by parameter name."""
         if kind not in _devices.DEVICE_KINDS:
             raise CircuitError(f"{name}: unknown device kind {kind!r}; known kinds: "
@@ -325,7 +325,7 @@ class Circuit:
 
         With ``a0`` (open-loop DC gain) it is a finite op-amp device instead: optional ``gbw``
         (Hz, one pole at gbw / a0), ``rin`` (Ω across the inputs) and ``rout`` (Ω in series
-        with the output); see engine/devices.py.
+        with the output); see engine/solve/devices.py.
         """
         finite = {"a0": a0, "gbw": gbw, "rin": rin, "rout": rout}
         if any(v is not None for v in finite.values()):
@@ -343,7 +343,7 @@ class Circuit:
         return self._add_device(_devices.make(name, "bjt", (b, c, e), params))
 
     def measured_source(self, name: str, p: str, n: str, **params: object) -> _devices.Device:
-        """A source known from measurements (engine/measured.py), drawn as Voc in series with
+        """A source known from measurements (engine/solve/measured.py), drawn as Voc in series with
         R between ``p`` (plus) and ``n``: either ``voc`` (V), ``rl`` (Ω) and ``vl`` (V, the
         voltage under rl), or ``table``: (load Ω, volts) pairs or their text, fitted by least
         squares."""

@@ -29,8 +29,8 @@ import math
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
+from ..errors import CircuitError
 from . import measured
-from .errors import CircuitError
 from .units import parse_value
 
 __all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "FORMS", "PARAMETERS", "SYMBOLS",

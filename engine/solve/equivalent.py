@@ -1,7 +1,7 @@
 """Thevenin and Norton equivalents of a two-terminal region: one frequency, sweeps, collapse, and
 the check that a collapsed circuit behaves as the original.
 
-Conventions (shared/design.md, engine/circuit.py): ``voc = V(plus) - V(minus)`` with the port
+Conventions (shared/design.md, engine/solve/circuit.py): ``voc = V(plus) - V(minus)`` with the port
 open; ``isc`` flows out of plus, through an outside short, into minus; ``z`` is the voltage across
 the port for 1 A driven into plus with the independent sources zeroed (dependent sources kept),
 so ``voc = z * isc`` whenever both forms exist. ``z`` is 0 where there is no Norton form and
@@ -20,9 +20,9 @@ from itertools import count
 
 import numpy as np
 
+from ..errors import CircuitError, SingularCircuitError
 from . import mna, topology
 from .circuit import GROUND, Circuit, Part
-from .errors import CircuitError, SingularCircuitError
 from .mna import describe_freq
 from .units import (
     UNDEFINED,
@@ -327,7 +327,7 @@ class _Port:
     """One region's port problem at one frequency class (DC, or any non-zero frequency).
 
     The open-port system (the region alone, port minus as reference) is assembled once per
-    formulation (plain, or wide: see :class:`engine.mna.Branches`); the shorted-port system
+    formulation (plain, or wide: see :class:`engine.solve.mna.Branches`); the shorted-port system
     only when the open one cannot decide.
     """
 
@@ -527,7 +527,7 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
 
 def _dense_solve(stack: np.ndarray, rhs: np.ndarray, refined: bool) -> np.ndarray:
     """``stack^{-1} rhs`` for a stack of matrices and one (n, k) right-hand side; refined by
-    one step with the residual as :meth:`engine.mna.Factor.solve` does."""
+    one step with the residual as :meth:`engine.solve.mna.Factor.solve` does."""
     x = np.linalg.solve(stack, rhs)
     if refined:
         x = x + np.linalg.solve(stack, rhs - stack @ x)
@@ -540,7 +540,7 @@ def equivalent(circuit: Circuit, region: Collection[str], port: Sequence[str] | 
     """Thevenin and Norton equivalents of ``region`` seen at ``port`` (plus, minus) at ``freq`` Hz.
 
     ``region``: names of the parts inside the boundary; ``port`` may be omitted where the
-    region meets the rest at exactly two nets (see :func:`engine.topology.check_cut`).
+    region meets the rest at exactly two nets (see :func:`engine.solve.topology.check_cut`).
     ``freq``: hertz, 0 for DC (capacitors open, inductors shorts); text such as "1k" is read.
     Source phasors are peak values. Raises CutError for an invalid cut, SingularCircuitError
     where the region has no unique solution, CircuitError for other bad input.

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import CircuitError
+from ..errors import CircuitError
 
 __all__ = ["SERIES", "Pair", "Standard", "StandardRealisation", "best_pair", "nearest",
            "realise"]

@@ -26,7 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .errors import CircuitError
+from ..errors import CircuitError
 from .units import parse_value
 
 __all__ = ["Fit", "fit_table", "fit_two_point", "parse_table", "read_csv"]

@@ -7,14 +7,15 @@ several right-hand sides.
 Unknowns, in this order:
 
 * the voltage of every net except the *pinned* ones (one reference net per galvanically separate
-  island, chosen by the caller from :func:`engine.topology.islands`);
+  island, chosen by the caller from :func:`engine.solve.topology.islands`);
 * one branch current per group-2 part: voltage sources, VCVS, CCVS, inductors, 0 Ω wires
   (a 0 V branch, so an ideal wire costs no conditioning), the output current of every op-amp
   (a nullor: its row holds V(inp) - V(inn) = 0, its current is free, injected at ``out`` and
   returned through ground), an optional port short, and any part whose current controls a CCVS or
   CCCS (so that I(control) is an unknown whatever the controlling part is).
 
-Sign conventions (those of :mod:`engine.circuit`): a branch current flows from the part's first
+Sign conventions (those of :mod:`engine.solve.circuit`): a branch current flows from the part's
+first
 node to its second node inside the part; row *i* of a net states that the currents leaving the net
 through its parts sum to the current injected into it (the right-hand side); a current source
 ``(n_from, n_to)`` carries its value from ``n_from`` through itself into ``n_to``. Inductor rows
@@ -38,8 +39,8 @@ import scipy.sparse as sp
 from scipy.sparse.csgraph import maximum_bipartite_matching
 from scipy.sparse.linalg import splu
 
+from ..errors import CircuitError, SingularCircuitError
 from .circuit import KIND_CODE, KINDS, NET_COLUMNS, REFERRING, Columns, Part, kind_mask
-from .errors import CircuitError, SingularCircuitError
 from .units import format_eng
 
 __all__ = [
@@ -201,7 +202,7 @@ class Netlist:
 
     def referred(self, kind: str) -> np.ndarray:
         """Per part of ``kind`` (CCVS, CCCS or coupling): the rows in ``columns`` of the parts
-        it names (:attr:`engine.circuit.References.named`)."""
+        it names (:attr:`engine.solve.circuit.References.named`)."""
         rows = self[kind].rows
         return self.columns.references().of(rows) if rows.size else _NO_REFERENCES
 

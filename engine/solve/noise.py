@@ -4,7 +4,8 @@ Every resistor, and the real part of every impedance part's admittance, is a noi
 one-sided density ``4 k T Re(Y)`` (A²/Hz) in parallel with it (thermal agitation; the ideal
 sources, capacitors, inductors, controlled sources and op-amps are noiseless). The port's
 open-circuit voltage from a current injected into net a and out of net b is ``lam[a] - lam[b]``
-with ``A^T lam = e_plus`` (engine/sensitivity.py), so one transposed solve weighs every source:
+with ``A^T lam = e_plus`` (engine/solve/sensitivity.py), so one transposed solve weighs every
+source:
 ``en² = sum 4 k T Re(Y) |lam[a] - lam[b]|²``. Densities are rms per root hertz; ``in_`` is
 ``en / |z|``, the short-circuit current density. The method and its limits: docs/method.md.
 """
@@ -18,9 +19,9 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.integrate import simpson
 
+from ..errors import CircuitError
 from . import topology
 from .circuit import Part
-from .errors import CircuitError
 from .sensitivity import port_solution
 from .units import parse_frequency
 

@@ -5,7 +5,7 @@ plus unknown, minus the reference) and ``z`` is ``x_e[k]`` with ``A x_e = e_k`` 
 sources zeroed). One transposed solve ``A^T lam = e_k`` on the factorization already made serves
 both: for a part value p, ``d voc/dp = lam . (db/dp - dA/dp x)`` and ``dz/dp = -lam . dA/dp x_e``;
 ``isc = voc / z`` gives ``d isc/dp = (d voc/dp - isc dz/dp) / z``. ``dA/dp`` is each part's
-own stamp differentiated in p (engine/stamps.py, docs/method.md). The normalised sensitivity
+own stamp differentiated in p (engine/solve/stamps.py, docs/method.md). The normalised sensitivity
 ``(p / X) dX/dp`` is the per-cent change of X per per-cent change of p. Units: dvoc V per unit
 of p, disc A, dz Ω.
 """
@@ -19,10 +19,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import CircuitError, SingularCircuitError
 from . import mna, topology
 from .circuit import Part
 from .equivalent import Equivalent, _equivalent_of, _frequencies, _port_of
-from .errors import CircuitError, SingularCircuitError
 from .mna import describe_freq
 from .stamps import PARAMETER_KINDS, value_stamps
 from .units import parse_frequency
@@ -64,7 +64,7 @@ def sensitivity(circuit, region: Collection[str], port: Sequence[str] | None = N
                 freq: float | str = 0.0) -> dict[str, Sensitivity]:
     """{part name: :class:`Sensitivity`} for every valued part of ``region`` at ``freq`` Hz.
 
-    The port and region are checked as by :func:`engine.equivalent`. Raises CircuitError where
+    The port and region are checked as by :func:`engine.solve.equivalent`. Raises CircuitError where
     the region has no Thevenin form (the open-port equations the method differentiates).
     """
     f = parse_frequency(freq)
@@ -99,10 +99,10 @@ def port_solution(cut: topology.Cut, f: float, what: str) -> PortSolution:
     """Solve ``cut``'s open-port equations at ``f`` Hz; ``what`` names the figures for the
     message where the region has no Thevenin form (its open-port equations are singular).
 
-    Where z stands clear of its error bound (the equivalent's own test, engine/equivalent.py)
-    the equivalent is read from this one factorization; otherwise :func:`engine.equivalent`
+    Where z stands clear of its error bound (the equivalent's own test, engine/solve/equivalent.py)
+    the equivalent is read from this one factorization; otherwise :func:`engine.solve.equivalent`
     decides it."""
-    # the nodal form: the stamps' derivatives (engine/stamps.py) are written for it
+    # the nodal form: the stamps' derivatives (engine/solve/stamps.py) are written for it
     system = _port_of(cut, f == 0).open(False)
     if system is None:
         raise _no_thevenin(f, what)

@@ -27,7 +27,7 @@ SWEEP_COLUMNS: list[str] = ["f (Hz)"] + [
 def sweep_csv(rows: Iterable[Equivalent]) -> str:
     """The equivalents at each frequency as CSV text (:data:`SWEEP_COLUMNS`, full float
     precision); a quantity whose form does not exist there, or is not finite, has its four
-    cells read :data:`~engine.units.UNDEFINED`."""
+    cells read :data:`~engine.solve.units.UNDEFINED`."""
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(SWEEP_COLUMNS)

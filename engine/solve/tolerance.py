@@ -3,7 +3,7 @@
 A tolerance t (a fraction: 0.01 for ±1 %) lets a part's value v range over v (1 + d), |d| <= t.
 The figures followed are |Voc| (V), |Isc| (A), |Z| (Ω) and the angle of Z (degrees). Samples and
 corners are solved batched: the region's open-port equations at the nominal values are made
-dense once, each sample adds its value changes (engine/stamps.py) and NumPy solves a stack of
+dense once, each sample adds its value changes (engine/solve/stamps.py) and NumPy solves a stack of
 them at a time. The methods and their limits: docs/method.md.
 """
 
@@ -17,8 +17,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import CircuitError, ValueParseError
 from . import topology
-from .errors import CircuitError, ValueParseError
 from .sensitivity import port_solution, sensitivity, valued_parts
 from .stamps import value_stamps
 from .units import parse_frequency

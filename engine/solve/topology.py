@@ -30,8 +30,8 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.csgraph import connected_components
 
+from ..errors import CircuitError, CutError, SingularCircuitError
 from .circuit import GROUND, KIND_CODE, KINDS, NET_COLUMNS, Circuit, Columns, Part, kind_mask
-from .errors import CircuitError, CutError, SingularCircuitError
 from .mna import Netlist
 
 __all__ = ["Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",

@@ -30,7 +30,7 @@ import re
 from decimal import Decimal
 from numbers import Complex, Real
 
-from .errors import ValueParseError
+from ..errors import ValueParseError
 
 __all__ = [
     "NOISE_RTOL",

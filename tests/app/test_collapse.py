@@ -15,12 +15,12 @@ from PySide6.QtWidgets import QFileDialog
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
 from portcut.app.canvas.grid import UNIT
-from portcut.engine.palette import PALETTE
+from portcut.engine.drawing.palette import PALETTE
 from portcut.engine.schematic import Region
 from portcut.engine.schematic.fileformat import dumps, loads
 from portcut.engine.schematic.reduction import collapse_region
-from portcut.engine.symbols import STROKE_WIDTH
-from portcut.engine.units import format_complex
+from portcut.engine.schematic.symbols import STROKE_WIDTH
+from portcut.engine.solve.units import format_complex
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 

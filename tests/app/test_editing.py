@@ -13,11 +13,11 @@ from PySide6.QtWidgets import QGraphicsEllipseItem, QToolTip
 from sheets import divider, open_sheet
 
 from portcut import assets
-from portcut.engine.circuit import GROUND
+from portcut.engine.drawing.svg import junction_points
 from portcut.engine.schematic.connectivity import extract
 from portcut.engine.schematic.fileformat import dumps, loads
-from portcut.engine.svg import junction_points
-from portcut.engine.symbols import pin_positions
+from portcut.engine.schematic.symbols import pin_positions
+from portcut.engine.solve.circuit import GROUND
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 

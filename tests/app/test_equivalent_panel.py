@@ -16,7 +16,7 @@ from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle
 
 from portcut.app.commands import AddElements, ReplaceElements, SetAnalysis
 from portcut.engine.schematic import Analysis, PlacedPart, Wire, build_circuit, extract
-from portcut.engine.units import format_complex, format_eng, parse_frequency
+from portcut.engine.solve.units import format_complex, format_eng, parse_frequency
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 

@@ -13,7 +13,7 @@ from pathlib import Path
 import pytest
 
 import portcut
-from portcut.engine import cli
+from portcut.engine.cli import commands as cli
 
 ROOT = Path(__file__).resolve().parents[2]
 

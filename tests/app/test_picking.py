@@ -13,7 +13,7 @@ from sheets import open_sheet
 from portcut import assets
 from portcut.app.canvas.grid import UNIT
 from portcut.engine.schematic import load, save
-from portcut.engine.symbols import placed_bounds
+from portcut.engine.schematic.symbols import placed_bounds
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 

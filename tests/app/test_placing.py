@@ -7,7 +7,7 @@ from PySide6.QtCore import Qt
 
 from portcut.app.catalog import ENTRIES
 from portcut.engine.schematic import Junction, NetLabel, PlacedPart
-from portcut.engine.symbols import pin_positions
+from portcut.engine.schematic.symbols import pin_positions
 
 
 def test_every_entry_places_where_clicked(drive):

@@ -16,7 +16,7 @@ from PySide6.QtWidgets import QFileDialog
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
 from portcut.app.panels.sweep import CSV_COLUMNS
-from portcut.engine.units import format_eng
+from portcut.engine.solve.units import format_eng
 
 R, C, V = 1e3, 100e-9, 10.0
 SHIFT = Qt.KeyboardModifier.ShiftModifier

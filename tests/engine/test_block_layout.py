@@ -17,14 +17,13 @@ from itertools import combinations, pairwise
 import pytest
 
 from portcut import assets
-from portcut.engine.circuit import GROUND
+from portcut.engine.drawing.svg import SCALE, document_svg
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Document, Region, Wire, extract, load
 from portcut.engine.schematic.block_layout import Obstacles, grid_walk, place_marker, route
 from portcut.engine.schematic.model import Block, NetLabel, PlacedPart
 from portcut.engine.schematic.reduction import collapse_region
-from portcut.engine.svg import SCALE, document_svg
-from portcut.engine.symbols import (
+from portcut.engine.schematic.symbols import (
     STROKE_WIDTH,
     STYLES,
     Polygon,
@@ -34,6 +33,7 @@ from portcut.engine.symbols import (
     symbol,
     text_width,
 )
+from portcut.engine.solve.circuit import GROUND
 
 NS = {"svg": "http://www.w3.org/2000/svg"}
 

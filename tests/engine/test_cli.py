@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from portcut.engine import cli
+from portcut.engine.cli import commands as cli
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Region
 from portcut.engine.schematic.fileformat import save
 from portcut.engine.schematic.reduction import collapse_region

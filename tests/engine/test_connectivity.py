@@ -17,7 +17,6 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from portcut.engine import CircuitError
-from portcut.engine.equivalent import equivalent
 from portcut.engine.schematic import (
     Block,
     Contents,
@@ -32,7 +31,8 @@ from portcut.engine.schematic import (
     extract,
     net_at,
 )
-from portcut.engine.symbols import pin_positions
+from portcut.engine.schematic.symbols import pin_positions
+from portcut.engine.solve.equivalent import equivalent
 
 
 def sheet(*elements) -> Document:

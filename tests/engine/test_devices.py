@@ -14,9 +14,9 @@ import pytest
 
 from portcut import assets
 from portcut.engine import GROUND, Circuit, CircuitError, equivalent
-from portcut.engine.devices import derived, thermal_voltage
 from portcut.engine.schematic import build_circuit, load
 from portcut.engine.schematic.fileformat import dumps, loads
+from portcut.engine.solve.devices import derived, thermal_voltage
 
 
 def test_thermal_voltage_at_300_k() -> None:

@@ -3,7 +3,7 @@
 What a reviewer needs to read a schematic at a glance (common practice in schematic drafting):
 no text over other text or over a symbol, no wire through a symbol, no marker run into a block,
 and no two nets drawn touching without a junction. The check measures the geometry that the
-canvas and the SVG writer draw (engine.placement and engine.symbols).
+canvas and the SVG writer draw (engine.schematic.placement and engine.schematic.symbols).
 """
 
 from __future__ import annotations
@@ -14,14 +14,14 @@ import pytest
 from dense_sheets import ladder
 
 from portcut import assets
-from portcut.engine.circuit import GROUND
-from portcut.engine.drawing_check import FAULT_KINDS, Fault, drawing_faults
-from portcut.engine.placement import Placement
+from portcut.engine.drawing.check import FAULT_KINDS, Fault, drawing_faults
+from portcut.engine.drawing.svg import SCALE, SVG_NS, document_svg
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire, load
+from portcut.engine.schematic.placement import Placement
 from portcut.engine.schematic.reduction import collapse_region
-from portcut.engine.svg import SCALE, SVG_NS, document_svg
-from portcut.engine.symbols import FONT_SIZE, text_baselines
-from portcut.engine.units import parse_frequency
+from portcut.engine.schematic.symbols import FONT_SIZE, text_baselines
+from portcut.engine.solve.circuit import GROUND
+from portcut.engine.solve.units import parse_frequency
 
 EXAMPLES = assets.example_names()
 CAPTION_FAULTS = ("caption/caption", "caption/body", "caption/wire")

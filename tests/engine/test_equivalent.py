@@ -1,4 +1,4 @@
-"""Thevenin/Norton results, sweeps, collapse and the equivalence check (engine/equivalent.py).
+"""Thevenin/Norton results, sweeps, collapse and the equivalence check (engine/solve/equivalent.py).
 
 Each check names its source: closed forms any circuit-analysis handbook gives are marked
 "common practice"; Alexander & Sadiku, Fundamentals of Electric Circuits, is quoted from memory.
@@ -24,7 +24,8 @@ from portcut.engine import (
 )
 
 REL = 1e-12  # systems of a few nets with values within six decades
-EQUIVALENT = importlib.import_module("portcut.engine.equivalent")  # the module, not the function
+# the module, not the function
+EQUIVALENT = importlib.import_module("portcut.engine.solve.equivalent")
 
 
 def close(got: complex, want: complex) -> bool:

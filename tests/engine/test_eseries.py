@@ -1,4 +1,4 @@
-"""Standard values (engine/eseries.py) against the IEC 60063 E-series tables.
+"""Standard values (engine/solve/eseries.py) against the IEC 60063 E-series tables.
 
 The E12 and E24 decades are IEC 60063's as printed in the standard (from memory); E96 is checked
 against the rule stated there, each value 10^(i/96) rounded to three figures, and against a few
@@ -14,7 +14,7 @@ import math
 import pytest
 
 from portcut.engine import CircuitError
-from portcut.engine.eseries import SERIES, best_pair, nearest, realise
+from portcut.engine.solve.eseries import SERIES, best_pair, nearest, realise
 
 
 def test_tables() -> None:

@@ -2,7 +2,7 @@
 independent hand calculation gives (closed forms, and one sympy solve of the mesh equations).
 
 The numbers go through the whole path a user takes: the JSON file, connectivity, build_circuit
-and engine.equivalent over the region's designators at the document's analysis frequency. The
+and engine.solve.equivalent over the region's designators at the document's analysis frequency. The
 closed forms read the part values from the built circuit, so they check topology and solution.
 """
 
@@ -16,10 +16,10 @@ import sympy
 
 from portcut import assets
 from portcut.engine import GROUND, Circuit
-from portcut.engine.devices import derived
-from portcut.engine.equivalent import Equivalent, equivalent
 from portcut.engine.schematic import Document, Region, build_circuit, extract, load
-from portcut.engine.units import parse_frequency
+from portcut.engine.solve.devices import derived
+from portcut.engine.solve.equivalent import Equivalent, equivalent
+from portcut.engine.solve.units import parse_frequency
 
 EXAMPLES = ["audio_crossover", "ce_stage_output", "emitter_follower", "noninverting_driver",
             "opamp_stage_output", "rc_antialias", "strain_gauge_bridge", "transformer_coupling"]
@@ -87,7 +87,7 @@ def test_strain_gauge_bridge() -> None:
 
 
 def test_the_bridge_region_swaps_the_automatic_port_to_put_adc_p_first() -> None:
-    # the cut check takes the name first in sort order as plus (engine.topology); the demo's
+    # the cut check takes the name first in sort order as plus (engine.solve.topology); the demo's
     # region is drawn to read adc_p - adc_n
     doc, region, circuit, _ = opened("strain_gauge_bridge")
     eq = equivalent(circuit, region={doc[m].designator for m in region.members})

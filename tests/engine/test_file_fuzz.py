@@ -22,10 +22,10 @@ from typing import Any
 import pytest
 
 from portcut import assets
-from portcut.engine import cli
+from portcut.engine.cli import commands as cli
+from portcut.engine.drawing.svg import document_svg
 from portcut.engine.errors import DocumentError
 from portcut.engine.schematic.fileformat import dumps, loads, save
-from portcut.engine.svg import document_svg
 
 VARIANTS = 3000
 CLI_EVERY = 25  # one variant in this many also goes through the command line

@@ -28,7 +28,7 @@ except ImportError:  # not POSIX
     fcntl = None
 
 from portcut import assets
-from portcut.engine import GROUND, DocumentError, atomic
+from portcut.engine import GROUND, DocumentError
 from portcut.engine.schematic import (
     Analysis,
     Block,
@@ -39,6 +39,7 @@ from portcut.engine.schematic import (
     PlacedPart,
     Region,
     Wire,
+    atomic,
     dumps,
     fileformat,
     load,
@@ -673,7 +674,7 @@ def _killed_during_save(target: Path) -> None:
     written but before the rename, as a crash or a power cut would stop it."""
     script = ("import os, signal, sys\n"
               "from engine.schematic import Document\n"
-              "from engine.schematic.fileformat import save\n"
+              "from portcut.engine.schematic.fileformat import save\n"
               "os.fsync = lambda fd: os.kill(os.getpid(), signal.SIGKILL)\n"
               "save(Document('Killed'), sys.argv[1])\n")
     done = subprocess.run([sys.executable, "-c", script, str(target)], check=False,

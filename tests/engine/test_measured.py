@@ -14,9 +14,9 @@ import numpy as np
 import pytest
 
 from portcut.engine import GROUND, Circuit, CircuitError, equivalent
-from portcut.engine.cli import main
-from portcut.engine.devices import derived
-from portcut.engine.measured import fit_table, fit_two_point, parse_table
+from portcut.engine.cli.commands import main
+from portcut.engine.solve.devices import derived
+from portcut.engine.solve.measured import fit_table, fit_two_point, parse_table
 
 
 def test_two_point_form() -> None:

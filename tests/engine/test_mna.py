@@ -1,9 +1,9 @@
-"""The MNA assembly, factorization and error bound (engine/mna.py), entry by entry.
+"""The MNA assembly, factorization and error bound (engine/solve/mna.py), entry by entry.
 
 Stamps are checked against the modified nodal form of Ho, Ruehli and Brennan, "The modified
 nodal approach to network analysis", IEEE Trans. Circuits and Systems CAS-22 (1975): node rows
 hold KCL (currents leaving the net), group-2 branches add a current unknown and a branch row.
-Signs follow engine/circuit.py.
+Signs follow engine/solve/circuit.py.
 """
 
 from __future__ import annotations
@@ -15,9 +15,10 @@ from fractions import Fraction
 import numpy as np
 import pytest
 
-from portcut.engine import GROUND, Circuit, SingularCircuitError, mna
-from portcut.engine.bench import mixed_circuit
-from portcut.engine.mna import EPS, Factor, Netlist, Singular, System, assemble
+from portcut.engine import GROUND, Circuit, SingularCircuitError
+from portcut.engine.cli.bench import mixed_circuit
+from portcut.engine.solve import mna
+from portcut.engine.solve.mna import EPS, Factor, Netlist, Singular, System, assemble
 
 
 def build(c: Circuit, reference: str = GROUND) -> System:
@@ -71,7 +72,7 @@ def test_a_real_factor_solves_a_complex_right_hand_side() -> None:
 
 
 def test_current_source_pushes_into_its_to_net() -> None:
-    # engine/circuit.py: a current source (n_from, n_to) drives its value into n_to.
+    # engine/solve/circuit.py: a current source (n_from, n_to) drives its value into n_to.
     c = Circuit()
     c.current_source("I1", GROUND, "a", "2m")
     c.resistor("R1", "a", GROUND, "1k")
@@ -137,18 +138,18 @@ def test_opamp_is_a_nullor() -> None:
 def test_controlled_sources_stamp_their_gains() -> None:
     c = Circuit()
     c.resistor("R1", "a", GROUND, 100)
-    c.vcvs("E1", "e", GROUND, "a", GROUND, 3)
-    c.vccs("G1", "f", GROUND, "a", GROUND, "2m")
-    c.ccvs("H1", "h", GROUND, "R1", 50)
-    c.cccs("F1", "k", GROUND, "R1", 4)
+    c.vcvs("DS21", "e", GROUND, "a", GROUND, 3)
+    c.vccs("DS22", "f", GROUND, "a", GROUND, "2m")
+    c.ccvs("DS23", "h", GROUND, "R1", 50)
+    c.cccs("DS24", "k", GROUND, "R1", 4)
     s = build(c)
     a = s.matrix(0).toarray()
-    assert entry(s, a, "I:E1", "a") == -3
+    assert entry(s, a, "I:DS21", "a") == -3
     assert entry(s, a, "f", "a") == pytest.approx(2e-3)
-    # R1 controls H1 and F1, so it carries a branch row V(a) - R I = 0
+    # R1 controls DS23 and DS24, so it carries a branch row V(a) - R I = 0
     assert entry(s, a, "I:R1", "a") == 1
     assert entry(s, a, "I:R1", "I:R1") == -100
-    assert entry(s, a, "I:H1", "I:R1") == -50
+    assert entry(s, a, "I:DS23", "I:R1") == -50
     assert entry(s, a, "k", "I:R1") == 4
     assert not s.symmetric
 
@@ -157,7 +158,7 @@ def test_current_source_controller_gets_a_current_row() -> None:
     c = Circuit()
     c.current_source("I1", GROUND, "a", "1m")
     c.resistor("R1", "a", GROUND, "1k")
-    c.cccs("F1", GROUND, "b", "I1", 2)
+    c.cccs("DS24", GROUND, "b", "I1", 2)
     c.resistor("R2", "b", GROUND, "1k")
     s = build(c)
     x = Factor(s, 0).solve(s.b)

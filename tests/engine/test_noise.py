@@ -1,4 +1,4 @@
-"""Thermal noise at the port (engine/noise.py).
+"""Thermal noise at the port (engine/solve/noise.py).
 
 References: Nyquist, "Thermal agitation of electric charge in conductors", Phys. Rev. 32, 1928:
 a passive network (R, L, C, couplings) in equilibrium at T shows at its terminals the open-
@@ -15,7 +15,7 @@ from dataclasses import replace
 import pytest
 
 from portcut.engine import GROUND, Circuit, CircuitError, equivalent
-from portcut.engine.noise import BOLTZMANN, noise, noise_band, thermal_conductance
+from portcut.engine.solve.noise import BOLTZMANN, noise, noise_band, thermal_conductance
 
 T = 290.0
 
@@ -28,14 +28,14 @@ def passive() -> Circuit:
     c.resistor("R2", "b", "out", "220")
     c.capacitor("C1", "out", GROUND, "100n")
     c.inductor("L2", "s", GROUND, "4m")
-    c.coupling("K1", "L1", "L2", 0.7)
+    c.coupling("CP21", "L1", "L2", 0.7)
     c.resistor("R3", "s", GROUND, "47")
     c.impedance("Z1", "out", GROUND, 300 + 150j)
     c.resistor("RL", "out", GROUND, "10k")
     return c
 
 
-PASSIVE = {"R1", "L1", "R2", "C1", "L2", "K1", "R3", "Z1"}
+PASSIVE = {"R1", "L1", "R2", "C1", "L2", "CP21", "R3", "Z1"}
 
 
 def test_a_lone_resistor_shows_4ktr() -> None:
@@ -63,16 +63,16 @@ def active() -> Circuit:
     c.voltage_source("V1", "in", GROUND, 1)
     c.resistor("R1", "in", "a", "10k")
     c.resistor("R2", "a", GROUND, "4k7")
-    c.vcvs("E1", "b", GROUND, "a", GROUND, 20)
+    c.vcvs("DS21", "b", GROUND, "a", GROUND, 20)
     c.resistor("R3", "b", "out", "1k")
     c.resistor("R4", "out", "a", "100k")
-    c.cccs("F1", GROUND, "out", "R2", 3)
+    c.cccs("DS24", GROUND, "out", "R2", 3)
     c.impedance("Z1", "out", GROUND, 2e3 - 500j)
     c.resistor("RL", "out", GROUND, "10k")
     return c
 
 
-ACTIVE = {"V1", "R1", "R2", "E1", "R3", "R4", "F1", "Z1"}
+ACTIVE = {"V1", "R1", "R2", "DS21", "R3", "R4", "DS24", "Z1"}
 
 
 @pytest.mark.parametrize("freq", [0.0, 1e3])

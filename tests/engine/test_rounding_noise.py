@@ -11,10 +11,10 @@ import math
 import pytest
 
 from portcut.engine import GROUND
-from portcut.engine.cli import _json_complex
-from portcut.engine.equivalent import Equivalent
-from portcut.engine.tables import sweep_csv
-from portcut.engine.units import NOISE_RTOL, UNDEFINED, denoised
+from portcut.engine.cli.commands import _json_complex
+from portcut.engine.solve.equivalent import Equivalent
+from portcut.engine.solve.tables import sweep_csv
+from portcut.engine.solve.units import NOISE_RTOL, UNDEFINED, denoised
 
 # A resistive 100 Ω region seen with noise of the size a sparse solve leaves (IEEE 754 double:
 # about 1e-16 relative per operation, well below NOISE_RTOL): j 3.675 pΩ and -j 55.51 zA.

@@ -1,4 +1,4 @@
-"""Adjoint sensitivities (engine/sensitivity.py) against closed forms and central differences.
+"""Adjoint sensitivities (engine/solve/sensitivity.py) against closed forms and central differences.
 
 Closed forms of the divider are common practice (differentiate V R2 / (R1 + R2) and R1 R2 /
 (R1 + R2)). Central differences (f(p (1 + h)) - f(p (1 - h))) / (2 h p) carry an error of order
@@ -13,7 +13,7 @@ import numpy as np
 import pytest
 
 from portcut.engine import GROUND, Circuit, CircuitError, equivalent, influence, sensitivity, sweep
-from portcut.engine.sensitivity import sensitivity_sweep
+from portcut.engine.solve.sensitivity import sensitivity_sweep
 
 H = 1e-5
 FD_RTOL = 1e-6
@@ -36,15 +36,15 @@ def mixed() -> Circuit:
     c.capacitor("C1", "a", GROUND, "47n")
     c.inductor("L1", "a", "b", "10m")
     c.inductor("L2", "c", GROUND, "22m")
-    c.coupling("K1", "L1", "L2", 0.6)
+    c.coupling("CP21", "L1", "L2", 0.6)
     c.resistor("R2", "c", GROUND, "330")
     c.impedance("Z1", "b", "out", 40 + 25j)
-    c.vcvs("E1", "d", GROUND, "c", GROUND, 3)
+    c.vcvs("DS21", "d", GROUND, "c", GROUND, 3)
     c.resistor("R3", "d", "out", "2k2")
-    c.ccvs("H1", "e", GROUND, "R1", 50)
+    c.ccvs("DS23", "e", GROUND, "R1", 50)
     c.resistor("R4", "e", "out", "4k7")
-    c.vccs("G1", GROUND, "out", "a", GROUND, "0.1m")
-    c.cccs("F1", GROUND, "out", "R1", 0.5)
+    c.vccs("DS22", GROUND, "out", "a", GROUND, "0.1m")
+    c.cccs("DS24", GROUND, "out", "R1", 0.5)
     c.current_source("I1", GROUND, "out", "1m")
     c.resistor("R5", "out", GROUND, "10k")
     c.resistor("RL", "out", GROUND, "1k")

@@ -9,10 +9,10 @@ from __future__ import annotations
 import pytest
 
 from portcut import assets
-from portcut.engine.circuit import GROUND
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire, extract
 from portcut.engine.schematic.checks import sheet_checks
 from portcut.engine.schematic.fileformat import load
+from portcut.engine.solve.circuit import GROUND
 
 
 def _loop(doc: Document, kind: str, designator: str, x: int, value: str = "1k") -> None:

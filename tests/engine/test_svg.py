@@ -18,14 +18,9 @@ from itertools import pairwise
 import numpy as np
 import pytest
 
-from portcut.engine.captions import (
-    above_extra_low_voltage,
-    block_caption,
-    drawn_form,
-    value_caption,
-)
+from portcut.engine.drawing.palette import PALETTE
+from portcut.engine.drawing.svg import SCALE, document_svg, junction_points
 from portcut.engine.errors import ValueParseError
-from portcut.engine.palette import PALETTE
 from portcut.engine.schematic import (
     Analysis,
     Document,
@@ -35,9 +30,14 @@ from portcut.engine.schematic import (
     Region,
     Wire,
 )
+from portcut.engine.schematic.captions import (
+    above_extra_low_voltage,
+    block_caption,
+    drawn_form,
+    value_caption,
+)
 from portcut.engine.schematic.reduction import collapse_region
-from portcut.engine.svg import SCALE, document_svg, junction_points
-from portcut.engine.symbols import pin_positions, symbol
+from portcut.engine.schematic.symbols import pin_positions, symbol
 
 NS = {"s": "http://www.w3.org/2000/svg"}
 
@@ -75,7 +75,8 @@ def _texts(element: ET.Element) -> list[str]:
     return ["".join(t.itertext()) for t in element.iter(f"{{{NS['s']}}}text")]
 
 
-# -- SVG 1.1 transform lists, read independently of engine.symbols ---------------------------------
+# -- SVG 1.1 transform lists, read independently of engine.schematic.symbols
+# ---------------------------------
 def _matrix(transform: str) -> np.ndarray:
     m = np.eye(3)
     for name, args in re.findall(r"(\w+)\(([^)]*)\)", transform or ""):

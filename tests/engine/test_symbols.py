@@ -13,7 +13,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from portcut.engine.symbols import (
+from portcut.engine.schematic.symbols import (
     ALIGNS,
     BLOCK_FORMS,
     FONT_SIZE,

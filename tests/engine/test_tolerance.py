@@ -1,4 +1,4 @@
-"""Tolerances (engine/tolerance.py): IEC 60062 letter codes, worst-case corners against brute
+"""Tolerances (engine/solve/tolerance.py): IEC 60062 letter codes, worst-case corners against brute
 force, and Monte Carlo statistics against first-order propagation by the `uncertainties` library.
 
 IEC 60062 tolerance letters (as listed in the standard, from memory): B ±0.1 %, C ±0.25 %,
@@ -19,9 +19,9 @@ import pytest
 from uncertainties import ufloat
 
 from portcut.engine import GROUND, Circuit, CircuitError, ValueParseError, equivalent
-from portcut.engine.tolerance import monte_carlo, parse_tolerance, worst_case
+from portcut.engine.solve.tolerance import monte_carlo, parse_tolerance, worst_case
 
-TOLERANCE = importlib.import_module("portcut.engine.tolerance")
+TOLERANCE = importlib.import_module("portcut.engine.solve.tolerance")
 
 
 @pytest.mark.parametrize(("text", "want"), [

@@ -1,4 +1,4 @@
-"""The two-terminal cut check, islands and loop diagnosis (engine/topology.py).
+"""The two-terminal cut check, islands and loop diagnosis (engine/solve/topology.py).
 
 The refusals themselves, message by message, are in test_errors.py; here: what is accepted and
 what the checks conclude.
@@ -14,9 +14,9 @@ import pytest
 from test_errors import REGION, divider
 
 from portcut.engine import GROUND, Circuit, CutError, SingularCircuitError, check_cut, equivalent
-from portcut.engine.circuit import REFERRING
-from portcut.engine.mna import Netlist
-from portcut.engine.topology import (
+from portcut.engine.solve.circuit import REFERRING
+from portcut.engine.solve.mna import Netlist
+from portcut.engine.solve.topology import (
     check_voltage_loops,
     circuit_graph,
     cut,
@@ -249,14 +249,14 @@ def test_an_edit_of_what_a_controlled_source_senses_is_not_taken_for_a_value_edi
     c.voltage_source("V1", "s", GROUND, 3)
     c.resistor("R1", "s", GROUND, "1k")
     c.resistor("R2", "s", GROUND, "3k")
-    c.cccs("F1", GROUND, "o", "R1", 2)
+    c.cccs("DS24", GROUND, "o", "R1", 2)
     c.resistor("RL", "o", GROUND, "500")
     region = set(c.names)
     assert equivalent(c, region, ("o", GROUND)).voc == pytest.approx(2 * 3e-3 * 500)
     valued = c.replaced([replace(c["RL"], value=250)])
     assert valued.columns().shares_references(c.columns())
     assert equivalent(valued, region, ("o", GROUND)).voc == pytest.approx(2 * 3e-3 * 250)
-    resensed = valued.replaced([replace(valued["F1"], refs=("R2",), value=3)])
+    resensed = valued.replaced([replace(valued["DS24"], refs=("R2",), value=3)])
     assert not resensed.columns().shares_references(valued.columns())
     assert equivalent(resensed, region, ("o", GROUND)).voc == pytest.approx(3 * 1e-3 * 250)
 
@@ -266,9 +266,9 @@ def test_a_region_netlist_from_the_columns_equals_one_built_from_its_parts() -> 
     # group the parts exactly as one built part by part from the same parts.
     c = transformer(True)
     c.opamp("U1", "p", "t", "o")
-    c.cccs("F1", "o", GROUND, "RL", 2)
+    c.cccs("DS24", "o", GROUND, "RL", 2)
     c.impedance("Z1", "o", GROUND, 1 + 2j)
-    for region in (set(c.names), {"L1", "L2", "CP1", "RL", "U1", "F1"}, {"Z1"}):
+    for region in (set(c.names), {"L1", "L2", "CP1", "RL", "U1", "DS24"}, {"Z1"}):
         kept = netlist_of(c.columns(), c.rows_of(region))
         built = Netlist([p for p in c if p.name in region])
         assert kept.nets == built.nets and dict(kept.index) == dict(built.index)

@@ -20,7 +20,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from portcut.engine import GROUND, Circuit, CircuitError, ValueParseError
-from portcut.engine.units import (
+from portcut.engine.solve.units import (
     format_complex,
     format_eng,
     format_phasor,
@@ -101,7 +101,8 @@ def test_iec_60062_letter_stands_for_the_decimal_point(code: str, expected: str)
 
 
 def test_ronna_and_quetta_clash_with_the_letter_code() -> None:
-    # The decision documented in engine/units.py: R is the IEC 60062 unit multiplier (1R = 1 Ω),
+    # The decision documented in engine/solve/units.py: R is the IEC 60062 unit multiplier (1R = 1
+    # Ω),
     # so the 2022 prefixes ronna (R) and quetta (Q) are not suffixes; their lowercase partners
     # ronto (r) and quecto (q) keep their SI meaning.
     assert parse_value("1R") == 1.0

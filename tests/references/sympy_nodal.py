@@ -1,7 +1,7 @@
 """Reference port equivalents by exact symbolic circuit analysis (sympy), independent of the engine.
 
 The equations come straight from Kirchhoff's current law and the branch relation of each part kind,
-written from the sign conventions stated in engine/circuit.py (not from the engine's solver):
+written from the sign conventions stated in engine/solve/circuit.py (not from the engine's solver):
 
 * every node voltage and every branch current is an unknown (a tableau, not nodal stamps);
 * a branch (a, b) carries its current from a through the part into b; V = V(a) - V(b);
@@ -44,7 +44,8 @@ _PORT = "port branch"
 
 
 class ReferencePart(Protocol):
-    """What the reference reads of a part: the netlist record documented in engine/circuit.py."""
+    """What the reference reads of a part: the netlist record documented in
+    engine/solve/circuit.py."""
 
     name: str
     kind: str

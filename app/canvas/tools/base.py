@@ -15,7 +15,7 @@ from typing import TYPE_CHECKING
 from PySide6.QtCore import QPointF, Qt
 from PySide6.QtGui import QKeyEvent
 
-from portcut.engine.symbols import Point
+from portcut.engine.schematic.symbols import Point
 
 if TYPE_CHECKING:
     from ..canvas import Canvas

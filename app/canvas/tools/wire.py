@@ -14,7 +14,7 @@ from PySide6.QtCore import Qt
 from PySide6.QtGui import QKeyEvent
 
 from portcut.engine.schematic import Wire
-from portcut.engine.symbols import Point
+from portcut.engine.schematic.symbols import Point
 
 from ...commands import AddElements
 from ...editing import bend, simplify
