@@ -556,3 +556,22 @@ def test_a_frequency_whose_impedances_overflow_is_refused_by_name() -> None:
     c.capacitor("C1", "a", GROUND, 1e-6)
     with pytest.raises(CircuitError, match="1e-310 Hz some part impedances overflow"):
         equivalent(c, set(c.names), ("a", GROUND), 1e-310)
+
+
+@pytest.mark.parametrize("freq", [0.0, 1e3])
+def test_a_tiny_part_among_kiloohms_is_judged_equivalent(freq: float) -> None:
+    # Thevenin's theorem (common practice): the collapsed region reproduces the outside exactly,
+    # so a 100 µΩ part beside kΩ parts must not read as a deviation (the check is judged
+    # against the solution's own scale, and the wide form keeps the small part's digits)
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 10)
+    c.resistor("R1", "in", "a", "1k")
+    c.resistor("R2", "a", "b", "100u")
+    c.resistor("R3", "b", GROUND, "2k2")
+    c.capacitor("C1", "b", GROUND, "10n")
+    c.resistor("RL", "b", GROUND, "4k7")
+    region = {"V1", "R1", "R2", "R3", "C1"}
+    reduced = collapse(c, region, ("b", GROUND), freq)
+    report = check_equivalence(c, reduced, region, port=("b", GROUND), freq=freq,
+                               loads=[0, "100u", "1k", 1e9])
+    assert report.within(1e-9), report
