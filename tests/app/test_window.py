@@ -72,7 +72,8 @@ def test_further_tools_and_panels_plug_in(window, drive):
 
 def test_every_shortcut_is_one_actions_and_shown_in_its_tooltip(window):
     owners: dict[str, list[str]] = {}
-    for name, action in window.actions.items():
+    toggles = {dock.objectName(): dock.toggleViewAction() for dock in window.docks}
+    for name, action in [*window.actions.items(), *toggles.items()]:
         for sequence in action.shortcuts():
             owners.setdefault(sequence.toString(), []).append(name)
     assert {key: names for key, names in owners.items() if len(names) > 1} == {}
