@@ -12,6 +12,7 @@ import math
 
 import numpy as np
 import pytest
+from circuits import divider
 
 from portcut.engine import (
     GROUND,
@@ -30,15 +31,6 @@ EQUIVALENT = importlib.import_module("portcut.engine.solve.equivalent")
 
 def close(got: complex, want: complex) -> bool:
     return abs(got - want) <= REL * abs(want)
-
-
-def divider(v: float = 10.0, r1: float = 6e3, r2: float = 4e3) -> Circuit:
-    c = Circuit()
-    c.voltage_source("V1", "in", GROUND, v)
-    c.resistor("R1", "in", "out", r1)
-    c.resistor("R2", "out", GROUND, r2)
-    c.resistor("RL", "out", GROUND, "1k")
-    return c
 
 
 DIVIDER = {"V1", "R1", "R2"}

@@ -11,21 +11,13 @@ import cmath
 
 import numpy as np
 import pytest
+from circuits import divider
 
 from portcut.engine import GROUND, Circuit, CircuitError, equivalent, influence, sensitivity, sweep
 from portcut.engine.solve.sensitivity import sensitivity_sweep
 
 H = 1e-5
 FD_RTOL = 1e-6
-
-
-def divider(v: float = 10.0, r1: float = 6e3, r2: float = 4e3) -> Circuit:
-    c = Circuit()
-    c.voltage_source("V1", "in", GROUND, v)
-    c.resistor("R1", "in", "out", r1)
-    c.resistor("R2", "out", GROUND, r2)
-    c.resistor("RL", "out", GROUND, "1k")
-    return c
 
 
 def mixed() -> Circuit:
