@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (
     QLabel,
     QMainWindow,
     QMenu,
+    QToolBar,
     QVBoxLayout,
     QWidget,
 )
@@ -29,11 +30,22 @@ from portcut.engine.errors import CircuitError
 
 from . import clipboard, dialogs, panels
 from .about import show_about
+from .analysis import LiveAnalysis
 from .banner import SafetyBanner
 from .canvas import Canvas, Look, ToolSpec
+from .canvas.marks import CutMarks
 from .catalog import ENTRIES, GROUPS
 from .files import FileActions
 from .menu_actions import choice_menu, describe, follow_step
+from .panels import (
+    ChecksDock,
+    EquivalentDock,
+    HistoryDock,
+    InsightDock,
+    InspectorDock,
+    PaletteDock,
+    SweepDock,
+)
 from .recovery import Recovery, left_over
 from .safety import CAUTION
 from .settings import GRID_STEPS, Settings
@@ -64,6 +76,7 @@ class MainWindow(QMainWindow):
         self.actions: dict[str, QAction] = {}
         self.menus: dict[str, QMenu] = {}
         self.docks: list[QDockWidget] = []
+        self.toolbar: QToolBar | None = None  # built after the panels have added their tools
 
         self.banner = SafetyBanner()
         central = QWidget()
@@ -75,7 +88,16 @@ class MainWindow(QMainWindow):
         self.setCentralWidget(central)
 
         self._build_menus()
-        panels.install(self)
+        installed = panels.install(self)
+        self.palette_dock: PaletteDock = installed.palette
+        self.inspector: InspectorDock = installed.inspector
+        self.history: HistoryDock = installed.history
+        self.checks_dock: ChecksDock = installed.checks
+        self.analysis: LiveAnalysis = installed.analysis
+        self.cut_marks: CutMarks = installed.cut_marks
+        self.equivalent_dock: EquivalentDock = installed.equivalent
+        self.sweep_dock: SweepDock = installed.sweep
+        self.insight_dock: InsightDock = installed.insight
         self._build_toolbar()
         self._build_status()
         self._connect()
@@ -106,7 +128,7 @@ class MainWindow(QMainWindow):
         action.setCheckable(True)
         self._tool_group.addAction(action)
         self._tools_menu.addAction(action)
-        if hasattr(self, "toolbar"):
+        if self.toolbar is not None:
             self.toolbar.insertAction(self._tool_anchor, action)
         return action
 
