@@ -3,8 +3,9 @@
 Extension points for further features: :meth:`MainWindow.add_dock` (a panel, with a View menu
 toggle and its place kept between sessions), :meth:`MainWindow.add_tool` (a canvas tool, with
 an action in the Tools menu and toolbar) and :meth:`MainWindow.add_command` (an action in a
-menu). The window holds no document state of its own: the
-Workbench has the document, the undo stack and the path.
+menu); app.panels.install puts the standard panels in through them and returns them for the
+window to keep. The window holds no document state of its own: the Workbench has the document,
+the undo stack and the path.
 """
 
 from __future__ import annotations

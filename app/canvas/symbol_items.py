@@ -204,8 +204,8 @@ class PartItem(SymbolItem):
 
     def caption_layout(self, anchors: tuple[TextAnchor, ...], rotation: int,
                        mirror: bool) -> list[Caption]:
-        """The captions where engine.schematic.placement put them; a part not yet in the document (a
-        preview of a new part) has them at its symbol's anchors."""
+        """The captions where engine.schematic.placement put them; a part not yet in the
+        document (a preview of a new part) has them at its symbol's anchors."""
         placed = None if self.preview else self.look.placement.around(self.element.id)
         if placed is None:
             return super().caption_layout(anchors, rotation, mirror)
