@@ -15,9 +15,8 @@ __all__ = ["ENTRIES", "GROUPS", "Entry", "entry", "next_label_name", "prototype"
 
 @dataclass(frozen=True)
 class Entry:
-    """One placeable thing. ``key`` is a part kind or "ground", "label", "junction";
-    ``icon`` the engine.schematic.symbols kind its icon shows ("" for a junction, drawn as a
-    dot)."""
+    """One placeable thing. ``key`` is a part kind or "ground", "label", "junction"; ``icon``
+    the engine.schematic.symbols kind its icon shows ("" for a junction, drawn as a dot)."""
 
     key: str
     title: str

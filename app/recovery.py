@@ -8,8 +8,8 @@ normally. At the next start, recovery files whose session lock is no longer held
 recognises a lock left by a dead process as stale) are offered for restoring, and temporaries
 that a killed write left in the folder are removed. Restored files are kept, under a lock of
 the session that restored them, until that session has autosaved or saved the work itself, so
-a second crash before then still finds them.
-Stale locks of sessions that ended without any autosave are removed too.
+a second crash before then still finds them. Stale locks of sessions that ended without any
+autosave are removed too.
 """
 
 from __future__ import annotations

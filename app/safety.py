@@ -1,6 +1,5 @@
 """Which sources of a sheet are above extra-low voltage (engine.schematic.captions holds the
-limits, the
-rule and the caution's wording). Qt-free."""
+limits, the rule and the caution's wording). Qt-free."""
 
 from __future__ import annotations
 

@@ -1,6 +1,5 @@
 """Canvas colours: the light theme is the shared drawing palette (engine.drawing.palette, which the
-SVG
-writer uses too); the dark theme is its night counterpart, our own.
+SVG writer uses too); the dark theme is its night counterpart, our own.
 
 A calm, neutral sheet with dark strokes; one accent colour kept for regions and blocks, one error
 colour, and a selection colour distinct from both. Colours are hex strings so that the themes

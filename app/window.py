@@ -3,8 +3,9 @@
 Extension points for further features: :meth:`MainWindow.add_dock` (a panel, with a View menu
 toggle and its place kept between sessions), :meth:`MainWindow.add_tool` (a canvas tool, with
 an action in the Tools menu and toolbar) and :meth:`MainWindow.add_command` (an action in a
-menu). The window holds no document state of its own: the
-Workbench has the document, the undo stack and the path.
+menu); app.panels.install puts the standard panels in through them and returns them for the
+window to keep. The window holds no document state of its own: the Workbench has the document,
+the undo stack and the path.
 """
 
 from __future__ import annotations
@@ -17,27 +18,37 @@ from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QKeySequence
 from PySide6.QtWidgets import (
     QApplication,
     QDockWidget,
-    QFrame,
-    QHBoxLayout,
     QLabel,
     QMainWindow,
     QMenu,
-    QToolButton,
+    QToolBar,
     QVBoxLayout,
     QWidget,
 )
 
 from portcut import assets
 from portcut.engine.errors import CircuitError
-from portcut.engine.schematic import Change, Document
 
 from . import clipboard, dialogs, panels
 from .about import show_about
+from .analysis import LiveAnalysis
+from .banner import SafetyBanner
 from .canvas import Canvas, Look, ToolSpec
+from .canvas.marks import CutMarks
 from .catalog import ENTRIES, GROUPS
 from .files import FileActions
+from .menu_actions import choice_menu, describe, follow_step
+from .panels import (
+    ChecksDock,
+    EquivalentDock,
+    HistoryDock,
+    InsightDock,
+    InspectorDock,
+    PaletteDock,
+    SweepDock,
+)
 from .recovery import Recovery, left_over
-from .safety import CAUTION, above_extra_low_voltage
+from .safety import CAUTION
 from .settings import GRID_STEPS, Settings
 from .theme import THEMES
 from .workbench import Workbench
@@ -45,34 +56,6 @@ from .workbench import Workbench
 __all__ = ["MainWindow", "SafetyBanner"]
 
 Shortcut = str | QKeySequence.StandardKey | None
-
-
-class SafetyBanner(QFrame):
-    """A note across the top of the canvas that the user can close; it never blocks."""
-
-    def __init__(self) -> None:
-        super().__init__()
-        self.setObjectName("safetyBanner")
-        self.setFrameShape(QFrame.Shape.StyledPanel)
-        self.label = QLabel()
-        self.label.setWordWrap(True)
-        self.label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        close = QToolButton()
-        close.setText("✕")
-        close.setAutoRaise(True)
-        close.setToolTip("Close this note")
-        close.setAccessibleName("Close safety note")
-        close.clicked.connect(self.hide)
-        layout = QHBoxLayout(self)
-        layout.setContentsMargins(10, 6, 6, 6)
-        layout.addWidget(QLabel("⚠"))
-        layout.addWidget(self.label, 1)
-        layout.addWidget(close, 0, Qt.AlignmentFlag.AlignTop)
-        self.hide()
-
-    def show_note(self, text: str) -> None:
-        self.label.setText(text)
-        self.show()
 
 
 class MainWindow(QMainWindow):
@@ -94,8 +77,7 @@ class MainWindow(QMainWindow):
         self.actions: dict[str, QAction] = {}
         self.menus: dict[str, QMenu] = {}
         self.docks: list[QDockWidget] = []
-        self._safety_noted = False
-        self._unsubscribe = lambda: None
+        self.toolbar: QToolBar | None = None  # built after the panels have added their tools
 
         self.banner = SafetyBanner()
         central = QWidget()
@@ -107,12 +89,22 @@ class MainWindow(QMainWindow):
         self.setCentralWidget(central)
 
         self._build_menus()
-        panels.install(self)
+        installed = panels.install(self)
+        self.palette_dock: PaletteDock = installed.palette
+        self.inspector: InspectorDock = installed.inspector
+        self.history: HistoryDock = installed.history
+        self.checks_dock: ChecksDock = installed.checks
+        self.analysis: LiveAnalysis = installed.analysis
+        self.cut_marks: CutMarks = installed.cut_marks
+        self.equivalent_dock: EquivalentDock = installed.equivalent
+        self.sweep_dock: SweepDock = installed.sweep
+        self.insight_dock: InsightDock = installed.insight
         self._build_toolbar()
         self._build_status()
         self._connect()
         self._restore_layout()
-        self._on_document(self.workbench.doc)
+        self.banner.follow(self.workbench)
+        self._update_title()
         if self.recovery is not None:
             self.recovery.start()
 
@@ -137,7 +129,7 @@ class MainWindow(QMainWindow):
         action.setCheckable(True)
         self._tool_group.addAction(action)
         self._tools_menu.addAction(action)
-        if hasattr(self, "toolbar"):
+        if self.toolbar is not None:
             self.toolbar.insertAction(self._tool_anchor, action)
         return action
 
@@ -160,35 +152,12 @@ class MainWindow(QMainWindow):
             action.setShortcuts(shortcut)
         elif shortcut:
             action.setShortcut(QKeySequence(shortcut))
-        keys = action.shortcut().toString(QKeySequence.SequenceFormat.NativeText)
-        plain = text.replace("&", "").removesuffix("…")
-        action.setToolTip(f"{tip or plain} ({keys})" if keys else (tip or plain))
-        action.setStatusTip(tip or plain)
+        describe(action, tip or text.replace("&", "").removesuffix("…"))
         if canvas_only:
             action.setShortcutContext(Qt.ShortcutContext.WidgetWithChildrenShortcut)
             self.canvas.view.addAction(action)
         action.triggered.connect(slot)
         self.actions[name] = action
-        return action
-
-    def _stack_action(self, name: str, text: str, slot: Callable[[], object],
-                      shortcut: QKeySequence.StandardKey, can, changed,
-                      current: Callable[[], str]) -> QAction:
-        """Undo or Redo: a fixed label, so the toolbar never shifts; the step it would take
-        goes in the tooltip and the status tip (the History panel lists them all)."""
-        action = self._action(name, text, slot, shortcut)
-        plain = text.replace("&", "")
-        keys = action.shortcut().toString(QKeySequence.SequenceFormat.NativeText)
-
-        def describe(step: str) -> None:
-            what = f"{plain} {step}" if step else f"Nothing to {plain.lower()}"
-            action.setToolTip(f"{what} ({keys})" if keys else what)
-            action.setStatusTip(what)
-
-        can.connect(action.setEnabled)
-        changed.connect(describe)
-        action.setEnabled(False)
-        describe(current())
         return action
 
     def _build_menus(self) -> None:
@@ -216,10 +185,10 @@ class MainWindow(QMainWindow):
 
         edit = self.menus["edit"] = bar.addMenu("&Edit")
         stack = self.workbench.undo_stack
-        undo = self._stack_action("undo", "&Undo", stack.undo, key.Undo, stack.canUndoChanged,
-                                  stack.undoTextChanged, stack.undoText)
-        redo = self._stack_action("redo", "&Redo", stack.redo, key.Redo, stack.canRedoChanged,
-                                  stack.redoTextChanged, stack.redoText)
+        undo = a("undo", "&Undo", stack.undo, key.Undo)
+        follow_step(undo, stack.canUndoChanged, stack.undoTextChanged, stack.undoText)
+        redo = a("redo", "&Redo", stack.redo, key.Redo)
+        follow_step(redo, stack.canRedoChanged, stack.redoTextChanged, stack.redoText)
         edit.addActions([undo, redo])
         edit.addSeparator()
         edit.addAction(a("cut", "Cu&t", self.cut, key.Cut, "Cut the selection"))
@@ -251,11 +220,11 @@ class MainWindow(QMainWindow):
                          "Zoom to 100 %"))
         view.addSeparator()
         self._panels_menu = view.addMenu("&Panels")
-        self._choice_menu(view, "Canvas &theme", [(t, t.title()) for t in THEMES],
+        choice_menu(view, "Canvas &theme", [(t, t.title()) for t in THEMES],
                           self.settings.theme, self.set_theme)
-        self._choice_menu(view, "&Symbols", [("iec", "IEC 60617"), ("ieee", "IEEE 315")],
+        choice_menu(view, "&Symbols", [("iec", "IEC 60617"), ("ieee", "IEEE 315")],
                           self.settings.style, self.set_style)
-        self._choice_menu(view, "Snap &grid", [(s, f"{s} unit{'s' * (s > 1)}")
+        choice_menu(view, "Snap &grid", [(s, f"{s} unit{'s' * (s > 1)}")
                                                for s in GRID_STEPS],
                           self.settings.grid_step, self.set_grid)
 
@@ -280,16 +249,6 @@ class MainWindow(QMainWindow):
         help_menu.addAction(a("about", "&About Portcut", lambda: show_about(self), None,
                               "What Portcut computes and its limits"))
         help_menu.addAction("About &Qt", QApplication.aboutQt)
-
-    def _choice_menu(self, parent: QMenu, title: str, options: list, current,
-                     choose: Callable[[object], None]) -> None:
-        menu = parent.addMenu(title)
-        group = QActionGroup(menu)
-        for value, text in options:
-            action = menu.addAction(text, lambda v=value: choose(v))
-            action.setCheckable(True)
-            action.setChecked(value == current)
-            group.addAction(action)
 
     def _build_toolbar(self) -> None:
         bar = self.addToolBar("Main")
@@ -321,7 +280,7 @@ class MainWindow(QMainWindow):
         c.view.zoomChanged.connect(lambda z: self.zoom_label.setText(f"{z * 100:.0f} %"))
         self.workbench.undo_stack.cleanChanged.connect(self._update_title)
         self.workbench.pathChanged.connect(self._update_title)
-        self.workbench.documentReplaced.connect(self._on_document)
+        self.workbench.documentReplaced.connect(lambda _: self._update_title())
         if self.recovery is not None:
             self.recovery.failed.connect(lambda m: self.statusBar().showMessage(m, 10000))
         self.tool_status.setText(c.tool.status)
@@ -340,28 +299,6 @@ class MainWindow(QMainWindow):
             action.setChecked(True)
         elif self._tool_group.checkedAction() is not None:
             self._tool_group.checkedAction().setChecked(False)
-
-    def _on_document(self, doc: Document) -> None:
-        self._unsubscribe()
-        self._unsubscribe = doc.subscribe(self._check_safety)
-        self._safety_noted = False
-        self.banner.hide()
-        self._check_safety(None)
-        self._update_title()
-
-    def _check_safety(self, change: Change | None) -> None:
-        """The caution, once per opened sheet, when a source above extra-low voltage appears."""
-        if self._safety_noted:
-            return
-        doc = self.workbench.doc
-        if change is None or change.analysis:
-            high = above_extra_low_voltage(doc)
-        else:
-            high = above_extra_low_voltage(doc, [doc[i] for i in change.added | change.updated
-                                                 if i in doc])
-        if high:
-            self._safety_noted = True
-            self.banner.show_note(f"{CAUTION} ({', '.join(high)})")
 
     def _update_title(self) -> None:
         self.setWindowTitle(f"{self.files.name()}[*] — Portcut")
@@ -450,5 +387,5 @@ class MainWindow(QMainWindow):
         self.settings.save_window_layout(self.saveGeometry(), self.saveState())
         if self.recovery is not None:
             self.recovery.close()
-        self._unsubscribe()
+        self.banner.stop()
         event.accept()

@@ -1,6 +1,6 @@
 """The one exception hierarchy of the engine: every error a user can see is a CircuitError.
 
-Each message names what is at fault (the part, the net, the field) and, where it can, how to fix it.
+Each message names what is at fault (the part, the net, the field) and, where it can, the fix.
 """
 
 from collections.abc import Iterable

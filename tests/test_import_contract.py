@@ -85,6 +85,10 @@ def bad_tree(tmp_path: Path) -> Path:
     (top / "app").mkdir()
     (top / "app" / "__init__.py").write_text("")
     (top / "app" / "window.py").write_text("")
+    for package in ("canvas", "canvas/tools", "panels"):  # the app contracts name these
+        (top / "app" / package).mkdir()
+        (top / "app" / package / "__init__.py").write_text("")
+    (top / "app" / "canvas" / "canvas.py").write_text("")
     return tmp_path
 
 
@@ -105,6 +109,33 @@ def test_import_linter_contract_is_kept(tmp_path: Path) -> None:
     assert result.returncode == 0, result.stdout + result.stderr
     assert "engine is independent of Qt and of the app KEPT" in result.stdout
     assert "engine layers: cli over drawing over schematic over solve KEPT" in result.stdout
+    for contract in APP_CONTRACTS:
+        assert f"{contract} KEPT" in result.stdout
+
+
+#: The app's contracts against its two former import circles: each is broken by the import that
+#: closed its circle (a type-only import counts: import-linter reads those too).
+APP_CONTRACTS = {
+    "canvas tools see the canvas only through ToolHost":
+        (("app", "canvas", "tools", "wire.py"),
+         "\nfrom typing import TYPE_CHECKING\n"
+         "if TYPE_CHECKING:\n    from ..canvas import Canvas\n"),
+    "panels are installed by the window and never import it":
+        (("app", "panels", "sweep.py"), "\nfrom ..window import MainWindow\n"),
+}
+
+
+@pytest.mark.parametrize("contract", list(APP_CONTRACTS))
+def test_the_app_contracts_catch_the_import_that_closed_a_circle(tmp_path: Path,
+                                                                 contract: str) -> None:
+    parts, added = APP_CONTRACTS[contract]
+    module = installed_layout(tmp_path) / "portcut" / Path(*parts)
+    module.write_text(module.read_text(encoding="utf-8") + added, encoding="utf-8")
+    result = _run(_LINT, tmp_path)
+    assert result.returncode != 0
+    assert f"{contract} BROKEN" in result.stdout
+    others = [c for c in APP_CONTRACTS if c != contract]
+    assert all(f"{c} KEPT" in result.stdout for c in others)
 
 
 def test_the_layer_contract_catches_a_solver_that_reads_the_schematic(tmp_path: Path) -> None:

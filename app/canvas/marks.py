@@ -10,6 +10,8 @@ and read their colours from the scene's Look when they paint.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+
 from PySide6.QtCore import QObject, QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QColor, QFont, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
@@ -101,28 +103,46 @@ class FaultItem(QGraphicsItem):
         painter.drawPath(self.parts)
 
 
-class PortMarksItem(QGraphicsItem):
-    """Circled + and − where the port nets cross the outline."""
+class _SpotMarksItem(QGraphicsItem):
+    """Base of the items that draw one mark at each of some sheet points: the item's bounds are
+    the union of the marks' boxes, :attr:`BOX` placed at each point."""
 
-    def __init__(self, look: Look) -> None:
+    #: A mark's box about its point, grid units: (left, top, width, height).
+    BOX = (0.0, 0.0, 0.0, 0.0)
+
+    def __init__(self, look: Look, z: float) -> None:
         super().__init__()
         self.look = look
-        self.setZValue(Z_DOT + 0.5)
-        self.marks: tuple[PortMark, ...] = ()
+        self.setZValue(z)
         self._bounds = QRectF()
 
-    def show_marks(self, marks: tuple[PortMark, ...]) -> None:
+    def _cover(self, points: Iterable[tuple[float, float]]) -> None:
+        """Make the bounds cover a mark at each of ``points`` (grid units), and repaint."""
         self.prepareGeometryChange()
-        self.marks = marks
-        r = (MARK_RADIUS + 0.2) * UNIT
+        left, top, width, height = (v * UNIT for v in self.BOX)
         bounds = QRectF()
-        for m in marks:
-            bounds |= QRectF(m.at[0] * UNIT - r, m.at[1] * UNIT - r, 2 * r, 2 * r)
+        for x, y in points:
+            bounds |= QRectF(x * UNIT + left, y * UNIT + top, width, height)
         self._bounds = bounds
         self.update()
 
     def boundingRect(self) -> QRectF:
         return self._bounds
+
+
+class PortMarksItem(_SpotMarksItem):
+    """Circled + and − where the port nets cross the outline."""
+
+    _R = MARK_RADIUS + 0.2  # the circle and its stroke
+    BOX = (-_R, -_R, 2 * _R, 2 * _R)
+
+    def __init__(self, look: Look) -> None:
+        super().__init__(look, Z_DOT + 0.5)
+        self.marks: tuple[PortMark, ...] = ()
+
+    def show_marks(self, marks: tuple[PortMark, ...]) -> None:
+        self.marks = marks
+        self._cover(m.at for m in marks)
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
               widget: QWidget | None = None) -> None:
@@ -142,28 +162,19 @@ class PortMarksItem(QGraphicsItem):
                              Qt.AlignmentFlag.AlignCenter, MARK_TEXT[m.role])
 
 
-class CheckMarksItem(QGraphicsItem):
+class CheckMarksItem(_SpotMarksItem):
     """A warning triangle at each point where a sheet check fails (app/panels/checks.py)."""
 
+    _R = CHECK_MARK_SIZE + 0.3  # the triangle, which stands above and right of its point
+    BOX = (-_R, -2 * _R, 2 * _R, 2 * _R)
+
     def __init__(self, look: Look) -> None:
-        super().__init__()
-        self.look = look
-        self.setZValue(Z_DOT + 0.6)
+        super().__init__(look, Z_DOT + 0.6)
         self.points: tuple[tuple[int, int], ...] = ()
-        self._bounds = QRectF()
 
     def show_points(self, points: tuple[tuple[int, int], ...]) -> None:
-        self.prepareGeometryChange()
         self.points = points
-        r = (CHECK_MARK_SIZE + 0.3) * UNIT
-        bounds = QRectF()
-        for x, y in points:
-            bounds |= QRectF(x * UNIT - r, y * UNIT - 2 * r, 2 * r, 2 * r)
-        self._bounds = bounds
-        self.update()
-
-    def boundingRect(self) -> QRectF:
-        return self._bounds
+        self._cover(points)
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
               widget: QWidget | None = None) -> None:

@@ -89,8 +89,7 @@ def orientation(rotation: int, mirror: bool) -> QTransform:
 
 @cache
 def caption_font(size: float) -> QFont:
-    """The font for text of ``size`` grid units (engine.schematic.symbols.FONT_SIZE and the
-    like)."""
+    """The font for text of ``size`` grid units (such as engine.schematic.symbols.FONT_SIZE)."""
     font = QFont()
     font.setPixelSize(round(size * UNIT))
     return font

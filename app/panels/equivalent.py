@@ -3,28 +3,25 @@ edits, the analysis settings, and the region's own controls (its name, its port:
 plus and minus chosen from its nets) and commands (swap polarity, collapse, expand, remove).
 
 It reads the numbers from app.analysis.LiveAnalysis and writes only through undo commands; for
-an invalid cut it shows the reason in plain words (the canvas highlights what is named).
+an invalid cut it shows the reason in plain words (the canvas highlights what is named). The
+dock keeps the layout; the sentences come from engine.schematic.wording (the command line
+prints the same), the controls from analysis_controls.py and port_controls.py, the values
+table from values.py and the region and block texts from region_texts.py.
 """
 
 from __future__ import annotations
 
 import html
-import re
 from dataclasses import replace
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QUndoCommand
 from PySide6.QtWidgets import (
-    QButtonGroup,
     QComboBox,
     QDockWidget,
     QFormLayout,
     QFrame,
-    QGridLayout,
     QHBoxLayout,
-    QLabel,
     QPushButton,
-    QRadioButton,
     QScrollArea,
     QVBoxLayout,
     QWidget,
@@ -32,231 +29,45 @@ from PySide6.QtWidgets import (
 
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Block, Change, Document, Region
-from portcut.engine.schematic.captions import block_caption, drawn_form
 from portcut.engine.schematic.connectivity import block_equivalent, extract
-from portcut.engine.schematic.ports import region_nets
-from portcut.engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
+from portcut.engine.schematic.reduction import RegionAnalysis, collapse_region
+from portcut.engine.schematic.wording import (
+    MATCH_RTOL,
+    equivalence_text,
+    forms_text,
+    power_text,
+    realisation_text,
+)
 from portcut.engine.solve.equivalent import EquivalenceReport, Equivalent
 from portcut.engine.solve.mna import describe_freq
-from portcut.engine.solve.units import format_complex, format_eng, parse_frequency
+from portcut.engine.solve.units import parse_frequency
 
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas
-from ..commands import RemoveElements, ReplaceElements, SetAnalysis, edit_command
-from ..region_edits import ROLES, net_shown, port_text, renamed, with_port_net
+from ..commands import RemoveElements, ReplaceElements, edit_command
+from ..region_edits import net_shown, renamed
 from ..workbench import Workbench
+from .analysis_controls import AnalysisControls
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
+from .port_controls import PortControls
+from .region_texts import block_text, boundary_text, expand_command
+from .values import ValuesTable, keep_values, text_label
 
-__all__ = ["EquivalentDock", "block_text", "boundary_text", "equivalence_text", "expand_command",
-           "forms_text", "keep_values", "power_text", "realisation_text"]
+__all__ = ["EquivalentDock", "block_text", "boundary_text", "expand_command", "keep_values"]
 
-#: Relative deviation below which the reduced circuit counts as reproducing the original.
-MATCH_RTOL = 1e-9
 _NO_REGION = ("No region yet. Choose Tools > Boundary (B) and drag a lasso around the parts to "
               "reduce; their Thevenin and Norton equivalents appear here as you edit.")
 _PICK_BLOCK = ("Select a collapsed block to see its values and expand it, or choose Tools > "
                "Boundary (B) and drag a lasso around parts to reduce them.")
 
 
-# -- texts ----------------------------------------------------------------------------------------
-def _names(names: list[str], most: int = 6) -> str:
-    if not names:
-        return "nothing"
-    shown = ", ".join(names[:most])
-    return shown if len(names) <= most else f"{shown} and {len(names) - most} more"
-
-
-def boundary_text(analysis: RegionAnalysis) -> list[str]:
-    """For each net a refused cut names, the parts on it inside and outside the region (a
-    collapsed block by its designator), so the user sees which part to take in or leave out."""
-    if analysis.circuit is None:
-        return []
-    lines = []
-    for net in sorted(analysis.bad_nets):
-        sides: tuple[set[str], set[str]] = (set(), set())
-        for part in analysis.circuit:
-            if net in part.nets:
-                # a block's parts and a device's members by their designator
-                sides[part.name not in analysis.part_names].add(
-                    part.name.split(".")[0].split(":")[0])
-        inside, outside = (sorted(side) for side in sides)
-        lines.append(f"On {net}: {_names(inside)} inside, {_names(outside)} outside")
-    return lines
-
-
-def block_text(block: Block, freq: float) -> list[str]:
-    """What a collapsed block stands for: the region it replaced, the form drawn and its values
-    at ``freq`` hertz (as the canvas captions them), or why it has none."""
-    try:
-        eq = block_equivalent(block, freq)
-    except CircuitError as exc:
-        return [f"{block.designator} has no equivalent: {exc}"]
-    form = drawn_form(eq, block.form)
-    source, z, at = block_caption(eq, form, freq)
-    return [f"{block.designator} stands for the collapsed region “{block.region.name}”, "
-            f"drawn in {form.title()} form.", f"{source}, {z} {at}."]
-
-
-def expand_command(doc: Document, block: Block) -> QUndoCommand:
-    """The undo command that puts the parts ``block`` stands for back exactly (raises
-    CircuitError saying why it cannot)."""
-    return edit_command(doc, expand_block(doc, block.id), f"Expand {block.designator}")
-
-
-def forms_text(eq: Equivalent, form: str) -> list[str]:
-    """Which forms exist, and why one does not; the chosen ``form`` first."""
-    thevenin = ("Thevenin: Voc in series with Z" if eq.has_thevenin else
-                "No Thevenin form: Z is infinite (an ideal current source or an open circuit "
-                "at the port)")
-    norton = ("Norton: Isc in parallel with Z" if eq.has_norton else
-              "No Norton form: Z is zero (an ideal voltage source or a short across the port)")
-    return [thevenin, norton] if form == "thevenin" else [norton, thevenin]
-
-
-def realisation_text(eq: Equivalent) -> str:
-    """The series R + L or R + C that has impedance z at the analysis frequency."""
-    at = describe_freq(eq.freq)
-    try:
-        r = eq.realisation()
-    except CircuitError as exc:
-        return f"No series R, L or C realises Z: {exc}"
-    text = f"Z at {at} = {r.parts_text()}"
-    if r.resistance < 0:
-        text += " (a negative resistance: the region is active)"
-    return text
-
-
-def power_text(eq: Equivalent, basis: str) -> str:
-    """The conjugate-matched load and the power it takes, in ``basis`` ("peak" or "rms")."""
-    p = eq.max_power(basis)
-    if p.reason:
-        return p.reason[0].upper() + p.reason[1:]
-    return (f"Matched load {format_complex(p.load, 'Ω')} takes {format_eng(p.power, 'W', 4)}; "
-            f"the best resistor, {format_eng(p.resistive_load, 'Ω', 4)}, takes "
-            f"{format_eng(p.resistive_power, 'W', 4)} ({p.described()})")
-
-
-def _agreement(relative: float) -> str:
-    return "agree exactly" if relative == 0 else f"agree within {relative:.1e} (relative)"
-
-
-def equivalence_text(report: EquivalenceReport) -> str:
-    """The one-line check: the reduced circuit against the original, from outside."""
-    worst = f", worst at net {report.worst_net}" if report.worst_net and report.voltage_rel \
-        else ""
-    verdict = "Reduced circuit matches" if report.within(MATCH_RTOL) else "Reduced circuit DIFFERS"
-    return (f"{verdict} for the load as drawn: outside voltages "
-            f"{_agreement(report.voltage_rel)}{worst}; port current "
-            f"{_agreement(report.current_rel)}")
-
-
-#: A space between a number and its unit (with any SI prefix), the spaces around the j of a
-#: complex value's imaginary part and around a phasor's angle sign: none may break a line.
-_VALUE_SPACES = re.compile(
-    r"(?<=\d) (?=[yzafpnµumkMGTPE]?(?:Ω|V|A|W|H|F|Hz|S)(?!\w))|(?<=[-+−]) (?=j )|(?<=j) (?=\d)"
-    r"| (?=∠)|(?<=∠) ")
-
-
-def keep_values(text: str) -> str:
-    """``text`` with non-breaking spaces inside every value ("114.6 µW", "- j 450.5 mV",
-    "846.8 mV ∠ -32.14°"), so a line breaks only between values and words."""
-    return _VALUE_SPACES.sub("\u00a0", text)
-
-
 # -- widgets --------------------------------------------------------------------------------------
-def _label(text: str = "", selectable: bool = True) -> QLabel:
-    label = QLabel(text)
-    label.setWordWrap(True)
-    if selectable:
-        label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-    return label
-
-
 def _button(text: str, tip: str, slot=None) -> QPushButton:
     button = QPushButton(text)
     button.setToolTip(tip)
     if slot is not None:
         button.clicked.connect(slot)
     return button
-
-
-class ValuesTable(QWidget):
-    """Voc, Isc and Z, each in rectangular and polar form, with units: side by side where the
-    panel is wide enough for both, else the polar form under the rectangular one."""
-
-    ROWS = (("voc", "Voc"), ("isc", "Isc"), ("z", "Z"))
-    FORMS = ("rectangular", "polar")
-
-    def __init__(self) -> None:
-        super().__init__()
-        self.grid = grid = QGridLayout(self)
-        grid.setContentsMargins(0, 0, 0, 0)
-        grid.setHorizontalSpacing(12)
-        self.heads = [QLabel(title) for title in self.FORMS]
-        for head in self.heads:
-            head.setEnabled(False)
-        self.names: list[QLabel] = []
-        self.cells: dict[tuple[str, str], QLabel] = {}
-        for key, title in self.ROWS:
-            self.names.append(QLabel(f"<b>{title}</b>"))
-            for form in self.FORMS:
-                cell = _label()
-                cell.setAccessibleName(f"{title} {form}")
-                self.cells[key, form] = cell
-        self.stacked: bool | None = None
-        self._arrange(False)
-
-    def _arrange(self, stacked: bool) -> None:
-        """Lay the cells out side by side, or stacked (polar under rectangular)."""
-        if stacked == self.stacked:
-            return
-        self.stacked = stacked
-        grid = self.grid
-        for widget in [*self.heads, *self.names, *self.cells.values()]:
-            grid.removeWidget(widget)
-        for col in range(3):
-            grid.setColumnStretch(col, 0)
-        for head in self.heads:
-            head.setVisible(not stacked)
-        if not stacked:
-            for col, head in enumerate(self.heads, start=1):
-                grid.addWidget(head, 0, col)
-        for i, (key, _) in enumerate(self.ROWS):
-            row = 2 * i if stacked else i + 1
-            grid.addWidget(self.names[i], row, 0, Qt.AlignmentFlag.AlignTop)
-            for j, form in enumerate(self.FORMS):
-                at = (row + j, 1) if stacked else (row, 1 + j)
-                grid.addWidget(self.cells[key, form], *at)
-        grid.setColumnStretch(1 if stacked else 2, 1)
-
-    def _wide_enough(self, width: int) -> bool:
-        """Whether ``width`` pixels hold the names and both forms of every row on one line."""
-        metrics = self.fontMetrics()
-        spacing = self.grid.horizontalSpacing()
-        name = max(n.sizeHint().width() for n in self.names)
-        need = [metrics.horizontalAdvance(self.cells[key, form].text()) for key, _ in self.ROWS
-                for form in self.FORMS]
-        widest = max(need[0::2]) + max(need[1::2])
-        return name + widest + 2 * spacing + 8 <= width
-
-    def resizeEvent(self, event) -> None:
-        super().resizeEvent(event)
-        self._arrange(not self._wide_enough(event.size().width()))
-
-    def show_equivalent(self, eq: Equivalent | None) -> None:
-        if eq is None:
-            for cell in self.cells.values():
-                cell.setText("—")
-        else:
-            rect, polar = eq.rectangular(), eq.polar()
-            for key, _ in self.ROWS:
-                for form, texts in (("rectangular", rect), ("polar", polar)):
-                    self.cells[key, form].setText(keep_values(getattr(texts, key)))
-        self._arrange(not self._wide_enough(self.width()))
-
-    def text(self, key: str, form: str) -> str:
-        """What a cell says, with plain spaces."""
-        return self.cells[key, form].text().replace("\u00a0", " ")
 
 
 class EquivalentDock(QDockWidget):
@@ -276,39 +87,20 @@ class EquivalentDock(QDockWidget):
         self.name = CheckedEntry(self._read_name, "", "Region name",
                                  "The region's name, unique on the sheet (Shift+F2)")
         self.name.accepted.connect(self._rename)
-        self.port_boxes: dict[str, QComboBox] = {}
-        for role, sign in zip(ROLES, ("+", "−"), strict=True):
-            box = QComboBox()
-            box.setAccessibleName(f"Port {role} net")
-            box.setToolTip(f"The net at the port's {sign}: automatic (where the region meets "
-                           "the rest), or any net of the region's parts")
-            box.activated.connect(lambda index, r=role: self._choose_port(r, index))
-            self.port_boxes[role] = box
-        self.automatic_button = _button("Use the automatic port", "Forget the chosen port and "
-                                        "take the two nets where the region meets the rest",
-                                        self.automatic_port)
-        self.port = _label()
-        self.frequency = CheckedEntry(parse_frequency, "DC", "Analysis frequency",
-                                      "DC, or a frequency with SI prefixes: 50, 1k, 2.4 GHz")
-        self.frequency.accepted.connect(self._set_frequency)
-        self.thevenin = QRadioButton("Thevenin")
-        self.norton = QRadioButton("Norton")
-        self.form_group = QButtonGroup(self)
-        for button in (self.thevenin, self.norton):
-            self.form_group.addButton(button)
-            button.toggled.connect(self._set_form)
-        self.basis = QComboBox()
-        self.basis.addItem("peak phasors", "peak")
-        self.basis.addItem("rms phasors", "rms")
-        self.basis.setAccessibleName("Phasor basis")
-        self.basis.activated.connect(self._set_basis)
-        self.message = _label()
+        self.ports = PortControls(workbench, live, self._region, self)
+        self.ports.refused.connect(self._refuse)
+        self.port_boxes, self.automatic_button = self.ports.boxes, self.ports.automatic_button
+        self.port = text_label()
+        self.settings = AnalysisControls(workbench, self)
+        self.frequency, self.basis = self.settings.frequency, self.settings.basis
+        self.thevenin, self.norton = self.settings.thevenin, self.settings.norton
+        self.message = text_label()
         self.values = ValuesTable()
-        self.forms = _label()
-        self.realisation = _label()
-        self.power = _label()
-        self.check = _label()
-        self.notice = _label()
+        self.forms = text_label()
+        self.realisation = text_label()
+        self.power = text_label()
+        self.check = text_label()
+        self.notice = text_label()
         self.swap_button = _button("Swap + / −", "Exchange the port's plus and minus nets",
                                    self.swap)
         self.collapse_button = _button("Collapse", "Replace the region by its equivalent block",
@@ -331,15 +123,8 @@ class EquivalentDock(QDockWidget):
         settings = QFormLayout()
         settings.addRow("Region", self.region_box)
         settings.addRow("Name", self.name)
-        for sign, box in zip(("+", "−"), self.port_boxes.values(), strict=True):
-            settings.addRow(f"Port {sign}", box)
-        settings.addRow("Frequency", self.frequency)
-        forms = QHBoxLayout()
-        forms.addWidget(self.thevenin)
-        forms.addWidget(self.norton)
-        forms.addStretch(1)
-        settings.addRow("Form", forms)
-        settings.addRow("Power", self.basis)
+        self.ports.add_rows(settings)
+        self.settings.add_rows(settings)
         row1, row2 = QHBoxLayout(), QHBoxLayout()
         row1.addWidget(self.swap_button)
         row1.addWidget(self.sweep_button)
@@ -381,13 +166,13 @@ class EquivalentDock(QDockWidget):
 
     # -- following ----------------------------------------------------------------------------
     def _show_document(self) -> None:
-        self._show_settings()
+        self.settings.show_settings()
         self._fill_regions()
         self._update_expand()
 
     def _on_change(self, change: Change) -> None:
         if change.analysis:
-            self._show_settings()
+            self.settings.show_settings()
         doc = self.doc
         ids = change.added | change.removed | change.updated
         # the lists shown change only with regions and blocks (a value edit touches neither)
@@ -403,16 +188,6 @@ class EquivalentDock(QDockWidget):
         """With no region shown, the selected (or only) block's equivalent stands in."""
         if self.live.region_id is None or self._region() is None:
             self.show_analysis(None)
-
-    def _show_settings(self) -> None:
-        a = self.doc.analysis
-        if a.freq != self.frequency.text or not self.frequency.in_error:
-            self.frequency.set_text(a.freq)
-        for button, form in ((self.thevenin, "thevenin"), (self.norton, "norton")):
-            button.blockSignals(True)
-            button.setChecked(a.form == form)
-            button.blockSignals(False)
-        self.basis.setCurrentIndex(self.basis.findData(a.basis))
 
     def _fill_regions(self) -> None:
         box = self.region_box
@@ -435,7 +210,7 @@ class EquivalentDock(QDockWidget):
     # -- showing ------------------------------------------------------------------------------
     def show_analysis(self, analysis: RegionAnalysis | None) -> None:
         self.notice.clear()
-        self._show_port(analysis)
+        self.ports.show_port(analysis)
         ok = analysis is not None and analysis.ok
         for widget in (self.forms, self.realisation, self.power, self.check):
             widget.setVisible(ok)
@@ -465,11 +240,7 @@ class EquivalentDock(QDockWidget):
         plus, minus = eq.port
         self.port.setText(f"Port <b>{net_shown(plus)}</b> (+) / <b>{net_shown(minus)}</b> (−) at "
                           f"{keep_values(describe_freq(eq.freq))}")
-        self.values.show_equivalent(eq)
-        form = self.doc.analysis.form
-        self.forms.setText("<br>".join(forms_text(eq, form)))
-        self.realisation.setText(keep_values(realisation_text(eq)))
-        self.power.setText(keep_values(power_text(eq, self.doc.analysis.basis)))
+        self._show_results(eq, self.doc.analysis.form)
         self.check.setEnabled(False)  # greyed until the check of these numbers arrives
 
     def _show_block(self, block: Block) -> bool:
@@ -492,39 +263,17 @@ class EquivalentDock(QDockWidget):
             self.port.setText(f"{block.designator} port <b>{plus}</b> (+) / <b>{minus}</b> (−) "
                               f"at {describe_freq(freq)}")
             self.port.show()
-        self.values.show_equivalent(eq)
-        self.values.show()
-        self.forms.setText("<br>".join(forms_text(eq, block.form)))
-        self.realisation.setText(keep_values(realisation_text(eq)))
-        self.power.setText(keep_values(power_text(eq, self.doc.analysis.basis)))
-        for widget in (self.forms, self.realisation, self.power):
+        self._show_results(eq, block.form)
+        for widget in (self.values, self.forms, self.realisation, self.power):
             widget.show()
         return True
 
-    def _show_port(self, analysis: RegionAnalysis | None) -> None:
-        """The port boxes: "automatic" (with the nets it found) and the region's nets; a chosen
-        net the region no longer has stays listed, marked gone."""
-        region, conn = self._region(), self.live.conn
-        usable = (region is not None and conn is not None and analysis is not None
-                  and analysis.region_id == region.id)
-        nets = region_nets(self.doc, region, conn) if usable else ()
-        automatic = analysis.equivalent.port if usable and analysis.ok and \
-            region.port is None else None
-        for i, (role, box) in enumerate(self.port_boxes.items()):
-            box.clear()
-            box.setEnabled(usable)
-            if not usable:
-                continue
-            box.addItem(f"automatic ({net_shown(automatic[i])})" if automatic else "automatic",
-                        None)
-            for net in nets:
-                box.addItem(net_shown(net), net)
-            chosen = region.port[i] if region.port is not None else None
-            if chosen is not None and chosen not in nets:
-                box.addItem(f"{chosen} (gone)", chosen)
-            box.setCurrentIndex(0 if chosen is None else box.findData(chosen))
-            box.setAccessibleDescription(f"{role}: {box.currentText()}")
-        self.automatic_button.setVisible(usable and region.port is not None and not analysis.ok)
+    def _show_results(self, eq: Equivalent, form: str) -> None:
+        """The values, the forms (``form`` first), Z as series parts and the matched load."""
+        self.values.show_equivalent(eq)
+        self.forms.setText("<br>".join(forms_text(eq, form)))
+        self.realisation.setText(keep_values(realisation_text(eq)))
+        self.power.setText(keep_values(power_text(eq, self.doc.analysis.basis)))
 
     def show_check(self, result: EquivalenceReport | str) -> None:
         self.check.setEnabled(True)
@@ -551,25 +300,6 @@ class EquivalentDock(QDockWidget):
         blocks = [e for e in chosen if isinstance(e, Block)] or doc.blocks()
         return blocks[0] if len(blocks) == 1 else None
 
-    # -- settings -----------------------------------------------------------------------------
-    def _set_analysis(self, text: str, **changes: str) -> None:
-        new = replace(self.doc.analysis, **changes)
-        if new != self.doc.analysis:
-            self.workbench.push(SetAnalysis(self.doc, new, text))
-
-    def _set_frequency(self, text: str, hz: float) -> None:
-        shown = "DC" if hz == 0 and text.upper() == "DC" else text
-        self._set_analysis(f"Analyse at {describe_freq(hz)}", freq=shown)
-
-    def _set_form(self, checked: bool) -> None:
-        if checked:
-            form = "thevenin" if self.thevenin.isChecked() else "norton"
-            self._set_analysis(f"Show the {form.title()} form", form=form)
-
-    def _set_basis(self, index: int) -> None:
-        basis = self.basis.itemData(index)
-        self._set_analysis(f"Read phasors as {basis} values", basis=basis)
-
     # -- region commands ----------------------------------------------------------------------
     def _region(self) -> Region | None:
         rid = self.live.region_id
@@ -583,27 +313,6 @@ class EquivalentDock(QDockWidget):
         new = replace(region, swap=not region.swap) if region.port is None else \
             replace(region, port=region.port[::-1])
         self.workbench.push(ReplaceElements(self.doc, [new], f"Swap the port of “{region.name}”"))
-
-    def _choose_port(self, role: str, index: int) -> None:
-        region, analysis = self._region(), self.live.analysis
-        if region is None or self.live.conn is None:
-            return
-        shown = region.port or (analysis.equivalent.port if analysis is not None and analysis.ok
-                                and analysis.region_id == region.id else None)
-        try:
-            new = with_port_net(region, shown, region_nets(self.doc, region, self.live.conn),
-                                role, self.port_boxes[role].itemData(index))
-        except CircuitError as exc:
-            self._refuse(str(exc))
-            return
-        if new != region:
-            self.workbench.push(ReplaceElements(self.doc, [new], port_text(new)))
-
-    def automatic_port(self) -> None:
-        region = self._region()
-        if region is not None and region.port is not None:
-            new = replace(region, port=None)
-            self.workbench.push(ReplaceElements(self.doc, [new], port_text(new)))
 
     def _read_name(self, text: str) -> Region | None:
         region = self._region()

@@ -13,13 +13,11 @@
   plain and transposed solves), which shows how much of a slow run is the machine's.
 
 Times are wall-clock (CPU time would count the BLAS threads' spinning); engine and floor run
-alternately, each engine run followed by a floor run, and a ratio is the median over those pairs
-(a shared machine's load drifts between pairs far more than within one); times printed are
-medians, and the small circuit's figure is its median time. "first" clears the netlists the
-engine keeps (engine.solve.topology.netlist_of), "after a value edit" changes one resistor first
-(as a
-live view sees an edit), "again" re-analyses the same parts.
-Figures go to docs/performance.md.
+alternately, each engine run followed by a floor run, and a ratio is the median over those pairs (a
+shared machine's load drifts between pairs far more than within one); times printed are medians,
+and the small circuit's figure is its median time. "first" clears the netlists the engine keeps
+(engine.solve.topology.netlist_of), "after a value edit" changes one resistor first (as a live view
+sees an edit), "again" re-analyses the same parts. Figures go to docs/performance.md.
 """
 
 from __future__ import annotations

@@ -32,6 +32,7 @@ from ..schematic.document import Document
 from ..schematic.fileformat import load
 from ..schematic.model import Region
 from ..schematic.reduction import collapse_region, region_part_names, swapped
+from ..schematic.wording import forms_text, power_text, realisation_text
 from ..solve import measured
 from ..solve.circuit import Circuit
 from ..solve.equivalent import Equivalent, equivalent, sweep
@@ -315,25 +316,6 @@ def _reduce_json(eq: Equivalent, sel: _Selection, names: frozenset[str]) -> dict
     }
 
 
-def _realisation_text(eq: Equivalent) -> str:
-    """Z as a resistance in series with an inductance or a capacitance at the frequency."""
-    try:
-        r = eq.realisation()
-    except CircuitError as e:
-        return f"none: {e}"
-    note = " (a negative resistance: the region is active)" if r.resistance < 0 else ""
-    return r.parts_text() + note
-
-
-def _power_text(eq: Equivalent, basis: str) -> str:
-    p = eq.max_power(basis)
-    if p.reason:
-        return p.reason
-    return (f"{format_eng(p.power, 'W', 4)} into a matched load of "
-            f"{format_complex(p.load, 'Ω')}; {format_eng(p.resistive_power, 'W', 4)} into the "
-            f"best resistor, {format_eng(p.resistive_load, 'Ω', 4)}")
-
-
 def _reduce_table(eq: Equivalent, sel: _Selection, form: str, basis: str) -> str:
     rect, polar = eq.rectangular(), eq.polar()
     at = describe_freq(eq.freq)
@@ -344,14 +326,8 @@ def _reduce_table(eq: Equivalent, sel: _Selection, form: str, basis: str) -> str
                                 ("Z", True, rect.z, polar.z)):
         out.append(f"  {name:4} {r:<28} {p}" if defined else f"  {name:4} undefined")
     out.append("")
-    thevenin = ("Thevenin: Voc in series with Z" if eq.has_thevenin else
-                "Thevenin: none, Z is infinite (the port sees an ideal current source or no "
-                "path at all)")
-    norton = ("Norton:   Isc in parallel with Z" if eq.has_norton else
-              "Norton:   none, Z is zero (the port sees an ideal voltage source or a short)")
-    out.extend([thevenin, norton] if form == "thevenin" else [norton, thevenin])
-    out.append(f"Z as series parts at {at}: {_realisation_text(eq)}")
-    out.append(f"Maximum power ({eq.max_power(basis).described()}): {_power_text(eq, basis)}")
+    out.extend(forms_text(eq, form))
+    out.extend((realisation_text(eq), power_text(eq, basis)))
     return "\n".join(out)
 
 

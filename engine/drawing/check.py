@@ -2,11 +2,10 @@
 through symbols, markers and blocks run into each other, and strokes of different nets touching.
 
 It measures the geometry the canvas and the SVG writer draw: symbol bodies
-(engine.schematic.symbols,
-without the leads, which meet other strokes at pins), leads and wire strokes, and the captions
-of engine.schematic.placement (net names and block captions at their symbol's anchors). Units are
-grid
-units. Each fault names the elements involved, so a test can say which part is crowded.
+(engine.schematic.symbols, without the leads, which meet other strokes at pins), leads and wire
+strokes, and the captions of engine.schematic.placement (net names and block captions at their
+symbol's anchors). Units are grid units. Each fault names the elements involved, so a test can
+say which part is crowded.
 """
 
 from __future__ import annotations

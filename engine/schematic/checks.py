@@ -1,13 +1,12 @@
 """Wiring checks of a whole sheet, for the window's checks list and the marks on the canvas.
 
-Two sources, one list: the drawing faults that extraction finds (a pin joined to nothing, a
-two-pin part with both pins on one net, parts stacked, bad references; see
+Two sources, one list: the drawing faults that extraction finds (a pin joined to nothing, a two-pin
+part with both pins on one net, parts stacked, bad references; see
 :mod:`engine.schematic.connectivity`), and the existence faults of the circuit they make at the
 analysis frequency (:mod:`engine.solve.topology`): an island of nets that nothing conducting joins
-to
-the ground island, and a loop of ideal voltage-defined branches (two ideal sources in
-parallel, a source shorted by a wire). A sheet whose values do not read yet gets the drawing
-checks only; its value errors are the inspector's to show.
+to the ground island, and a loop of ideal voltage-defined branches (two ideal sources in parallel,
+a source shorted by a wire). A sheet whose values do not read yet gets the drawing checks only; its
+value errors are the inspector's to show.
 """
 
 from __future__ import annotations

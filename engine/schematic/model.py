@@ -45,13 +45,12 @@ class PlacedPart:
     ``value``: resistance, capacitance, inductance, impedance, source magnitude, or gain, as
     text. ``phase_deg``: source phase in degrees (text, "" for 0). ``control``: the designator
     whose current controls a CCVS/CCCS. ``couples``: the two inductor designators of a coupling.
-    ``captions``: (role, dx, dy) for each caption the user dragged: its anchor point (text
-    centred on it) relative to ``at``, grid units; the other captions are placed automatically
+    ``captions``: (role, dx, dy) for each caption the user dragged: its anchor point (text centred
+    on it) relative to ``at``, grid units; the other captions are placed automatically
     (engine.schematic.placement).
     ``tolerance``: the value's tolerance as text, an IEC 60062 letter or a percentage ("" none).
     ``params``: a device part's parameters (engine.solve.devices.PARAMETERS) as (name, text) pairs
-    in
-    that table's order, only those given.
+    in that table's order, only those given.
     """
 
     id: str
@@ -90,7 +89,8 @@ class Junction:
 class NetLabel:
     """A named net marker with one pin at ``at``: equal names join anywhere on the sheet.
 
-    ``style`` is ``"label"`` or ``"ground"``; a ground marker always names the ground net ``"gnd"``.
+    ``style`` is ``"label"`` or ``"ground"``; a ground marker always names the ground net,
+    ``"gnd"``.
     """
 
     id: str

@@ -64,8 +64,8 @@ def sensitivity(circuit, region: Collection[str], port: Sequence[str] | None = N
                 freq: float | str = 0.0) -> dict[str, Sensitivity]:
     """{part name: :class:`Sensitivity`} for every valued part of ``region`` at ``freq`` Hz.
 
-    The port and region are checked as by :func:`engine.solve.equivalent`. Raises CircuitError where
-    the region has no Thevenin form (the open-port equations the method differentiates).
+    The port and region are checked as by :func:`engine.solve.equivalent`. Raises CircuitError
+    where the region has no Thevenin form (the open-port equations the method differentiates).
     """
     f = parse_frequency(freq)
     return _at(topology.cut(circuit, region, port), f)

@@ -2,7 +2,7 @@
 value: the base of the sensitivities (their derivatives) and of tolerance analysis (the same
 equations re-evaluated at other values).
 
-The entries follow engine/solve/mna.py's conventions: a branch row reads V(first) - V(second) - ...;
+The entries follow the conventions of mna.py: a branch row reads V(first) - V(second) - ...;
 a resistor, impedance or capacitor without a branch current is an admittance between its nets;
 M is scaled by s = j 2 pi f. Each A entry is ``coef * v`` (LINEAR) or ``coef / v`` (INVERSE) in
 its part's value v, or ``coef * k sqrt(L1 L2)`` for a coupling's mutual terms; b entries are

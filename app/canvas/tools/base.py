@@ -4,23 +4,27 @@ start, finish or cancel.
 The view turns mouse and keyboard input into :class:`CanvasEvent` (scene position, grid point,
 snapped point, buttons); Enter at the keyboard cursor is a :meth:`Tool.click`, so every tool can
 be used without a mouse. A tool changes the document only by pushing undo commands.
+
+A tool sees the canvas through :class:`ToolHost`, the few things it may use of it, so the tools
+never import the canvas module (which imports them to offer the built-in ones).
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import Protocol
 
 from PySide6.QtCore import QPointF, Qt
-from PySide6.QtGui import QKeyEvent
+from PySide6.QtGui import QKeyEvent, QUndoCommand
+from PySide6.QtWidgets import QGraphicsView
 
+from portcut.engine.schematic import Connectivity, Document, Element
 from portcut.engine.schematic.symbols import Point
 
-if TYPE_CHECKING:
-    from ..canvas import Canvas
+from ..scene import SchematicScene
 
-__all__ = ["CanvasEvent", "Tool", "ToolSpec"]
+__all__ = ["CanvasEvent", "Tool", "ToolHost", "ToolSpec"]
 
 
 @dataclass(frozen=True)
@@ -47,6 +51,44 @@ class CanvasEvent:
                                       | Qt.KeyboardModifier.ControlModifier))
 
 
+class ToolHost(Protocol):
+    """What a tool may use of the canvas (app.canvas.Canvas is one): the document, the scene
+    and view, the keyboard cursor (a grid point), pushing undo commands, the status line, and
+    the canvas's own geometry and edits."""
+
+    scene: SchematicScene
+    view: QGraphicsView
+    cursor: Point
+
+    @property
+    def doc(self) -> Document: ...
+
+    def push(self, command: QUndoCommand) -> None: ...
+
+    def set_status(self, text: str) -> None: ...
+
+    def activate_named(self, name: str) -> None: ...
+
+    def pick_tolerance(self) -> float: ...
+
+    def pin_at(self, scene_pos: QPointF) -> Point | None: ...
+
+    def joins_at(self, p: Point) -> bool: ...
+
+    def plan_move(self, offset: Point) -> list[Element]: ...
+
+    def move_joins(self, plan: list[Element],
+                   before: Connectivity | None = None) -> tuple[str, list[Point]]: ...
+
+    def move_selection(self, offset: Point) -> None: ...
+
+    def drag_caption(self, part_id: str, role: str, shift: tuple[float, float]) -> None: ...
+
+    def step_selection(self, step: int) -> None: ...
+
+    def request_edit(self, element_id: str) -> None: ...
+
+
 class Tool:
     """Base of every tool. Subclasses override the hooks they need.
 
@@ -57,7 +99,7 @@ class Tool:
 
     name = ""
 
-    def __init__(self, canvas: Canvas) -> None:
+    def __init__(self, canvas: ToolHost) -> None:
         self.canvas = canvas
 
     @property
@@ -114,4 +156,4 @@ class ToolSpec:
     text: str
     shortcut: str
     tip: str
-    factory: Callable[[Canvas], Tool]
+    factory: Callable[[ToolHost], Tool]

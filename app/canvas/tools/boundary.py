@@ -26,11 +26,10 @@ from ...regions import enclosed, outline_with, outline_without, region_name
 from ...theme import qcolor
 from ..grid import UNIT
 from ..items import Z_PREVIEW
-from .base import CanvasEvent, Tool
+from .base import CanvasEvent, Tool, ToolHost
 
 if TYPE_CHECKING:
     from ...analysis import LiveAnalysis
-    from ..canvas import Canvas
 
 __all__ = ["BoundaryTool"]
 
@@ -43,7 +42,7 @@ class BoundaryTool(Tool):
 
     name = "boundary"
 
-    def __init__(self, canvas: Canvas, live: LiveAnalysis) -> None:
+    def __init__(self, canvas: ToolHost, live: LiveAnalysis) -> None:
         super().__init__(canvas)
         self.live = live
         self._shape = ""          # "", "lasso", "rect"

@@ -4,7 +4,6 @@ places it, R rotates and M mirrors it while it is held."""
 from __future__ import annotations
 
 from dataclasses import replace
-from typing import TYPE_CHECKING
 
 from PySide6.QtCore import Qt
 
@@ -14,10 +13,7 @@ from ...catalog import entry, prototype
 from ...commands import AddElements
 from ...editing import RigidMap, moved
 from ..items import item_for
-from .base import CanvasEvent, Tool
-
-if TYPE_CHECKING:
-    from ..canvas import Canvas
+from .base import CanvasEvent, Tool, ToolHost
 
 __all__ = ["PlaceTool"]
 
@@ -28,7 +24,7 @@ class PlaceTool(Tool):
 
     name = "place"
 
-    def __init__(self, canvas: Canvas, key: str, once: bool = False) -> None:
+    def __init__(self, canvas: ToolHost, key: str, once: bool = False) -> None:
         super().__init__(canvas)
         self.entry_key = key
         self.once = once

@@ -11,8 +11,6 @@ the pointer rests a moment).
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
 from PySide6.QtCore import QPointF, QRectF, Qt, QTimer
 from PySide6.QtGui import QBrush, QColor, QKeyEvent, QPen
 from PySide6.QtWidgets import QApplication, QGraphicsRectItem, QToolTip
@@ -22,11 +20,8 @@ from portcut.engine.schematic import Connectivity, Element, extract
 from ...theme import qcolor
 from ..grid import UNIT, snap
 from ..items import Z_PREVIEW, ElementItem
-from .base import CanvasEvent, Tool
+from .base import CanvasEvent, Tool, ToolHost
 from .wire import WireDraft
-
-if TYPE_CHECKING:
-    from ..canvas import Canvas
 
 __all__ = ["SelectTool"]
 
@@ -43,7 +38,7 @@ class SelectTool(Tool):
 
     name = "select"
 
-    def __init__(self, canvas: Canvas) -> None:
+    def __init__(self, canvas: ToolHost) -> None:
         super().__init__(canvas)
         self._mode = ""          # "", "pending", "move", "band", "pin", "wire"
         self._origin: CanvasEvent | None = None

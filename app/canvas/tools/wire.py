@@ -8,8 +8,6 @@ the same point ends it in free space; Backspace takes back a bend; Esc drops the
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QKeyEvent
 
@@ -19,10 +17,7 @@ from portcut.engine.schematic.symbols import Point
 from ...commands import AddElements
 from ...editing import bend, simplify
 from ..items import WireItem
-from .base import CanvasEvent, Tool
-
-if TYPE_CHECKING:
-    from ..canvas import Canvas
+from .base import CanvasEvent, Tool, ToolHost
 
 __all__ = ["WireDraft", "WireTool"]
 
@@ -30,7 +25,7 @@ __all__ = ["WireDraft", "WireTool"]
 class WireDraft:
     """A wire being drawn from ``start``, shown as a preview until it is finished."""
 
-    def __init__(self, canvas: Canvas, start: Point) -> None:
+    def __init__(self, canvas: ToolHost, start: Point) -> None:
         self.canvas = canvas
         self.start = start
         self.legs: list[list[Point]] = []  # the points each click added
@@ -99,7 +94,7 @@ class WireTool(Tool):
 
     name = "wire"
 
-    def __init__(self, canvas: Canvas) -> None:
+    def __init__(self, canvas: ToolHost) -> None:
         super().__init__(canvas)
         self.draft: WireDraft | None = None
 
