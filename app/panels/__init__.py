@@ -64,6 +64,7 @@ def install_reduction(window: MainWindow) -> None:
     window.add_dock(window.sweep_dock, Qt.DockWidgetArea.BottomDockWidgetArea, "Ctrl+5")
     window.insight_dock = InsightDock(window.canvas, live, window)
     window.add_dock(window.insight_dock, Qt.DockWidgetArea.RightDockWidgetArea, "Ctrl+7")
+    window.insight_dock.temperatureChanged.connect(window.sweep_dock.set_temperature)
     window.tabifyDockWidget(window.history, window.equivalent_dock)
     window.tabifyDockWidget(window.equivalent_dock, window.insight_dock)
     window.equivalent_dock.raise_()
