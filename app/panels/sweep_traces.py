@@ -91,9 +91,10 @@ class TraceChoice(QWidget):
             self.figure.addItem(f"of {name}", name)
         self.part = QComboBox()
         self.part.setAccessibleName("Sensitivity to")
-        self.part.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToContents)
         self.set_parts([])
         for combo in (self.figure, self.part):
+            combo.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToContents)
+            combo.setMinimumContentsLength(8)
             combo.currentIndexChanged.connect(lambda _i: self.changed.emit("sensitivity"))
             row.addWidget(combo)
         row.addStretch(1)
