@@ -43,7 +43,8 @@ _MAX_BOARDS = 1_000_000
 def figure_text(value: float, key: str, digits: int = 5) -> str:
     """A figure's value with its unit: engineering notation, degrees for ∠Z."""
     if key == "z_deg":
-        return f"{value:.3f}°"
+        text = f"{value:.3f}"
+        return f"{0.0 if float(text) == 0 else value:.3f}°"  # never "-0.000°"
     return format_eng(value, FIGURES[key], digits)
 
 
@@ -72,7 +73,7 @@ class Histogram(QWidget):
         self.counts = np.zeros(0, dtype=int)
         self.edges = np.zeros(0)
         self.limit: Limit = (None, None)
-        self.setMinimumSize(150, 80)
+        self.setMinimumSize(120, 80)
         self.setAccessibleName(f"histogram of {FIGURE_NAMES[key]}")
 
     def show_samples(self, samples: np.ndarray, limit: Limit = (None, None)) -> None:
@@ -134,6 +135,7 @@ class FigureView(QWidget):
         self.key = key
         name = FIGURE_NAMES[key]
         self.title = QLabel(f"<b>{name}</b>")
+        self.title.setWordWrap(True)
         self.yield_text = QLabel()
         self.yield_text.setAccessibleName(f"yield of {name}")
         self.histogram = Histogram(key)
@@ -147,9 +149,8 @@ class FigureView(QWidget):
             entry.edit.setPlaceholderText("none")
             entry.accepted.connect(lambda *_: on_limit())
         header = QHBoxLayout()
-        header.addWidget(self.title)
-        header.addStretch(1)
-        header.addWidget(self.yield_text)
+        header.addWidget(self.title, 1)
+        header.addWidget(self.yield_text, 0, Qt.AlignmentFlag.AlignTop)
         fields = QHBoxLayout()
         fields.addWidget(QLabel("≥"))
         fields.addWidget(self.low, 1)
@@ -245,8 +246,9 @@ class MonteCarloBox(QWidget):
         limits = self.limits()
         for key, view in self.views.items():
             view.histogram.show_samples(m.samples[key], limits[key])
-            view.title.setText(f"<b>{FIGURE_NAMES[key]}</b> {figure_text(m.mean[key], key, 4)}"
-                               f" ± {figure_text(m.std[key], key, 2)}")
+            spread = (f"{figure_text(m.mean[key], key, 4)} ± {figure_text(m.std[key], key, 2)}"
+                      .replace(" ", "\u00a0").replace("\u00a0±", " ±"))  # wraps at ± only
+            view.title.setText(f"<b>{FIGURE_NAMES[key]}</b> {spread}")
         summary = f"{m.n:,} boards, {m.distribution}, seed {m.seed}; mean ± σ of each figure"
         try:
             got = board_yield(m.samples, limits)

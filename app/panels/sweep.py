@@ -55,9 +55,12 @@ _MAX_POINTS = 100_000
 FOLLOW_MS = 150
 
 
-#: Where a trace's axis is logarithmic, and its label.
-_AXES = {"z": (True, "|Z| (Ω)"), "phase": (False, "∠Z (°)"), "voc": (True, "|Voc| (V)"),
-         "noise": (True, "e_n (V/√Hz)"), "sensitivity": (False, "|S| (%/%)")}
+#: Where a trace's axis is logarithmic, and its label: the unit on a line of its own, so that
+#: a label stays within a short plot's height.
+_AXES = {"z": (True, "|Z|<br>(Ω)"), "phase": (False, "∠Z<br>(°)"),
+         "voc": (True, "|Voc|<br>(V)"), "noise": (True, "e_n<br>(V/√Hz)"),
+         "sensitivity": (False, "|S|<br>(%/%)")}
+_AXIS_WIDTH = 64
 #: Pens of the sensitivity curves, most influential part first.
 _PART_PENS = (PALETTE.accent, PALETTE.selection, PALETTE.error, PALETTE.ink)
 
@@ -109,6 +112,7 @@ class SweepDock(QDockWidget):
         self.trace_status.setProperty("error", True)
         self.trace_status.hide()
         self.readout = QLabel()
+        self.readout.setWordWrap(True)
         self.readout.setAccessibleName("Values at the cursor")
         self.plots = pg.GraphicsLayoutWidget()
         self.plots.setBackground(PALETTE.paper)
@@ -119,7 +123,8 @@ class SweepDock(QDockWidget):
         self.phase_curve = self.phase_plot.plot(pen=pg.mkPen(PALETTE.accent, width=2))
         self.voc_curve = self.voc_plot.plot(pen=pg.mkPen(PALETTE.ink, width=2))
         self.noise_curve = self.noise_plot.plot(pen=pg.mkPen(PALETTE.ink, width=2))
-        self.sensitivity_plot.addLegend(offset=(-10, 5))
+        self.legend = self.sensitivity_plot.addLegend(offset=(-10, 1), colCount=len(_PART_PENS),
+                                                      verSpacing=-6)
         self.sensitivity_lines: dict[str, pg.PlotDataItem] = {}
         self.cursors = []
         for plot in self.plot.values():
@@ -146,6 +151,7 @@ class SweepDock(QDockWidget):
         plot.showGrid(x=True, y=True, alpha=0.25)
         plot.setLabel("left", label)
         plot.getAxis("left").enableAutoSIPrefix(False)
+        plot.getAxis("left").setWidth(_AXIS_WIDTH)  # the plots' frequencies line up
         plot.getAxis("bottom").enableAutoSIPrefix(False)
         plot.setMenuEnabled(False)
         if row:
@@ -208,14 +214,22 @@ class SweepDock(QDockWidget):
             mark_error(self.status, True)
             self._draw()
             return
-        plus, minus = self.result.port
-        self.status.setText(f"Port {plus} (+) / {minus} (−), {len(self.result)} frequencies")
+        self._say_port()
         mark_error(self.status, False)
         analysis = self.live.analysis
         self.traces.set_parts(sorted(n for n in analysis.part_names
                                      if analysis.circuit[n].kind in PARAMETER_KINDS))
         self._compute(("noise", "sensitivity"))
         self._draw()
+
+    def _say_port(self) -> None:
+        plus, minus = self.result.port
+        text = f"Port {plus} (+) / {minus} (−), {len(self.result)} frequencies"
+        if self.traces.shown("noise"):
+            text += f"; noise at {self.temperature:g} K"
+        if self.traces.shown("sensitivity"):
+            text += f"; |S| = |% change of {self.traces.sensitivity_choice[0]} per % change|"
+        self.status.setText(text)
 
     def set_temperature(self, kelvin: float) -> None:
         """The parts' temperature for the noise trace (the Design insight panel's field)."""
@@ -231,6 +245,7 @@ class SweepDock(QDockWidget):
         if key == "sensitivity":
             self.sensitivities = {}
         self._compute((key,))
+        self._say_port()
         self._draw()
 
     def _compute(self, keys: Iterable[str]) -> None:
@@ -283,7 +298,6 @@ class SweepDock(QDockWidget):
         else:
             self.noise_curve.setData(r.freqs, shown(self.noise, r.has_thevenin, log=True),
                                      connect="finite")
-        self.noise_plot.setLabel("left", f"e_n at {self.temperature:g} K (V/√Hz)")
         self._draw_sensitivities()
         for plot in self.plot.values():
             plot.enableAutoRange()
@@ -296,8 +310,6 @@ class SweepDock(QDockWidget):
         for line in self.sensitivity_lines.values():
             self.sensitivity_plot.removeItem(line)
         self.sensitivity_lines = {}
-        figure, _ = self.traces.sensitivity_choice
-        self.sensitivity_plot.setLabel("left", f"|S| of {figure} (%/%)")
         if self.result is None:
             return
         for pen, (name, values) in zip(_PART_PENS, self.sensitivities.items(), strict=False):

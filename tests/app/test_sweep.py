@@ -51,9 +51,9 @@ def test_the_curves_follow_the_closed_form(window, drive):
     np.testing.assert_allclose(dock.phase_curve.yData, np.degrees(np.angle(rc_z(f))),
                                rtol=1e-10, atol=1e-12)
     np.testing.assert_allclose(dock.voc_curve.yData, np.abs(rc_voc(f)), rtol=1e-12)
-    assert dock.z_plot.getAxis("left").labelText == "|Z| (Ω)"
-    assert dock.phase_plot.getAxis("left").labelText == "∠Z (°)"
-    assert dock.voc_plot.getAxis("left").labelText == "|Voc| (V)"
+    assert dock.z_plot.getAxis("left").labelText == "|Z|<br>(Ω)"
+    assert dock.phase_plot.getAxis("left").labelText == "∠Z<br>(°)"
+    assert dock.voc_plot.getAxis("left").labelText == "|Voc|<br>(V)"
     assert dock.voc_plot.getAxis("bottom").labelText == "Frequency (Hz)"
     assert dock.z_plot.getAxis("bottom").logMode
 
@@ -165,7 +165,7 @@ def test_the_noise_trace_is_nyquist_at_the_panels_temperature(window, drive):
     # sqrt(4 k T Re Z) at every frequency; k exact in the 2019 SI (BIPM SI Brochure).
     want = np.sqrt(4 * 1.380649e-23 * 350 * rc_z(f).real)
     np.testing.assert_allclose(dock.noise_curve.yData, want, rtol=1e-9)
-    assert "350 K" in dock.noise_plot.getAxis("left").labelText
+    assert "noise at 350 K" in dock.status.text()
     assert "e_n = " in dock.readout.text()
     # the frequencies are read off the lowest plot shown
     assert dock.noise_plot.getAxis("bottom").labelText == "Frequency (Hz)"
