@@ -60,7 +60,7 @@ FOLLOW_MS = 150
 _AXES = {"z": (True, "|Z|<br>(Ω)"), "phase": (False, "∠Z<br>(°)"),
          "voc": (True, "|Voc|<br>(V)"), "noise": (True, "e_n<br>(V/√Hz)"),
          "sensitivity": (False, "|S|<br>(%/%)")}
-_AXIS_WIDTH = 64
+_AXIS_WIDTH = 78
 #: Pens of the sensitivity curves, most influential part first.
 _PART_PENS = (PALETTE.accent, PALETTE.selection, PALETTE.error, PALETTE.ink)
 

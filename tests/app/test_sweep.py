@@ -205,3 +205,20 @@ def test_the_sensitivity_trace_is_the_engines_checked_by_finite_differences(wind
         fd = (z(1 + h) - z(1 - h)) / (2 * h) / z(1)
         assert s.sz == pytest.approx(fd, rel=1e-6, abs=1e-9)
     assert "|S(Z, R1)|" in dock.readout.text()
+
+
+def test_insight_traces_of_a_collapsed_block_say_to_expand_it(window, drive):
+    open_sheet(window, divider(second="capacitor", second_value="100n"))
+    lasso(drive, SOURCE_SIDE)
+    click_button(window.equivalent_dock.collapse_button)
+    (block,) = drive.doc.blocks()
+    window.canvas.scene.select_ids([])
+    drive.key(Qt.Key.Key_B)
+    drive.click(block.at, SHIFT)
+    settle()
+    click_button(window.equivalent_dock.sweep_button)
+    dock = window.sweep_dock
+    _check(dock.traces.boxes["noise"])
+    assert dock.result is not None and dock.noise is None
+    assert not dock.trace_status.isHidden()
+    assert "expand the collapsed block" in dock.trace_status.text()
