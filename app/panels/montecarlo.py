@@ -216,8 +216,9 @@ class MonteCarloBox(QWidget):
         self.monte = None
         self.text.setText("")
         mark_error(self.text, False)
-        for view in self.views.values():
+        for key, view in self.views.items():
             view.histogram.show_samples(np.zeros(0))
+            view.title.setText(f"<b>{FIGURE_NAMES[key]}</b>")
             view.yield_text.setText("")
 
     def run(self, circuit, region: Collection[str], tolerances: Mapping[str, str],

@@ -107,6 +107,12 @@ def test_typed_limits_give_the_yield_counted_from_the_samples(window, drive):
     assert voc.histogram.counts.sum() == 10_000
     assert voc.histogram.edges[0] <= 7.45 and voc.histogram.edges[-1] >= 7.55
     assert dock.monte_box.views["isc"].yield_text.text() == ""
+    # an edit of the region forgets the run; the limits stay for the next one
+    drive.click(drive.by("R1").at)
+    type_into(window.inspector.editors["value"].edit, "1k1")
+    assert dock.monte is None and voc.histogram.counts.size == 0
+    assert voc.title.text() == "<b>|Voc|</b>" and voc.yield_text.text() == ""
+    assert voc.limit == (7.45, 7.55)
 
 
 def test_limits_that_cannot_hold_say_why(window, drive):
