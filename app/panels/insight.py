@@ -204,7 +204,7 @@ class InsightDock(QDockWidget):
             self.noise_text.setText(f"Noise: {exc}")
             return
         loudest = next(iter(at.shares), None)
-        share = "" if loudest is None else (
+        share = "" if loudest is None or at.en == 0 else (
             f"; {loudest} gives {100 * at.shares[loudest] / at.en ** 2:.0f} % of the power")
         self.noise_text.setText(
             f"e_n = {format_eng(at.en, 'V/√Hz', 4)}, i_n = {format_eng(at.in_, 'A/√Hz', 4)} "

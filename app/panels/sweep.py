@@ -111,6 +111,8 @@ class SweepDock(QDockWidget):
         self.trace_status.setWordWrap(True)
         self.trace_status.setProperty("error", True)
         self.trace_status.hide()
+        self.legend = QLabel()
+        self.legend.setAccessibleName("Sensitivity curves")
         self.readout = QLabel()
         self.readout.setWordWrap(True)
         self.readout.setAccessibleName("Values at the cursor")
@@ -123,8 +125,6 @@ class SweepDock(QDockWidget):
         self.phase_curve = self.phase_plot.plot(pen=pg.mkPen(PALETTE.accent, width=2))
         self.voc_curve = self.voc_plot.plot(pen=pg.mkPen(PALETTE.ink, width=2))
         self.noise_curve = self.noise_plot.plot(pen=pg.mkPen(PALETTE.ink, width=2))
-        self.legend = self.sensitivity_plot.addLegend(offset=(-10, 1), colCount=len(_PART_PENS),
-                                                      verSpacing=-6)
         self.sensitivity_lines: dict[str, pg.PlotDataItem] = {}
         self.cursors = []
         for plot in self.plot.values():
@@ -171,6 +171,7 @@ class SweepDock(QDockWidget):
         column.addWidget(self.traces)
         column.addWidget(self.status)
         column.addWidget(self.trace_status)
+        column.addWidget(self.legend)
         column.addWidget(self.readout)
         column.addWidget(self.plots, 1)
         body.setStyleSheet(ERROR_STYLE)
@@ -310,12 +311,16 @@ class SweepDock(QDockWidget):
         for line in self.sensitivity_lines.values():
             self.sensitivity_plot.removeItem(line)
         self.sensitivity_lines = {}
-        if self.result is None:
-            return
-        for pen, (name, values) in zip(_PART_PENS, self.sensitivities.items(), strict=False):
-            self.sensitivity_lines[name] = self.sensitivity_plot.plot(
-                self.result.freqs, shown(values, np.isfinite(values), log=False),
-                pen=pg.mkPen(pen, width=2), name=name, connect="finite")
+        keys = []
+        if self.result is not None:
+            for pen, (name, values) in zip(_PART_PENS, self.sensitivities.items(), strict=False):
+                self.sensitivity_lines[name] = self.sensitivity_plot.plot(
+                    self.result.freqs, shown(values, np.isfinite(values), log=False),
+                    pen=pg.mkPen(pen, width=2), connect="finite")
+                keys.append(f'<span style="color:{pen}">━━</span> {name}')
+        figure, _ = self.traces.sensitivity_choice
+        self.legend.setText(f"|S| of {figure}:&nbsp; " + " &nbsp; ".join(keys))
+        self.legend.setVisible(bool(keys) and self.traces.shown("sensitivity"))
 
     # -- the cursor ---------------------------------------------------------------------------
     def cursor_frequency(self) -> float | None:

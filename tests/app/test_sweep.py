@@ -183,6 +183,8 @@ def test_the_sensitivity_trace_is_the_engines_checked_by_finite_differences(wind
     dock = _swept(window, drive)
     _check(dock.traces.boxes["sensitivity"])
     assert set(dock.sensitivities) == {"V1", "R1", "C1"}  # the top three of three
+    assert all(name in dock.legend.text() for name in ("V1", "R1", "C1"))
+    assert dock.legend.isVisible()
     pick(dock.traces.figure, "Z")
     assert dock.traces.figure.currentData() == "Z", dock.traces.figure.currentText()
     pick(dock.traces.part, "R1")
