@@ -113,6 +113,7 @@ class SweepDock(QDockWidget):
         self.trace_status.hide()
         self.legend = QLabel()
         self.legend.setAccessibleName("Sensitivity curves")
+        self.legend.hide()
         self.readout = QLabel()
         self.readout.setWordWrap(True)
         self.readout.setAccessibleName("Values at the cursor")
