@@ -108,6 +108,7 @@ def install(host: PanelHost) -> Panels:
     host.add_dock(sweep, Qt.DockWidgetArea.BottomDockWidgetArea, "Ctrl+5")
     insight = InsightDock(host.canvas, live, parent)
     host.add_dock(insight, right, "Ctrl+7")
+    insight.temperatureChanged.connect(sweep.set_temperature)
     host.tabifyDockWidget(history, equivalent)
     host.tabifyDockWidget(equivalent, insight)
     equivalent.raise_()

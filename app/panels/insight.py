@@ -1,6 +1,6 @@
 """The Design insight panel: which parts move the equivalent most (a bar each; a row selects the
 part on the canvas), the port's thermal noise, the equivalent in standard values, and what the
-parts' tolerances do (worst case, and a Monte Carlo run with a histogram on request).
+parts' tolerances do (worst case, and on request a Monte Carlo run: app/panels/montecarlo.py).
 
 It reads the live analysis of the current region (app.analysis) and asks the engine; it holds
 no document state. Tolerances are the parts' own (inspector field).
@@ -10,9 +10,7 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
-from PySide6.QtCore import QRectF
-from PySide6.QtGui import QPainter, QPalette
+from PySide6.QtCore import Signal
 from PySide6.QtWidgets import (
     QComboBox,
     QDockWidget,
@@ -22,7 +20,6 @@ from PySide6.QtWidgets import (
     QLabel,
     QLineEdit,
     QProgressBar,
-    QPushButton,
     QScrollArea,
     QTableWidget,
     QTableWidgetItem,
@@ -36,51 +33,23 @@ from portcut.engine.schematic.reduction import RegionAnalysis
 from portcut.engine.solve.eseries import SERIES, best_pair, nearest, realise
 from portcut.engine.solve.noise import noise, noise_band
 from portcut.engine.solve.sensitivity import influence, sensitivity
-from portcut.engine.solve.tolerance import FIGURES, MonteCarlo, monte_carlo, worst_case
+from portcut.engine.solve.tolerance import MonteCarlo, worst_case
 from portcut.engine.solve.units import format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
 from ..canvas import Canvas
+from .montecarlo import FIGURE_NAMES, MonteCarloBox, figure_text
 
-__all__ = ["Histogram", "InsightDock"]
+__all__ = ["InsightDock"]
 
 _BAR_STEPS = 1000
-_FIGURE_NAMES = {"voc": "|Voc|", "isc": "|Isc|", "z": "|Z|", "z_deg": "∠Z"}
-
-
-def _figure(value: float, key: str) -> str:
-    if key == "z_deg":
-        return f"{value:.3f}°"
-    return format_eng(value, FIGURES[key], 5)
-
-
-class Histogram(QWidget):
-    """Bars of a Monte Carlo figure's samples (counts per bin), drawn in the palette's colours."""
-
-    def __init__(self, parent: QWidget | None = None) -> None:
-        super().__init__(parent)
-        self.counts = np.zeros(0)
-        self.setMinimumHeight(90)
-
-    def show_samples(self, samples: np.ndarray, bins: int = 40) -> None:
-        self.counts, _ = np.histogram(samples[np.isfinite(samples)], bins=bins)
-        self.update()
-
-    def paintEvent(self, event) -> None:
-        if not self.counts.size or self.counts.max() == 0:
-            return
-        painter = QPainter(self)
-        colour = self.palette().color(QPalette.ColorRole.Highlight)
-        w, h = self.width() / self.counts.size, self.height() - 2
-        top = float(self.counts.max())
-        for i, c in enumerate(self.counts.tolist()):
-            bar = h * c / top
-            painter.fillRect(QRectF(i * w + 0.5, h - bar + 1, max(w - 1, 1), bar), colour)
-        painter.end()
 
 
 class InsightDock(QDockWidget):
-    """The "Design insight" dock; follows ``live`` and selects parts on ``canvas``."""
+    """The "Design insight" dock; follows ``live`` and selects parts on ``canvas``.
+    :attr:`temperatureChanged` carries each temperature (K) taken for the noise figures."""
+
+    temperatureChanged = Signal(float)
 
     def __init__(self, canvas: Canvas, live: LiveAnalysis, parent: QWidget | None = None) -> None:
         super().__init__("Design insight", parent)
@@ -100,8 +69,9 @@ class InsightDock(QDockWidget):
         self.noise_text.setWordWrap(True)
         self.band_lo, self.band_hi = QLineEdit("20"), QLineEdit("20k")
         self.temp = QLineEdit("290")
-        for edit in (self.band_lo, self.band_hi, self.temp):
+        for edit in (self.band_lo, self.band_hi):
             edit.editingFinished.connect(self._show_noise)
+        self.temp.editingFinished.connect(self._temperature_edited)
         self.series = QComboBox()
         for name in SERIES:
             self.series.addItem(name, name)
@@ -111,15 +81,9 @@ class InsightDock(QDockWidget):
         self.standard_text.setWordWrap(True)
         self.worst_text = QLabel()
         self.worst_text.setWordWrap(True)
-        self.distribution = QComboBox()
-        self.distribution.addItem("uniform within ±t", "uniform")
-        self.distribution.addItem("normal, t = 3σ", "normal")
-        self.run_button = QPushButton("Run 10,000 boards")
+        self.monte_box = MonteCarloBox()
+        self.run_button = self.monte_box.run_button
         self.run_button.clicked.connect(self.run_monte_carlo)
-        self.mc_text = QLabel()
-        self.mc_text.setWordWrap(True)
-        self.histogram = Histogram()
-        self.monte: MonteCarlo | None = None
         self._build()
         live.analysed.connect(self.show_analysis)
         self.show_analysis(live.analysis)
@@ -150,10 +114,7 @@ class InsightDock(QDockWidget):
         tolerance_box = QGroupBox("Tolerances")
         form = QFormLayout(tolerance_box)
         form.addRow(self.worst_text)
-        form.addRow("Distribution", self.distribution)
-        form.addRow(self.run_button)
-        form.addRow(self.mc_text)
-        form.addRow(self.histogram)
+        form.addRow(self.monte_box)
         column.addWidget(tolerance_box)
         column.addStretch(1)
         scroll = QScrollArea()
@@ -172,9 +133,7 @@ class InsightDock(QDockWidget):
 
     def show_analysis(self, analysis: RegionAnalysis | None) -> None:
         self.analysis = analysis
-        self.monte = None
-        self.mc_text.setText("")
-        self.histogram.show_samples(np.zeros(0))
+        self.monte_box.clear()
         if not self._usable():
             self.status.setText("Draw a valid region to see which parts matter"
                                 if analysis is None or analysis.ok else analysis.message)
@@ -223,6 +182,15 @@ class InsightDock(QDockWidget):
         if isinstance(part, PlacedPart):
             self.canvas.scene.select_ids([part.id])
 
+    def _temperature_edited(self) -> None:
+        try:
+            t = float(self.temp.text())
+        except ValueError:
+            t = math.nan
+        if math.isfinite(t) and t > 0:
+            self.temperatureChanged.emit(t)
+        self._show_noise()
+
     def _show_noise(self) -> None:
         if not self._usable():
             return
@@ -236,7 +204,7 @@ class InsightDock(QDockWidget):
             self.noise_text.setText(f"Noise: {exc}")
             return
         loudest = next(iter(at.shares), None)
-        share = "" if loudest is None else (
+        share = "" if loudest is None or at.en == 0 else (
             f"; {loudest} gives {100 * at.shares[loudest] / at.en ** 2:.0f} % of the power")
         self.noise_text.setText(
             f"e_n = {format_eng(at.en, 'V/√Hz', 4)}, i_n = {format_eng(at.in_, 'A/√Hz', 4)} "
@@ -289,31 +257,23 @@ class InsightDock(QDockWidget):
             return
         lines = [f"{len(tol)} toleranced parts; extremes from {wc.method} ({wc.corners}), "
                  "linear bound from the sensitivities:"]
-        for key, name in _FIGURE_NAMES.items():
+        for key, name in FIGURE_NAMES.items():
             lo, hi = wc.extremes[key]
             llo, lhi = wc.linear[key]
-            lines.append(f"{name}: {_figure(lo, key)} … {_figure(hi, key)} "
-                         f"(linear {_figure(llo, key)} … {_figure(lhi, key)})")
+            lines.append(f"{name}: {figure_text(lo, key)} … {figure_text(hi, key)} "
+                         f"(linear {figure_text(llo, key)} … {figure_text(lhi, key)})")
         self.worst_text.setText("\n".join(lines))
 
+    @property
+    def monte(self) -> MonteCarlo | None:
+        """The last Monte Carlo run for the region shown, or None."""
+        return self.monte_box.monte
+
     def run_monte_carlo(self) -> None:
-        """10,000 boards (seed 0) with the parts' tolerances; |Voc| as a histogram."""
-        if not self._usable():
-            return
-        circuit, region, port = self._args()
-        try:
-            self.monte = monte_carlo(circuit, region, self._tolerances(), port=port,
-                                     freq=self.analysis.freq,
-                                     distribution=self.distribution.currentData())
-        except CircuitError as exc:
-            self.mc_text.setText(f"Monte Carlo: {exc}")
-            return
-        m = self.monte
-        self.mc_text.setText(
-            f"{m.n:,} boards, {m.distribution}, seed {m.seed}: |Voc| mean "
-            f"{_figure(m.mean['voc'], 'voc')}, σ {_figure(m.std['voc'], 'voc')}; |Z| mean "
-            f"{_figure(m.mean['z'], 'z')}, σ {_figure(m.std['z'], 'z')}")
-        self.histogram.show_samples(m.samples["voc"])
+        """Boards drawn with the parts' tolerances, as the Monte Carlo fields say."""
+        if self._usable():
+            circuit, region, port = self._args()
+            self.monte_box.run(circuit, region, self._tolerances(), port, self.analysis.freq)
 
 
 def _ratio(x: complex) -> str:

@@ -6,9 +6,12 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+import pytest
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, pick, settle, type_into
+from uncertainties import ufloat
 
 
 def _drawn(window, drive, doc):
@@ -56,14 +59,21 @@ def test_noise_and_standard_values_follow_the_region(window, drive):
     assert "820 Ω" in dock.standard_text.text() or "680 Ω" in dock.standard_text.text()
 
 
+def _toleranced(window, drive, doc=None, code: str = "J"):
+    """The divider drawn, R1 and R2 given ``code`` by typing in the inspector."""
+    dock = _drawn(window, drive, doc or divider())
+    drive.key(Qt.Key.Key_S)
+    for name in ("R1", "R2"):
+        drive.click(drive.by(name).at)
+        type_into(window.inspector.editors["tolerance"].edit, code)
+    assert drive.by("R1").tolerance == drive.by("R2").tolerance == code
+    return dock
+
+
 def test_tolerances_give_worst_case_and_monte_carlo(window, drive):
     dock = _drawn(window, drive, divider())
     assert not dock.run_button.isEnabled()
-    drive.key(Qt.Key.Key_S)
-    for name in ("R1", "R2"):  # ±5 % on both, typed in the inspector
-        drive.click(drive.by(name).at)
-        type_into(window.inspector.editors["tolerance"].edit, "J")
-    assert drive.by("R1").tolerance == drive.by("R2").tolerance == "J"
+    dock = _toleranced(window, drive)  # ±5 % on both
     # Common practice: |voc| = 10 R2/(R1+R2) is largest with R1 low and R2 high.
     hi = 10 * 3e3 * 1.05 / (1e3 * 0.95 + 3e3 * 1.05)
     assert "all corners (4)" in dock.worst_text.text()
@@ -71,5 +81,87 @@ def test_tolerances_give_worst_case_and_monte_carlo(window, drive):
     assert dock.run_button.isEnabled()
     click_button(dock.run_button)
     assert dock.monte is not None and dock.monte.n == 10_000
-    assert dock.histogram.counts.sum() == 10_000
-    assert "10,000 boards, uniform" in dock.mc_text.text()
+    for key, view in dock.monte_box.views.items():
+        assert view.histogram.counts.sum() == 10_000, key
+        assert view.yield_text.text() == ""  # no limits yet
+    assert "10,000 boards, uniform, seed 0" in dock.monte_box.text.text()
+
+
+def test_typed_limits_give_the_yield_counted_from_the_samples(window, drive):
+    dock = _toleranced(window, drive)
+    click_button(dock.run_button)
+    voc, z = dock.monte_box.views["voc"], dock.monte_box.views["z"]
+    type_into(voc.low.edit, "7450m")  # SI prefix: 7.45 V
+    type_into(voc.high.edit, "7.55 V")
+    type_into(z.high.edit, "0.76k")
+    s = dock.monte.samples
+    # the same count done directly with numpy on the panel's own samples
+    in_voc = (s["voc"] >= 7.45) & (s["voc"] <= 7.55)
+    in_z = s["z"] <= 760.0
+    assert voc.yield_text.text() == f"yield {100 * np.mean(in_voc):.1f} %"
+    assert z.yield_text.text() == f"yield {100 * np.mean(in_z):.1f} %"
+    overall = 100 * np.mean(in_voc & in_z)
+    assert 0 < overall < 100
+    assert f"Within every limit: {overall:.1f} %" in dock.monte_box.text.text()
+    assert voc.histogram.limit == (7.45, 7.55) and z.histogram.limit == (None, 760.0)
+    assert voc.histogram.counts.sum() == 10_000
+    assert voc.histogram.edges[0] <= 7.45 and voc.histogram.edges[-1] >= 7.55
+    assert dock.monte_box.views["isc"].yield_text.text() == ""
+    # an edit of the region forgets the run; the limits stay for the next one
+    drive.click(drive.by("R1").at)
+    type_into(window.inspector.editors["value"].edit, "1k1")
+    assert dock.monte is None and voc.histogram.counts.size == 0
+    assert voc.title.text() == "<b>|Voc|</b>" and voc.yield_text.text() == ""
+    assert voc.limit == (7.45, 7.55)
+
+
+def test_limits_that_cannot_hold_say_why(window, drive):
+    dock = _toleranced(window, drive)
+    click_button(dock.run_button)
+    voc = dock.monte_box.views["voc"]
+    type_into(voc.low.edit, "5 mA")
+    assert voc.low.in_error and "|Voc| lower limit" in voc.low.error.text()
+    assert "in A" in voc.low.error.text()
+    type_into(voc.low.edit, "8")
+    type_into(voc.high.edit, "7")
+    assert "No yield" in dock.monte_box.text.text()
+    assert "lower limit no more than the upper" in dock.monte_box.text.text()
+    assert dock.monte_box.text.property("error") is True
+
+
+def test_board_count_and_seed_fields_repeat_a_run(window, drive):
+    dock = _toleranced(window, drive)
+    box = dock.monte_box
+    for spin, text in ((box.boards, "2000"), (box.seed, "3")):
+        type_into(spin.lineEdit(), text)
+    click_button(dock.run_button)
+    first = dock.monte
+    assert first.n == 2000 and first.seed == 3
+    click_button(dock.run_button)
+    assert np.array_equal(dock.monte.samples["voc"], first.samples["voc"])
+    type_into(box.seed.lineEdit(), "4")
+    click_button(dock.run_button)
+    assert not np.array_equal(dock.monte.samples["voc"], first.samples["voc"])
+    assert "2,000 boards, uniform, seed 4" in box.text.text()
+
+
+@pytest.mark.parametrize(("distribution", "sigma_of_t"), [
+    ("uniform", 1 / math.sqrt(3)),  # uniform within ±t: σ = t/√3 (common practice)
+    ("normal", 1 / 3),              # tolerance as 3 σ
+])
+def test_monte_carlo_matches_first_order_propagation(window, drive, distribution, sigma_of_t):
+    # Independent reference: first-order (linear) propagation by the `uncertainties` library,
+    # Voc = V R2 / (R1 + R2) for the divider (common practice), two ±5 % resistors.
+    dock = _toleranced(window, drive)
+    pick(dock.monte_box.distribution, distribution)
+    click_button(dock.run_button)
+    m = dock.monte
+    assert m.distribution == distribution
+    r1, r2 = ufloat(1e3, 1e3 * 0.05 * sigma_of_t), ufloat(3e3, 3e3 * 0.05 * sigma_of_t)
+    voc = 10 * r2 / (r1 + r2)
+    # the mean within four standard errors plus the second-order term linear propagation
+    # leaves out (|½ Σ f'' σ²| = 10 |R2 σ1² - R1 σ2²| / (R1 + R2)³, under 1 mV here)
+    second = 10 * abs(3e3 * r1.s ** 2 - 1e3 * r2.s ** 2) / 4e3 ** 3
+    assert abs(m.mean["voc"] - voc.n) <= 4 * voc.s / math.sqrt(m.n) + second
+    # the sample σ within 3 % (its own standard error is about 1/√(2n) = 0.7 %)
+    assert m.std["voc"] == pytest.approx(voc.s, rel=0.03)

@@ -13,7 +13,7 @@ import pytest
 from PySide6.QtCore import QPointF, Qt
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QFileDialog
-from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
+from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, pick, settle, type_into
 
 from portcut.app.panels.sweep import CSV_COLUMNS
 from portcut.engine.solve.units import format_eng
@@ -51,9 +51,9 @@ def test_the_curves_follow_the_closed_form(window, drive):
     np.testing.assert_allclose(dock.phase_curve.yData, np.degrees(np.angle(rc_z(f))),
                                rtol=1e-10, atol=1e-12)
     np.testing.assert_allclose(dock.voc_curve.yData, np.abs(rc_voc(f)), rtol=1e-12)
-    assert dock.z_plot.getAxis("left").labelText == "|Z| (Ω)"
-    assert dock.phase_plot.getAxis("left").labelText == "∠Z (°)"
-    assert dock.voc_plot.getAxis("left").labelText == "|Voc| (V)"
+    assert dock.z_plot.getAxis("left").labelText == "|Z|<br>(Ω)"
+    assert dock.phase_plot.getAxis("left").labelText == "∠Z<br>(°)"
+    assert dock.voc_plot.getAxis("left").labelText == "|Voc|<br>(V)"
     assert dock.voc_plot.getAxis("bottom").labelText == "Frequency (Hz)"
     assert dock.z_plot.getAxis("bottom").logMode
 
@@ -144,3 +144,83 @@ def test_a_csv_that_cannot_be_written_says_so(window, drive, tmp_path: Path):
     assert not dock.export_csv_to(tmp_path / "no such folder" / "rc.csv")
     assert "rc.csv” was not written" in dock.status.text()
     assert dock.status.property("error") is True
+
+
+def _check(box) -> None:
+    QTest.mouseClick(box, Qt.MouseButton.LeftButton)
+    settle()
+
+
+def test_the_noise_trace_is_nyquist_at_the_panels_temperature(window, drive):
+    dock = _swept(window, drive)
+    assert dock.noise is None and not dock.noise_plot.isVisible()  # not computed unasked
+    insight = window.insight_dock
+    insight.show()
+    insight.raise_()
+    type_into(insight.temp, "350")
+    _check(dock.traces.boxes["noise"])
+    assert dock.noise_plot.isVisible()
+    f = dock.noise_curve.xData
+    # Nyquist (Phys. Rev. 32, 1928): a passive region's open-circuit noise density is
+    # sqrt(4 k T Re Z) at every frequency; k exact in the 2019 SI (BIPM SI Brochure).
+    want = np.sqrt(4 * 1.380649e-23 * 350 * rc_z(f).real)
+    np.testing.assert_allclose(dock.noise_curve.yData, want, rtol=1e-9)
+    assert "noise at 350 K" in dock.status.text()
+    assert "e_n = " in dock.readout.text()
+    # the frequencies are read off the lowest plot shown
+    assert dock.noise_plot.getAxis("bottom").labelText == "Frequency (Hz)"
+    assert not dock.voc_plot.getAxis("bottom").labelText
+    type_into(insight.temp, "290")
+    np.testing.assert_allclose(dock.noise_curve.yData, want * math.sqrt(290 / 350), rtol=1e-9)
+
+
+def test_the_sensitivity_trace_is_the_engines_checked_by_finite_differences(window, drive):
+    from dataclasses import replace
+
+    from portcut.engine import equivalent
+    from portcut.engine.solve.sensitivity import sensitivity
+
+    dock = _swept(window, drive)
+    _check(dock.traces.boxes["sensitivity"])
+    assert set(dock.sensitivities) == {"V1", "R1", "C1"}  # the top three of three
+    assert all(name in dock.legend.text() for name in ("V1", "R1", "C1"))
+    assert dock.legend.isVisible()
+    pick(dock.traces.figure, "Z")
+    assert dock.traces.figure.currentData() == "Z", dock.traces.figure.currentText()
+    pick(dock.traces.part, "R1")
+    assert dock.traces.sensitivity_choice == ("Z", "R1"), dock.traces.sensitivity_choice
+    assert list(dock.sensitivities) == ["R1"]
+    curve = dock.sensitivity_lines["R1"]
+    analysis = window.analysis.analysis
+    c, region, port = analysis.circuit, analysis.part_names, analysis.equivalent.port
+    for i in (0, 100, 200):
+        f = float(curve.xData[i])
+        s = sensitivity(c, region, port, f)["R1"]
+        assert curve.yData[i] == pytest.approx(abs(s.sz), rel=1e-12)
+        # central finite difference of Z in R1 (common practice), step 1e-6 relative
+        h = 1e-6
+
+        def z(scale: float, f: float = f) -> complex:
+            changed = c.replaced([replace(c["R1"], value=c["R1"].value * scale)])
+            return equivalent(changed, region, port, freq=f).z
+
+        fd = (z(1 + h) - z(1 - h)) / (2 * h) / z(1)
+        assert s.sz == pytest.approx(fd, rel=1e-6, abs=1e-9)
+    assert "|S(Z, R1)|" in dock.readout.text()
+
+
+def test_insight_traces_of_a_collapsed_block_say_to_expand_it(window, drive):
+    open_sheet(window, divider(second="capacitor", second_value="100n"))
+    lasso(drive, SOURCE_SIDE)
+    click_button(window.equivalent_dock.collapse_button)
+    (block,) = drive.doc.blocks()
+    window.canvas.scene.select_ids([])
+    drive.key(Qt.Key.Key_B)
+    drive.click(block.at, SHIFT)
+    settle()
+    click_button(window.equivalent_dock.sweep_button)
+    dock = window.sweep_dock
+    _check(dock.traces.boxes["noise"])
+    assert dock.result is not None and dock.noise is None
+    assert not dock.trace_status.isHidden()
+    assert "expand the collapsed block" in dock.trace_status.text()
