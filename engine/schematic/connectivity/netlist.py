@@ -7,6 +7,8 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from dataclasses import replace
 
+import numpy as np
+
 from ...errors import CircuitError
 from ...solve.circuit import Circuit, Part
 from ...solve.devices import DEVICE_KINDS
@@ -14,8 +16,9 @@ from ...solve.equivalent import Equivalent, collapse, equivalent
 from ...solve.units import VALUE_UNITS, parse_value
 from ..document import Document
 from ..model import Block, Contents, PlacedPart
-from .extraction import Connectivity, _fresh, extract, net_at
+from .extraction import Connectivity, extract, net_at
 from .faults import CONTROLLED_BY_CURRENT, _reference_problem
+from .naming import fresh_name
 from .sheet import BLOCK_ROLES, ROLES, _natural_key
 
 _SOURCES = frozenset({"voltage_source", "current_source"})
@@ -28,7 +31,8 @@ _QUANTITY: dict[str, tuple[str, str]] = {
     "ccvs": ("transresistance in ohms", "100"), "cccs": ("current gain", "100"),
     "coupling": ("coupling coefficient", "0.9"),
 }
-
+#: Kinds a part's own edit cannot be rebuilt alone for: others name it or it names others.
+_NAMING = CONTROLLED_BY_CURRENT | {"coupling"}
 
 
 def build_circuit(doc: Document, conn: Connectivity | None = None, freq: float = 0.0) -> Circuit:
@@ -40,6 +44,46 @@ def build_circuit(doc: Document, conn: Connectivity | None = None, freq: float =
     the designator and field of a missing or unreadable value or a broken reference.
     """
     return _build(doc, conn or extract(doc), freq, {})
+
+
+def updated_circuit(circuit: Circuit, doc: Document, before: Connectivity,
+                    after: Connectivity, freq: float = 0.0) -> Circuit:
+    """The Circuit of ``doc`` on the nets of ``after``, from ``circuit``: the circuit that
+    :func:`build_circuit` made at ``freq`` hertz for an earlier version of the document, whose
+    connectivity was ``before`` (``after`` re-extracted from it).
+
+    Where the edit replaced elements without adding, removing or renaming any (a move, a
+    value typed), only the parts that changed or whose pins changed nets are rebuilt and swapped
+    in (Circuit.replaced); where none of them came out different, ``circuit`` itself is the
+    answer. Otherwise (parts added or removed, a device part, a referring part edited, or a
+    block where nets changed) the circuit is built afresh. Equal to ``build_circuit(doc, after,
+    freq)`` either way; raises as it does.
+    """
+    if after is before:
+        return circuit
+    old, new = before._sheet, after._sheet
+    if new.keys is not old.keys:
+        return build_circuit(doc, after, freq)
+    pins = new.designated_pins
+    ids = {new.keys[k][0] for k in np.flatnonzero(
+        before._node_names[:pins] != after._node_names[:pins]).tolist()}
+    if new.blocks and (ids or any(a is not b for a, b in zip(new.blocks, old.blocks,
+                                                                strict=True))):
+        return build_circuit(doc, after, freq)  # a block's parts follow every net name
+    parts = [p for p, q in zip(new.parts, old.parts, strict=True) if p is not q]
+    if any(p.kind in _NAMING for p in parts):
+        return build_circuit(doc, after, freq)
+    if ids:
+        ids -= {p.id for p in parts}
+        parts += [p for p in new.parts if p.id in ids]
+    if any(p.kind in DEVICE_KINDS for p in parts):
+        return build_circuit(doc, after, freq)  # one name to the user, several parts here
+    scratch = Circuit()
+    for part in parts:
+        _add_part(scratch, part, [after.net_of_pin[part.id, i]
+                                  for i in range(len(ROLES[part.kind]))])
+    changed = [p for p in scratch if p != circuit[p.name]]
+    return circuit.replaced(changed) if changed else circuit
 
 
 def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str]) -> Circuit:
@@ -166,7 +210,7 @@ def _block_parts(block: Block, plus: str, minus: str, freq: float,
     for part in reduced:  # every part of the contents was in the region: only these remain
         inner = [n for n in part.nodes if n not in nets]
         if inner and mid is None:
-            mid = _fresh(f"{block.designator}.mid", taken)
+            mid = fresh_name(f"{block.designator}.mid", taken)
         role = "src" if part.is_independent_source else "z"
         parts.append(replace(part, name=f"{block.designator}.{role}",
                              nodes=tuple(nets.get(n, mid) for n in part.nodes)))

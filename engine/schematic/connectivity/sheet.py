@@ -108,6 +108,8 @@ class _Sheet:
         self.wires: list[Wire] = by_type[Wire]
         self.junctions: list[Junction] = by_type[Junction]
         self._place: list[int] | None = None
+        #: on a patched sheet, the graph nodes whose points or marker name the patch changed
+        self.moved: list[int] = []
         self.referencing = [i for i, p in enumerate(self.parts) if p.kind in REFERENCING]
         # pin-bearing elements: designated ones first, in natural designator order
         designated = [*self.parts, *self.blocks]
@@ -191,18 +193,24 @@ class _Sheet:
         return sheet
 
     def _write(self, replaced: list[tuple[Element, int]]) -> None:
-        """Put each ``(element, index in the list of its type)`` in place of its old version."""
+        """Put each ``(element, index in the list of its type)`` in place of its old version,
+        noting in ``moved`` the graph nodes whose points (or marker's net name) changed."""
         for name in ("parts", "blocks", "labels", "wires", "junctions", "owners"):
             setattr(self, name, list(getattr(self, name)))
         self.at, self.pins, self.junction_xy = (
             self.at.copy(), self.pins.copy(), self.junction_xy.copy())
         points: dict[int, tuple[Point, ...]] = {}
+        self.moved = moved = []
         for e, i in replaced:
             t = type(e)
             if t is Wire:
+                if self.wires[i].points != e.points:
+                    moved.append(self.pin_count + i)
                 self.wires[i] = e
                 points[i] = e.points
             elif t is Junction:
+                if self.junctions[i].at != e.at:
+                    moved.append(self.pin_count + len(self.wires) + i)
                 self.junctions[i] = e
                 self.junction_xy[i] = e.at
             elif t is PlacedPart or t is Block or t is NetLabel:
@@ -213,13 +221,18 @@ class _Sheet:
                     self.blocks[i] = e
                     j = self.owner_index[len(self.parts) + i]
                 else:
-                    self.labels[i] = e
                     j = self.designated + i
+                    renamed = _label_net(self.labels[i]) != _label_net(e)
+                    self.labels[i] = e
                 self.owners[j] = e
                 self.at[j] = e.at
                 offsets = _pin_offsets(e)
                 if offsets:  # a coupling has none
-                    self.pins[self.first_pin[j]:self.first_pin[j + 1]] = np.add(e.at, offsets)
+                    first, stop = self.first_pin[j], self.first_pin[j + 1]
+                    pins = np.add(e.at, offsets)
+                    if (t is NetLabel and renamed) or (self.pins[first:stop] != pins).any():
+                        moved.extend(range(first, stop))
+                    self.pins[first:stop] = pins
         if points:
             self._splice(points)
 
