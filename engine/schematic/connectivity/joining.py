@@ -9,9 +9,8 @@ by binary search.
 from __future__ import annotations
 
 import numpy as np
-from scipy.sparse import csr_array
-from scipy.sparse.csgraph import connected_components
 
+from ...solve.topology import _components as graph_components
 from .sheet import _Sheet
 
 
@@ -53,9 +52,10 @@ def components(sheet: _Sheet, label_pairs: np.ndarray,
                             label_pairs], axis=1)
     if local is not None:
         pairs = local[pairs]
-    # float weights: what the component search converts to anyway
-    graph = csr_array((np.ones(pairs.shape[1]), (pairs[0], pairs[1])), shape=(size, size))
-    return connected_components(graph, directed=False)
+    # the engine's component search: a union-find where the graph is small (a patch), SciPy's
+    # where building its sparse graph pays
+    labels = graph_components(size, pairs[0], pairs[1])
+    return (int(labels.max()) + 1 if size else 0), labels
 
 
 def touched(sheet: _Sheet, moved: np.ndarray, label_pairs: np.ndarray) -> np.ndarray:
