@@ -126,6 +126,23 @@ def test_a_value_typed_restamps_that_part_alone() -> None:
     assert updated["R1"].value == 10e3 and updated["R2"] is circuit["R2"]
 
 
+def test_many_replacements_in_place_still_update_the_kept_circuit() -> None:
+    # more elements replaced than a patched re-extraction takes: the sheet is flattened afresh,
+    # but its nodes are numbered as before, so the circuit is still updated, not rebuilt
+    doc = divider_with_spare()
+    conn = extract(doc)
+    circuit = build_circuit(doc, conn)
+    with doc.batch():
+        doc.replace_fields("r3", at=(12, 3))
+        for i in range(5):
+            doc.replace_fields(f"f{i}", value="2k2")
+    again = extract(doc, previous=conn)
+    assert again._sheet.keys is not conn._sheet.keys  # not patched
+    updated = updated_circuit(circuit, doc, conn, again)
+    assert updated == build_circuit(doc, again)
+    assert updated["R1"] is circuit["R1"] and updated["F1"].value == 2200
+
+
 def test_an_edit_it_cannot_patch_is_built_afresh() -> None:
     doc = divider_with_spare()
     conn = extract(doc)

@@ -19,7 +19,7 @@ from ..model import Block, Contents, PlacedPart
 from .extraction import Connectivity, extract, net_at
 from .faults import CONTROLLED_BY_CURRENT, _reference_problem
 from .naming import fresh_name
-from .sheet import BLOCK_ROLES, ROLES, _natural_key
+from .sheet import BLOCK_ROLES, ROLES, _natural_key, replaced_in_place
 
 _SOURCES = frozenset({"voltage_source", "current_source"})
 #: What each kind's value means, with an example, for the message when it is missing.
@@ -62,8 +62,8 @@ def updated_circuit(circuit: Circuit, doc: Document, before: Connectivity,
     if after is before:
         return circuit
     old, new = before._sheet, after._sheet
-    if new.keys is not old.keys:
-        return build_circuit(doc, after, freq)
+    if new.keys is not old.keys and replaced_in_place(old.elements, new.elements) is None:
+        return build_circuit(doc, after, freq)  # parts added, removed or renamed
     pins = new.designated_pins
     ids = {new.keys[k][0] for k in np.flatnonzero(
         before._node_names[:pins] != after._node_names[:pins]).tolist()}

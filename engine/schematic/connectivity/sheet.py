@@ -78,6 +78,16 @@ def _same_slot(old: Element, new: Element) -> bool:
     return type(new) is not Block or old.designator == new.designator
 
 
+def replaced_in_place(old: list[Element], new: list[Element]) -> list[int] | None:
+    """The positions at which ``new`` holds other elements than ``old``, where each replaces
+    the old one without moving any graph node or automatic name (:func:`_same_slot`): the
+    sheets of both then number their nodes alike. None where the lists differ otherwise."""
+    if len(new) != len(old):
+        return None
+    changed = list(compress(count(), map(is_not, new, old)))
+    return changed if all(_same_slot(old[p], new[p]) for p in changed) else None
+
+
 #: A sheet is patched for a re-extraction only while at most one element in this many changed;
 #: past that, building it afresh costs less.
 _PATCH_SHARE = 8
@@ -178,14 +188,11 @@ class _Sheet:
         elements written in where every change is a replacement that keeps the node numbering
         (:func:`_same_slot`); else, or where much changed, a sheet built afresh."""
         old = self.elements
-        if len(elements) != len(old):
+        changed = replaced_in_place(old, elements)
+        if changed is None or len(changed) * _PATCH_SHARE > len(elements):
             return _Sheet(elements)
-        changed = list(compress(count(), map(is_not, elements, old)))
         if not changed:
             return self
-        if len(changed) * _PATCH_SHARE > len(elements) or not all(
-                _same_slot(old[p], elements[p]) for p in changed):
-            return _Sheet(elements)
         place = self.place()  # before the copy, which then shares it
         sheet = copy(self)
         sheet.elements = elements
