@@ -28,8 +28,8 @@ def joint_arrays(sheet: _Sheet) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
 def components(sheet: _Sheet, label_pairs: np.ndarray,
                nodes: np.ndarray | None = None) -> tuple[int, np.ndarray]:
     """The connected components of the sheet's graph, or of the part of it on ``nodes``
-    (ascending graph nodes that no edge joins to any other node): their number and the
-    component of each node (of ``nodes``), numbered in order of each one's lowest node.
+    (ascending graph nodes that no edge of the graph leaves): their number and the component
+    of each node (of ``nodes``), numbered in order of each one's lowest node.
 
     ``label_pairs`` (2, n) joins net markers by name.
     """
