@@ -6,10 +6,13 @@ Changes are collected as the document announces them and the work runs once per 
 zero timer, so that a batch of notifications costs one analysis. What the analysis needs is kept
 between changes and renewed only as far as a change reaches:
 
-* the sheet's connectivity, re-extracted only when something is drawn, moved or deleted;
-* the circuit, rebuilt then too (and on a frequency change where collapsed blocks stand in for
-  their contents); where only values were typed, just those parts are rebuilt and swapped in
-  (engine.Circuit.replaced), so a value edit on a large sheet costs about one solve;
+* the sheet's connectivity, re-extracted only when something is drawn, moved or deleted (a
+  move joins again only the nets it touches);
+* the circuit, updated then too (engine.schematic.connectivity.updated_circuit: after a move,
+  only the parts whose nets changed are rebuilt, none where the move kept its connections;
+  rebuilt whole after an addition or removal and on a frequency change where collapsed blocks
+  stand in for their contents); where only values were typed, just those parts are rebuilt and
+  swapped in (engine.Circuit.replaced), so a value edit on a large sheet costs about one solve;
 * a change of the region alone (members, outline, polarity) reuses both.
 
 The equivalence check (the reduced circuit against the original, for the load as drawn) solves
@@ -35,6 +38,7 @@ from portcut.engine.schematic import (
     build_circuit,
     extract,
 )
+from portcut.engine.schematic.connectivity import updated_circuit
 from portcut.engine.schematic.reduction import (
     RegionAnalysis,
     analyse_region,
@@ -183,11 +187,11 @@ class LiveAnalysis(QObject):
 
     def _update_sheet(self, doc: Document, hz: float | None) -> None:
         """Bring the kept connectivity and circuit up to date with the document."""
+        before = self.conn
         if self._stale_sheet or self.conn is None:
-            self.conn = extract(doc, previous=self.conn)  # reuses what a move left alone
+            self.conn = extract(doc, previous=self.conn)  # re-joins only the nets a move touched
             self._parts = {p.id: p for p in doc.parts()}
-            self._circuit = None
-        elif hz != self._circuit_hz and doc.blocks():
+        if hz != self._circuit_hz and doc.blocks():
             self._circuit = None  # blocks stand in by their equivalent at the frequency
         self._stale_sheet = False
         changed, self._stale_values = self._stale_values, set()
@@ -195,8 +199,10 @@ class LiveAnalysis(QObject):
             self._circuit = None
             return
         try:
-            if self._circuit is None:
+            if self._circuit is None or before is None:
                 self._circuit = build_circuit(doc, self.conn, hz)
+            elif self.conn is not before:  # rebuilds only the parts the edit changed or rewired
+                self._circuit = updated_circuit(self._circuit, doc, before, self.conn, hz)
             elif changed:
                 sub = Document()
                 for eid in sorted(changed):

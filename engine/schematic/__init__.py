@@ -14,6 +14,7 @@ from .connectivity import (
     contents_document,
     extract,
     net_at,
+    updated_circuit,
 )
 from .document import DESIGNATOR_PREFIX, Change, Document
 from .fileformat import FORMAT, VERSION, dumps, load, loads, save
@@ -60,4 +61,5 @@ __all__ = [
     "loads",
     "net_at",
     "save",
+    "updated_circuit",
 ]

@@ -127,11 +127,10 @@ def region_part_names(doc: Document, region: Region, circuit: Circuit) -> frozen
     """Circuit part names standing for the region's members: designators of parts (a device
     part by the primitive parts it expands into), and the ``<designator>.*`` parts that stand
     in for a member block."""
-    names: set[str] = set()
-    for element in (doc[m] for m in region.members if m in doc):
-        if isinstance(element, PlacedPart):
-            names.update(circuit.expand_names((element.designator,)))
-        elif isinstance(element, Block):
+    members = [doc[m] for m in region.members if m in doc]
+    names = circuit.expand_names(e.designator for e in members if isinstance(e, PlacedPart))
+    for element in members:
+        if isinstance(element, Block):
             prefix = f"{element.designator}."
             names.update(n for n in circuit.names if n.startswith(prefix))
     return frozenset(names)
@@ -157,7 +156,7 @@ def analyse_region(doc: Document, region_id: str, *, conn: Connectivity | None =
     if not names:
         return RegionAnalysis(region_id, False, "the region holds no parts: draw the boundary "
                               "around the parts to reduce", freq=hz, circuit=circuit)
-    lost = lost_port_nets(region, region_nets(doc, region, conn))
+    lost = () if region.port is None else lost_port_nets(region, region_nets(doc, region, conn))
     if lost:
         return RegionAnalysis(region_id, False, _lost_text(region, lost), freq=hz,
                               bad_nets=frozenset(lost),

@@ -14,7 +14,7 @@ from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
-from portcut.app.commands import AddElements, ReplaceElements, SetAnalysis
+from portcut.app.commands import AddElements, MoveElements, ReplaceElements, SetAnalysis
 from portcut.engine.schematic import Analysis, PlacedPart, Wire, build_circuit, extract
 from portcut.engine.solve.units import format_complex, format_eng, parse_frequency
 
@@ -210,10 +210,20 @@ def test_the_kept_circuit_stays_the_one_a_fresh_build_gives(window, drive):
         AddElements(doc, [Wire(doc.new_id(Wire), ((16, 6), (16, 9), (20, 9)))], "wire"),
         ReplaceElements(doc, [replace(doc.by_designator("R1"), value="33")], "value again"),
     ]
-    for command in edits:
+    def push(command) -> None:
         window.workbench.push(command)
         settle()
         assert live.analysis.circuit == fresh(), command.text()
+
+    for command in edits:
+        push(command)
+    # moves: RL one step left keeps its pins on the wires, so the circuit is kept as it is; R2
+    # one step up leaves both its nets, and back down rejoins them
+    kept, rl, r2 = live.analysis.circuit, doc.by_designator("RL"), doc.by_designator("R2")
+    push(MoveElements(doc, [rl.id], [replace(rl, at=(15, 4))], "kept connections"))
+    assert live.analysis.circuit is kept
+    push(MoveElements(doc, [r2.id], [replace(r2, at=(8, 3))], "rewired"))
+    push(MoveElements(doc, [r2.id], [r2], "rejoined"))
     eq = live.analysis.equivalent
     # common practice (voltage divider with a phasor source): Voc = V R2 / (R1 + R2)
     v = cmath.rect(2, math.radians(30))

@@ -1,0 +1,266 @@
+"""One document flattened for extraction: every pin, wire vertex and junction as arrays, and
+each net marker's name; a later version of the document patches it where few elements changed."""
+
+from __future__ import annotations
+
+import re
+from collections import defaultdict
+from collections.abc import Iterable
+from copy import copy
+from dataclasses import dataclass
+from functools import cache, lru_cache
+from itertools import accumulate, chain, compress, count
+from operator import attrgetter, is_not
+
+import numpy as np
+
+from ...solve.circuit import GROUND, KINDS
+from ...solve.devices import DEVICE_KINDS
+from ..model import Block, Element, Junction, NetLabel, PlacedPart, Wire
+from ..symbols import Point, pin_positions
+
+#: Pin roles of a collapsed block, in pin order.
+BLOCK_ROLES = ("plus", "minus")
+#: Kinds whose parts name other parts (a coupling's inductors, a controlling part).
+REFERENCING = frozenset({"ccvs", "cccs", "coupling"})
+#: A number for each kind of pin owner that a designator names, for comparing kinds in arrays.
+_KIND_CODE = {kind: code for code, kind in enumerate([*KINDS, *DEVICE_KINDS, "block"])}
+#: The node roles of every kind a placed part may have: primitive kinds and device kinds.
+ROLES: dict[str, tuple[str, ...]] = {**KINDS, **DEVICE_KINDS}
+
+
+@lru_cache(maxsize=1 << 16)  # the same designators come back on every re-extraction
+def _natural_key(text: str) -> tuple[object, ...]:
+    """Sort key in which digit runs compare as numbers: R2 < R10 < RA."""
+    return tuple(int(chunk) if i % 2 else chunk for i, chunk in enumerate(re.split(r"(\d+)", text)))
+
+
+@cache
+def _offsets(kind: str, rotation: int, mirror: bool) -> tuple[Point, ...]:
+    return pin_positions(kind, (0, 0), rotation, mirror)
+
+
+def _label_net(label: NetLabel) -> str:
+    """The net name a marker gives: ``"gnd"`` for ground, else its name stripped ("" if none)."""
+    return GROUND if label.style == "ground" else label.name.strip()
+
+
+@dataclass(frozen=True, slots=True)
+class _Pin:
+    """One pin, for messages and naming."""
+
+    element_id: str
+    index: int
+    at: Point
+    designator: str  # "" for a net marker
+    role: str
+
+
+def _pin_offsets(e: PlacedPart | Block | NetLabel) -> tuple[Point, ...]:
+    if type(e) is PlacedPart:
+        return _offsets(e.kind, e.rotation, e.mirror)
+    if type(e) is Block:
+        return _offsets("block", e.rotation, e.mirror)
+    return _offsets("ground" if e.style == "ground" else "label", e.rotation, False)
+
+
+def _roles(e: PlacedPart | Block) -> tuple[str, ...]:
+    return ROLES[e.kind] if type(e) is PlacedPart else BLOCK_ROLES
+
+
+def _same_slot(old: Element, new: Element) -> bool:
+    """Whether ``new`` replaces ``old`` without moving any graph node or automatic name: same
+    type and id, and for a part or block the same designator (and kind, which fixes the pins)."""
+    if type(old) is not type(new) or old.id != new.id:
+        return False
+    if type(new) is PlacedPart:
+        return old.designator == new.designator and old.kind == new.kind
+    return type(new) is not Block or old.designator == new.designator
+
+
+def replaced_in_place(old: list[Element], new: list[Element]) -> list[int] | None:
+    """The positions at which ``new`` holds other elements than ``old``, where each replaces
+    the old one without moving any graph node or automatic name (:func:`_same_slot`): the
+    sheets of both then number their nodes alike. None where the lists differ otherwise."""
+    if len(new) != len(old):
+        return None
+    changed = list(compress(count(), map(is_not, new, old)))
+    return changed if all(_same_slot(old[p], new[p]) for p in changed) else None
+
+
+#: A sheet is patched for a re-extraction only while at most one element in this many changed;
+#: past that, building it afresh costs less.
+_PATCH_SHARE = 8
+
+
+def _int_array(points: Iterable[Point], size: int) -> np.ndarray:
+    """An (n, 2) int64 array of ``points``, which hold ``size`` coordinates in all."""
+    return np.fromiter(chain.from_iterable(points), dtype=np.int64, count=size).reshape(-1, 2)
+
+
+class _Sheet:
+    """One document flattened for extraction. Graph nodes are numbered pins first (those of parts
+    and blocks in natural designator order, then those of net markers), then wires, then
+    junctions.
+
+    A sheet is never modified once made; :meth:`updated` gives the sheet of a later version of
+    the document, reusing this one's arrays wherever the element is still the same object.
+    """
+
+    def __init__(self, elements: list[Element]) -> None:
+        self.elements = elements  # in document order
+        by_type: dict[type, list] = defaultdict(list)
+        for e in elements:
+            by_type[type(e)].append(e)
+        self.parts: list[PlacedPart] = by_type[PlacedPart]
+        self.blocks: list[Block] = by_type[Block]
+        self.labels: list[NetLabel] = by_type[NetLabel]
+        self.wires: list[Wire] = by_type[Wire]
+        self.junctions: list[Junction] = by_type[Junction]
+        self._place: list[int] | None = None
+        #: on a patched sheet, the graph nodes whose points or marker name the patch changed
+        self.moved: list[int] = []
+        self.referencing = [i for i, p in enumerate(self.parts) if p.kind in REFERENCING]
+        # pin-bearing elements: designated ones first, in natural designator order
+        designated = [*self.parts, *self.blocks]
+        order = sorted(range(len(designated)), key=lambda i: _natural_key(designated[i].designator))
+        self.owner_index = [0] * len(order)  # of parts, then blocks, in owners
+        for j, i in enumerate(order):
+            self.owner_index[i] = j
+        self.owners: list[PlacedPart | Block | NetLabel] = [designated[i] for i in order]
+        self.designated = len(self.owners)
+        kinds = [*map(_KIND_CODE.__getitem__, map(attrgetter("kind"), self.parts)),
+                 *[_KIND_CODE["block"]] * len(self.blocks)]
+        self.owner_kind = np.array(kinds, dtype=np.int64)[order]
+        self.owners += self.labels
+        offsets = [_pin_offsets(e) for e in self.owners]
+        counts = [len(o) for o in offsets]
+        self.first_pin: list[int] = [0, *accumulate(counts)]
+        self.pin_owner: list[int] = np.repeat(np.arange(len(counts)), counts).tolist()
+        self.pin_count = self.first_pin[-1]
+        self.designated_pins = self.first_pin[self.designated]
+        self.at = _int_array(map(attrgetter("at"), self.owners), 2 * len(self.owners))
+        self.pins = np.repeat(self.at, counts, axis=0) + _int_array(
+            chain.from_iterable(offsets), 2 * self.pin_count)
+        ids = [e.id for e in self.owners]
+        index = np.arange(self.pin_count) - np.repeat(self.first_pin[:-1], counts)
+        #: ``(element_id, pin_index)`` of every pin, in node order
+        self.keys = list(zip(map(ids.__getitem__, self.pin_owner), index.tolist(), strict=True))
+        #: the automatic net name of each designated pin, ``"<designator>.<role>"``
+        self.auto = [f"{e.designator}.{role}" for e in self.owners[:self.designated]
+                     for role in _roles(e)]
+        self.wire_ids = [w.id for w in self.wires]
+        self.wire_points = np.fromiter(map(len, map(attrgetter("points"), self.wires)),
+                                       dtype=np.int64, count=len(self.wires))
+        self.vertices = _int_array(chain.from_iterable(map(attrgetter("points"), self.wires)),
+                                   2 * int(self.wire_points.sum()))
+        self._index_vertices()
+        self.junction_xy = _int_array(map(attrgetter("at"), self.junctions),
+                                      2 * len(self.junctions))
+
+    def place(self) -> list[int]:
+        """Each element's index in the list of its type (the same for every updated sheet)."""
+        if self._place is None:
+            seen: dict[type, int] = defaultdict(int)
+            self._place = []
+            for t in map(type, self.elements):
+                self._place.append(seen[t])
+                seen[t] += 1
+        return self._place
+
+    def _index_vertices(self) -> None:
+        counts = self.wire_points
+        self.vertex_wire = np.repeat(np.arange(len(counts)), counts)
+        last = np.cumsum(counts) - 1
+        self.first_vertex = last - counts + 1
+        self.ends = np.concatenate([self.first_vertex, last])  # every wire's first, then last
+
+    @property
+    def pin_x(self) -> np.ndarray:
+        return self.pins[:, 0]
+
+    @property
+    def pin_y(self) -> np.ndarray:
+        return self.pins[:, 1]
+
+    def updated(self, elements: list[Element]) -> _Sheet:
+        """The sheet of ``elements``: this one where nothing changed; a copy with the replaced
+        elements written in where every change is a replacement that keeps the node numbering
+        (:func:`_same_slot`); else, or where much changed, a sheet built afresh."""
+        old = self.elements
+        changed = replaced_in_place(old, elements)
+        if changed is None or len(changed) * _PATCH_SHARE > len(elements):
+            return _Sheet(elements)
+        if not changed:
+            return self
+        place = self.place()  # before the copy, which then shares it
+        sheet = copy(self)
+        sheet.elements = elements
+        sheet._write([(elements[p], place[p]) for p in changed])
+        return sheet
+
+    def _write(self, replaced: list[tuple[Element, int]]) -> None:
+        """Put each ``(element, index in the list of its type)`` in place of its old version,
+        noting in ``moved`` the graph nodes whose points (or marker's net name) changed."""
+        for name in ("parts", "blocks", "labels", "wires", "junctions", "owners"):
+            setattr(self, name, list(getattr(self, name)))
+        self.at, self.pins, self.junction_xy = (
+            self.at.copy(), self.pins.copy(), self.junction_xy.copy())
+        points: dict[int, tuple[Point, ...]] = {}
+        self.moved = moved = []
+        for e, i in replaced:
+            t = type(e)
+            if t is Wire:
+                if self.wires[i].points != e.points:
+                    moved.append(self.pin_count + i)
+                self.wires[i] = e
+                points[i] = e.points
+            elif t is Junction:
+                if self.junctions[i].at != e.at:
+                    moved.append(self.pin_count + len(self.wires) + i)
+                self.junctions[i] = e
+                self.junction_xy[i] = e.at
+            elif t is PlacedPart or t is Block or t is NetLabel:
+                if t is PlacedPart:
+                    self.parts[i] = e
+                    j = self.owner_index[i]
+                elif t is Block:
+                    self.blocks[i] = e
+                    j = self.owner_index[len(self.parts) + i]
+                else:
+                    j = self.designated + i
+                    renamed = _label_net(self.labels[i]) != _label_net(e)
+                    self.labels[i] = e
+                self.owners[j] = e
+                self.at[j] = e.at
+                offsets = _pin_offsets(e)
+                if offsets:  # a coupling has none
+                    first, stop = self.first_pin[j], self.first_pin[j + 1]
+                    pins = np.add(e.at, offsets)
+                    if (t is NetLabel and renamed) or (self.pins[first:stop] != pins).any():
+                        moved.extend(range(first, stop))
+                    self.pins[first:stop] = pins
+        if points:
+            self._splice(points)
+
+    def _splice(self, points: dict[int, tuple[Point, ...]]) -> None:
+        """Replace the vertices of the wires ``points`` names (index -> new points)."""
+        pieces, start = [], 0
+        counts = self.wire_points.copy()
+        for i in sorted(points):
+            first = int(self.first_vertex[i])
+            pieces += [self.vertices[start:first], np.array(points[i], dtype=np.int64)]
+            start = first + int(counts[i])
+            counts[i] = len(points[i])
+        pieces.append(self.vertices[start:])
+        self.vertices = np.concatenate(pieces)
+        self.wire_points = counts
+        self._index_vertices()
+
+    def pin(self, k: int) -> _Pin:
+        e = self.owners[self.pin_owner[k]]
+        index = k - self.first_pin[self.pin_owner[k]]
+        at = (int(self.pins[k, 0]), int(self.pins[k, 1]))
+        if type(e) is NetLabel:
+            return _Pin(e.id, index, at, "", "net")
+        return _Pin(e.id, index, at, e.designator, _roles(e)[index])
