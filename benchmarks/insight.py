@@ -61,7 +61,7 @@ def bench_monte_carlo(repeat: int) -> tuple[float, float]:
     deltas = np.random.default_rng(0).uniform(-0.05, 0.05, (SAMPLES, len(tol)))
     values = np.repeat(batch.stamps.values[None, :], SAMPLES, axis=0)
     values[:, batch.columns] *= 1 + deltas
-    da, db = batch.stamps.changes(values, batch.size)
+    da, db = batch.stamps.changes(values, batch.size, batch.s)
     stack = batch.a + da
     rhs = np.repeat(batch.rhs[None], SAMPLES, axis=0)
     rhs[:, :, 0] += db

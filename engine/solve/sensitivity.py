@@ -16,6 +16,7 @@ import cmath
 import math
 from collections.abc import Collection, Iterable, Sequence
 from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -24,22 +25,22 @@ from . import mna, topology
 from .circuit import Part
 from .equivalent import Equivalent, _equivalent_of, _frequencies, _port_of
 from .mna import describe_freq
-from .stamps import PARAMETER_KINDS, value_stamps
+from .stamps import PARAMETER_KINDS, ValueStamps, value_stamps
 from .units import parse_frequency
 
-__all__ = ["PortSolution", "Sensitivity", "influence", "port_solution", "sensitivity",
-           "sensitivity_sweep", "valued_parts"]
+__all__ = ["PortSolution", "Sensitivity", "influence", "port_solution", "port_stamps",
+           "sensitivity", "sensitivity_sweep", "valued_parts"]
 
 _NAN = complex(math.nan, math.nan)
 
 
-@dataclass(frozen=True, slots=True)
-class Sensitivity:
+class Sensitivity(NamedTuple):
     """Derivatives of the port quantities with respect to one part's value.
 
     ``value`` is the part's value p; ``dvoc``, ``disc``, ``dz`` are dX/dp (complex; nan where X
     does not exist); ``svoc``, ``sisc``, ``sz`` are (p / X) dX/dp (nan where X is 0). Over a
-    sweep every figure is an array, one entry per frequency.
+    sweep every figure is an array, one entry per frequency. (A named tuple: a region of many
+    parts makes one per part, and a tuple is made several times faster than a frozen class.)
     """
 
     name: str
@@ -68,24 +69,32 @@ def sensitivity(circuit, region: Collection[str], port: Sequence[str] | None = N
     the region has no Thevenin form (the open-port equations the method differentiates).
     """
     f = parse_frequency(freq)
-    return _at(topology.cut(circuit, region, port), f)
+    cut = topology.cut(circuit, region, port)
+    parts, columns = _columns(cut, f)
+    make = Sensitivity._make
+    return {part.name: make((part.name, part.kind, *figures))
+            for part, *figures in zip(parts, *(c.tolist() for c in columns), strict=True)}
 
 
 def sensitivity_sweep(circuit, region: Collection[str], freqs: Iterable[float],
                       port: Sequence[str] | None = None) -> dict[str, Sensitivity]:
-    """:func:`sensitivity` at every frequency of ``freqs``; each figure an array over them."""
+    """:func:`sensitivity` at every frequency of ``freqs``; each figure an array over them.
+
+    The region is checked once and each formulation's value stamps are made once; each
+    frequency costs one factorization and its solves."""
     f = _frequencies(freqs)
     cut = topology.cut(circuit, region, port)
-    points = [_at(cut, float(x)) for x in f]
-    fields = ("value", "dvoc", "disc", "dz", "svoc", "sisc", "sz")
-    return {name: Sensitivity(name, first.kind,
-                              *(np.array([getattr(p[name], k) for p in points]) for k in fields))
-            for name, first in points[0].items()}
+    points = [_columns(cut, float(x)) for x in f]
+    parts = points[0][0]
+    stacked = np.stack([columns for _, columns in points], axis=-1)  # (figure, part, freq)
+    return {part.name: Sensitivity(part.name, part.kind, *stacked[:, i])
+            for i, part in enumerate(parts)}
 
 
 @dataclass(frozen=True, slots=True, eq=False)
 class PortSolution:
-    """The open-port equations of a region solved at one frequency: ``eq`` its equivalent,
+    """The open-port equations of a region solved at one frequency, in the formulation the
+    equivalent takes there (nodal, or wide past ``mna.WIDE_SPAN``): ``eq`` its equivalent,
     ``x[:, 0]`` the solution with the sources, ``x[:, 1]`` with 1 A into plus, and ``lam``
     the adjoint (``A^T lam = e_k``): ``lam . r`` is the port voltage a right-hand side r makes."""
 
@@ -99,11 +108,12 @@ def port_solution(cut: topology.Cut, f: float, what: str) -> PortSolution:
     """Solve ``cut``'s open-port equations at ``f`` Hz; ``what`` names the figures for the
     message where the region has no Thevenin form (its open-port equations are singular).
 
-    Where z stands clear of its error bound (the equivalent's own test, engine/solve/equivalent.py)
-    the equivalent is read from this one factorization; otherwise :func:`engine.solve.equivalent`
-    decides it."""
-    # the nodal form: the stamps' derivatives (engine/solve/stamps.py) are written for it
-    system = _port_of(cut, f == 0).open(False)
+    The formulation is the one the equivalent chooses at ``f`` (:meth:`mna.Netlist.wide`);
+    where z stands clear of its error bound (the equivalent's own test,
+    engine/solve/equivalent.py) the equivalent is read from this one factorization; otherwise
+    :func:`engine.solve.equivalent` decides it."""
+    wide = bool(cut.netlist.wide(np.array([f]))[0])
+    system = _port_of(cut, f == 0).open(wide)
     if system is None:
         raise _no_thevenin(f, what)
     unit = system.rhs(cut.port[0])
@@ -125,28 +135,34 @@ def port_solution(cut: topology.Cut, f: float, what: str) -> PortSolution:
     return PortSolution(eq, system, x, lam)
 
 
+def port_stamps(cut: topology.Cut, solved: PortSolution) -> ValueStamps:
+    """The value stamps of ``solved``'s system, made once per formulation and kept with the
+    region's netlist (dropped with it when a value changes)."""
+    key = ("value stamps", cut.port, solved.eq.freq == 0, solved.system.branches.wide)
+    found = cut.netlist.memo.get(key)
+    if found is None:
+        found = cut.netlist.memo[key] = value_stamps(solved.system)
+    return found
+
+
 def _no_thevenin(f: float, what: str) -> CircuitError:
     return CircuitError(f"the region has no Thevenin form at {describe_freq(f)} (its impedance "
                         f"is infinite), so its {what} are not defined")
 
 
-def _at(cut: topology.Cut, f: float) -> dict[str, Sensitivity]:
+def _columns(cut: topology.Cut, f: float) -> tuple[tuple[Part, ...], np.ndarray]:
+    """The valued parts and, per part, ``value, dvoc, disc, dz, svoc, sisc, sz`` at ``f`` Hz
+    (a (7, parts) complex array): one solve of the open port, one adjoint, and the stamps'
+    derivatives gathered for all parts at once."""
     solved = port_solution(cut, f, "sensitivities")
-    eq, system, x, lam = solved.eq, solved.system, solved.x, solved.lam
-    stamps = value_stamps(system, valued_parts(cut), 2j * math.pi * f)
-    d_source, d_b = stamps.derivative_terms(lam, x[:, 0])
-    d_unit, _ = stamps.derivative_terms(lam, x[:, 1])
-    dvoc, dz = d_b - d_source, -d_unit
-    parts = stamps.parts
+    stamps = port_stamps(cut, solved)
+    d_a, d_b = stamps.derivative_terms(solved.lam, solved.x, 2j * math.pi * f)
+    dvoc, dz = d_b - d_a[:, 0], -d_a[:, 1]
+    eq, p = solved.eq, stamps.values
     voc, z, isc = eq.voc, eq.z, eq.isc
-    p = stamps.values
-    disc = (dvoc - isc * dz) / z if eq.has_norton and z != 0 else np.full(len(parts), _NAN)
-    columns = (p, dvoc, disc, dz, _normalised(p, voc, dvoc), _normalised(p, isc, disc),
-               _normalised(p, z, dz))
-    out = {}
-    for part, *figures in zip(parts, *(c.tolist() for c in columns), strict=True):
-        out[part.name] = Sensitivity(part.name, part.kind, *figures)
-    return out
+    disc = (dvoc - isc * dz) / z if eq.has_norton and z != 0 else np.full(p.size, _NAN)
+    return stamps.parts, np.array([p, dvoc, disc, dz, _normalised(p, voc, dvoc),
+                                   _normalised(p, isc, disc), _normalised(p, z, dz)])
 
 
 def valued_parts(cut: topology.Cut) -> list[Part]:
