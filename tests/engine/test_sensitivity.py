@@ -50,15 +50,15 @@ def test_divider_closed_forms() -> None:
     # Common practice: voc = V R2/(R1+R2), z = R1 R2/(R1+R2), isc = V/R1.
     v, r1, r2 = 10.0, 6e3, 4e3
     s = sensitivity(divider(v, r1, r2), {"V1", "R1", "R2"})
-    assert s["R2"].dvoc == pytest.approx(v * r1 / (r1 + r2) ** 2, rel=1e-12)
-    assert s["R1"].dvoc == pytest.approx(-v * r2 / (r1 + r2) ** 2, rel=1e-12)
-    assert s["R1"].dz == pytest.approx((r2 / (r1 + r2)) ** 2, rel=1e-12)
-    assert s["R1"].disc == pytest.approx(-v / r1 ** 2, rel=1e-12)
-    assert s["V1"].dvoc == pytest.approx(r2 / (r1 + r2), rel=1e-12)
-    assert s["V1"].svoc == pytest.approx(1.0, rel=1e-12)  # voc is proportional to V
+    assert s["R2"].dvoc == pytest.approx(v * r1 / (r1 + r2) ** 2, rel=1e-12, abs=0)
+    assert s["R1"].dvoc == pytest.approx(-v * r2 / (r1 + r2) ** 2, rel=1e-12, abs=0)
+    assert s["R1"].dz == pytest.approx((r2 / (r1 + r2)) ** 2, rel=1e-12, abs=0)
+    assert s["R1"].disc == pytest.approx(-v / r1 ** 2, rel=1e-12, abs=0)
+    assert s["V1"].dvoc == pytest.approx(r2 / (r1 + r2), rel=1e-12, abs=0)
+    assert s["V1"].svoc == pytest.approx(1.0, rel=1e-12, abs=0)  # voc is proportional to V
     assert abs(s["R2"].disc) < 1e-20  # isc = V/R1 does not depend on R2
     # normalised: (p / X) dX/dp; R1 and R2 move voc by equal and opposite shares
-    assert s["R1"].svoc == pytest.approx(-s["R2"].svoc, rel=1e-12)
+    assert s["R1"].svoc == pytest.approx(-s["R2"].svoc, rel=1e-12, abs=0)
 
 
 def _central(c: Circuit, region: set[str], name: str, freq: float) -> tuple[complex, ...]:
@@ -91,7 +91,7 @@ def test_sweep_matches_single_frequencies() -> None:
         one = sensitivity(c, MIXED, ("out", GROUND), freq=f)
         for name, s in one.items():
             assert swept[name].dz[i] == pytest.approx(s.dz, rel=1e-12, abs=1e-300)
-            assert swept[name].svoc[i] == pytest.approx(s.svoc, rel=1e-12, nan_ok=True)
+            assert swept[name].svoc[i] == pytest.approx(s.svoc, rel=1e-12, abs=0, nan_ok=True)
     # the normalised figure is (p / X) dX/dp with X from the sweep itself
     r1 = swept["R1"]
     assert np.allclose(r1.sz, r1.value * r1.dz / eqs.z, rtol=1e-12)
