@@ -25,9 +25,9 @@ from scipy.integrate import simpson
 
 from ..errors import CircuitError
 from . import mna, topology
+from .adjoint import port_solution, port_sweep
 from .circuit import Part
 from .equivalent import _frequencies
-from .sensitivity import PortSolution, port_solution
 from .units import parse_frequency
 
 __all__ = ["BOLTZMANN", "REFERENCE_TEMPERATURE", "BandNoise", "Noise", "NoiseSweep", "noise",
@@ -89,18 +89,20 @@ def noise(circuit, region: Collection[str], port: Sequence[str] | None = None,
     t = _temperature(temp_k)
     cut = topology.cut(circuit, region, port)
     f = parse_frequency(freq)
-    solved, noisy, shares = _shares(cut, f, t)
+    solved = port_solution(cut, f, "noise densities")
+    noisy = _noisy(cut, solved.system, f == 0)
+    shares = _shares(noisy, solved.lam, t)
     en, in_ = _densities(shares.sum(), solved.eq.z)
     ranked = sorted(zip(noisy.names, shares.tolist(), strict=True), key=lambda kv: -kv[1])
-    return Noise(cut.port, f, t, en, in_, dict(ranked))
+    return Noise(cut.port, f, t, float(en), float(in_), dict(ranked))
 
 
 def noise_sweep(circuit, region: Collection[str], freqs: Iterable[float],
                 port: Sequence[str] | None = None,
                 temp_k: float = REFERENCE_TEMPERATURE) -> NoiseSweep:
     """:func:`noise`'s ``en`` and ``in_`` at every frequency of ``freqs`` (Hz, each >= 0), as
-    arrays. The region is checked once and its noisy parts gathered once per formulation; each
-    frequency costs one factorization and its solves."""
+    arrays. The region is checked once, its open-port equations solved batched over the
+    frequencies (engine/solve/adjoint.py) and its noisy parts gathered once per formulation."""
     t = _temperature(temp_k)
     cut = topology.cut(circuit, region, port)
     return _sweep(cut, _frequencies(freqs), t)
@@ -195,27 +197,28 @@ def _noisy(cut: topology.Cut, system: mna.System, dc: bool) -> _Noisy:
     return found
 
 
-def _shares(cut: topology.Cut, f: float, t: float) -> tuple[PortSolution, _Noisy, np.ndarray]:
-    """The open port solved at ``f`` Hz, its noisy parts, and each one's share of en² (V²/Hz)
-    at ``t`` kelvin: one adjoint weighs them all."""
-    solved = port_solution(cut, f, "noise densities")
-    noisy = _noisy(cut, solved.system, f == 0)
-    lam = np.append(solved.lam, 0j)  # index -1 (a pinned net, no branch) reads 0
-    across = np.abs(lam[noisy.a] - lam[noisy.b]) ** 2 * noisy.conductance
-    series = np.abs(lam[noisy.own]) ** 2 * noisy.resistance
-    return solved, noisy, 4 * BOLTZMANN * t * np.where(noisy.own >= 0, series, across)
+def _shares(noisy: _Noisy, lam: np.ndarray, t: float) -> np.ndarray:
+    """Each noisy part's share of en² (V²/Hz) at ``t`` kelvin, from the adjoint ``lam`` ((n,)
+    or (F, n) over a sweep: shares (parts,) or (F, parts)); one adjoint weighs them all."""
+    padded = np.concatenate((lam, np.zeros((*lam.shape[:-1], 1))), axis=-1)  # -1 reads 0
+    across = np.abs(padded[..., noisy.a] - padded[..., noisy.b]) ** 2 * noisy.conductance
+    series = np.abs(padded[..., noisy.own]) ** 2 * noisy.resistance
+    return 4 * BOLTZMANN * t * np.where(noisy.own >= 0, series, across)
 
 
-def _densities(en_squared: float, z: complex) -> tuple[float, float]:
+def _densities(en_squared: np.ndarray | float, z: np.ndarray | complex
+               ) -> tuple[np.ndarray, np.ndarray]:
     """en (V/√Hz) from en², and in_ = en / |z| (nan where z = 0)."""
-    en = math.sqrt(en_squared)
-    return en, (en / abs(z) if z != 0 else math.nan)
+    en = np.sqrt(en_squared)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        in_ = np.where(np.asarray(z) != 0, en / np.abs(z), math.nan)
+    return en, in_
 
 
 def _sweep(cut: topology.Cut, freqs: np.ndarray, t: float) -> NoiseSweep:
-    points = []
-    for f in freqs.tolist():
-        solved, _, shares = _shares(cut, f, t)
-        points.append(_densities(float(shares.sum()), solved.eq.z))
-    en, in_ = (np.array(column, dtype=float) for column in zip(*points, strict=True))
+    en, in_ = np.empty(freqs.size), np.empty(freqs.size)
+    for where, solved in port_sweep(cut, freqs, "noise densities"):
+        noisy = _noisy(cut, solved.system, bool(solved.freqs[0] == 0))
+        en[where], in_[where] = _densities(_shares(noisy, solved.lam, t).sum(axis=-1),
+                                           solved.z)
     return NoiseSweep(en, in_)

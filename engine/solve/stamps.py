@@ -11,6 +11,7 @@ its part's value v, or ``coef * k sqrt(L1 L2)`` for a coupling's mutual terms; b
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -51,30 +52,27 @@ class ValueStamps:
     def _coef(self, s: complex) -> np.ndarray:
         return np.where(self.power == 1, self.coef * s, self.coef)
 
-    def derivative_terms(self, lam: np.ndarray, x: np.ndarray, s: complex
+    def derivative_terms(self, lam: np.ndarray, x: np.ndarray, s: np.ndarray
                          ) -> tuple[np.ndarray, np.ndarray]:
-        """Per part: ``lam . (dA/dp x)`` for each column of ``x`` ((n,) or (n, m): shape
-        (parts,) or (parts, m)), and ``lam . db/dp``. All parts at once: the entries' slopes
-        times the gathered ``lam[row] x[col]``, summed per part."""
-        count, lp = len(self.parts), _padded(lam)
-        xp = _padded(x)
+        """At F values of s (``s`` (F,)), with adjoints ``lam`` (F, n) and solutions ``x``
+        (F, n, m): per s and part, ``lam . (dA/dp x[..., j])`` (F, parts, m) and
+        ``lam . db/dp`` (F, parts). All parts and all s at once: the entries' slopes times
+        the gathered ``lam[row] x[col]``, summed per part."""
+        count, lp, xp = len(self.parts), _padded(lam, 1), _padded(x, 1)
         v = self.values
-        slope = self._coef(s)
+        slope = np.where(self.power == 1, self.coef * s[:, None], self.coef)  # (F, E)
         inverse = self.form == _INVERSE
-        slope[inverse] = -slope[inverse] / v[self.part[inverse]] ** 2
-        weight = slope * lp[self.row]
-        picked = xp[self.col]
-        a_term = _per_part(self.part, weight[:, None] * picked if picked.ndim > 1
-                           else weight * picked, count)
+        slope[:, inverse] *= -1 / v[self.part[inverse]] ** 2
+        a_term = _per_part(self.part, (slope * lp[:, self.row])[:, :, None] * xp[:, self.col],
+                           count)
         if self.mutual.size:
             k, l1, l2, row, col = self.mutual.T
             root = np.sqrt(v[l1] * v[l2])
-            w = -s * lp[row]
-            w = w[:, None] * xp[col] if xp.ndim > 1 else w * xp[col]
+            weight = (-s[:, None] * lp[:, row])[:, :, None] * xp[:, col]  # (F, E, m)
             for at, factor in ((k, root), (l1, v[k] * v[l2] / (2 * root)),
                                (l2, v[k] * v[l1] / (2 * root))):
-                a_term += _per_part(at, w * (factor[:, None] if w.ndim > 1 else factor), count)
-        b_term = _per_part(self.rhs_part, self.rhs_coef * lp[self.rhs_row], count)
+                a_term += _per_part(at, weight * factor[None, :, None], count)
+        b_term = _per_part(self.rhs_part, self.rhs_coef * lp[:, self.rhs_row], count)
         return a_term, b_term
 
     def changes(self, values: np.ndarray, size: int, s: complex
@@ -222,13 +220,22 @@ class _Entries:
                 *(np.repeat(np.array(c, dtype=np.intp), self.sizes) for c in (form, power))]
 
 
-def _padded(v: np.ndarray) -> np.ndarray:
-    """v with a trailing row of 0, so index -1 reads 0."""
-    return np.concatenate((v.astype(complex), np.zeros((1, *v.shape[1:]), dtype=complex)))
+def _padded(v: np.ndarray, axis: int) -> np.ndarray:
+    """v (complex) with a trailing 0 along ``axis``, so index -1 there reads 0."""
+    shape = list(v.shape)
+    shape[axis] = 1
+    return np.concatenate((v.astype(complex), np.zeros(shape, dtype=complex)), axis=axis)
 
 
 def _per_part(part: np.ndarray, terms: np.ndarray, count: int) -> np.ndarray:
-    """Sum of ``terms`` ((E,) or (E, m)) per part index: shape (count,) or (count, m)."""
-    if terms.ndim > 1:
-        return np.stack([_per_part(part, t, count) for t in terms.T], axis=-1)
-    return np.bincount(part, terms.real, count) + 1j * np.bincount(part, terms.imag, count)
+    """Sums of ``terms`` (F, E, ...) over the entries of each part (``part`` (E,): the part
+    index of each entry): (F, count, ...)."""
+    f, e, rest = terms.shape[0], terms.shape[1], terms.shape[2:]
+    width = f * math.prod(rest)
+    flat = np.moveaxis(terms, 1, 0).reshape(e, width)
+    # one bincount over (part, column) keys sums every column at once
+    keys = (part[:, None] * width + np.arange(width)).ravel()
+    size = count * width
+    summed = (np.bincount(keys, flat.real.ravel(), size)
+              + 1j * np.bincount(keys, flat.imag.ravel(), size)).reshape(count, f, *rest)
+    return np.moveaxis(summed, 0, 1)

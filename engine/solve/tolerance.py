@@ -19,7 +19,8 @@ import numpy as np
 
 from ..errors import CircuitError, ValueParseError
 from . import topology
-from .sensitivity import port_solution, port_stamps, sensitivity, valued_parts
+from .adjoint import port_solution, port_stamps
+from .sensitivity import sensitivity, valued_parts
 from .units import parse_frequency
 
 __all__ = ["ALL_CORNERS_LIMIT", "FIGURES", "TOLERANCE_CODES", "MonteCarlo", "WorstCase",
@@ -112,7 +113,7 @@ class _Batch:
         if system.size > DENSE_LIMIT:
             raise CircuitError(f"tolerance analysis solves regions of up to {DENSE_LIMIT} "
                                f"unknowns; this one has {system.size}")
-        self.stamps, self.s = port_stamps(cut, solved), 2j * math.pi * f
+        self.stamps, self.s = port_stamps(cut, system, f == 0), 2j * math.pi * f
         names = [p.name for p in self.stamps.parts]
         self.columns = np.array([names.index(n) for n in tolerances], dtype=np.intp)
         self.size = system.size
