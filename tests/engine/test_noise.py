@@ -189,4 +189,5 @@ def test_noise_sweep_equals_the_brute_force_sum_over_the_parts(freq: float) -> N
     assert en[1] ** 2 == pytest.approx(total, rel=1e-9, abs=0)
     z = equivalent(c, ACTIVE, ("out", GROUND), freq=freq).z
     assert in_[1] == pytest.approx(math.sqrt(total) / abs(z), rel=1e-9, abs=0)
-    assert noise(c, ACTIVE, ("out", GROUND), freq=freq, temp_k=T).en == en[1]
+    single = noise(c, ACTIVE, ("out", GROUND), freq=freq, temp_k=T)
+    assert single.en == pytest.approx(en[1], rel=1e-12, abs=0)

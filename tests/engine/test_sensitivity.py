@@ -124,3 +124,25 @@ def test_norton_figures_undefined_where_z_is_zero() -> None:
     s = sensitivity(c, {"V1"}, ("out", GROUND))
     assert s["V1"].dvoc == 1
     assert cmath.isnan(s["V1"].disc)
+
+
+def test_sweep_of_a_wide_span_matches_single_frequencies() -> None:
+    # values 1 mΩ to 1 GΩ: every point in the wide form, batched over the sweep. Compared as
+    # normalised figures (% per %): 1e-12 absolute is far below any shown, and where a figure is
+    # exactly 0 (isc does not depend on Z1 across the port) both carry rounding of that size
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 1)
+    c.resistor("R1", "in", "a", "1m")
+    c.resistor("R2", "a", GROUND, "1G")
+    c.capacitor("C1", "a", "b", "10n")
+    c.inductor("L1", "b", "out", "1u")
+    c.impedance("Z1", "out", GROUND, 0.005 + 0.002j)
+    c.resistor("RL", "out", GROUND, "10k")
+    region, freqs = {"V1", "R1", "R2", "C1", "L1", "Z1"}, [0.0, 50.0, 1e4, 1e7]
+    swept = sensitivity_sweep(c, region, freqs, ("out", GROUND))
+    for i, f in enumerate(freqs):
+        for name, s in sensitivity(c, region, ("out", GROUND), freq=f).items():
+            for field in ("svoc", "sisc", "sz"):
+                got, want = getattr(swept[name], field)[i], getattr(s, field)
+                assert got == pytest.approx(want, rel=1e-9, abs=1e-12, nan_ok=True), \
+                    f"{name} {field} at {f} Hz"
