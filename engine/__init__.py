@@ -8,8 +8,8 @@ No Qt here. Public names:
   results (:class:`Equivalent`, :class:`Sweep`, :class:`EquivalenceReport`); :func:`check_cut`;
 * :func:`sensitivity`, :func:`sensitivity_sweep` (:class:`Sensitivity`, :func:`influence`):
   derivatives of the port quantities in every part value, by the adjoint method;
-* :func:`noise`, :func:`noise_band` (:class:`Noise`, :class:`BandNoise`): thermal noise at
-  the port;
+* :func:`noise`, :func:`noise_sweep`, :func:`noise_band` (:class:`Noise`, :class:`NoiseSweep`,
+  :class:`BandNoise`): thermal noise at the port;
 * :func:`nearest`, :func:`best_pair`, :func:`realise`: IEC 60063 standard values;
 * :func:`parse_tolerance`, :func:`worst_case`, :func:`monte_carlo` (:class:`WorstCase`,
   :class:`MonteCarlo`): part tolerances and their effect on the port;
@@ -31,7 +31,7 @@ from .solve.equivalent import (
     sweep,
 )
 from .solve.eseries import best_pair, nearest, realise
-from .solve.noise import BandNoise, Noise, noise, noise_band
+from .solve.noise import BandNoise, Noise, NoiseSweep, noise, noise_band, noise_sweep
 from .solve.sensitivity import Sensitivity, influence, sensitivity, sensitivity_sweep
 from .solve.tolerance import MonteCarlo, WorstCase, monte_carlo, parse_tolerance, worst_case
 from .solve.topology import check_cut
@@ -50,6 +50,7 @@ __all__ = [
     "Forms",
     "MonteCarlo",
     "Noise",
+    "NoiseSweep",
     "Part",
     "PowerTransfer",
     "Realisation",
@@ -71,6 +72,7 @@ __all__ = [
     "nearest",
     "noise",
     "noise_band",
+    "noise_sweep",
     "parse_frequency",
     "parse_tolerance",
     "parse_value",

@@ -7,39 +7,37 @@ both: for a part value p, ``d voc/dp = lam . (db/dp - dA/dp x)`` and ``dz/dp = -
 ``isc = voc / z`` gives ``d isc/dp = (d voc/dp - isc dz/dp) / z``. ``dA/dp`` is each part's
 own stamp differentiated in p (engine/solve/stamps.py, docs/method.md). The normalised sensitivity
 ``(p / X) dX/dp`` is the per-cent change of X per per-cent change of p. Units: dvoc V per unit
-of p, disc A, dz Ω.
+of p, disc A, dz Ω. The solutions and the adjoint, in the formulation the equivalent takes,
+come from engine/solve/adjoint.py (batched over a sweep).
 """
 
 from __future__ import annotations
 
-import cmath
 import math
 from collections.abc import Collection, Iterable, Sequence
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
-from ..errors import CircuitError, SingularCircuitError
-from . import mna, topology
+from . import topology
+from .adjoint import port_solution, port_stamps, port_sweep
 from .circuit import Part
-from .equivalent import Equivalent, _equivalent_of, _frequencies, _port_of
-from .mna import describe_freq
-from .stamps import PARAMETER_KINDS, value_stamps
+from .equivalent import _frequencies
+from .stamps import PARAMETER_KINDS, ValueStamps
 from .units import parse_frequency
 
-__all__ = ["PortSolution", "Sensitivity", "influence", "port_solution", "sensitivity",
-           "sensitivity_sweep", "valued_parts"]
+__all__ = ["Sensitivity", "influence", "sensitivity", "sensitivity_sweep", "valued_parts"]
 
 _NAN = complex(math.nan, math.nan)
 
 
-@dataclass(frozen=True, slots=True)
-class Sensitivity:
+class Sensitivity(NamedTuple):
     """Derivatives of the port quantities with respect to one part's value.
 
     ``value`` is the part's value p; ``dvoc``, ``disc``, ``dz`` are dX/dp (complex; nan where X
     does not exist); ``svoc``, ``sisc``, ``sz`` are (p / X) dX/dp (nan where X is 0). Over a
-    sweep every figure is an array, one entry per frequency.
+    sweep every figure is an array, one entry per frequency. (A named tuple: a region of many
+    parts makes one per part, and a tuple is made several times faster than a frozen class.)
     """
 
     name: str
@@ -68,85 +66,51 @@ def sensitivity(circuit, region: Collection[str], port: Sequence[str] | None = N
     where the region has no Thevenin form (the open-port equations the method differentiates).
     """
     f = parse_frequency(freq)
-    return _at(topology.cut(circuit, region, port), f)
+    cut = topology.cut(circuit, region, port)
+    solved = port_solution(cut, f, "sensitivities")
+    stamps = port_stamps(cut, solved.system, f == 0)
+    eq = solved.eq
+    columns = _figures(stamps, solved.lam[None], solved.x[None], *(
+        np.array([v]) for v in (f, eq.voc, eq.isc, eq.z, eq.has_norton)))[..., 0]
+    make = Sensitivity._make
+    return {part.name: make((part.name, part.kind, *figures))
+            for part, *figures in zip(stamps.parts, *(c.tolist() for c in columns),
+                                      strict=True)}
 
 
 def sensitivity_sweep(circuit, region: Collection[str], freqs: Iterable[float],
                       port: Sequence[str] | None = None) -> dict[str, Sensitivity]:
-    """:func:`sensitivity` at every frequency of ``freqs``; each figure an array over them."""
+    """:func:`sensitivity` at every frequency of ``freqs``; each figure an array over them.
+
+    The region is checked once, its open-port equations solved batched over the frequencies
+    (engine/solve/adjoint.py) and each formulation's value stamps made once."""
     f = _frequencies(freqs)
     cut = topology.cut(circuit, region, port)
-    points = [_at(cut, float(x)) for x in f]
-    fields = ("value", "dvoc", "disc", "dz", "svoc", "sisc", "sz")
-    return {name: Sensitivity(name, first.kind,
-                              *(np.array([getattr(p[name], k) for p in points]) for k in fields))
-            for name, first in points[0].items()}
+    columns, parts = None, ()
+    for where, solved in port_sweep(cut, f, "sensitivities"):
+        stamps = port_stamps(cut, solved.system, bool(solved.freqs[0] == 0))
+        parts = stamps.parts
+        if columns is None:
+            columns = np.empty((7, len(parts), f.size), dtype=complex)
+        columns[:, :, where] = _figures(stamps, solved.lam, solved.x, solved.freqs, solved.voc,
+                                        solved.isc, solved.z, solved.norton)
+    return {part.name: Sensitivity(part.name, part.kind, *columns[:, i])
+            for i, part in enumerate(parts)}
 
 
-@dataclass(frozen=True, slots=True, eq=False)
-class PortSolution:
-    """The open-port equations of a region solved at one frequency: ``eq`` its equivalent,
-    ``x[:, 0]`` the solution with the sources, ``x[:, 1]`` with 1 A into plus, and ``lam``
-    the adjoint (``A^T lam = e_k``): ``lam . r`` is the port voltage a right-hand side r makes."""
-
-    eq: Equivalent
-    system: mna.System
-    x: np.ndarray
-    lam: np.ndarray
-
-
-def port_solution(cut: topology.Cut, f: float, what: str) -> PortSolution:
-    """Solve ``cut``'s open-port equations at ``f`` Hz; ``what`` names the figures for the
-    message where the region has no Thevenin form (its open-port equations are singular).
-
-    Where z stands clear of its error bound (the equivalent's own test, engine/solve/equivalent.py)
-    the equivalent is read from this one factorization; otherwise :func:`engine.solve.equivalent`
-    decides it."""
-    # the nodal form: the stamps' derivatives (engine/solve/stamps.py) are written for it
-    system = _port_of(cut, f == 0).open(False)
-    if system is None:
-        raise _no_thevenin(f, what)
-    unit = system.rhs(cut.port[0])
-    try:
-        factor = mna.Factor(system, f)
-        x = factor.solve(np.column_stack((system.b, unit)).astype(complex))
-        lam = x[:, 1] if system.symmetric else factor.solve(unit.astype(complex),
-                                                            transposed=True)
-    except SingularCircuitError:
-        raise _no_thevenin(f, what) from None
-    k = int(system.unknown_of_net[cut.netlist.index[cut.port[0]]])
-    voc, z = complex(x[k, 0]), complex(x[k, 1])
-    if abs(z) > factor.error_bound(x[:, 1], unit, lam):
-        eq = Equivalent(cut.port, f, voc, voc / z, z, True, True)
-    else:
-        eq = _equivalent_of(cut, f)
-        if not eq.has_thevenin:
-            raise _no_thevenin(f, what)
-    return PortSolution(eq, system, x, lam)
-
-
-def _no_thevenin(f: float, what: str) -> CircuitError:
-    return CircuitError(f"the region has no Thevenin form at {describe_freq(f)} (its impedance "
-                        f"is infinite), so its {what} are not defined")
-
-
-def _at(cut: topology.Cut, f: float) -> dict[str, Sensitivity]:
-    solved = port_solution(cut, f, "sensitivities")
-    eq, system, x, lam = solved.eq, solved.system, solved.x, solved.lam
-    stamps = value_stamps(system, valued_parts(cut), 2j * math.pi * f)
-    d_source, d_b = stamps.derivative_terms(lam, x[:, 0])
-    d_unit, _ = stamps.derivative_terms(lam, x[:, 1])
-    dvoc, dz = d_b - d_source, -d_unit
-    parts = stamps.parts
-    voc, z, isc = eq.voc, eq.z, eq.isc
-    p = stamps.values
-    disc = (dvoc - isc * dz) / z if eq.has_norton and z != 0 else np.full(len(parts), _NAN)
-    columns = (p, dvoc, disc, dz, _normalised(p, voc, dvoc), _normalised(p, isc, disc),
-               _normalised(p, z, dz))
-    out = {}
-    for part, *figures in zip(parts, *(c.tolist() for c in columns), strict=True):
-        out[part.name] = Sensitivity(part.name, part.kind, *figures)
-    return out
+def _figures(stamps: ValueStamps, lam: np.ndarray, x: np.ndarray, freqs: np.ndarray,
+             voc: np.ndarray, isc: np.ndarray, z: np.ndarray, norton: np.ndarray) -> np.ndarray:
+    """Per valued part and frequency, ``value, dvoc, disc, dz, svoc, sisc, sz`` (a (7, parts,
+    F) complex array) from the open port's solutions ``x`` (F, n, 2), adjoints ``lam`` (F, n)
+    and equivalent (``voc``, ``isc``, ``z``, ``norton``: (F,)) at ``freqs`` (F,) Hz: the
+    stamps' derivatives gathered for all parts and frequencies at once."""
+    d_a, d_b = stamps.derivative_terms(lam, x, 2j * math.pi * freqs)
+    dvoc, dz = (d_b - d_a[..., 0]).T, -d_a[..., 1].T  # (parts, F)
+    p = np.broadcast_to(stamps.values[:, None], dvoc.shape)
+    with np.errstate(all="ignore"):
+        disc = np.where(norton & (z != 0), (dvoc - isc * dz) / z, _NAN)
+    return np.array([p, dvoc, disc, dz, _normalised(p, voc, dvoc), _normalised(p, isc, disc),
+                     _normalised(p, z, dz)])
 
 
 def valued_parts(cut: topology.Cut) -> list[Part]:
@@ -154,9 +118,9 @@ def valued_parts(cut: topology.Cut) -> list[Part]:
     return [p for p in cut.parts if p.kind in PARAMETER_KINDS]
 
 
-def _normalised(p: np.ndarray, x: complex, dx: np.ndarray) -> np.ndarray:
-    """(p / x) dx, nan where x is 0 or not finite, or dx not finite."""
-    if x == 0 or not cmath.isfinite(x):
-        return np.full(p.shape, _NAN)
-    with np.errstate(invalid="ignore"):
-        return np.where(np.isfinite(dx), p / x * dx, _NAN)
+def _normalised(p: np.ndarray, x: np.ndarray, dx: np.ndarray) -> np.ndarray:
+    """(p / x) dx, nan where x is 0 or not finite, or dx not finite (x: (F,), p and dx:
+    (parts, F))."""
+    with np.errstate(all="ignore"):
+        out = p / x * dx
+    return np.where((x == 0) | ~np.isfinite(x) | ~np.isfinite(dx), _NAN, out)

@@ -19,8 +19,8 @@ import numpy as np
 
 from ..errors import CircuitError, ValueParseError
 from . import topology
-from .sensitivity import port_solution, sensitivity, valued_parts
-from .stamps import value_stamps
+from .adjoint import port_solution, port_stamps
+from .sensitivity import sensitivity, valued_parts
 from .units import parse_frequency
 
 __all__ = ["ALL_CORNERS_LIMIT", "FIGURES", "TOLERANCE_CODES", "MonteCarlo", "WorstCase",
@@ -113,7 +113,7 @@ class _Batch:
         if system.size > DENSE_LIMIT:
             raise CircuitError(f"tolerance analysis solves regions of up to {DENSE_LIMIT} "
                                f"unknowns; this one has {system.size}")
-        self.stamps = value_stamps(system, valued_parts(cut), 2j * math.pi * f)
+        self.stamps, self.s = port_stamps(cut, system, f == 0), 2j * math.pi * f
         names = [p.name for p in self.stamps.parts]
         self.columns = np.array([names.index(n) for n in tolerances], dtype=np.intp)
         self.size = system.size
@@ -132,7 +132,7 @@ class _Batch:
             part = deltas[start:start + step]
             values = np.repeat(self.stamps.values[None, :], part.shape[0], axis=0)
             values[:, self.columns] *= 1 + part
-            da, db = self.stamps.changes(values, n)
+            da, db = self.stamps.changes(values, n, self.s)
             rhs = np.repeat(self.rhs[None], part.shape[0], axis=0)
             rhs[:, :, 0] += db
             try:

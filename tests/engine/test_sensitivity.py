@@ -50,15 +50,15 @@ def test_divider_closed_forms() -> None:
     # Common practice: voc = V R2/(R1+R2), z = R1 R2/(R1+R2), isc = V/R1.
     v, r1, r2 = 10.0, 6e3, 4e3
     s = sensitivity(divider(v, r1, r2), {"V1", "R1", "R2"})
-    assert s["R2"].dvoc == pytest.approx(v * r1 / (r1 + r2) ** 2, rel=1e-12)
-    assert s["R1"].dvoc == pytest.approx(-v * r2 / (r1 + r2) ** 2, rel=1e-12)
-    assert s["R1"].dz == pytest.approx((r2 / (r1 + r2)) ** 2, rel=1e-12)
-    assert s["R1"].disc == pytest.approx(-v / r1 ** 2, rel=1e-12)
-    assert s["V1"].dvoc == pytest.approx(r2 / (r1 + r2), rel=1e-12)
-    assert s["V1"].svoc == pytest.approx(1.0, rel=1e-12)  # voc is proportional to V
+    assert s["R2"].dvoc == pytest.approx(v * r1 / (r1 + r2) ** 2, rel=1e-12, abs=0)
+    assert s["R1"].dvoc == pytest.approx(-v * r2 / (r1 + r2) ** 2, rel=1e-12, abs=0)
+    assert s["R1"].dz == pytest.approx((r2 / (r1 + r2)) ** 2, rel=1e-12, abs=0)
+    assert s["R1"].disc == pytest.approx(-v / r1 ** 2, rel=1e-12, abs=0)
+    assert s["V1"].dvoc == pytest.approx(r2 / (r1 + r2), rel=1e-12, abs=0)
+    assert s["V1"].svoc == pytest.approx(1.0, rel=1e-12, abs=0)  # voc is proportional to V
     assert abs(s["R2"].disc) < 1e-20  # isc = V/R1 does not depend on R2
     # normalised: (p / X) dX/dp; R1 and R2 move voc by equal and opposite shares
-    assert s["R1"].svoc == pytest.approx(-s["R2"].svoc, rel=1e-12)
+    assert s["R1"].svoc == pytest.approx(-s["R2"].svoc, rel=1e-12, abs=0)
 
 
 def _central(c: Circuit, region: set[str], name: str, freq: float) -> tuple[complex, ...]:
@@ -91,7 +91,7 @@ def test_sweep_matches_single_frequencies() -> None:
         one = sensitivity(c, MIXED, ("out", GROUND), freq=f)
         for name, s in one.items():
             assert swept[name].dz[i] == pytest.approx(s.dz, rel=1e-12, abs=1e-300)
-            assert swept[name].svoc[i] == pytest.approx(s.svoc, rel=1e-12, nan_ok=True)
+            assert swept[name].svoc[i] == pytest.approx(s.svoc, rel=1e-12, abs=0, nan_ok=True)
     # the normalised figure is (p / X) dX/dp with X from the sweep itself
     r1 = swept["R1"]
     assert np.allclose(r1.sz, r1.value * r1.dz / eqs.z, rtol=1e-12)
@@ -124,3 +124,25 @@ def test_norton_figures_undefined_where_z_is_zero() -> None:
     s = sensitivity(c, {"V1"}, ("out", GROUND))
     assert s["V1"].dvoc == 1
     assert cmath.isnan(s["V1"].disc)
+
+
+def test_sweep_of_a_wide_span_matches_single_frequencies() -> None:
+    # values 1 mΩ to 1 GΩ: every point in the wide form, batched over the sweep. Compared as
+    # normalised figures (% per %): 1e-12 absolute is far below any shown, and where a figure is
+    # exactly 0 (isc does not depend on Z1 across the port) both carry rounding of that size
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 1)
+    c.resistor("R1", "in", "a", "1m")
+    c.resistor("R2", "a", GROUND, "1G")
+    c.capacitor("C1", "a", "b", "10n")
+    c.inductor("L1", "b", "out", "1u")
+    c.impedance("Z1", "out", GROUND, 0.005 + 0.002j)
+    c.resistor("RL", "out", GROUND, "10k")
+    region, freqs = {"V1", "R1", "R2", "C1", "L1", "Z1"}, [0.0, 50.0, 1e4, 1e7]
+    swept = sensitivity_sweep(c, region, freqs, ("out", GROUND))
+    for i, f in enumerate(freqs):
+        for name, s in sensitivity(c, region, ("out", GROUND), freq=f).items():
+            for field in ("svoc", "sisc", "sz"):
+                got, want = getattr(swept[name], field)[i], getattr(s, field)
+                assert got == pytest.approx(want, rel=1e-9, abs=1e-12, nan_ok=True), \
+                    f"{name} {field} at {f} Hz"

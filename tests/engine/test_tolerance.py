@@ -149,3 +149,25 @@ def test_bad_requests_are_named() -> None:
         monte_carlo(rc(), RC, RC_TOL, distribution="triangle")
     with pytest.raises(CircuitError, match="no figure 'gain'"):
         monte_carlo(rc(), RC, RC_TOL, limits={"gain": (0, 1)})
+
+
+def wide_span() -> Circuit:
+    """Values from 1 mΩ to 1 GΩ: the region's equations are solved in the wide form."""
+    c = Circuit()
+    c.voltage_source("V1", "in", GROUND, 10)
+    c.resistor("R1", "in", "a", "1m")
+    c.resistor("R2", "a", GROUND, "1G")
+    c.resistor("R3", "a", "out", "5m")
+    c.capacitor("C1", "out", GROUND, "100n")
+    c.resistor("RL", "out", GROUND, "1k")
+    return c
+
+
+@pytest.mark.parametrize("freq", [0.0, 1e3, 1e6])
+def test_wide_span_corners_match_brute_force(freq: float) -> None:
+    region, codes = {"V1", "R1", "R2", "R3", "C1"}, {"R1": "F", "R2": "J", "R3": "J", "C1": "K"}
+    tol = {n: parse_tolerance(t) for n, t in codes.items()}
+    wc = worst_case(wide_span(), region, codes, freq=freq)
+    for k, (lo, hi) in _brute_force(wide_span(), region, tol, freq).items():
+        assert wc.extremes[k][0] == pytest.approx(min(lo, wc.nominal[k]), rel=1e-10, abs=0), k
+        assert wc.extremes[k][1] == pytest.approx(max(hi, wc.nominal[k]), rel=1e-10, abs=0), k
