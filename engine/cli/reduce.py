@@ -13,7 +13,7 @@ from ..errors import CircuitError
 from ..solve.equivalent import Equivalent
 from ..solve.mna import describe_freq
 from ..solve.sensitivity import Sensitivity, influence, sensitivity
-from ..solve.units import denoised, format_complex, format_eng, parse_frequency
+from ..solve.units import VALUE_UNITS, denoised, format_complex, format_eng, parse_frequency
 from .selection import Selection, caution, document, selection, solve
 
 __all__ = ["json_complex", "run_reduce"]
@@ -82,8 +82,6 @@ def _reduce_table(eq: Equivalent, sel: Selection, form: str, basis: str) -> str:
     return "\n".join(out)
 
 
-_UNIT = {"resistor": "Ω", "impedance": "Ω", "capacitor": "F", "inductor": "H",
-         "voltage_source": "V", "current_source": "A", "vccs": "S", "ccvs": "Ω"}
 _FIGURES = ("value", "dvoc", "disc", "dz", "svoc", "sisc", "sz")
 
 
@@ -109,7 +107,7 @@ def _sensitivity_table(table: dict[str, Sensitivity]) -> str:
     out = ["", "Sensitivity: % change of each figure per % change of the part, most "
            "influential first", f"  {'Part':8} {'Value':>14} {'Voc':>16} {'Isc':>16} {'Z':>16}"]
     for s in sorted(table.values(), key=lambda s: (-influence(s), s.name)):
-        unit = _UNIT.get(s.kind, "")
+        unit = VALUE_UNITS.get(s.kind, "")
         value = format_complex(s.value, unit) if s.value.imag else format_eng(s.value.real, unit,
                                                                               4)
         out.append(f"  {s.name:8} {value:>14} {_ratio_text(s.svoc):>16} "

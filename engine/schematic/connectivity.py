@@ -44,6 +44,10 @@ from ..errors import CircuitError
 from ..solve.circuit import GROUND, KINDS, Circuit, Part
 from ..solve.devices import DEVICE_KINDS
 from ..solve.equivalent import Equivalent, collapse, equivalent
+from ..solve.kinds import CONTROLLED_BY_CURRENT as _CONTROLLED_BY_CURRENT
+from ..solve.kinds import REFERRING as _REFERENCING
+from ..solve.kinds import SOURCES as _SOURCES
+from ..solve.kinds import TRAITS, VALUED
 from ..solve.units import VALUE_UNITS, parse_value
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Wire
@@ -63,22 +67,12 @@ __all__ = [
 
 #: Pin roles of a collapsed block, in pin order.
 BLOCK_ROLES = ("plus", "minus")
-_CONTROLLED_BY_CURRENT = frozenset({"ccvs", "cccs"})
-_SOURCES = frozenset({"voltage_source", "current_source"})
-_REFERENCING = _CONTROLLED_BY_CURRENT | {"coupling"}
 #: A number for each kind of pin owner that a designator names, for comparing kinds in arrays.
 _KIND_CODE = {kind: code for code, kind in enumerate([*KINDS, *DEVICE_KINDS, "block"])}
 #: The node roles of every kind a placed part may have: primitive kinds and device kinds.
 _ROLES: dict[str, tuple[str, ...]] = {**KINDS, **DEVICE_KINDS}
 #: What each kind's value means, with an example, for the message when it is missing.
-_QUANTITY: dict[str, tuple[str, str]] = {
-    "resistor": ("resistance", "4k7"), "capacitor": ("capacitance", "100n"),
-    "inductor": ("inductance", "10m"), "impedance": ("impedance in ohms", "50"),
-    "voltage_source": ("voltage", "5"), "current_source": ("current", "1m"),
-    "vcvs": ("voltage gain", "10"), "vccs": ("transconductance in siemens", "40m"),
-    "ccvs": ("transresistance in ohms", "100"), "cccs": ("current gain", "100"),
-    "coupling": ("coupling coefficient", "0.9"),
-}
+_QUANTITY = {name: (TRAITS[name].quantity, TRAITS[name].example) for name in VALUED}
 
 
 @dataclass(frozen=True, slots=True)

@@ -27,33 +27,15 @@ import numpy as np
 
 from ..errors import CircuitError
 from . import devices as _devices
+from .kinds import CONTROLLED_BY_CURRENT as _CURRENT_CONTROLLED
+from .kinds import KIND_CODE, KINDS, REFERRING
+from .kinds import SOURCES as _SOURCES
 from .units import VALUE_UNITS, parse_value
 
 __all__ = ["GROUND", "KINDS", "REFERRING", "Circuit", "Columns", "Part", "References"]
 
 GROUND = "gnd"
 
-#: Every part kind, with the roles of its nodes.
-KINDS: dict[str, tuple[str, ...]] = {
-    "resistor": ("a", "b"),
-    "capacitor": ("a", "b"),
-    "inductor": ("a", "b"),
-    "impedance": ("a", "b"),
-    "voltage_source": ("p", "n"),
-    "current_source": ("from", "to"),
-    "vcvs": ("p", "n", "cp", "cn"),
-    "vccs": ("from", "to", "cp", "cn"),
-    "ccvs": ("p", "n"),
-    "cccs": ("from", "to"),
-    "opamp": ("inp", "inn", "out"),
-    "coupling": (),
-}
-_CURRENT_CONTROLLED = frozenset({"ccvs", "cccs"})
-#: Kinds whose parts name other parts (``Part.refs``).
-REFERRING = ("ccvs", "cccs", "coupling")
-_SOURCES = frozenset({"voltage_source", "current_source"})
-#: Each kind's code in :class:`Columns` (its position in KINDS).
-KIND_CODE = {kind: code for code, kind in enumerate(KINDS)}
 #: Columns of net ids per part: enough for the widest kind (an op-amp with its ground return).
 NET_COLUMNS = 4
 _PAD = [[-1] * (NET_COLUMNS - used) for used in range(NET_COLUMNS + 1)]

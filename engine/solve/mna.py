@@ -41,6 +41,8 @@ from scipy.sparse.linalg import splu
 
 from ..errors import CircuitError, SingularCircuitError
 from .circuit import KIND_CODE, KINDS, NET_COLUMNS, REFERRING, Columns, Part, kind_mask
+from .kinds import CONTROLLED_BY_CURRENT as _CONTROLLED
+from .kinds import SOURCES as _SOURCES
 from .units import format_eng
 
 __all__ = [
@@ -54,8 +56,6 @@ EPS = float(np.finfo(float).eps)
 #: on an RC mesh; see docs/performance.md).
 ORDERING = "MMD_AT_PLUS_A"
 
-_CONTROLLED = ("ccvs", "cccs")
-_SOURCES = ("voltage_source", "current_source")
 #: Group-2 parts (a branch-current unknown) always; any other part whose current controls a
 #: CCVS or CCCS, and a 0 Ω resistor, is one too.
 _ALWAYS_BRANCH = ("voltage_source", "vcvs", "ccvs", "inductor", "opamp")

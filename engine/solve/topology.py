@@ -33,14 +33,13 @@ from ..errors import CircuitError, CutError
 from .branches import CARRYING_COLUMNS, CARRYING_EDGES, SENSED_COLUMNS, components, pairs
 from .circuit import GROUND, KIND_CODE, KINDS, NET_COLUMNS, Circuit, Columns, Part, kind_mask
 from .islands import SHORT, Islands, check_voltage_loops, islands
+from .kinds import CONTROLLED_BY_CURRENT, SENSING
 from .mna import Netlist
 from .names import listing, plural
 
 __all__ = ["SHORT", "Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",
            "forget_netlists", "islands", "netlist_of"]
 
-_SENSING = ("vcvs", "vccs", "opamp")
-_CONTROLLED = ("ccvs", "cccs")
 
 
 # -- the cut ------------------------------------------------------------------------------------
@@ -240,7 +239,7 @@ def _coupling_sides(columns: Columns, names: set[str]) -> set[str]:
 
 def _check_controls(circuit: Circuit, columns: Columns, names: set[str]) -> None:
     """A CCVS/CCCS and its controlling part lie on the same side, and the part exists."""
-    controlled = _referring(columns, *_CONTROLLED)
+    controlled = _referring(columns, *CONTROLLED_BY_CURRENT)
     for p in _inside_first(controlled, names):
         control, inside = p.refs[0], p.name in names
         if control not in circuit:
@@ -287,7 +286,7 @@ class _Sides:
         carrying = _carrying(netlist)
         self.boundary = {netlist.nets[i] for i in (carrying & self.outer).nonzero()[0]}
         self._check_sensing_inside(carrying)
-        sensing = outside[kind_mask(_SENSING)[kinds]]
+        sensing = outside[kind_mask(SENSING)[kinds]]
         self._check_sensing_outside(carrying, [columns.parts[i] for i in sensing.tolist()])
 
     def _check_sensing_inside(self, carrying: np.ndarray) -> None:

@@ -31,6 +31,7 @@ from decimal import Decimal
 from numbers import Complex, Real
 
 from ..errors import ValueParseError
+from .kinds import VALUE_UNITS
 
 __all__ = [
     "NOISE_RTOL",
@@ -60,12 +61,6 @@ _CODE_LETTERS: dict[str, int] = {
 }
 _UNITS = ("Ω", "ohm", "ohms", "Ohm", "F", "H", "V", "A", "Hz", "S", "W")
 _OHMS = ("ohm", "ohms", "Ohm")  # spellings of Ω
-#: The unit each part kind's value takes ("" for a plain ratio: the gains and a coupling's k).
-VALUE_UNITS: dict[str, str] = {
-    "resistor": "Ω", "capacitor": "F", "inductor": "H", "impedance": "Ω",
-    "voltage_source": "V", "current_source": "A", "vcvs": "", "vccs": "S", "ccvs": "Ω",
-    "cccs": "", "coupling": "",
-}
 _TOLERANCE = "BCDFGJKM"
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
