@@ -38,6 +38,7 @@ from portcut.engine.schematic.ports import region_nets
 from portcut.engine.schematic.reduction import RegionAnalysis, collapse_region, expand_block
 from portcut.engine.solve.equivalent import EquivalenceReport, Equivalent
 from portcut.engine.solve.mna import describe_freq
+from portcut.engine.solve.names import listing as _names
 from portcut.engine.solve.units import format_complex, format_eng, parse_frequency
 
 from ..analysis import LiveAnalysis
@@ -59,13 +60,6 @@ _PICK_BLOCK = ("Select a collapsed block to see its values and expand it, or cho
 
 
 # -- texts ----------------------------------------------------------------------------------------
-def _names(names: list[str], most: int = 6) -> str:
-    if not names:
-        return "nothing"
-    shown = ", ".join(names[:most])
-    return shown if len(names) <= most else f"{shown} and {len(names) - most} more"
-
-
 def boundary_text(analysis: RegionAnalysis) -> list[str]:
     """For each net a refused cut names, the parts on it inside and outside the region (a
     collapsed block by its designator), so the user sees which part to take in or leave out."""

@@ -48,6 +48,7 @@ from ..solve.kinds import CONTROLLED_BY_CURRENT as _CONTROLLED_BY_CURRENT
 from ..solve.kinds import REFERRING as _REFERENCING
 from ..solve.kinds import SOURCES as _SOURCES
 from ..solve.kinds import TRAITS, VALUED
+from ..solve.names import unused_name as _fresh
 from ..solve.units import VALUE_UNITS, parse_value
 from .document import Document
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Wire
@@ -558,13 +559,6 @@ def _chosen_name(found: dict[str, int], sheet: _Sheet,
             f"one net carries two names, {shown} and {other!r}; it is called {shown}. "
             "Remove one label or separate the nets", marker.element_id, marker.at))
     return chosen
-
-
-def _fresh(name: str, taken: set[str]) -> str:
-    while name in taken:
-        name += "'"
-    taken.add(name)
-    return name
 
 
 def _fmt(at: Point) -> str:

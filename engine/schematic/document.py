@@ -15,8 +15,9 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field, fields, replace
 from typing import TypeVar
 
-from ..errors import DocumentError
+from ..errors import CircuitError, DocumentError
 from ..solve.kinds import TABLE as KIND_TABLE
+from ..solve.units import parse_frequency
 from .model import (
     ANALYSIS_FORMS,
     ROTATIONS,
@@ -95,6 +96,14 @@ class Document:
     @property
     def analysis(self) -> Analysis:
         return self._analysis
+
+    def frequency(self) -> float:
+        """The analysis frequency in hertz; 0 (DC) while the field does not read as a
+        frequency (the field's own check says why)."""
+        try:
+            return parse_frequency(self._analysis.freq)
+        except CircuitError:
+            return 0.0
 
     def __iter__(self) -> Iterator[Element]:
         return iter(self._elements.values())

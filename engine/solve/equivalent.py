@@ -24,6 +24,7 @@ from ..errors import CircuitError, SingularCircuitError
 from . import mna, topology
 from .circuit import GROUND, Circuit, Part
 from .mna import describe_freq
+from .names import unused_name as _unused
 from .units import (
     UNDEFINED,
     denoised,
@@ -754,14 +755,6 @@ def _ratio(deviation: float, scale: float) -> float:
     if deviation == 0:
         return 0.0
     return deviation / scale if scale > 0 else math.inf
-
-
-def _unused(base: str, taken: set[str]) -> str:
-    name = base
-    while name in taken:
-        name += "'"
-    taken.add(name)
-    return name
 
 
 @dataclass(frozen=True, slots=True)

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-__all__ = ["listing", "plural"]
+__all__ = ["listing", "plural", "unused_name"]
 
 
 def listing(items: Sequence[str], most: int = 6) -> str:
@@ -24,3 +24,18 @@ def listing(items: Sequence[str], most: int = 6) -> str:
 def plural(count: int, one: str, many: str) -> str:
     """``one`` when ``count`` is 1, else ``many``."""
     return one if count == 1 else many
+
+
+def unused_name(base: str, taken: set[str]) -> str:
+    """``base``, primed (``'``) as often as needed to be none of ``taken``; the name is added
+    to ``taken``.
+
+    >>> taken = {"R1", "R1'"}
+    >>> unused_name("R1", taken), sorted(taken)
+    ("R1''", ['R1', "R1'", "R1''"])
+    """
+    name = base
+    while name in taken:
+        name += "'"
+    taken.add(name)
+    return name
