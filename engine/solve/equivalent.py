@@ -1,7 +1,7 @@
 """Thevenin and Norton equivalents of a two-terminal region: one frequency, sweeps, collapse, and
 the check that a collapsed circuit behaves as the original.
 
-Conventions (shared/design.md, engine/solve/circuit.py): ``voc = V(plus) - V(minus)`` with the port
+Conventions (docs/method.md, engine/solve/circuit.py): ``voc = V(plus) - V(minus)`` with the port
 open; ``isc`` flows out of plus, through an outside short, into minus; ``z`` is the voltage across
 the port for 1 A driven into plus with the independent sources zeroed (dependent sources kept),
 so ``voc = z * isc`` whenever both forms exist. ``z`` is 0 where there is no Norton form and

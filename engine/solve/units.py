@@ -20,6 +20,7 @@ Accepted input (numbers pass through unchanged; strings are read as below):
   refused as a resistance.
 
 A bad value raises :class:`ValueParseError` that quotes the text and says what is accepted.
+Output writes micro as ``µ`` (U+00B5 MICRO SIGN), never ``u``.
 """
 
 from __future__ import annotations

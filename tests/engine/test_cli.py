@@ -186,13 +186,13 @@ def test_reduce_states_the_matched_load_power_for_dc_and_for_phasors(capsys, div
 
 
 def test_reduce_without_a_thevenin_form(capsys, saved):
-    # an ideal current source alone at the port: Z is infinite (shared/design.md)
+    # an ideal current source alone at the port: Z is infinite (docs/method.md)
     path = saved(_source_load(("current_source", "I1", "1m"), None, None))
     data = _json(capsys, path)
     assert data["has_thevenin"] is False and data["has_norton"] is True
     assert data["voc"] is None and data["z"] is None
     # I1 drives 1 mA from "out" through itself into ground, so the current leaving "out"
-    # through an outside short into ground is -1 mA (sign conventions of shared/design.md)
+    # through an outside short into ground is -1 mA (sign conventions of docs/method.md)
     assert _c(data["isc"]) == pytest.approx(-1e-3)
     code, out, _ = _run(capsys, "reduce", path)
     assert code == 0 and "Thevenin: none, Z is infinite" in out
