@@ -10,6 +10,7 @@ import networkx as nx
 import numpy as np
 
 from ..errors import SingularCircuitError
+from . import memo_keys
 from .branches import (
     CONDUCTING_EDGES,
     CURRENT_EDGES,
@@ -148,7 +149,7 @@ def islands(netlist: Netlist, dc: bool, references: Sequence[str],
             short: tuple[int, int] | None = None) -> Islands:
     """The :class:`Islands` of ``netlist`` (``short``: net ids of a port short to include),
     kept in its memo: they depend on which parts conduct where, not on their values."""
-    key = ("islands", dc, tuple(references), short)
+    key = (memo_keys.ISLANDS, dc, tuple(references), short)
     found = netlist.memo.get(key)
     if found is None:
         found = netlist.memo[key] = Islands(netlist, dc, references, short)

@@ -30,6 +30,7 @@ import networkx as nx
 import numpy as np
 
 from ..errors import CircuitError, CutError
+from . import memo_keys
 from .branches import CARRYING_COLUMNS, CARRYING_EDGES, SENSED_COLUMNS, components, pairs
 from .circuit import GROUND, KIND_CODE, KINDS, NET_COLUMNS, Circuit, Columns, Part, kind_mask
 from .islands import SHORT, Islands, check_voltage_loops, islands
@@ -37,8 +38,9 @@ from .kinds import CONTROLLED_BY_CURRENT, SENSING
 from .mna import Netlist
 from .names import listing, plural
 
-__all__ = ["SHORT", "Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",
-           "forget_netlists", "islands", "netlist_of"]
+__all__ = ["NETLISTS", "SHORT", "Cut", "Islands", "NetlistCache", "check_cut",
+           "check_voltage_loops", "circuit_graph", "cut", "forget_netlists", "islands",
+           "netlist_of"]
 
 
 
@@ -152,49 +154,60 @@ def _complement(rows: np.ndarray | None, size: int) -> np.ndarray:
     return (~keep).nonzero()[0]
 
 
-#: The netlists of the last few regions, each tied to the columns it was built from.
-_RECENT: list[Netlist] = []
-_KEEP = 3
+class NetlistCache:
+    """The netlists of the last ``keep`` regions, each tied to the columns it was built from,
+    most recently used first. The one instance is :data:`NETLISTS`."""
+
+    def __init__(self, keep: int) -> None:
+        self.keep = keep
+        self._recent: list[Netlist] = []
+
+    def of(self, columns: Columns, rows: np.ndarray | None = None) -> Netlist:
+        """The :class:`Netlist` of the parts at ``rows`` of ``columns`` (None: all), reused
+        while they are the same parts.
+
+        A circuit's columns change only by adding parts, which makes new columns, so a netlist
+        kept for the same columns cannot go stale. Where the parts differ from a kept netlist's
+        only in value (a value edit through ``Circuit.replaced``), its nets and node arrays are
+        reused and only the values read again (:meth:`Netlist.with_values`).
+        """
+        recent = self._recent
+        for i, kept in enumerate(recent):
+            found = kept.with_values(columns, rows)
+            if found is kept:
+                recent.insert(0, recent.pop(i))
+                return kept
+            if found is not None:
+                return self._kept(found)
+        return self._kept(Netlist.of(columns, rows))
+
+    def forget(self, keep: int = 0) -> None:
+        """Drop all but the first ``keep`` kept netlists. What their memos hold (systems,
+        matrices) refers back to them; clearing the memos frees that memory at once instead of
+        at the next cyclic garbage collection, which a first analysis would otherwise pay for
+        in fresh pages."""
+        for netlist in self._recent[keep:]:
+            netlist.memo.clear()
+        del self._recent[keep:]
+
+    def _kept(self, netlist: Netlist) -> Netlist:
+        self._recent.insert(0, netlist)
+        self.forget(self.keep)
+        return netlist
+
+
+#: The netlists every analysis shares (a live view analyses the same region again and again).
+NETLISTS = NetlistCache(keep=3)
 
 
 def netlist_of(columns: Columns, rows: np.ndarray | None = None) -> Netlist:
-    """The :class:`Netlist` of the parts at ``rows`` of ``columns`` (None: all), reused while
-    they are the same parts.
-
-    A circuit's columns change only by adding parts, which makes new columns, so a netlist
-    kept for the same columns cannot go stale. Where the parts differ from a kept netlist's only
-    in value (a value edit through ``Circuit.replaced``), its nets and node arrays are reused and
-    only the values read again (:meth:`Netlist.with_values`).
-    """
-    for i, kept in enumerate(_RECENT):
-        found = kept.with_values(columns, rows)
-        if found is kept:
-            _RECENT.insert(0, _RECENT.pop(i))
-            return kept
-        if found is not None:
-            return _keep(found)
-    return _keep(Netlist.of(columns, rows))
-
-
-def _keep(netlist: Netlist) -> Netlist:
-    _RECENT.insert(0, netlist)
-    _drop(_KEEP)
-    return netlist
-
-
-def _drop(keep: int) -> None:
-    """Drop all but the first ``keep`` kept netlists. What their memos hold (systems,
-    matrices) refers back to them; clearing the memos frees that memory at once instead of at
-    the next cyclic garbage collection, which a first analysis would otherwise pay for in
-    fresh pages."""
-    for netlist in _RECENT[keep:]:
-        netlist.memo.clear()
-    del _RECENT[keep:]
+    """:meth:`NetlistCache.of` on :data:`NETLISTS`."""
+    return NETLISTS.of(columns, rows)
 
 
 def forget_netlists() -> None:
     """Drop the kept netlists (benchmarks use it to time a first analysis)."""
-    _drop(0)
+    NETLISTS.forget()
 
 
 def _region_names(region: Collection[str]) -> set[str]:
@@ -336,9 +349,9 @@ class _Sides:
 
 def _carrying(netlist: Netlist) -> np.ndarray:
     """Per net: a part of the netlist can carry current there (kept in its memo)."""
-    found = netlist.memo.get("carrying")
+    found = netlist.memo.get(memo_keys.CARRYING)
     if found is None:
-        found = netlist.memo["carrying"] = netlist.marked(CARRYING_COLUMNS)
+        found = netlist.memo[memo_keys.CARRYING] = netlist.marked(CARRYING_COLUMNS)
     return found
 
 
