@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from functools import partial
 from itertools import pairwise
 
 from ..errors import CircuitError, CutError
@@ -33,6 +34,7 @@ from .connectivity import Connectivity, extract, net_at
 from .document import Document
 from .edits import Edit
 from .model import Block, Contents, Element, Junction, NetLabel, PlacedPart, Region, Wire
+from .outline import inside as in_outline
 from .region_analysis import analyse_region
 from .symbols import Bounds, Point, pin_positions, placed_bounds
 
@@ -88,7 +90,7 @@ def collapse_region(doc: Document, region_id: str, form: str | None = None) -> E
     inner = [e for e in drawn if net_of[e.id] in internal]
     port_points = tuple(tuple(sorted({pt for m in members for i, pt in enumerate(_pins(m))
                                       if conn.net_of_pin[m.id, i] == net})) for net in port)
-    inside = _inside(region.outline)
+    inside = partial(in_outline, region.outline)
     on_port = [e for e in drawn if net_of[e.id] in port]
     within = [e for e in on_port if all(map(inside, _points_of(e)))]
     crossing = {w.id: _outside_runs(w, inside) for w in on_port
@@ -172,19 +174,6 @@ def _net_of(doc: Document, conn: Connectivity, element: Wire | NetLabel | Juncti
     if isinstance(element, NetLabel):
         return conn.net_of_pin[element.id, 0]
     return net_at(doc, conn, element.at)
-
-
-def _inside(outline: tuple[tuple[float, float], ...]):
-    """Point-in-polygon test for the drawn outline (even-odd rule); nothing is inside an
-    empty outline."""
-    def test(pt: Point) -> bool:
-        x, y = pt
-        hit = False
-        for (x0, y0), (x1, y1) in zip(outline, outline[1:] + outline[:1], strict=True):
-            if (y0 > y) != (y1 > y) and x < x0 + (y - y0) * (x1 - x0) / (y1 - y0):
-                hit = not hit
-        return hit
-    return test
 
 
 def _outline_bounds(outline: tuple[tuple[float, float], ...],

@@ -297,8 +297,8 @@ def anything(draw: st.DrawFn) -> tuple[Circuit, object, object, object]:
 @given(case=anything())
 def test_equivalent_raises_only_circuit_errors(case: tuple[Circuit, object, object,
                                                            object]) -> None:
-    # docs/architecture.md (errors.py): every engine error is a CircuitError; no numpy/scipy error or warning
-    # escapes. A returned result obeys the existence rules.
+    # docs/architecture.md (errors.py): every engine error is a CircuitError; no numpy/scipy
+    # error or warning escapes. A returned result obeys the existence rules.
     circuit, region, port, freq = case
     with warnings.catch_warnings():
         warnings.simplefilter("error")
