@@ -19,6 +19,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from drawn import divider as drawn_divider
 
 from portcut.engine.cli import commands as cli
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Region
@@ -86,7 +87,11 @@ def saved(tmp_path):
 
 @pytest.fixture
 def divider(saved):
-    return saved(_source_load(V10, R1K, R2K))
+    """The drawn divider: 10 V through 1 kΩ into 1 kΩ, loaded by 1 kΩ; region "src" holds
+    V1, R1 and R2."""
+    doc = drawn_divider(r1="1k", r2="1k", load="1k")
+    doc.add(Region(doc.new_id(Region), "src", frozenset({"p1", "p2", "p3"})))
+    return saved(doc)
 
 
 def _run(capsys, *argv: str) -> tuple[int, str, str]:
@@ -325,7 +330,7 @@ def test_sources_above_extra_low_voltage_get_the_caution_once(capsys, saved):
     (["reduce", "{missing}"], "no such file"),
     (["reduce", "{divider}", "--region", "nope"], "no region named 'nope'"),
     (["reduce", "{divider}", "--parts", "R1,R9"], "R9"),
-    (["reduce", "{divider}", "--port", "in,nowhere"], "nowhere"),
+    (["reduce", "{divider}", "--port", "out,nowhere"], "nowhere"),
     (["reduce", "{garbage}"], "garbage"),
     (["export", "{divider}", "-o", "{nodir}/x.svg"], "x.svg"),
 ])
