@@ -46,6 +46,7 @@ from portcut.engine.schematic.reduction import (
     expand_block,
     region_part_names,
 )
+from portcut.engine.solve.kinds import REFERRING as _REFERRING  # parts naming others: rebuild
 from portcut.engine.solve.units import parse_frequency
 
 from .workbench import Workbench
@@ -54,8 +55,6 @@ __all__ = ["LiveAnalysis", "sweep_region"]
 
 #: PlacedPart fields a value edit may change without touching nets or names.
 _VALUE_FIELDS = frozenset({"value", "phase_deg", "tolerance"})
-#: Kinds whose parts refer to others by name: a new value means rebuilding the circuit.
-_REFERRING = frozenset({"coupling", "ccvs", "cccs"})
 
 
 def _value_only(old: PlacedPart, new: PlacedPart) -> bool:

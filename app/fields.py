@@ -20,6 +20,7 @@ from portcut.engine.schematic.captions import UNITS
 from portcut.engine.schematic.ports import follow_renames
 from portcut.engine.schematic.text import text_problem
 from portcut.engine.solve.devices import DEVICE_KINDS, FORMS, PARAMETERS, SYMBOLS
+from portcut.engine.solve.kinds import CONTROLLED_BY_CURRENT, CURRENT_CARRYING, SOURCES
 from portcut.engine.solve.measured import fit_table, parse_table
 from portcut.engine.solve.tolerance import parse_tolerance
 from portcut.engine.solve.units import VALUE_UNITS, implausible, parse_value
@@ -33,10 +34,6 @@ QUANTITY: dict[str, str] = {
     "vcvs": "Voltage gain", "vccs": "Transconductance", "ccvs": "Transresistance",
     "cccs": "Current gain", "coupling": "Coupling k",
 }
-#: Kinds whose current can control a current-controlled source.
-_CARRIES_CURRENT = frozenset({"resistor", "capacitor", "inductor", "impedance",
-                              "voltage_source", "current_source", "vcvs", "vccs", "ccvs",
-                              "cccs"})
 
 Writer = Callable[[Document, Element, str], list[Element]]
 
@@ -144,7 +141,7 @@ def _control(doc: Document, part: PlacedPart, text: str) -> list[Element]:
     if target.id == part.id:
         raise DocumentError(f"{where}: {part.designator} cannot be controlled by its own "
                             "current")
-    if target.kind not in _CARRIES_CURRENT:
+    if target.kind not in CURRENT_CARRYING:
         raise DocumentError(f"{where}: {name} is a {target.kind.replace('_', ' ')}, which has "
                             "no single current to sense")
     return [replace(part, control=name)]
@@ -238,10 +235,10 @@ def fields_for(element: Element) -> list[Field]:
         out.append(Field("tolerance", "Tolerance", "IEC 60062 letter (B 0.1 %, C 0.25 %, "
                          "D 0.5 %, F 1 %, G 2 %, J 5 %, K 10 %, M 20 %) or a percentage, e.g. "
                          "1 %; empty for none", _tolerance))
-    if kind in ("voltage_source", "current_source"):
+    if kind in SOURCES:
         out.append(Field("phase_deg", "Phase", "Phase of the source phasor in degrees; empty "
                          "for 0", _phase, "°"))
-    if kind in ("ccvs", "cccs"):
+    if kind in CONTROLLED_BY_CURRENT:
         out.append(Field("control", "Controlled by", "Designator of the part whose current "
                          "(first pin to second, inside the part) controls this source",
                          _control))

@@ -1,9 +1,9 @@
 """Region geometry on the sheet: which parts a drawn outline takes in, how the outline follows a
 part added or taken out by hand, and where the two port nets cross it (the + and − marks).
 
-Outlines are closed polygons in grid units (floats), as engine.schematic.Region keeps them. A part
-or block belongs inside when the middle of its symbol's body lies inside the outline (even-odd
-rule), so a freehand lasso may cut across leads and wires.
+Outlines are closed polygons in grid units (floats), as engine.schematic.Region keeps them. Which
+parts an outline takes in is the engine's one rule (engine/schematic/outline.py: the middle of a
+symbol's body inside, by the even-odd rule); ``body_bounds`` and ``enclosed`` are its functions.
 """
 
 from __future__ import annotations
@@ -13,11 +13,11 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from itertools import pairwise
 
-from PySide6.QtCore import QPointF, QRectF, Qt
+from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath, QPolygonF
 
 from portcut.engine.schematic import Block, Connectivity, Document, PlacedPart, Region
-from portcut.engine.schematic.symbols import placed_bounds
+from portcut.engine.schematic.outline import Outline, body_bounds, enclosed
 
 from .sheet import element_pins
 
@@ -32,7 +32,6 @@ __all__ = [
     "region_name",
 ]
 
-Outline = tuple[tuple[float, float], ...]
 FPoint = tuple[float, float]
 #: Room left around a part's body when the outline grows to take it in, grid units.
 _PAD = 1.0
@@ -47,31 +46,8 @@ class PortMark:
     net: str
 
 
-def body_bounds(element: PlacedPart | Block, style: str = "iec") -> tuple[float, ...]:
-    """(xmin, ymin, xmax, ymax) of the element's symbol on the sheet, grid units."""
-    if isinstance(element, Block):
-        return placed_bounds("block", element.at, element.rotation, element.mirror, style=style,
-                             form=element.form)
-    return placed_bounds(element.kind, element.at, element.rotation, element.mirror, style=style)
-
-
 def _polygon(outline: Iterable[FPoint]) -> QPolygonF:
     return QPolygonF([QPointF(x, y) for x, y in outline])
-
-
-def enclosed(doc: Document, outline: Outline, style: str = "iec") -> frozenset[str]:
-    """Ids of the parts and blocks whose body's middle lies inside ``outline``."""
-    if len(outline) < 3:
-        return frozenset()
-    polygon = _polygon(outline)
-    found = set()
-    for element in doc:
-        if isinstance(element, PlacedPart | Block):
-            x0, y0, x1, y1 = body_bounds(element, style)
-            if polygon.containsPoint(QPointF((x0 + x1) / 2, (y0 + y1) / 2),
-                                     Qt.FillRule.OddEvenFill):
-                found.add(element.id)
-    return frozenset(found)
 
 
 def _padded(element: PlacedPart | Block, style: str) -> QPainterPath:

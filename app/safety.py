@@ -9,24 +9,17 @@ from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Document, Element, PlacedPart
 from portcut.engine.schematic.captions import ELV_AC_RMS, ELV_DC, SAFETY_CAUTION
 from portcut.engine.schematic.captions import above_extra_low_voltage as _above
-from portcut.engine.solve.units import parse_frequency, parse_value
+from portcut.engine.solve.units import parse_value
 
 __all__ = ["AC_RMS_LIMIT", "CAUTION", "DC_LIMIT", "above_extra_low_voltage"]
 
 AC_RMS_LIMIT, DC_LIMIT, CAUTION = ELV_AC_RMS, ELV_DC, SAFETY_CAUTION
 
 
-def _frequency(doc: Document) -> float:
-    try:
-        return parse_frequency(doc.analysis.freq)
-    except CircuitError:
-        return 0.0
-
-
 def above_extra_low_voltage(doc: Document, elements: Iterable[Element] | None = None) -> list[str]:
     """Designators of the voltage sources (among ``elements``, default all) above extra-low
     voltage at the document's analysis frequency and phasor basis."""
-    freq, basis = _frequency(doc), doc.analysis.basis
+    freq, basis = doc.frequency(), doc.analysis.basis
     found = []
     for e in doc.parts() if elements is None else elements:
         if not (isinstance(e, PlacedPart) and e.kind == "voltage_source"):

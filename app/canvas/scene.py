@@ -13,11 +13,9 @@ from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QPainter, QPen
 from PySide6.QtWidgets import QGraphicsEllipseItem, QGraphicsItem, QGraphicsScene
 
-from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Change, Document, Element, PlacedPart
 from portcut.engine.schematic.placement import Placement
 from portcut.engine.schematic.symbols import Point
-from portcut.engine.solve.units import parse_frequency
 
 from ..sheet import SheetIndex
 from ..theme import qcolor
@@ -33,13 +31,6 @@ _EMPTY_SHEET = QRectF(-30 * UNIT, -20 * UNIT, 60 * UNIT, 40 * UNIT)
 _TILE = 32
 #: Grid lines closer than this on screen (device pixels) are thinned out.
 _MIN_GRID_PX = 7.0
-
-
-def _frequency(doc: Document) -> float:
-    try:
-        return parse_frequency(doc.analysis.freq)
-    except CircuitError:
-        return 0.0
 
 
 #: Radius (grid units) of the ring that marks where a move would join nets.
@@ -89,7 +80,7 @@ class SchematicScene(QGraphicsScene):
         self.look.placement = Placement.of(doc, self.look.style, self.look.ac)
         self._couplings = {p.id: p.couples for p in doc.parts() if p.kind == "coupling"}
         self.look.coupled = self._coupled()
-        self.look.freq = _frequency(doc)
+        self.look.freq = doc.frequency()
         for element in doc:
             self._add_item(element)
         self._update_dots(self.index.points_of_interest())
@@ -108,7 +99,7 @@ class SchematicScene(QGraphicsScene):
     def _on_change(self, change: Change) -> None:
         self.end_preview()
         if change.analysis:
-            self.look.freq = _frequency(self.doc)
+            self.look.freq = self.doc.frequency()
         recaptioned = self.look.placement.update(
             self.doc, (*change.removed, *change.updated, *change.added))
         touched: set[Point] = set()

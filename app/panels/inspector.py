@@ -161,7 +161,7 @@ class InspectorDock(QDockWidget):
         if shown and change.analysis and shown in doc and isinstance(doc[shown], Block):
             self.show_selection([shown], force=True)  # its values follow the frequency
         if shown == "" and change.title:
-            self.editors["title"].show_element(_Sheet(self.workbench.doc.title))
+            self.editors["title"].show_element(_TitleRecord(self.workbench.doc.title))
         elif shown and (shown in change.updated or shown in change.removed):
             self.show_selection(self.canvas.scene.selected_ids(), force=True)
 
@@ -232,7 +232,7 @@ class InspectorDock(QDockWidget):
             self.details.setText("Select one element to edit it.")
         elif target == "":
             self.heading.setText("Sheet")
-            self._add_editor(_TITLE, _Sheet(doc.title))
+            self._add_editor(_TITLE, _TitleRecord(doc.title))
             self.details.setText(self._sheet_summary())
         else:
             element = doc[target]
@@ -301,8 +301,8 @@ class InspectorDock(QDockWidget):
 
 
 @dataclass(frozen=True)
-class _Sheet:
-    """The sheet, shown as something with a title field."""
+class _TitleRecord:
+    """The document's title, shown in the inspector as an element with a title field."""
 
     title: str
     id: str = ""
@@ -313,8 +313,8 @@ class _TitleEditor(FieldEditor):
         return SetTitle(doc, new[0].title)
 
 
-def _write_title(doc: Document, sheet: _Sheet, text: str) -> list[_Sheet]:
-    return [_Sheet(text.strip())]
+def _write_title(doc: Document, sheet: _TitleRecord, text: str) -> list[_TitleRecord]:
+    return [_TitleRecord(text.strip())]
 
 
 _TITLE = Field("title", "Title", "The sheet's title, shown on exports", _write_title)

@@ -11,17 +11,11 @@ from portcut.engine.schematic import Block, Document
 from portcut.engine.schematic.captions import block_caption, drawn_form
 from portcut.engine.schematic.connectivity import block_equivalent
 from portcut.engine.schematic.reduction import RegionAnalysis, expand_block
+from portcut.engine.solve.names import listing
 
 from ..commands import edit_command
 
 __all__ = ["block_text", "boundary_text", "expand_command"]
-
-
-def _names(names: list[str], most: int = 6) -> str:
-    if not names:
-        return "nothing"
-    shown = ", ".join(names[:most])
-    return shown if len(names) <= most else f"{shown} and {len(names) - most} more"
 
 
 def boundary_text(analysis: RegionAnalysis) -> list[str]:
@@ -38,7 +32,7 @@ def boundary_text(analysis: RegionAnalysis) -> list[str]:
                 sides[part.name not in analysis.part_names].add(
                     part.name.split(".")[0].split(":")[0])
         inside, outside = (sorted(side) for side in sides)
-        lines.append(f"On {net}: {_names(inside)} inside, {_names(outside)} outside")
+        lines.append(f"On {net}: {listing(inside)} inside, {listing(outside)} outside")
     return lines
 
 

@@ -83,7 +83,7 @@ def _points(points: Iterable[tuple[float, float]]) -> str:
     return " ".join(f"{_n(x)},{_n(y)}" for x, y in points)
 
 
-class _Sheet:
+class _SvgTree:
     """The SVG tree being written and the extent (grid units) of what is on it."""
 
     def __init__(self, palette: Palette) -> None:
@@ -164,7 +164,7 @@ def _placement(at: tuple[float, float], rotation: int, mirror: bool) -> str:
     return " ".join(parts)
 
 
-def _draw_symbol(sheet: _Sheet, group: ET.Element, kind: str, at: tuple[int, int], rotation: int,
+def _draw_symbol(sheet: _SvgTree, group: ET.Element, kind: str, at: tuple[int, int], rotation: int,
                  mirror: bool, style: str, *, form: str = "thevenin",
                  texts: dict[str, Sequence[str]], colours: dict[str, str] | None = None) -> None:
     """The symbol's shapes under its placement, then its upright texts and marks."""
@@ -198,7 +198,7 @@ def _element_group(parent: ET.Element, cls: str, element_id: str, tooltip: str) 
     return group
 
 
-def _draw_part(sheet: _Sheet, part: PlacedPart, style: str,
+def _draw_part(sheet: _SvgTree, part: PlacedPart, style: str,
                captions: Iterable[PlacedCaption]) -> None:
     """The part's symbol and its captions where engine.schematic.placement put them."""
     group = _element_group(sheet.layer("parts"), "part", part.id, part.designator)
@@ -208,7 +208,7 @@ def _draw_part(sheet: _Sheet, part: PlacedPart, style: str,
         sheet.text(group, c.lines, c.at, c.align, colour=colour, cls=c.role)
 
 
-def _draw_block(sheet: _Sheet, block: Block, style: str, freq: float) -> None:
+def _draw_block(sheet: _SvgTree, block: Block, style: str, freq: float) -> None:
     palette = sheet.palette
     group = _element_group(sheet.layer("blocks"), "block", block.id, block.designator)
     try:
@@ -223,7 +223,7 @@ def _draw_block(sheet: _Sheet, block: Block, style: str, freq: float) -> None:
                  texts=texts, colours={"frame": palette.accent, "value": colour})
 
 
-def _draw_label(sheet: _Sheet, label: NetLabel, style: str) -> None:
+def _draw_label(sheet: _SvgTree, label: NetLabel, style: str) -> None:
     kind = "ground" if label.style == "ground" else "label"
     name = "ground" if kind == "ground" else label.name
     group = _element_group(sheet.layer("nets"), kind, label.id, name)
@@ -231,7 +231,7 @@ def _draw_label(sheet: _Sheet, label: NetLabel, style: str) -> None:
                  texts={"name": [label.name]})
 
 
-def _draw_region(sheet: _Sheet, region: Region, doc: Document, style: str) -> None:
+def _draw_region(sheet: _SvgTree, region: Region, doc: Document, style: str) -> None:
     outline = list(region.outline) or _outline_around(region, doc, style)
     if len(outline) < 3:
         return
@@ -351,7 +351,7 @@ def document_svg(doc: Document, *, style: str = "iec", title: str | None = None,
     if style not in STYLES:
         raise ValueParseError(f"style: expected one of {', '.join(STYLES)}, got {style!r}")
     freq_hz = parse_frequency(doc.analysis.freq if freq is None else freq)
-    sheet = _Sheet(palette)
+    sheet = _SvgTree(palette)
     background = ET.SubElement(sheet.root, "rect", {"class": "paper", "fill": palette.paper})
     ET.SubElement(sheet.root, "title").text = title if title is not None else doc.title
     if show_regions:
@@ -387,7 +387,7 @@ def document_svg(doc: Document, *, style: str = "iec", title: str | None = None,
     return '<?xml version="1.0" encoding="UTF-8"?>\n' + _NOT_XML.sub("\ufffd", text) + "\n"
 
 
-def _heading(sheet: _Sheet, title: str, doc: Document, freq: float) -> None:
+def _heading(sheet: _SvgTree, title: str, doc: Document, freq: float) -> None:
     """The title above the drawing, left-aligned with it, and where blocks are shown a line
     with the frequency and basis their values hold at."""
     x0, y0 = _union(sheet.extent)[:2] if sheet.extent else (0.0, 0.0)
@@ -407,7 +407,7 @@ def _union(boxes: list[Bounds]) -> Bounds:
             max(b[2] for b in boxes), max(b[3] for b in boxes))
 
 
-def _frame(sheet: _Sheet, background: ET.Element) -> None:
+def _frame(sheet: _SvgTree, background: ET.Element) -> None:
     """Size the viewBox to everything drawn, with a margin, and the paper to the viewBox."""
     x0, y0, x1, y1 = _union(sheet.extent)
     x0, y0, x1, y1 = x0 - MARGIN, y0 - MARGIN, x1 + MARGIN, y1 + MARGIN

@@ -14,6 +14,7 @@ from typing import Protocol
 
 from ..errors import CircuitError
 from ..solve.devices import DEVICE_KINDS, PARAMETERS, SYMBOLS, derived, make
+from ..solve.kinds import CONTROLLED_BY_CURRENT, SOURCES
 from ..solve.mna import describe_freq
 from ..solve.tolerance import parse_tolerance
 from ..solve.units import format_complex, format_phasor, parse_value
@@ -72,12 +73,12 @@ def value_caption(part: PlacedPart, *, ac: bool = False) -> str:
         named = f" ({', '.join(part.couples)})" if part.couples else ""
         return f"k = {value:.4g}{named}{_tolerance_suffix(part)}"
     unit = UNITS[part.kind]
-    if part.kind in ("voltage_source", "current_source") and (ac or phase is not None):
+    if part.kind in SOURCES and (ac or phase is not None):
         phasor = value if phase is None else cmath.rect(value, math.radians(phase))
         text = format_phasor(phasor, unit)
     else:
         text = format_complex(value, unit)
-    if part.kind in ("ccvs", "cccs") and part.control:
+    if part.kind in CONTROLLED_BY_CURRENT and part.control:
         text = f"{text} × current in {part.control}"
     return text + _tolerance_suffix(part)
 

@@ -15,7 +15,9 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field, fields, replace
 from typing import TypeVar
 
-from ..errors import DocumentError
+from ..errors import CircuitError, DocumentError
+from ..solve.kinds import TABLE as KIND_TABLE
+from ..solve.units import parse_frequency
 from .model import (
     ANALYSIS_FORMS,
     ROTATIONS,
@@ -33,13 +35,8 @@ from .text import text_problem
 
 __all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
 
-#: Reference designator prefix per part kind (DS for the four dependent sources).
-DESIGNATOR_PREFIX: dict[str, str] = {
-    "resistor": "R", "capacitor": "C", "inductor": "L", "impedance": "Z",
-    "voltage_source": "V", "current_source": "I", "vcvs": "DS", "vccs": "DS", "ccvs": "DS",
-    "cccs": "DS", "opamp": "U", "coupling": "CP", "block": "EQ", "bjt": "Q", "mosfet": "Q",
-    "opamp_finite": "U", "measured_source": "MS",
-}
+#: Reference designator prefix per part kind (engine.solve.kinds), and EQ for a collapsed block.
+DESIGNATOR_PREFIX: dict[str, str] = {**{k.name: k.prefix for k in KIND_TABLE}, "block": "EQ"}
 T = TypeVar("T")
 _ID_PREFIX = {PlacedPart: "p", Wire: "w", Junction: "j", NetLabel: "n", Region: "r", Block: "b"}
 
@@ -99,6 +96,14 @@ class Document:
     @property
     def analysis(self) -> Analysis:
         return self._analysis
+
+    def frequency(self) -> float:
+        """The analysis frequency in hertz; 0 (DC) while the field does not read as a
+        frequency (the field's own check says why)."""
+        try:
+            return parse_frequency(self._analysis.freq)
+        except CircuitError:
+            return 0.0
 
     def __iter__(self) -> Iterator[Element]:
         return iter(self._elements.values())

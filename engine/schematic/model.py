@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from ..solve.kinds import PART_KINDS
 from .symbols import Point
 
 __all__ = [
@@ -26,12 +27,8 @@ __all__ = [
     "port_problem",
 ]
 
-#: Kinds a PlacedPart may have (engine.solve.circuit.KINDS); ground and net names are NetLabels.
-PART_KINDS: tuple[str, ...] = (
-    "resistor", "capacitor", "inductor", "impedance", "voltage_source", "current_source",
-    "vcvs", "vccs", "ccvs", "cccs", "opamp", "coupling", "bjt", "mosfet", "opamp_finite",
-    "measured_source",
-)
+# PART_KINDS: the kinds a PlacedPart may have (engine.solve.kinds); ground and net names are
+# NetLabels.
 ANALYSIS_FORMS = ("thevenin", "norton")
 #: The captions of a part that are placed automatically and may be dragged.
 CAPTION_ROLES = ("designator", "value")

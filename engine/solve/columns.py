@@ -10,12 +10,11 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .part import KINDS, REFERRING, Part
+from .kinds import KIND_CODE, KINDS, REFERRING
+from .part import Part
 
 __all__ = ["KIND_CODE", "NET_COLUMNS", "Columns", "References", "kind_mask"]
 
-#: Each kind's code in :class:`Columns` (its position in KINDS).
-KIND_CODE = {kind: code for code, kind in enumerate(KINDS)}
 #: Columns of net ids per part: enough for the widest kind (an op-amp with its ground return).
 NET_COLUMNS = 4
 _PAD = [[-1] * (NET_COLUMNS - used) for used in range(NET_COLUMNS + 1)]

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 from ..errors import CircuitError
 from . import measured
+from .kinds import DEVICE_KINDS
 from .units import parse_value
 
 __all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "FORMS", "PARAMETERS", "SYMBOLS",
@@ -40,13 +41,6 @@ __all__ = ["BOLTZMANN", "DEVICE_KINDS", "ELEMENTARY_CHARGE", "FORMS", "PARAMETER
 BOLTZMANN = 1.380649e-23
 ELEMENTARY_CHARGE = 1.602176634e-19
 
-#: Each device kind with the roles of its nets.
-DEVICE_KINDS: dict[str, tuple[str, ...]] = {
-    "bjt": ("b", "c", "e"),
-    "mosfet": ("g", "d", "s"),
-    "opamp_finite": ("inp", "inn", "out"),
-    "measured_source": ("p", "n"),
-}
 
 #: Parameters each kind accepts: (name, what it is, unit) — for messages and entry forms.
 PARAMETERS: dict[str, tuple[tuple[str, str, str], ...]] = {

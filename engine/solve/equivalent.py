@@ -1,7 +1,7 @@
 """Thevenin and Norton equivalents of a two-terminal region: one frequency, sweeps, collapse, and
 the check that a collapsed circuit behaves as the original.
 
-Conventions (shared/design.md, engine/solve/circuit.py): ``voc = V(plus) - V(minus)`` with the port
+Conventions (docs/method.md, engine/solve/circuit.py): ``voc = V(plus) - V(minus)`` with the port
 open; ``isc`` flows out of plus, through an outside short, into minus; ``z`` is the voltage across
 the port for 1 A driven into plus with the independent sources zeroed (dependent sources kept),
 so ``voc = z * isc`` whenever both forms exist. ``z`` is 0 where there is no Norton form and
@@ -24,6 +24,7 @@ from ..errors import CircuitError, SingularCircuitError
 from . import mna, topology
 from .circuit import GROUND, Circuit, Part
 from .mna import describe_freq
+from .names import unused_name as _unused
 from .units import (
     UNDEFINED,
     denoised,
@@ -754,14 +755,6 @@ def _ratio(deviation: float, scale: float) -> float:
     if deviation == 0:
         return 0.0
     return deviation / scale if scale > 0 else math.inf
-
-
-def _unused(base: str, taken: set[str]) -> str:
-    name = base
-    while name in taken:
-        name += "'"
-    taken.add(name)
-    return name
 
 
 @dataclass(frozen=True, slots=True)

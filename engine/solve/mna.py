@@ -40,7 +40,10 @@ from scipy.sparse.csgraph import maximum_bipartite_matching
 from scipy.sparse.linalg import splu
 
 from ..errors import CircuitError, SingularCircuitError
+from . import memo_keys
 from .circuit import KIND_CODE, KINDS, NET_COLUMNS, REFERRING, Columns, Part, kind_mask
+from .kinds import CONTROLLED_BY_CURRENT as _CONTROLLED
+from .kinds import SOURCES as _SOURCES
 from .units import format_eng
 
 __all__ = [
@@ -54,8 +57,6 @@ EPS = float(np.finfo(float).eps)
 #: on an RC mesh; see docs/performance.md).
 ORDERING = "MMD_AT_PLUS_A"
 
-_CONTROLLED = ("ccvs", "cccs")
-_SOURCES = ("voltage_source", "current_source")
 #: Group-2 parts (a branch-current unknown) always; any other part whose current controls a
 #: CCVS or CCCS, and a 0 Ω resistor, is one too.
 _ALWAYS_BRANCH = ("voltage_source", "vcvs", "ccvs", "inductor", "opamp")
@@ -125,7 +126,7 @@ class Netlist:
     only, and outlive a value edit (:meth:`with_values`).
     """
 
-    STRUCTURAL = frozenset({"carrying", "controlling", "islands"})
+    STRUCTURAL = memo_keys.STRUCTURAL
 
     __slots__ = ("_nets", "codes", "columns", "groups", "index", "memo", "net_ids",
                  "part_rows", "rows", "table")
@@ -192,9 +193,9 @@ class Netlist:
     def controlling(self, kind: str | None = None) -> np.ndarray:
         """Per part of ``kind`` (None: every part, in the netlist's order): True where its
         current controls a CCVS or CCCS."""
-        flags = self.memo.get("controlling")
+        flags = self.memo.get(memo_keys.CONTROLLING)
         if flags is None:
-            flags = self.memo["controlling"] = np.zeros(len(self.columns), dtype=bool)
+            flags = self.memo[memo_keys.CONTROLLING] = np.zeros(len(self.columns), dtype=bool)
             for controlled in _CONTROLLED:
                 named = self.referred(controlled)[:, 0]
                 flags[named[named >= 0]] = True

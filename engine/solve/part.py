@@ -10,6 +10,9 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from ..errors import CircuitError
+from .kinds import CONTROLLED_BY_CURRENT as _CURRENT_CONTROLLED
+from .kinds import KINDS, REFERRING
+from .kinds import SOURCES as _SOURCES
 from .units import VALUE_UNITS, parse_value
 
 if TYPE_CHECKING:
@@ -19,25 +22,6 @@ __all__ = ["GROUND", "KINDS", "REFERRING", "Part"]
 
 GROUND = "gnd"
 
-#: Every part kind, with the roles of its nodes.
-KINDS: dict[str, tuple[str, ...]] = {
-    "resistor": ("a", "b"),
-    "capacitor": ("a", "b"),
-    "inductor": ("a", "b"),
-    "impedance": ("a", "b"),
-    "voltage_source": ("p", "n"),
-    "current_source": ("from", "to"),
-    "vcvs": ("p", "n", "cp", "cn"),
-    "vccs": ("from", "to", "cp", "cn"),
-    "ccvs": ("p", "n"),
-    "cccs": ("from", "to"),
-    "opamp": ("inp", "inn", "out"),
-    "coupling": (),
-}
-_CURRENT_CONTROLLED = frozenset({"ccvs", "cccs"})
-#: Kinds whose parts name other parts (``Part.refs``).
-REFERRING = ("ccvs", "cccs", "coupling")
-_SOURCES = frozenset({"voltage_source", "current_source"})
 
 
 @dataclass(frozen=True, slots=True)

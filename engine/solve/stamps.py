@@ -18,12 +18,10 @@ import numpy as np
 
 from . import mna
 from .circuit import Part, kind_mask
+from .kinds import VALUED as PARAMETER_KINDS  # kinds with a value the port depends on
 
 __all__ = ["PARAMETER_KINDS", "ValueStamps", "value_stamps"]
 
-#: Kinds with a value the port quantities depend on (an ideal op-amp has none).
-PARAMETER_KINDS = ("resistor", "capacitor", "inductor", "impedance", "voltage_source",
-                   "current_source", "vcvs", "vccs", "ccvs", "cccs", "coupling")
 _LINEAR, _INVERSE = 0, 1
 
 

@@ -15,8 +15,9 @@ parts or nets at fault:
   the port and that meets the rest at a single net (a transformer's primary, grounded outside)
   exchanges no current there, so that net is not a terminal.
 
-Existence rules at the analysis frequency (:func:`islands`, :func:`check_voltage_loops`): see
-docs/method.md.
+Existence rules at the analysis frequency (:func:`islands`, :func:`check_voltage_loops`) live in
+engine/solve/islands.py and are re-exported here; the branch tables both use, in
+engine/solve/branches.py.
 """
 
 from __future__ import annotations
@@ -27,81 +28,20 @@ from itertools import chain
 
 import networkx as nx
 import numpy as np
-import scipy.sparse as sp
-from scipy.sparse.csgraph import connected_components
 
-from ..errors import CircuitError, CutError, SingularCircuitError
+from ..errors import CircuitError, CutError
+from . import memo_keys
+from .branches import CARRYING_COLUMNS, CARRYING_EDGES, SENSED_COLUMNS, components, pairs
 from .circuit import GROUND, KIND_CODE, KINDS, NET_COLUMNS, Circuit, Columns, Part, kind_mask
+from .islands import SHORT, Islands, check_voltage_loops, islands
+from .kinds import CONTROLLED_BY_CURRENT, SENSING
 from .mna import Netlist
+from .names import listing, plural
 
-__all__ = ["Cut", "Islands", "check_cut", "check_voltage_loops", "circuit_graph", "cut",
-           "forget_netlists", "islands", "netlist_of"]
+__all__ = ["NETLISTS", "SHORT", "Cut", "Islands", "NetlistCache", "check_cut",
+           "check_voltage_loops", "circuit_graph", "cut", "forget_netlists", "islands",
+           "netlist_of"]
 
-_SENSING = ("vcvs", "vccs", "opamp")
-_CONTROLLED = ("ccvs", "cccs")
-#: (kind, node columns) of the branches that can carry current, at any frequency.
-_CARRYING = (("resistor", (0, 1)), ("capacitor", (0, 1)), ("inductor", (0, 1)),
-             ("impedance", (0, 1)), ("voltage_source", (0, 1)), ("current_source", (0, 1)),
-             ("ccvs", (0, 1)), ("cccs", (0, 1)), ("vcvs", (0, 1)), ("vccs", (0, 1)),
-             ("opamp", (2, 3)))
-_SENSES = (("vcvs", (2, 3)), ("vccs", (2, 3)), ("opamp", (0, 1)))
-_CURRENT_TYPE = (("current_source", (0, 1)), ("vccs", (0, 1)), ("cccs", (0, 1)))
-
-
-def _column_table(spec: Iterable[tuple[str, tuple[int, ...]]]) -> np.ndarray:
-    """``spec`` as a boolean per kind code and node column (for ``Netlist.marked``)."""
-    table = np.zeros((len(KINDS), NET_COLUMNS), dtype=bool)
-    for kind, cols in spec:
-        table[KIND_CODE[kind], list(cols)] = True
-    return table
-
-
-@dataclass(frozen=True, slots=True, eq=False)
-class _Edges:
-    """Branches as graph edges, per kind code: whether the kind has one (``used``) and the two
-    node columns it joins (``first``, ``second``)."""
-
-    used: np.ndarray
-    first: np.ndarray
-    second: np.ndarray
-
-    @classmethod
-    def of(cls, spec: Iterable[tuple[str, tuple[int, int]]]) -> _Edges:
-        used = np.zeros(len(KINDS), dtype=bool)
-        first, second = np.zeros(len(KINDS), dtype=np.intp), np.zeros(len(KINDS), dtype=np.intp)
-        for kind, (i, j) in spec:
-            code = KIND_CODE[kind]
-            used[code], first[code], second[code] = True, i, j
-        return cls(used, first, second)
-
-
-_CARRYING_COLUMNS = _column_table(_CARRYING)
-_SENSED_COLUMNS = _column_table(_SENSES)
-_CARRYING_EDGES, _SENSE_EDGES = _Edges.of(_CARRYING), _Edges.of(_SENSES)
-_CURRENT_EDGES = _Edges.of(_CURRENT_TYPE)
-#: Conducting branches at any frequency but DC, and at DC (capacitors open).
-_CONDUCTING = (("resistor", (0, 1)), ("inductor", (0, 1)), ("impedance", (0, 1)),
-               ("voltage_source", (0, 1)), ("ccvs", (0, 1)), ("vcvs", (0, 1)), ("opamp", (2, 3)))
-_CONDUCTING_EDGES = {False: _Edges.of((*_CONDUCTING, ("capacitor", (0, 1)))),
-                     True: _Edges.of(_CONDUCTING)}
-#: Branches that fix a voltage but not their current (inductors: at DC only).
-_VOLTAGE_DEFINED = (("voltage_source", (0, 1)), ("vcvs", (0, 1)), ("ccvs", (0, 1)),
-                    ("opamp", (2, 3)), ("resistor", (0, 1)))
-_VOLTAGE_EDGES = {False: _Edges.of(_VOLTAGE_DEFINED),
-                  True: _Edges.of((*_VOLTAGE_DEFINED, ("inductor", (0, 1))))}
-#: Per kind code: its place in a loop's message (sources first).
-_LOOP_RANK = {KIND_CODE[kind]: i for i, (kind, _) in
-              enumerate((*_VOLTAGE_DEFINED, ("inductor", (0, 1))))}
-SHORT = "the port short"
-
-
-def _listing(items: Sequence[str], limit: int = 6) -> str:
-    shown = ", ".join(items[:limit])
-    return shown if len(items) <= limit else f"{shown} and {len(items) - limit} more"
-
-
-def _plural(count: int, one: str, many: str) -> str:
-    return one if count == 1 else many
 
 
 # -- the cut ------------------------------------------------------------------------------------
@@ -187,10 +127,10 @@ def cut(circuit: Circuit, region: Collection[str], port: Sequence[str] | None = 
         extra = sorted(terminals - {plus, minus})
         if extra:
             raise CutError(
-                f"the region meets the rest of the circuit at {_plural(len(extra), 'net', 'nets')}"
-                f" {_listing(extra)} besides its port ({plus}, {minus}); a two-terminal cut meets "
+                f"the region meets the rest of the circuit at {plural(len(extra), 'net', 'nets')}"
+                f" {listing(extra)} besides its port ({plus}, {minus}); a two-terminal cut meets "
                 "the rest only at its port — move the parts on "
-                f"{_plural(len(extra), 'that net', 'those nets')} into or out of the region",
+                f"{plural(len(extra), 'that net', 'those nets')} into or out of the region",
                 nets=extra)
     return Cut((plus, minus), netlist)
 
@@ -200,9 +140,9 @@ def _region_rows(circuit: Circuit, names: set[str]) -> np.ndarray | None:
     rows = circuit.rows_of(names)
     if len(names) != (len(circuit) if rows is None else rows.size):
         unknown = sorted(map(str, names.difference(circuit.names)))
-        raise CutError(f"the region names {_plural(len(unknown), 'a part', 'parts')} that "
-                       f"{_plural(len(unknown), 'is', 'are')} not in the circuit: "
-                       f"{_listing(unknown)}", parts=unknown)
+        raise CutError(f"the region names {plural(len(unknown), 'a part', 'parts')} that "
+                       f"{plural(len(unknown), 'is', 'are')} not in the circuit: "
+                       f"{listing(unknown)}", parts=unknown)
     return rows
 
 
@@ -214,49 +154,60 @@ def _complement(rows: np.ndarray | None, size: int) -> np.ndarray:
     return (~keep).nonzero()[0]
 
 
-#: The netlists of the last few regions, each tied to the columns it was built from.
-_RECENT: list[Netlist] = []
-_KEEP = 3
+class NetlistCache:
+    """The netlists of the last ``keep`` regions, each tied to the columns it was built from,
+    most recently used first. The one instance is :data:`NETLISTS`."""
+
+    def __init__(self, keep: int) -> None:
+        self.keep = keep
+        self._recent: list[Netlist] = []
+
+    def of(self, columns: Columns, rows: np.ndarray | None = None) -> Netlist:
+        """The :class:`Netlist` of the parts at ``rows`` of ``columns`` (None: all), reused
+        while they are the same parts.
+
+        A circuit's columns change only by adding parts, which makes new columns, so a netlist
+        kept for the same columns cannot go stale. Where the parts differ from a kept netlist's
+        only in value (a value edit through ``Circuit.replaced``), its nets and node arrays are
+        reused and only the values read again (:meth:`Netlist.with_values`).
+        """
+        recent = self._recent
+        for i, kept in enumerate(recent):
+            found = kept.with_values(columns, rows)
+            if found is kept:
+                recent.insert(0, recent.pop(i))
+                return kept
+            if found is not None:
+                return self._kept(found)
+        return self._kept(Netlist.of(columns, rows))
+
+    def forget(self, keep: int = 0) -> None:
+        """Drop all but the first ``keep`` kept netlists. What their memos hold (systems,
+        matrices) refers back to them; clearing the memos frees that memory at once instead of
+        at the next cyclic garbage collection, which a first analysis would otherwise pay for
+        in fresh pages."""
+        for netlist in self._recent[keep:]:
+            netlist.memo.clear()
+        del self._recent[keep:]
+
+    def _kept(self, netlist: Netlist) -> Netlist:
+        self._recent.insert(0, netlist)
+        self.forget(self.keep)
+        return netlist
+
+
+#: The netlists every analysis shares (a live view analyses the same region again and again).
+NETLISTS = NetlistCache(keep=3)
 
 
 def netlist_of(columns: Columns, rows: np.ndarray | None = None) -> Netlist:
-    """The :class:`Netlist` of the parts at ``rows`` of ``columns`` (None: all), reused while
-    they are the same parts.
-
-    A circuit's columns change only by adding parts, which makes new columns, so a netlist
-    kept for the same columns cannot go stale. Where the parts differ from a kept netlist's only
-    in value (a value edit through ``Circuit.replaced``), its nets and node arrays are reused and
-    only the values read again (:meth:`Netlist.with_values`).
-    """
-    for i, kept in enumerate(_RECENT):
-        found = kept.with_values(columns, rows)
-        if found is kept:
-            _RECENT.insert(0, _RECENT.pop(i))
-            return kept
-        if found is not None:
-            return _keep(found)
-    return _keep(Netlist.of(columns, rows))
-
-
-def _keep(netlist: Netlist) -> Netlist:
-    _RECENT.insert(0, netlist)
-    _drop(_KEEP)
-    return netlist
-
-
-def _drop(keep: int) -> None:
-    """Drop all but the first ``keep`` kept netlists. What their memos hold (systems,
-    matrices) refers back to them; clearing the memos frees that memory at once instead of at
-    the next cyclic garbage collection, which a first analysis would otherwise pay for in
-    fresh pages."""
-    for netlist in _RECENT[keep:]:
-        netlist.memo.clear()
-    del _RECENT[keep:]
+    """:meth:`NetlistCache.of` on :data:`NETLISTS`."""
+    return NETLISTS.of(columns, rows)
 
 
 def forget_netlists() -> None:
     """Drop the kept netlists (benchmarks use it to time a first analysis)."""
-    _drop(0)
+    NETLISTS.forget()
 
 
 def _region_names(region: Collection[str]) -> set[str]:
@@ -301,7 +252,7 @@ def _coupling_sides(columns: Columns, names: set[str]) -> set[str]:
 
 def _check_controls(circuit: Circuit, columns: Columns, names: set[str]) -> None:
     """A CCVS/CCCS and its controlling part lie on the same side, and the part exists."""
-    controlled = _referring(columns, *_CONTROLLED)
+    controlled = _referring(columns, *CONTROLLED_BY_CURRENT)
     for p in _inside_first(controlled, names):
         control, inside = p.refs[0], p.name in names
         if control not in circuit:
@@ -348,13 +299,13 @@ class _Sides:
         carrying = _carrying(netlist)
         self.boundary = {netlist.nets[i] for i in (carrying & self.outer).nonzero()[0]}
         self._check_sensing_inside(carrying)
-        sensing = outside[kind_mask(_SENSING)[kinds]]
+        sensing = outside[kind_mask(SENSING)[kinds]]
         self._check_sensing_outside(carrying, [columns.parts[i] for i in sensing.tolist()])
 
     def _check_sensing_inside(self, carrying: np.ndarray) -> None:
         netlist = self.netlist
         table = netlist.table
-        across = _SENSED_COLUMNS.take(netlist.codes, axis=0) & ~carrying[table] & \
+        across = SENSED_COLUMNS.take(netlist.codes, axis=0) & ~carrying[table] & \
             self.outer[table]
         if across.any():  # the first in kind, part and column order
             i, col = np.unravel_index(int(np.argmax(across)), across.shape)
@@ -387,8 +338,8 @@ class _Sides:
         net) meets the rest at a single net; KCL for the piece forbids any current there.
         """
         netlist = self.netlist
-        a, b, _ = _pairs(netlist, _CARRYING_EDGES)
-        labels = _components(netlist.net_count, a, b)
+        a, b, _ = pairs(netlist, CARRYING_EDGES)
+        labels = components(netlist.net_count, a, b)
         pieces: dict[int, set[str]] = {}
         for net in chain(self.boundary, port):
             pieces.setdefault(int(labels[netlist.index[net]]), set()).add(net)
@@ -398,9 +349,9 @@ class _Sides:
 
 def _carrying(netlist: Netlist) -> np.ndarray:
     """Per net: a part of the netlist can carry current there (kept in its memo)."""
-    found = netlist.memo.get("carrying")
+    found = netlist.memo.get(memo_keys.CARRYING)
     if found is None:
-        found = netlist.memo["carrying"] = netlist.marked(_CARRYING_COLUMNS)
+        found = netlist.memo[memo_keys.CARRYING] = netlist.marked(CARRYING_COLUMNS)
     return found
 
 
@@ -417,18 +368,18 @@ def _given_port(port: Sequence[str], netlist: Netlist) -> tuple[str, str]:
     for net in (plus, minus):
         if net not in netlist.index:
             raise CutError(f"port net {net!r} is not a net of any part in the region; the "
-                           f"region's nets are {_listing(sorted(netlist.nets))}")
+                           f"region's nets are {listing(sorted(netlist.nets))}")
     return plus, minus
 
 
 def _port_from(terminals: set[str]) -> tuple[str, str]:
     if len(terminals) != 2:
         count = len(terminals)
-        where = f": {_listing(sorted(terminals))}" if terminals else ""
+        where = f": {listing(sorted(terminals))}" if terminals else ""
         hint = ("give the port, or move the parts on one of them into or out of the region"
                 if count > 2 else "give the port (plus, minus) explicitly")
         raise CutError(f"the region meets the rest of the circuit at {count} "
-                       f"{_plural(count, 'net', 'nets')}{where} — a two-terminal cut needs "
+                       f"{plural(count, 'net', 'nets')}{where} — a two-terminal cut needs "
                        f"exactly 2; {hint}", nets=sorted(terminals))
     if GROUND in terminals:
         (plus,) = terminals - {GROUND}
@@ -438,248 +389,6 @@ def _port_from(terminals: set[str]) -> tuple[str, str]:
 
 
 # -- connectivity on index arrays ---------------------------------------------------------------
-def _pairs(netlist: Netlist, edges: _Edges, keep: np.ndarray | None = None
-           ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The ends (net ids) of the netlist's branches of the kinds in ``edges`` (and, where given,
-    ``keep`` per part), and which parts they are (positions in the netlist's part order)."""
-    codes = netlist.codes
-    chosen = edges.used.take(codes)
-    if keep is not None:
-        chosen &= keep
-    parts = chosen.nonzero()[0]
-    kinds = codes.take(parts)
-    table = netlist.table
-    return table[parts, edges.first.take(kinds)], table[parts, edges.second.take(kinds)], parts
-
-
-#: Up to this many edges a union-find in Python beats building a SciPy sparse graph (whose
-#: construction costs some 0.2 ms); measured, see docs/performance.md.
-_SMALL_GRAPH = 800
-
-
-def _components(n: int, a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Connected-component label (0, 1, ...) of each of n vertices joined by edges (a[i], b[i])."""
-    if n == 0:
-        return np.zeros(0, dtype=np.intp)
-    if a.size > _SMALL_GRAPH:
-        # SciPy's own index and value types: connected_components copies anything else
-        ends = (a.astype(np.int32, copy=False), b.astype(np.int32, copy=False))
-        graph = sp.csr_matrix((np.ones(a.size), ends), shape=(n, n))
-        return connected_components(graph, directed=False)[1]
-    parent = list(range(n))
-    for u, v in zip(a.tolist(), b.tolist(), strict=True):
-        while parent[u] != u:  # find, halving the path
-            parent[u] = u = parent[parent[u]]
-        while parent[v] != v:
-            parent[v] = v = parent[parent[v]]
-        if u < v:
-            parent[v] = u
-        elif v < u:
-            parent[u] = v
-    # A parent is never above its child, so in increasing order each vertex's parent is
-    # labelled before it; a root (its component's lowest vertex) opens the next label.
-    labels = [0] * n
-    count = 0
-    for x, up in enumerate(parent):
-        if up == x:
-            labels[x], count = count, count + 1
-        else:
-            labels[x] = labels[up]
-    return np.array(labels, dtype=np.intp)
-
-
-class Islands:
-    """The galvanically separate islands of a netlist at one frequency class (DC or not).
-
-    ``labels[net_id]`` is the island of each net; the island holding the first of the given
-    references is the reference island. Every other island is classified:
-
-    * nothing but magnetic coupling links it (no current source crosses to it, nothing senses a
-      voltage between it and another island): it gets its own reference net (``pinned``);
-    * a controlled current source crosses to it and a controlled source senses its potential:
-      the equations fix that potential, so it is solved without a reference (``solved``);
-    * anything else makes the equations singular: :meth:`problem` words why.
-    """
-
-    def __init__(self, netlist: Netlist, dc: bool, references: Sequence[str],
-                 short: tuple[int, int] | None = None) -> None:
-        self.netlist, self.dc = netlist, dc
-        n = netlist.net_count
-        a, b, _ = _pairs(netlist, _CONDUCTING_EDGES[dc])
-        if short is not None:
-            a, b = np.append(a, short[0]), np.append(b, short[1])
-        self.labels = labels = _components(n, a, b)
-        ref_net = next((netlist.index[r] for r in references if r in netlist.index), 0)
-        self.reference = int(labels[ref_net]) if n else 0
-        count = int(labels.max()) + 1 if n else 0
-        self.solved: set[int] = set()
-        self._problems: dict[int, str] = {}
-        if count <= 1:
-            self.pinned = np.array([ref_net] if n else [], dtype=np.intp)
-            return
-        ca, cb, current = _pairs(netlist, _CURRENT_EDGES)
-        controlled = netlist.codes.take(current) != KIND_CODE["current_source"]
-        sa, sb, _ = _pairs(netlist, _SENSE_EDGES)
-        self._crossing = labels[ca] != labels[cb]
-        self._sensing = labels[sa] != labels[sb]
-        crossed = self._touches(labels[ca], labels[cb], self._crossing, count)
-        crossed_by_control = self._touches(labels[ca], labels[cb], self._crossing & controlled,
-                                           count)
-        sensed = self._touches(labels[sa], labels[sb], self._sensing, count)
-        own = ~crossed & ~sensed
-        solved = crossed_by_control & sensed
-        own[self.reference] = solved[self.reference] = False
-        self.solved = set(np.flatnonzero(solved).tolist())
-        for label in np.flatnonzero(~own & ~solved).tolist():
-            if label != self.reference:
-                self._problems[label] = ""
-        first_net = np.unique(labels, return_index=True)[1]
-        chosen = {self.reference: ref_net}
-        for r in references:
-            net = netlist.index.get(r)
-            if net is not None and own[labels[net]] and labels[net] not in chosen:
-                chosen[int(labels[net])] = net
-        for label in np.flatnonzero(own).tolist():
-            chosen.setdefault(label, int(first_net[label]))
-        self.pinned = np.array(sorted(chosen.values()), dtype=np.intp)
-
-    @staticmethod
-    def _touches(la: np.ndarray, lb: np.ndarray, mask: np.ndarray, count: int) -> np.ndarray:
-        return (np.bincount(la[mask], minlength=count)
-                + np.bincount(lb[mask], minlength=count)) > 0
-
-    def island(self, net: str) -> int:
-        return int(self.labels[self.netlist.index[net]])
-
-    def joined(self, net: str) -> bool:
-        """True when the equations fix ``net``'s potential relative to the reference."""
-        label = self.island(net)
-        return label == self.reference or label in self.solved
-
-    def problem(self, label: int) -> str | None:
-        """Why island ``label`` makes the equations singular, or None if it does not."""
-        if label not in self._problems:
-            return None
-        if not self._problems[label]:
-            self._problems[label] = self._word(label)
-        return self._problems[label]
-
-    def raise_problems(self, skip: int | None = None) -> None:
-        """Raise SingularCircuitError for the islands with a problem (but ``skip``)."""
-        found = [self.problem(label) for label in sorted(self._problems) if label != skip]
-        if found:
-            raise SingularCircuitError("; ".join(m for m in found[:3] if m))
-
-    def _word(self, label: int) -> str:
-        netlist, labels = self.netlist, self.labels
-        members = np.flatnonzero(labels == label)
-        nets = _listing([netlist.nets[i] for i in members], 5)
-        ca, cb, current = _pairs(netlist, _CURRENT_EDGES)
-        current_names = netlist.part_names(current)
-        on_edge = self._crossing & ((labels[ca] == label) | (labels[cb] == label))
-        sources = [current_names[i] for i in np.flatnonzero(on_edge)]
-        dc_note = ""
-        if self.dc:
-            caps = netlist["capacitor"]
-            here = np.isin(caps.nodes, members).any(axis=1) if len(caps) else np.zeros(0, bool)
-            if here.any():
-                dc_note = (" (capacitors are open at DC: "
-                           f"{_listing([caps.names[i] for i in np.flatnonzero(here)], 4)})")
-        if sources:
-            return (f"{_plural(len(members), 'net', 'nets')} {nets} "
-                    f"{_plural(len(members), 'connects', 'connect')} to the rest only through "
-                    f"the current {_plural(len(sources), 'source', 'sources')} "
-                    f"{_listing(sources, 4)}{dc_note}: that current has no return path, so the "
-                    "circuit has no solution; add a conducting path (e.g. a resistor) from there "
-                    "to the rest")
-        sa, sb, sensing = _pairs(netlist, _SENSE_EDGES)
-        sense_names = netlist.part_names(sensing)
-        on_edge = self._sensing & ((labels[sa] == label) | (labels[sb] == label))
-        i = int(np.flatnonzero(on_edge)[0])
-        return (f"{sense_names[i]} senses the voltage between nets {netlist.nets[sa[i]]} and "
-                f"{netlist.nets[sb[i]]}, which no conducting path joins{dc_note}, so that "
-                "voltage is undefined; join the two sides (e.g. through a resistor) or sense "
-                "within one side")
-
-
-def islands(netlist: Netlist, dc: bool, references: Sequence[str],
-            short: tuple[int, int] | None = None) -> Islands:
-    """The :class:`Islands` of ``netlist`` (``short``: net ids of a port short to include),
-    kept in its memo: they depend on which parts conduct where, not on their values."""
-    key = ("islands", dc, tuple(references), short)
-    found = netlist.memo.get(key)
-    if found is None:
-        found = netlist.memo[key] = Islands(netlist, dc, references, short)
-    return found
-
-
-# -- loops of voltage-defined branches ----------------------------------------------------------
-def check_voltage_loops(netlist: Netlist, dc: bool, short: tuple[int, int] | None = None
-                        ) -> None:
-    """Refuse a loop of branches that fix a voltage but not their current.
-
-    Voltage sources, VCVS and CCVS outputs, 0 Ω wires, op-amp outputs and (at DC) inductors:
-    around such a loop the current is undetermined and the voltages may contradict. Branches
-    whose current controls a CCVS/CCCS are left out (their current enters another equation).
-    Raises SingularCircuitError naming the loop's parts.
-    """
-    a, b, parts = _pairs(netlist, _VOLTAGE_EDGES[dc], _free_current(netlist))
-    if short is not None:
-        a, b = np.append(a, short[0]), np.append(b, short[1])
-    if not _has_loop(a, b):
-        return
-    names = netlist.part_names(parts)
-    if short is not None:
-        names.append(SHORT)
-    # sources before wires and inductors, so that the message names the loop's sources first
-    rank = [_LOOP_RANK[code] for code in netlist.codes.take(parts).tolist()] + [len(_LOOP_RANK)]
-    ends = list(zip(a.tolist(), b.tolist(), strict=True))
-    graph = nx.MultiGraph()
-    graph.add_edges_from((*ends[i], names[i]) for i in sorted(range(len(names)),
-                                                              key=rank.__getitem__))
-    loop = [key for _u, _v, key in nx.find_cycle(graph)]
-    notes = " (inductors are shorts at DC)" if dc and any(
-        n in netlist["inductor"].names for n in loop) else ""
-    raise SingularCircuitError(
-        f"{_listing(loop)} form a loop of voltage-defined branches{notes}: the current around "
-        "it is undetermined and its voltages may contradict; break the loop (e.g. add a series "
-        "resistance)")
-
-
-def _has_loop(a: np.ndarray, b: np.ndarray) -> bool:
-    """Whether the edges (a[i], b[i]) close a loop (a self-loop or a parallel pair counts)."""
-    if a.size > _SMALL_GRAPH:  # a forest has as many edges as vertices less components
-        used, local = np.unique(np.concatenate((a, b)), return_inverse=True)
-        n_components = int(_components(used.size, local[:a.size], local[a.size:]).max()) + 1
-        return a.size > used.size - n_components
-    parent: dict[int, int] = {}  # union-find on the edges' own vertices: the first edge whose
-    for u, v in zip(a.tolist(), b.tolist(), strict=True):  # ends are joined already closes one
-        u, v = _root(parent, u), _root(parent, v)
-        if u == v:
-            return True
-        parent[u] = v
-    return False
-
-
-def _root(parent: dict[int, int], x: int) -> int:
-    """The root of x, halving the path on the way (a vertex absent from ``parent`` is one)."""
-    while x in parent:
-        up = parent[x]
-        if up in parent:
-            parent[x] = parent[up]
-        x = up
-    return x
-
-
-def _free_current(netlist: Netlist) -> np.ndarray:
-    """Per part: its current enters no other equation (it controls no CCVS/CCCS) and, for a
-    resistor, it is a 0 Ω wire."""
-    keep = ~netlist.controlling()
-    resistors = netlist["resistor"]
-    keep[resistors.span] &= resistors.values == 0
-    return keep
-
-
 # -- a readable graph ---------------------------------------------------------------------------
 def circuit_graph(circuit: Circuit | Iterable[Part], freq: float = 0.0) -> nx.MultiGraph:
     """The circuit as a networkx MultiGraph: nets are nodes, each current path an edge.

@@ -20,6 +20,7 @@ Accepted input (numbers pass through unchanged; strings are read as below):
   refused as a resistance.
 
 A bad value raises :class:`ValueParseError` that quotes the text and says what is accepted.
+Output writes micro as ``µ`` (U+00B5 MICRO SIGN), never ``u``.
 """
 
 from __future__ import annotations
@@ -31,6 +32,7 @@ from decimal import Decimal
 from numbers import Complex, Real
 
 from ..errors import ValueParseError
+from .kinds import VALUE_UNITS
 
 __all__ = [
     "NOISE_RTOL",
@@ -60,12 +62,6 @@ _CODE_LETTERS: dict[str, int] = {
 }
 _UNITS = ("Ω", "ohm", "ohms", "Ohm", "F", "H", "V", "A", "Hz", "S", "W")
 _OHMS = ("ohm", "ohms", "Ohm")  # spellings of Ω
-#: The unit each part kind's value takes ("" for a plain ratio: the gains and a coupling's k).
-VALUE_UNITS: dict[str, str] = {
-    "resistor": "Ω", "capacitor": "F", "inductor": "H", "impedance": "Ω",
-    "voltage_source": "V", "current_source": "A", "vcvs": "", "vccs": "S", "ccvs": "Ω",
-    "cccs": "", "coupling": "",
-}
 _TOLERANCE = "BCDFGJKM"
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"

@@ -1,43 +1,24 @@
-"""Small sheets for the region, panel, collapse and sweep tests, and the boundary gestures.
+"""Sheets for the region, panel, collapse and sweep tests, and the boundary gestures.
 
 Layouts are in grid units; the window fixture shows grid point (8, 4) in the middle of the view
-at actual size, so everything here is on screen.
+at actual size, so everything here is on screen. The divider they start from is the one of
+tests/drawn.py, which the engine tests draw too.
 """
 
 from __future__ import annotations
 
+from drawn import divider  # noqa: F401  (re-exported for the app tests)
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QApplication, QComboBox, QWidget
 
-from portcut.engine.schematic import Document, NetLabel, PlacedPart, Wire
+from portcut.engine.schematic import Document
 
 #: A lasso around the source side of :func:`divider` (V1, R1, R2), drawn clockwise.
 SOURCE_SIDE = [(-3, -1), (4, -1), (11, -1), (11, 4), (11, 9), (4, 9), (-3, 9), (-3, 4),
                (-3, 0)]
 #: A lasso around R1 and R2 only, leaving V1 out.
 WITHOUT_SOURCE = [(1, -1), (11, -1), (11, 9), (1, 9), (1, 0)]
-
-
-def divider(r1: str = "1k", r2: str = "3k", load: str = "2k", second: str = "resistor",
-            second_value: str | None = None) -> Document:
-    """V1 = 10 V behind R1, then R2 (or a capacitor, ``second``) to ground at net "out", loaded
-    by RL. V1 vertical at x=0 (plus on top), R1 horizontal on the top row, R2 vertical at x=8,
-    RL vertical at x=16; ground along the bottom row (y=6)."""
-    doc = Document("divider")
-
-    def part(kind: str, designator: str, at, rotation: int, value: str) -> None:
-        doc.add(PlacedPart(doc.new_id(PlacedPart), kind, designator, at, rotation, value=value))
-
-    part("voltage_source", "V1", (0, 4), 90, "10")
-    part("resistor", "R1", (4, 2), 0, r1)
-    part(second, "R2" if second == "resistor" else "C1", (8, 4), 90, second_value or r2)
-    part("resistor", "RL", (16, 4), 90, load)
-    for points in (((0, 2), (2, 2)), ((6, 2), (16, 2)), ((0, 6), (16, 6))):
-        doc.add(Wire(doc.new_id(Wire), points))
-    doc.add(NetLabel(doc.new_id(NetLabel), "gnd", (0, 6), style="ground"))
-    doc.add(NetLabel(doc.new_id(NetLabel), "out", (12, 2)))
-    return doc
 
 
 def open_sheet(window, doc: Document) -> None:

@@ -8,7 +8,7 @@ from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 
 from portcut.app.fields import fields_for
-from portcut.app.panels.inspector import _TITLE, _Sheet
+from portcut.app.panels.inspector import _TITLE, _TitleRecord
 from portcut.app.region_edits import renamed
 from portcut.engine.errors import DocumentError
 from portcut.engine.schematic import NetLabel, PlacedPart, Region
@@ -174,10 +174,10 @@ def test_text_no_file_can_store_is_refused_in_every_field(window, drive):
         doc.add(PlacedPart(f"p{i}", kind, f"X{i}", (10 * i, 0), value="1"))
     doc.add(NetLabel("n1", "out", (0, 20)))
     doc.add(Region("r1", "stage", frozenset({"p0"})))
-    elements = [*doc.parts(), *doc.labels(), _Sheet(doc.title)]
+    elements = [*doc.parts(), *doc.labels(), _TitleRecord(doc.title)]
     before = [*doc]
     for element in elements:
-        for field in (_TITLE,) if isinstance(element, _Sheet) else fields_for(element):
+        for field in (_TITLE,) if isinstance(element, _TitleRecord) else fields_for(element):
             try:
                 field.write(doc, element, "ab\udfff")
             except DocumentError as e:

@@ -19,6 +19,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from drawn import divider as drawn_divider
 
 from portcut.engine.cli import commands as cli
 from portcut.engine.schematic import Document, NetLabel, PlacedPart, Region
@@ -86,7 +87,11 @@ def saved(tmp_path):
 
 @pytest.fixture
 def divider(saved):
-    return saved(_source_load(V10, R1K, R2K))
+    """The drawn divider: 10 V through 1 kΩ into 1 kΩ, loaded by 1 kΩ; region "src" holds
+    V1, R1 and R2."""
+    doc = drawn_divider(r1="1k", r2="1k", load="1k")
+    doc.add(Region(doc.new_id(Region), "src", frozenset({"p1", "p2", "p3"})))
+    return saved(doc)
 
 
 def _run(capsys, *argv: str) -> tuple[int, str, str]:
@@ -186,13 +191,13 @@ def test_reduce_states_the_matched_load_power_for_dc_and_for_phasors(capsys, div
 
 
 def test_reduce_without_a_thevenin_form(capsys, saved):
-    # an ideal current source alone at the port: Z is infinite (shared/design.md)
+    # an ideal current source alone at the port: Z is infinite (docs/method.md)
     path = saved(_source_load(("current_source", "I1", "1m"), None, None))
     data = _json(capsys, path)
     assert data["has_thevenin"] is False and data["has_norton"] is True
     assert data["voc"] is None and data["z"] is None
     # I1 drives 1 mA from "out" through itself into ground, so the current leaving "out"
-    # through an outside short into ground is -1 mA (sign conventions of shared/design.md)
+    # through an outside short into ground is -1 mA (sign conventions of docs/method.md)
     assert _c(data["isc"]) == pytest.approx(-1e-3)
     code, out, _ = _run(capsys, "reduce", path)
     assert code == 0 and "No Thevenin form: Z is infinite" in out
@@ -325,7 +330,7 @@ def test_sources_above_extra_low_voltage_get_the_caution_once(capsys, saved):
     (["reduce", "{missing}"], "no such file"),
     (["reduce", "{divider}", "--region", "nope"], "no region named 'nope'"),
     (["reduce", "{divider}", "--parts", "R1,R9"], "R9"),
-    (["reduce", "{divider}", "--port", "in,nowhere"], "nowhere"),
+    (["reduce", "{divider}", "--port", "out,nowhere"], "nowhere"),
     (["reduce", "{garbage}"], "garbage"),
     (["export", "{divider}", "-o", "{nodir}/x.svg"], "x.svg"),
 ])

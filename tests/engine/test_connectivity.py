@@ -9,10 +9,12 @@ from __future__ import annotations
 import itertools
 import math
 from dataclasses import replace
+from functools import partial
 
 import networkx as nx
 import pytest
 from drawing_strategies import orthogonal_polylines
+from drawn import divider as drawn_divider
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -50,17 +52,9 @@ def ground(i: str, at: tuple[int, int]) -> NetLabel:
     return NetLabel(i, "", at, style="ground")
 
 
-def divider() -> Document:
-    """V1 (vertical, p up) -> R1 (horizontal) -> node 'out' -> R2 (vertical) -> ground."""
-    return sheet(
-        part("V1", "voltage_source", (0, 4), 90, value="5"),
-        part("R1", "resistor", (4, 0), value="4k7"),
-        part("R2", "resistor", (8, 4), 90, value="10k"),
-        Wire("w1", ((0, 2), (0, 0), (2, 0))),
-        Wire("w2", ((6, 0), (8, 0), (8, 2))),
-        ground("g1", (0, 6)), ground("g2", (8, 6)),
-        NetLabel("l1", "out", (8, 0)),
-    )
+#: V1 (vertical, p up) -> R1 (horizontal) -> node 'out' -> R2 (vertical) -> ground rail; ids
+#: p1 V1, p2 R1, p3 R2, w4 V1-R1, w5 R1-R2, w6 the rail, n7 the ground, n8 the "out" label.
+divider = partial(drawn_divider, r1="4k7", r2="10k", load=None, v="5")
 
 
 def messages(doc: Document) -> list[str]:
@@ -72,15 +66,15 @@ def test_divider_nets_labels_ground_and_automatic_names() -> None:
     conn = extract(divider())
     assert conn.warnings == ()
     assert conn.net_of_pin == {
-        ("p_V1", 0): "R1.a", ("p_V1", 1): "gnd",
-        ("p_R1", 0): "R1.a", ("p_R1", 1): "out",
-        ("p_R2", 0): "out", ("p_R2", 1): "gnd",
-        ("g1", 0): "gnd", ("g2", 0): "gnd", ("l1", 0): "out",
+        ("p1", 0): "R1.a", ("p1", 1): "gnd",
+        ("p2", 0): "R1.a", ("p2", 1): "out",
+        ("p3", 0): "out", ("p3", 1): "gnd",
+        ("n7", 0): "gnd", ("n8", 0): "out",
     }
-    assert conn.net_of_wire == {"w1": "R1.a", "w2": "out"}
+    assert conn.net_of_wire == {"w4": "R1.a", "w5": "out", "w6": "gnd"}
     assert conn.nets == {
-        "R1.a": frozenset({(0, 2), (0, 0), (2, 0)}),
-        "out": frozenset({(6, 0), (8, 0), (8, 2)}),
+        "R1.a": frozenset({(0, 2), (2, 2)}),
+        "out": frozenset({(6, 2), (7, 2), (8, 2)}),
         "gnd": frozenset({(0, 6), (8, 6)}),
     }
 
@@ -187,7 +181,7 @@ def test_automatic_names_survive_unrelated_edits() -> None:
     before = extract(doc).net_of_pin
     doc.add(part("R7", "resistor", (40, 40), value="1k"))
     doc.add(Wire("w9", ((42, 40), (50, 40))))
-    doc.replace_fields("p_R2", value="22k")
+    doc.replace_fields("p3", value="22k")
     after = extract(doc).net_of_pin
     assert {k: v for k, v in after.items() if k in before} == before
 
@@ -235,8 +229,9 @@ def test_an_empty_document_has_no_nets() -> None:
 def test_net_at_finds_pins_then_wire_segments() -> None:
     doc = divider()
     conn = extract(doc)
-    assert net_at(doc, conn, (8, 6)) == "gnd"
-    assert net_at(doc, conn, (7, 0)) == "out"
+    assert net_at(doc, conn, (8, 6)) == "gnd"  # R2's pin
+    assert net_at(doc, conn, (4, 6)) == "gnd"  # the middle of the ground rail
+    assert net_at(doc, conn, (7, 1)) is None
     assert net_at(doc, conn, (30, 30)) is None
 
 
@@ -453,11 +448,11 @@ def test_build_circuit_reads_phase_control_couplings_and_four_terminal_parts() -
 
 
 @pytest.mark.parametrize(("element_id", "fields", "message"), [
-    ("p_R1", {"value": "4k7x"}, r"^R1 value: cannot read '4k7x'"),
-    ("p_R1", {"value": ""}, r"^R1 value: none given; enter the resistance, e\.g\. 4k7$"),
-    ("p_R1", {"value": "1k", "phase_deg": "30"},
+    ("p2", {"value": "4k7x"}, r"^R1 value: cannot read '4k7x'"),
+    ("p2", {"value": ""}, r"^R1 value: none given; enter the resistance, e\.g\. 4k7$"),
+    ("p2", {"value": "1k", "phase_deg": "30"},
      r"^R1 phase: only independent sources take a phase; clear the field$"),
-    ("p_V1", {"phase_deg": "north"}, r"^V1 phase: cannot read 'north'"),
+    ("p1", {"phase_deg": "north"}, r"^V1 phase: cannot read 'north'"),
 ])
 def test_bad_values_name_the_designator_and_field(element_id, fields, message) -> None:
     doc = divider()
@@ -580,12 +575,13 @@ def same_result(a, b) -> bool:
 def test_a_move_with_its_wires_following_re_extracts_as_a_first_extraction() -> None:
     doc = divider()
     conn = extract(doc)
-    with doc.batch():  # R2 one step right; w2 gains a bend to reach its pin
-        doc.replace_fields("p_R2", at=(9, 4))
-        doc.replace_fields("w2", points=((6, 0), (8, 0), (8, 1), (9, 1), (9, 2)))
+    with doc.batch():  # R2 one step right; both its wires gain a step to reach its pins
+        doc.replace_fields("p3", at=(9, 4))
+        doc.replace_fields("w5", points=((6, 2), (9, 2)))
+        doc.replace_fields("w6", points=((0, 6), (9, 6)))
     again = extract(doc, previous=conn)
     assert same_result(again, extract(doc))
-    assert again.net_of_wire["w2"] == "out"
+    assert again.net_of_wire["w5"] == "out"
     assert same_result(conn, extract(divider()))  # the previous result is left as it was
 
 

@@ -8,8 +8,10 @@ must name the parts or nets at fault; nothing but a CircuitError may come out.
 from __future__ import annotations
 
 import warnings
+from functools import partial
 
 import pytest
+from circuits import divider as shared_divider
 
 from portcut.engine import (
     GROUND,
@@ -25,14 +27,8 @@ from portcut.engine import (
     sweep,
 )
 
-
-def divider() -> Circuit:
-    c = Circuit()
-    c.voltage_source("V1", "in", GROUND, 5)
-    c.resistor("R1", "in", "a", "1k")
-    c.resistor("R2", "a", GROUND, "1k")
-    c.resistor("RL", "a", GROUND, "10k")
-    return c
+#: 5 V behind 1 kΩ into 1 kΩ at net "a", loaded by 10 kΩ.
+divider = partial(shared_divider, 5, "1k", "1k", load="10k", out="a")
 
 
 REGION = {"V1", "R1", "R2"}

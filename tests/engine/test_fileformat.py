@@ -19,6 +19,7 @@ from typing import Any
 
 import pytest
 from drawing_strategies import orthogonal_polylines
+from drawn import divider as drawn_divider
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -50,13 +51,11 @@ from portcut.engine.schematic.model import PART_KINDS
 
 
 def divider_contents() -> Contents:
-    return Contents(
-        parts=(PlacedPart("p1", "voltage_source", "V1", (0, 4), 90, value="5", phase_deg="30"),
-               PlacedPart("p2", "resistor", "R1", (4, 0), value="4k7"),
-               PlacedPart("p3", "resistor", "R2", (8, 4), 90, value="10k")),
-        wires=(Wire("w1", ((0, 2), (0, 0), (2, 0))), Wire("w2", ((6, 0), (8, 0), (8, 2)))),
-        labels=(NetLabel("n1", "", (0, 6), style="ground"),),
-    )
+    """The drawn divider, its source at a phase of 30 degrees, as a block's contents."""
+    doc = drawn_divider(r1="4k7", r2="10k", load=None, v="5")
+    doc.replace_fields("p1", phase_deg="30")
+    return Contents(parts=tuple(doc.parts()), wires=tuple(doc.wires()),
+                    labels=tuple(doc.labels()))
 
 
 def rich_document() -> Document:

@@ -11,9 +11,11 @@ from __future__ import annotations
 import math
 import warnings
 from fractions import Fraction
+from functools import partial
 
 import numpy as np
 import pytest
+from circuits import divider as shared_divider
 
 from portcut.engine import GROUND, Circuit, SingularCircuitError
 from portcut.engine.cli.bench import mixed_circuit
@@ -37,12 +39,8 @@ def index(system: System, name: str) -> int:
     return int(system.unknown_of_net[system.netlist.index[name]])
 
 
-def divider() -> Circuit:
-    c = Circuit()
-    c.voltage_source("V1", "in", GROUND, 5)
-    c.resistor("R1", "in", "a", 1e3)
-    c.resistor("R2", "a", GROUND, 2e3)
-    return c
+#: 5 V behind 1 kΩ into 2 kΩ at net "a", unloaded.
+divider = partial(shared_divider, 5, 1e3, 2e3, load=None, out="a")
 
 
 def test_resistor_and_voltage_source_stamps() -> None:

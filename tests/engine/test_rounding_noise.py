@@ -11,7 +11,7 @@ import math
 import pytest
 
 from portcut.engine import GROUND
-from portcut.engine.cli.commands import _json_complex
+from portcut.engine.cli.reduce import json_complex
 from portcut.engine.solve.equivalent import Equivalent
 from portcut.engine.solve.tables import sweep_csv
 from portcut.engine.solve.units import NOISE_RTOL, UNDEFINED, denoised
@@ -49,8 +49,8 @@ def test_csv_and_json_keep_full_precision_without_noise_or_negative_zero() -> No
     row = next(r for i, r in enumerate(csv.reader(io.StringIO(sweep_csv([NOISY])))) if i == 1)
     assert row[1:3] == ["-0.1", "0.0"] and row[5:7] == ["-0.001", "0.0"]
     assert row[9:11] == ["100.0", "0.0"] and row[12] == "0.0"
-    assert _json_complex(NOISY.z) == {"re": 100.0, "im": 0.0}
-    got = _json_complex(complex(-0.0, 2.5))
+    assert json_complex(NOISY.z) == {"re": 100.0, "im": 0.0}
+    got = json_complex(complex(-0.0, 2.5))
     assert got == {"re": 0.0, "im": 2.5} and math.copysign(1, got["re"]) == 1
 
 

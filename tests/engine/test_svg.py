@@ -150,7 +150,7 @@ def test_micro_is_the_micro_sign_and_sources_read_as_phasors_above_dc():
     doc.replace_fields("p4", value="4u7")
     doc.replace_fields("p1", phase_deg="30")
     texts = _texts(_parse(document_svg(doc)))
-    assert "4.7 \u00b5F" in texts  # U+00B5 MICRO SIGN, shared/design.md
+    assert "4.7 \u00b5F" in texts  # U+00B5 MICRO SIGN, engine/solve/units.py
     assert "5 V ∠ 30°" in texts
     doc.replace_fields("p1", phase_deg="")
     assert "5 V ∠ 0°" in _texts(_parse(document_svg(doc, freq=1e3)))

@@ -129,7 +129,7 @@ def _arrow_tip(sym, near):
 @pytest.mark.parametrize("style", STYLES)
 @pytest.mark.parametrize("kind", ["current_source", "cccs", "vccs"])
 def test_current_arrows_point_at_the_to_node(kind, style):
-    # the arrow of a current-type source points at its second node, n_to (shared/design.md)
+    # the arrow of a current-type source points at its second node, n_to (docs/method.md)
     sym = symbol(kind, style)
     frm, to = sym.pins[0], sym.pins[1]
     tip, tips = _arrow_tip(sym, to)

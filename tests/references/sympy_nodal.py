@@ -19,11 +19,11 @@ solve at an exact angular frequency w. Each galvanically separate piece of the r
 own reference node (the port's minus for the piece holding it), so a magnetically coupled but
 isolated winding is solved as it physically is.
 
-The port quantities follow shared/design.md: voc = V(plus) - V(minus) with the port open; isc
-the current out of plus, through an ideal short, into minus; z the voltage across the port for
-1 A driven into plus (out of minus) with independent sources zeroed (V shorted, I opened) and
-dependent ones kept. No Thevenin form where the open port has no unique solution (z infinite),
-no Norton form where the shorted port has none (z = 0).
+The port quantities follow docs/method.md (Sign conventions): voc = V(plus) - V(minus) with the
+port open; isc the current out of plus, through an ideal short, into minus; z the voltage
+across the port for 1 A driven into plus (out of minus) with independent sources zeroed (V
+shorted, I opened) and dependent ones kept. No Thevenin form where the open port has no unique
+solution (z infinite), no Norton form where the shorted port has none (z = 0).
 """
 
 from __future__ import annotations

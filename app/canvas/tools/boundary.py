@@ -20,6 +20,7 @@ from PySide6.QtGui import QColor, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QApplication, QGraphicsPathItem
 
 from portcut.engine.schematic import Block, PlacedPart, Region
+from portcut.engine.schematic.outline import inside
 
 from ...commands import AddElements, ReplaceElements
 from ...regions import enclosed, outline_with, outline_without, region_name
@@ -164,10 +165,8 @@ class BoundaryTool(Tool):
         self.canvas.push(ReplaceElements(doc, [new], text))
 
     def _choose_at(self, ev: CanvasEvent) -> None:
-        point = QPointF(*ev.at)
         for region in reversed(self.canvas.doc.regions()):
-            if QPolygonF([QPointF(x, y) for x, y in region.outline]).containsPoint(
-                    point, Qt.FillRule.OddEvenFill):
+            if inside(region.outline, ev.at):
                 self.live.set_region(region.id)
                 self._note = f"Boundary: showing region “{region.name}”"
                 return

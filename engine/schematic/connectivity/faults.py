@@ -8,12 +8,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ...solve.kinds import CONTROLLED_BY_CURRENT
 from ..model import Block, PlacedPart
 from ..symbols import Point
 from .sheet import _Sheet
-
-#: Kinds that a part's current controls.
-CONTROLLED_BY_CURRENT = frozenset({"ccvs", "cccs"})
 
 
 @dataclass(frozen=True, slots=True)

@@ -8,6 +8,7 @@ from collections import defaultdict
 import numpy as np
 
 from ...solve.circuit import GROUND
+from ...solve.names import unused_name
 from .faults import ConnectivityWarning, _fmt
 from .sheet import _label_net, _natural_key, _Sheet
 
@@ -86,7 +87,7 @@ def _name_fresh(names: list[str | None], wanted: list[tuple[int, str]], taken: s
         taken |= fresh
         return True
     for n, name in wanted:
-        names[n] = fresh_name(name, taken)
+        names[n] = unused_name(name, taken)
     return False
 
 
@@ -102,11 +103,3 @@ def _chosen_name(found: dict[str, int], sheet: _Sheet,
             f"one net carries two names, {shown} and {other!r}; it is called {shown}. "
             "Remove one label or separate the nets", marker.element_id, marker.at))
     return chosen
-
-
-def fresh_name(name: str, taken: set[str]) -> str:
-    """``name``, with ``'`` appended until it is not in ``taken``; then taken."""
-    while name in taken:
-        name += "'"
-    taken.add(name)
-    return name

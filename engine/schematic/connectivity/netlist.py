@@ -13,26 +13,16 @@ from ...errors import CircuitError
 from ...solve.circuit import Circuit, Part
 from ...solve.devices import DEVICE_KINDS
 from ...solve.equivalent import Equivalent, collapse, equivalent
+from ...solve.kinds import CONTROLLED_BY_CURRENT, REFERRING, SOURCES, TRAITS, VALUED
+from ...solve.names import unused_name
 from ...solve.units import VALUE_UNITS, parse_value
 from ..document import Document
 from ..model import Block, Contents, PlacedPart
 from .extraction import Connectivity, extract, net_at
-from .faults import CONTROLLED_BY_CURRENT, _reference_problem
-from .naming import fresh_name
+from .faults import _reference_problem
 from .sheet import BLOCK_ROLES, ROLES, _natural_key, replaced_in_place
 
-_SOURCES = frozenset({"voltage_source", "current_source"})
-#: What each kind's value means, with an example, for the message when it is missing.
-_QUANTITY: dict[str, tuple[str, str]] = {
-    "resistor": ("resistance", "4k7"), "capacitor": ("capacitance", "100n"),
-    "inductor": ("inductance", "10m"), "impedance": ("impedance in ohms", "50"),
-    "voltage_source": ("voltage", "5"), "current_source": ("current", "1m"),
-    "vcvs": ("voltage gain", "10"), "vccs": ("transconductance in siemens", "40m"),
-    "ccvs": ("transresistance in ohms", "100"), "cccs": ("current gain", "100"),
-    "coupling": ("coupling coefficient", "0.9"),
-}
-#: Kinds a part's own edit cannot be rebuilt alone for: others name it or it names others.
-_NAMING = CONTROLLED_BY_CURRENT | {"coupling"}
+_QUANTITY = {name: (TRAITS[name].quantity, TRAITS[name].example) for name in VALUED}
 
 
 def build_circuit(doc: Document, conn: Connectivity | None = None, freq: float = 0.0) -> Circuit:
@@ -71,7 +61,7 @@ def updated_circuit(circuit: Circuit, doc: Document, before: Connectivity,
                                                                 strict=True))):
         return build_circuit(doc, after, freq)  # a block's parts follow every net name
     parts = [p for p, q in zip(new.parts, old.parts, strict=True) if p is not q]
-    if any(p.kind in _NAMING for p in parts):
+    if any(p.kind in REFERRING for p in parts):
         return build_circuit(doc, after, freq)
     if ids:
         ids -= {p.id for p in parts}
@@ -125,7 +115,7 @@ def _add_part(circuit: Circuit, part: PlacedPart, nodes: list[str]) -> None:
         circuit.coupling(name, *part.couples, value)
     elif kind in CONTROLLED_BY_CURRENT:
         getattr(circuit, kind)(name, *nodes, part.control, value)
-    elif kind in _SOURCES:
+    elif kind in SOURCES:
         getattr(circuit, kind)(name, *nodes, value, phase_deg=phase)
     else:
         getattr(circuit, kind)(name, *nodes, value)
@@ -134,7 +124,7 @@ def _add_part(circuit: Circuit, part: PlacedPart, nodes: list[str]) -> None:
 def _phase(part: PlacedPart) -> float | None:
     if not part.phase_deg.strip():
         return None
-    if part.kind not in _SOURCES:
+    if part.kind not in SOURCES:
         raise CircuitError(f"{part.designator} phase: only independent sources take a phase; "
                            "clear the field")
     return float(parse_value(part.phase_deg, what=f"{part.designator} phase"))
@@ -210,7 +200,7 @@ def _block_parts(block: Block, plus: str, minus: str, freq: float,
     for part in reduced:  # every part of the contents was in the region: only these remain
         inner = [n for n in part.nodes if n not in nets]
         if inner and mid is None:
-            mid = fresh_name(f"{block.designator}.mid", taken)
+            mid = unused_name(f"{block.designator}.mid", taken)
         role = "src" if part.is_independent_source else "z"
         parts.append(replace(part, name=f"{block.designator}.{role}",
                              nodes=tuple(nets.get(n, mid) for n in part.nodes)))

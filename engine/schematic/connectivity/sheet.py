@@ -16,13 +16,12 @@ import numpy as np
 
 from ...solve.circuit import GROUND, KINDS
 from ...solve.devices import DEVICE_KINDS
+from ...solve.kinds import REFERRING
 from ..model import Block, Element, Junction, NetLabel, PlacedPart, Wire
 from ..symbols import Point, pin_positions
 
 #: Pin roles of a collapsed block, in pin order.
 BLOCK_ROLES = ("plus", "minus")
-#: Kinds whose parts name other parts (a coupling's inductors, a controlling part).
-REFERENCING = frozenset({"ccvs", "cccs", "coupling"})
 #: A number for each kind of pin owner that a designator names, for comparing kinds in arrays.
 _KIND_CODE = {kind: code for code, kind in enumerate([*KINDS, *DEVICE_KINDS, "block"])}
 #: The node roles of every kind a placed part may have: primitive kinds and device kinds.
@@ -120,7 +119,7 @@ class _Sheet:
         self._place: list[int] | None = None
         #: on a patched sheet, the graph nodes whose points or marker name the patch changed
         self.moved: list[int] = []
-        self.referencing = [i for i, p in enumerate(self.parts) if p.kind in REFERENCING]
+        self.referencing = [i for i, p in enumerate(self.parts) if p.kind in REFERRING]
         # pin-bearing elements: designated ones first, in natural designator order
         designated = [*self.parts, *self.blocks]
         order = sorted(range(len(designated)), key=lambda i: _natural_key(designated[i].designator))
