@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...solve.topology import _components as graph_components
+from ...solve.branches import components as graph_components
 from .sheet import _Sheet
 
 
