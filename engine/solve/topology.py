@@ -21,6 +21,7 @@ docs/method.md.
 
 from __future__ import annotations
 
+import threading
 from collections.abc import Collection, Iterable, Sequence
 from dataclasses import dataclass
 from itertools import chain
@@ -217,6 +218,8 @@ def _complement(rows: np.ndarray | None, size: int) -> np.ndarray:
 #: The netlists of the last few regions, each tied to the columns it was built from.
 _RECENT: list[Netlist] = []
 _KEEP = 3
+#: The app analyses in a background thread while panels call the engine: the list is shared.
+_RECENT_LOCK = threading.RLock()
 
 
 def netlist_of(columns: Columns, rows: np.ndarray | None = None) -> Netlist:
@@ -228,19 +231,21 @@ def netlist_of(columns: Columns, rows: np.ndarray | None = None) -> Netlist:
     in value (a value edit through ``Circuit.replaced``), its nets and node arrays are reused and
     only the values read again (:meth:`Netlist.with_values`).
     """
-    for i, kept in enumerate(_RECENT):
-        found = kept.with_values(columns, rows)
-        if found is kept:
-            _RECENT.insert(0, _RECENT.pop(i))
-            return kept
-        if found is not None:
-            return _keep(found)
+    with _RECENT_LOCK:
+        for i, kept in enumerate(_RECENT):
+            found = kept.with_values(columns, rows)
+            if found is kept:
+                _RECENT.insert(0, _RECENT.pop(i))
+                return kept
+            if found is not None:
+                return _keep(found)
     return _keep(Netlist.of(columns, rows))
 
 
 def _keep(netlist: Netlist) -> Netlist:
-    _RECENT.insert(0, netlist)
-    _drop(_KEEP)
+    with _RECENT_LOCK:
+        _RECENT.insert(0, netlist)
+        _drop(_KEEP)
     return netlist
 
 
@@ -256,7 +261,8 @@ def _drop(keep: int) -> None:
 
 def forget_netlists() -> None:
     """Drop the kept netlists (benchmarks use it to time a first analysis)."""
-    _drop(0)
+    with _RECENT_LOCK:
+        _drop(0)
 
 
 def _region_names(region: Collection[str]) -> set[str]:
