@@ -321,6 +321,7 @@ class EquivalentDock(QDockWidget):
 
         live.analysed.connect(self.show_analysis)
         live.checked.connect(self.show_check)
+        live.updating.connect(self.show_updating)
         live.currentChanged.connect(lambda _: self._fill_regions())
         canvas.selectionChanged.connect(lambda _: self._on_selection())
         live.documentChanged.connect(self._on_change)
@@ -525,6 +526,11 @@ class EquivalentDock(QDockWidget):
             box.setCurrentIndex(0 if chosen is None else box.findData(chosen))
             box.setAccessibleDescription(f"{role}: {box.currentText()}")
         self.automatic_button.setVisible(usable and region.port is not None and not analysis.ok)
+
+    def show_updating(self, on: bool) -> None:
+        """The numbers shown lag behind the document (greyed, and the title says so)."""
+        self.setWindowTitle("Equivalent (updating…)" if on else "Equivalent")
+        self.values.setEnabled(not on)
 
     def show_check(self, result: EquivalenceReport | str) -> None:
         self.check.setEnabled(True)
