@@ -6,9 +6,11 @@ the last job reach (:class:`Reach`). The :class:`Analyser` keeps between jobs wh
 needs and renews it only as far as the reach goes:
 
 * the sheet's connectivity, re-extracted only when something is drawn, moved or deleted;
-* the circuit, rebuilt then too (and on a frequency change where collapsed blocks stand in for
-  their contents); where only values were typed, just those parts are rebuilt and swapped in
-  (engine.Circuit.replaced), so a value edit on a large sheet costs about one solve;
+* the circuit, rebuilt then too, unless every pin is still on a net of the same name and no
+  part changed beyond its place (a part nudged with its wires following), and on a frequency
+  change where collapsed blocks stand in for their contents; where only values were typed,
+  just those parts are rebuilt and swapped in (engine.Circuit.replaced), so a value edit on a
+  large sheet costs about one solve;
 * a change of the region alone (members, outline, polarity) reuses both.
 
 Everything it hands out (Connectivity, Circuit, RegionAnalysis) is new for each job and never
@@ -31,22 +33,31 @@ from portcut.engine.schematic.reduction import (
 )
 from portcut.engine.solve.units import parse_frequency
 
-__all__ = ["Analyser", "Answer", "Job", "Reach", "check"]
+__all__ = ["EVERYTHING", "Analyser", "Answer", "Job", "Reach", "check"]
 
 
 @dataclass(frozen=True)
 class Reach:
     """How far the changes since the last analysis reach."""
 
-    #: Something drawn, moved or deleted: connectivity and circuit are made again.
+    #: Something drawn, moved or deleted: connectivity is extracted again, and the circuit
+    #: built again unless every pin stayed on a net of the same name (a part nudged with its
+    #: wires following) and :attr:`parts` is False.
     sheet: bool = False
+    #: A part or block added, removed, or changed beyond its place on the sheet.
+    parts: bool = False
     #: Ids of the parts whose value alone changed: just they are rebuilt.
     values: frozenset[str] = frozenset()
 
     def merged(self, later: Reach) -> Reach:
         """The reach of these changes followed by ``later``'s (a dropped job's reach is
         carried into the next)."""
-        return Reach(self.sheet or later.sheet, self.values | later.values)
+        return Reach(self.sheet or later.sheet, self.parts or later.parts,
+                     self.values | later.values)
+
+
+#: The reach of a new document: everything.
+EVERYTHING = Reach(sheet=True, parts=True)
 
 
 @dataclass(frozen=True)
@@ -83,7 +94,7 @@ class Analyser:
         self._circuit: Circuit | None = None
         self._circuit_hz: float | None = None
         # what earlier jobs with no region to analyse left to do
-        self._reach = Reach(sheet=True)
+        self._reach = EVERYTHING
 
     def analyse(self, job: Job) -> Answer:
         """Analyse ``job``'s region of ``job``'s document."""
@@ -106,8 +117,11 @@ class Analyser:
         """Bring the kept connectivity and circuit up to date with ``doc``."""
         reach, self._reach = self._reach, Reach()
         if reach.sheet or self.conn is None:
-            self.conn = extract(doc, previous=self.conn)  # reuses what a move left alone
-            self._circuit = None
+            before, self.conn = self.conn, extract(doc, previous=self.conn)  # reuses what a
+            # move left alone; the circuit reads only the parts and the nets of their pins
+            if reach.parts or before is None or doc.blocks() or \
+                    self.conn.net_of_pin != before.net_of_pin:
+                self._circuit = None
         elif hz != self._circuit_hz and doc.blocks():
             self._circuit = None  # blocks stand in by their equivalent at the frequency
         if hz is None:

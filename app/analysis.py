@@ -43,7 +43,7 @@ from portcut.engine.schematic.reduction import (
     region_part_names,
 )
 
-from .analyser import Analyser, Answer, Job, Reach, check
+from .analyser import EVERYTHING, Analyser, Answer, Job, Reach, check
 from .workbench import Workbench
 from .worker import AnalysisWorker
 
@@ -51,6 +51,8 @@ __all__ = ["FRAME_MS", "INLINE_PARTS", "LiveAnalysis", "sweep_region"]
 
 #: PlacedPart fields a value edit may change without touching nets or names.
 _VALUE_FIELDS = frozenset({"value", "phase_deg", "tolerance"})
+#: PlacedPart fields that say only where it is drawn (the circuit does not read them).
+_PLACE_FIELDS = frozenset({"at", "rotation", "mirror", "captions"})
 #: Kinds whose parts refer to others by name: a new value means rebuilding the circuit.
 _REFERRING = frozenset({"coupling", "ccvs", "cccs"})
 #: Sheets with fewer parts are analysed at once in the GUI thread (see docs/architecture.md).
@@ -59,9 +61,12 @@ INLINE_PARTS = 100
 FRAME_MS = 16
 
 
-def _value_only(old: PlacedPart, new: PlacedPart) -> bool:
+def _part_reach(old: PlacedPart, new: PlacedPart) -> Reach:
+    """How far replacing part ``old`` by ``new`` reaches."""
     changed = {f.name for f in fields(PlacedPart) if getattr(old, f.name) != getattr(new, f.name)}
-    return changed <= _VALUE_FIELDS and new.kind not in _REFERRING
+    if changed <= _VALUE_FIELDS and new.kind not in _REFERRING:
+        return Reach(values=frozenset({new.id}))
+    return Reach(sheet=True, parts=not changed <= _PLACE_FIELDS)
 
 
 class LiveAnalysis(QObject):
@@ -101,7 +106,7 @@ class LiveAnalysis(QObject):
         self._worker: AnalysisWorker | None = None
         self._parts: dict[str, PlacedPart] = {}
         self._region_ids: set[str] = set()
-        self._reach = Reach(sheet=True)
+        self._reach = EVERYTHING
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
         self._check_timer = QTimer(self, singleShot=True, interval=0)
@@ -124,7 +129,7 @@ class LiveAnalysis(QObject):
         self._unsubscribe = doc.subscribe(self._on_change)
         self._region_ids = {r.id for r in doc.regions()}
         self._parts = {p.id: p for p in doc.parts()}
-        self._reach = Reach(sheet=True)
+        self._reach = EVERYTHING
         self.region_id = None
         self._schedule()
 
@@ -134,7 +139,7 @@ class LiveAnalysis(QObject):
         if not (change.added or change.removed or change.updated or change.analysis):
             self.documentChanged.emit(change)  # the title: nothing to analyse again
             return
-        sheet, values = False, set()
+        reach = self._reach
         for eid in change.added:
             if eid not in doc:
                 continue
@@ -142,27 +147,28 @@ class LiveAnalysis(QObject):
             if isinstance(element, Region):
                 self._region_ids.add(eid)
                 continue
-            sheet = True
+            parts = isinstance(element, PlacedPart | Block)
+            reach = reach.merged(Reach(sheet=True, parts=parts))
             if isinstance(element, PlacedPart):
                 self._parts[eid] = element
         for eid in change.removed:
             if eid in self._region_ids:
                 self._region_ids.discard(eid)
-            elif eid not in doc:
-                sheet = True
+            elif eid not in doc:  # what it was is gone with it: taken as a part
+                reach = reach.merged(EVERYTHING)
                 self._parts.pop(eid, None)
         for eid in change.updated:
             new = doc[eid]
             if isinstance(new, Region):
                 continue
             old = self._parts.get(eid)
+            if isinstance(new, PlacedPart) and old is not None:
+                reach = reach.merged(_part_reach(old, new))
+            else:
+                reach = reach.merged(Reach(sheet=True, parts=isinstance(new, PlacedPart | Block)))
             if isinstance(new, PlacedPart):
                 self._parts[eid] = new
-                if old is not None and _value_only(old, new):
-                    values.add(eid)
-                    continue
-            sheet = True
-        self._reach = self._reach.merged(Reach(sheet, frozenset(values)))
+        self._reach = reach
         self._schedule()
         self.documentChanged.emit(change)
 
