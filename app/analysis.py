@@ -20,10 +20,11 @@ by more than :data:`FRAME_MS`, :attr:`LiveAnalysis.updating` says so.
 
 from __future__ import annotations
 
+import time
 from dataclasses import fields, replace
 
 import numpy as np
-from PySide6.QtCore import QObject, Qt, QTimer, Signal
+from PySide6.QtCore import QCoreApplication, QObject, Qt, QTimer, Signal
 
 from portcut.engine import Sweep, sweep
 from portcut.engine.errors import CircuitError
@@ -56,7 +57,7 @@ _PLACE_FIELDS = frozenset({"at", "rotation", "mirror", "captions"})
 #: Kinds whose parts refer to others by name: a new value means rebuilding the circuit.
 _REFERRING = frozenset({"coupling", "ccvs", "cccs"})
 #: Sheets with fewer parts are analysed at once in the GUI thread (see docs/architecture.md).
-INLINE_PARTS = 100
+INLINE_PARTS = 50
 #: One frame at 60 Hz (ms): numbers older than the document by more are marked "updating".
 FRAME_MS = 16
 
@@ -99,6 +100,7 @@ class LiveAnalysis(QObject):
         #: that of the analysis shown.
         self.generation = 0
         self.shown_generation = 0
+        self._checked_generation = 0
         #: Sheets with fewer parts are analysed at once (0: always in the background).
         self.inline_parts = INLINE_PARTS
         self.is_updating = False
@@ -227,11 +229,25 @@ class LiveAnalysis(QObject):
         self.analysed.emit(self.analysis)
 
     def _check(self) -> None:
+        self._checked_generation = self.generation
         self.checked.emit(check(self.analysis, self.doc.analysis.form))
 
     def _show_check(self, generation: int, result: object) -> None:
         if generation == self.generation == self.shown_generation:
+            self._checked_generation = generation
             self.checked.emit(result)
+
+    def finish(self, timeout_s: float = 60.0) -> bool:
+        """Run the event loop until the numbers and the check shown are of the document as it
+        is (a screenshot, a script); False if ``timeout_s`` seconds pass first."""
+        deadline = time.monotonic() + timeout_s
+        while self._timer.isActive() or self._check_timer.isActive() or \
+                self._checked_generation != self.generation:
+            if time.monotonic() > deadline:
+                return False
+            QCoreApplication.processEvents()
+            time.sleep(0.001)  # the worker's answer is on its way
+        return True
 
     def _frame_passed(self) -> None:
         if self.shown_generation != self.generation:
