@@ -108,6 +108,7 @@ class LiveAnalysis(QObject):
         self._worker: AnalysisWorker | None = None
         self._parts: dict[str, PlacedPart] = {}
         self._region_ids: set[str] = set()
+        self._block_ids: set[str] = set()
         self._reach = EVERYTHING
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
@@ -131,6 +132,7 @@ class LiveAnalysis(QObject):
         self._unsubscribe = doc.subscribe(self._on_change)
         self._region_ids = {r.id for r in doc.regions()}
         self._parts = {p.id: p for p in doc.parts()}
+        self._block_ids = {b.id for b in doc.blocks()}
         self._reach = EVERYTHING
         self.region_id = None
         self._schedule()
@@ -153,12 +155,15 @@ class LiveAnalysis(QObject):
             reach = reach.merged(Reach(sheet=True, parts=parts))
             if isinstance(element, PlacedPart):
                 self._parts[eid] = element
+            elif isinstance(element, Block):
+                self._block_ids.add(eid)
         for eid in change.removed:
             if eid in self._region_ids:
                 self._region_ids.discard(eid)
-            elif eid not in doc:  # what it was is gone with it: taken as a part
-                reach = reach.merged(EVERYTHING)
-                self._parts.pop(eid, None)
+            elif eid not in doc:  # a wire, label or junction reaches only the drawing
+                was_part = self._parts.pop(eid, None) is not None or eid in self._block_ids
+                self._block_ids.discard(eid)
+                reach = reach.merged(Reach(sheet=True, parts=was_part))
         for eid in change.updated:
             new = doc[eid]
             if isinstance(new, Region):

@@ -11,8 +11,8 @@ import pytest
 from PySide6.QtCore import Qt
 from sheets import SOURCE_SIDE, divider, lasso, open_sheet, settle
 
-from portcut.app.commands import ReplaceElements
-from portcut.engine.schematic import build_circuit, extract
+from portcut.app.commands import AddElements, RemoveElements, ReplaceElements
+from portcut.engine.schematic import Wire, build_circuit, extract
 from portcut.engine.solve.units import parse_frequency
 
 
@@ -57,3 +57,20 @@ def test_a_renamed_net_builds_the_circuit_again(window, drive):
     assert circuit is not kept and circuit == _fresh(doc)
     assert "vout" in circuit.nets() and "out" not in circuit.nets()
     _divider_numbers(live)
+
+
+def test_a_stray_wire_keeps_the_circuit_and_a_deleted_part_rebuilds_it(window, drive):
+    open_sheet(window, divider())
+    lasso(drive, SOURCE_SIDE)
+    live, doc = window.analysis, drive.doc
+    kept = live.analysis.circuit
+    stray = Wire(doc.new_id(Wire), ((20, 0), (22, 0)))  # touches no pin
+    window.workbench.push(AddElements(doc, [stray], "wire"))
+    settle()
+    window.workbench.push(RemoveElements(doc, [stray.id], "unwire"))
+    settle()
+    assert live.analysis.circuit is kept
+    window.workbench.push(RemoveElements(doc, [drive.by("RL").id], "delete"))
+    settle()
+    circuit = live.analysis.circuit
+    assert circuit is not kept and circuit == _fresh(doc) and "RL" not in circuit
