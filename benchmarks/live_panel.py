@@ -12,7 +12,9 @@ the moment the panel (and the canvas) are repainted with the answer:
 * the same edit -> the equivalence line shown (the check that follows the numbers);
 * drag a part one step with the mouse, release -> analysed and repainted (the load, outside);
 * arrow-key nudge of a part inside the region (C100) -> analysed and repainted;
-* open the sheet from its file until the numbers show.
+* open the sheet from its file until the numbers show;
+* a keystroke typed right after that Enter: how long it waits to be handled, with the analysis
+  in the background and, for comparison, with it forced into the GUI thread.
 
 Each figure is printed beside the bare engine call for the same state, measured in the same run
 right after it, and as a ratio to it: ``engine.equivalent()`` of the region on the circuit the
@@ -44,10 +46,12 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-from PySide6.QtCore import QPoint, QSettings, Qt
+from PySide6.QtCore import QEvent, QObject, QPoint, QSettings, Qt
+from PySide6.QtGui import QKeyEvent
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QApplication
 
+from portcut.app.analysis import INLINE_PARTS
 from portcut.app.canvas.grid import to_scene
 from portcut.app.panels.checks import CIRCUIT_PAUSE_MS
 from portcut.app.settings import Settings
@@ -219,6 +223,46 @@ def value_edits(bench: Bench, times: int) -> tuple[list[float], ...]:
     return numbers, floor, checks, check_floor
 
 
+class _KeySeen(QObject):
+    """Notes when the End key reaches the watched widget."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.at = 0.0
+
+    def eventFilter(self, watched: QObject, event: QEvent) -> bool:
+        if event.type() == QEvent.Type.KeyPress and event.key() == Qt.Key.Key_End:
+            self.at = time.perf_counter()
+        return False
+
+
+def keystrokes(bench: Bench, times: int, inline: bool) -> list[float]:
+    """Seconds a keystroke typed right after Enter waits before it is handled: it queues behind
+    the edit's analysis where that runs in the GUI thread (``inline``), not where it runs in the
+    background."""
+    bench.live.inline_parts = len(bench.doc.parts()) + 1 if inline else INLINE_PARTS
+    seen, waits = _KeySeen(), []
+    for i in range(times):
+        edit = bench.window.inspector.editors["value"].edit
+        edit.installEventFilter(seen)
+        edit.setFocus()
+        QTest.keyClick(edit, Qt.Key.Key_A, Qt.KeyboardModifier.ControlModifier)
+        QTest.keyClicks(edit, "1k" if i % 2 else "2k2")
+        posted = []
+
+        def enter_then_key(e=edit, posted=posted) -> None:
+            QTest.keyClick(e, Qt.Key.Key_Return)
+            posted.append(time.perf_counter())
+            QApplication.postEvent(e, QKeyEvent(QEvent.Type.KeyPress, Qt.Key.Key_End,
+                                                Qt.KeyboardModifier.NoModifier))
+
+        bench.timed(enter_then_key, True)
+        edit.removeEventFilter(seen)
+        waits.append(seen.at - posted[0])
+    bench.live.inline_parts = INLINE_PARTS
+    return waits
+
+
 def drags(bench: Bench, times: int) -> tuple[list[float], list[float]]:
     load_part = bench.show_part("RL")
     viewport = bench.view.viewport()
@@ -268,6 +312,9 @@ def main(argv: list[str] | None = None) -> int:
     drag_ms, drag_floor = drags(bench, opts.edits)
     drag_handled, bench.handled = bench.handled, []
     nudge_ms, nudge_floor = nudges(bench, opts.edits)
+    bench.show_part(f"R{INSIDE}")
+    waits = keystrokes(bench, opts.edits, inline=False)
+    waits_inline = keystrokes(bench, opts.edits, inline=True)
     print(f"{'gesture':<44}{'median':>12}{'worst':>13}{'floor':>11}{'ratio':>8}{'target':>7}"
           f"{'event':>11}")
     _row("value typed, Enter -> new Z shown", numbers, floor, "<= 3x", edit_handled)
@@ -276,6 +323,9 @@ def main(argv: list[str] | None = None) -> int:
     _row("arrow-key nudge inside the region -> shown", nudge_ms, nudge_floor, "<= 6x",
          bench.handled)
     _row("open the sheet -> numbers shown", open_ms, open_floor, "", open_handled)
+    for name, ours in (("keystroke after Enter waits (background)", waits),
+                       ("keystroke after Enter waits (GUI thread)", waits_inline)):
+        print(f"{name:<44}{_median_ms(ours):>9.2f} ms {max(ours) * 1e3:>9.2f} ms")
     print("event: how long the gesture's own event took to handle (input waits that long); the "
           "rest of the time to the numbers, the analysis ran in the background")
     os._exit(0)  # no teardown: closing would ask about the unsaved sheet, and Qt objects
