@@ -26,11 +26,21 @@ def _divider_numbers(live) -> None:
     assert eq.z.real == pytest.approx(1e3 * 3e3 / 4e3, rel=1e-12)   # 750 Ω
 
 
-def test_a_nudge_with_the_wires_following_keeps_the_circuit(window, drive):
+def _analysed(window, drive):
+    """The divider with its source side as the region: the live analysis, the document and the
+    circuit the analysis keeps."""
     open_sheet(window, divider())
     lasso(drive, SOURCE_SIDE)
-    live, doc = window.analysis, drive.doc
-    kept = live.analysis.circuit
+    return window.analysis, drive.doc, window.analysis.analysis.circuit
+
+
+def _push(window, command) -> None:
+    window.workbench.push(command)
+    settle()
+
+
+def test_a_nudge_with_the_wires_following_keeps_the_circuit(window, drive):
+    live, doc, kept = _analysed(window, drive)
     drive.key(Qt.Key.Key_S)
     drive.click(drive.by("RL").at)
     before = drive.by("RL").at
@@ -46,13 +56,9 @@ def test_a_nudge_with_the_wires_following_keeps_the_circuit(window, drive):
 
 
 def test_a_renamed_net_builds_the_circuit_again(window, drive):
-    open_sheet(window, divider())
-    lasso(drive, SOURCE_SIDE)
-    live, doc = window.analysis, drive.doc
-    kept = live.analysis.circuit
+    live, doc, kept = _analysed(window, drive)
     label = next(n for n in doc.labels() if n.name == "out")
-    window.workbench.push(ReplaceElements(doc, [replace(label, name="vout")], "rename"))
-    settle()
+    _push(window, ReplaceElements(doc, [replace(label, name="vout")], "rename"))
     circuit = live.analysis.circuit
     assert circuit is not kept and circuit == _fresh(doc)
     assert "vout" in circuit.nets() and "out" not in circuit.nets()
@@ -60,17 +66,11 @@ def test_a_renamed_net_builds_the_circuit_again(window, drive):
 
 
 def test_a_stray_wire_keeps_the_circuit_and_a_deleted_part_rebuilds_it(window, drive):
-    open_sheet(window, divider())
-    lasso(drive, SOURCE_SIDE)
-    live, doc = window.analysis, drive.doc
-    kept = live.analysis.circuit
+    live, doc, kept = _analysed(window, drive)
     stray = Wire(doc.new_id(Wire), ((20, 0), (22, 0)))  # touches no pin
-    window.workbench.push(AddElements(doc, [stray], "wire"))
-    settle()
-    window.workbench.push(RemoveElements(doc, [stray.id], "unwire"))
-    settle()
+    _push(window, AddElements(doc, [stray], "wire"))
+    _push(window, RemoveElements(doc, [stray.id], "unwire"))
     assert live.analysis.circuit is kept
-    window.workbench.push(RemoveElements(doc, [drive.by("RL").id], "delete"))
-    settle()
+    _push(window, RemoveElements(doc, [drive.by("RL").id], "delete"))
     circuit = live.analysis.circuit
     assert circuit is not kept and circuit == _fresh(doc) and "RL" not in circuit
