@@ -2,31 +2,31 @@
 affect it (a value typed, a part taken into or out of the region, a wire drawn, the frequency
 changed), without the user asking.
 
-Changes are collected as the document announces them and the work runs once per burst, on a
-zero timer, so that a batch of notifications costs one analysis. What the analysis needs is kept
-between changes and renewed only as far as a change reaches:
+Changes are collected as the document announces them, with how far they reach (app.analyser:
+a value edit rebuilds one part, a drawing change re-extracts), and the work runs once per
+burst, on a zero timer. Each state of the document it analyses has a generation number, one
+more with every change; an answer is shown only while its generation is still the document's,
+so a late answer never crosses a newer one.
 
-* the sheet's connectivity, re-extracted only when something is drawn, moved or deleted (a
-  move joins again only the nets it touches);
-* the circuit, updated then too (engine.schematic.connectivity.updated_circuit: after a move,
-  only the parts whose nets changed are rebuilt, none where the move kept its connections;
-  rebuilt whole after an addition or removal and on a frequency change where collapsed blocks
-  stand in for their contents); where only values were typed, just those parts are rebuilt and
-  swapped in (engine.Circuit.replaced), so a value edit on a large sheet costs about one solve;
-* a change of the region alone (members, outline, polarity) reuses both.
-
-The equivalence check (the reduced circuit against the original, for the load as drawn) solves
-the whole circuit twice, so it follows in a second step, after the numbers are shown.
+Where the work runs: on a sheet of fewer than :attr:`LiveAnalysis.inline_parts` parts, at once
+in the GUI thread (such a sheet analyses in about a millisecond, and tests and small sheets see
+their numbers without waiting); on a larger sheet, in the background (app.worker) on a snapshot
+of the document, the newest state only, so that typing, dragging and panning never wait for a
+solve. The equivalence check (the reduced circuit against the original, for the load as drawn)
+solves the whole circuit twice, so it follows in a second step, after the numbers are shown,
+and is dropped when a newer edit arrives. While the numbers shown are older than the document
+by more than :data:`FRAME_MS`, :attr:`LiveAnalysis.updating` says so.
 """
 
 from __future__ import annotations
 
+import time
 from dataclasses import fields, replace
 
 import numpy as np
-from PySide6.QtCore import QObject, QTimer, Signal
+from PySide6.QtCore import QCoreApplication, QObject, Qt, QTimer, Signal
 
-from portcut.engine import Circuit, Sweep, sweep
+from portcut.engine import Sweep, sweep
 from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import (
     Block,
@@ -38,34 +38,40 @@ from portcut.engine.schematic import (
     build_circuit,
     extract,
 )
-from portcut.engine.schematic.connectivity import updated_circuit
 from portcut.engine.schematic.reduction import (
     RegionAnalysis,
-    analyse_region,
-    equivalence,
     expand_block,
     region_part_names,
 )
 from portcut.engine.solve.kinds import REFERRING as _REFERRING  # parts naming others: rebuild
-from portcut.engine.solve.units import parse_frequency
 
+from .analyser import EVERYTHING, Analyser, Answer, Job, Reach, check
 from .workbench import Workbench
+from .worker import AnalysisWorker
 
-__all__ = ["LiveAnalysis", "sweep_region"]
+__all__ = ["FRAME_MS", "INLINE_PARTS", "LiveAnalysis", "sweep_region"]
 
 #: PlacedPart fields a value edit may change without touching nets or names.
 _VALUE_FIELDS = frozenset({"value", "phase_deg", "tolerance"})
+#: Sheets with fewer parts are analysed at once in the GUI thread (see docs/architecture.md).
+INLINE_PARTS = 50
+#: One frame at 60 Hz (ms): numbers older than the document by more are marked "updating".
+FRAME_MS = 16
 
 
-def _value_only(old: PlacedPart, new: PlacedPart) -> bool:
+def _part_reach(old: PlacedPart, new: PlacedPart) -> Reach:
+    """How far replacing part ``old`` by ``new`` reaches."""
     changed = {f.name for f in fields(PlacedPart) if getattr(old, f.name) != getattr(new, f.name)}
-    return changed <= _VALUE_FIELDS and new.kind not in _REFERRING
+    if changed <= _VALUE_FIELDS and new.kind not in _REFERRING:
+        return Reach(values=frozenset({new.id}))
+    return Reach(sheet=True)
 
 
 class LiveAnalysis(QObject):
     """Follows the workbench's document and keeps the current region's analysis up to date."""
 
-    #: The current region's RegionAnalysis, or None when there is no region to analyse.
+    #: The current region's RegionAnalysis, or None when there is no region to analyse; always
+    #: of the document as it is (:attr:`shown_generation` equals :attr:`generation`).
     analysed = Signal(object)
     #: The equivalence check of the current analysis: an EquivalenceReport, or the reason
     #: there is none (text).
@@ -74,6 +80,12 @@ class LiveAnalysis(QObject):
     currentChanged = Signal(object)
     #: Each Change of the current document, once noted here (views of the region follow it).
     documentChanged = Signal(object)
+    #: True once the numbers shown are older than the document by more than a frame; False
+    #: when the newest are shown.
+    updating = Signal(bool)
+    # the worker's hand-overs, queued into the GUI thread
+    _answered = Signal(object)
+    _reported = Signal(int, object)
 
     def __init__(self, workbench: Workbench, parent: QObject | None = None) -> None:
         super().__init__(parent)
@@ -81,16 +93,28 @@ class LiveAnalysis(QObject):
         self.region_id: str | None = None
         self.analysis: RegionAnalysis | None = None
         self.conn: Connectivity | None = None
-        self._circuit: Circuit | None = None
-        self._circuit_hz: float | None = None
+        #: The document state's number (one more with every change the analysis follows) and
+        #: that of the analysis shown.
+        self.generation = 0
+        self.shown_generation = 0
+        self._checked_generation = 0
+        #: Sheets with fewer parts are analysed at once (0: always in the background).
+        self.inline_parts = INLINE_PARTS
+        self.is_updating = False
+        self._analyser = Analyser()
+        self._worker: AnalysisWorker | None = None
         self._parts: dict[str, PlacedPart] = {}
         self._region_ids: set[str] = set()
-        self._stale_sheet = True
-        self._stale_values: set[str] = set()
+        self._block_ids: set[str] = set()
+        self._reach = EVERYTHING
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
         self._check_timer = QTimer(self, singleShot=True, interval=0)
         self._check_timer.timeout.connect(self._check)
+        self._frame_timer = QTimer(self, singleShot=True, interval=FRAME_MS)
+        self._frame_timer.timeout.connect(self._frame_passed)
+        self._answered.connect(self._show, Qt.ConnectionType.QueuedConnection)
+        self._reported.connect(self._show_check, Qt.ConnectionType.QueuedConnection)
         self._unsubscribe = lambda: None
         workbench.documentReplaced.connect(self._follow)
         self._follow(workbench.doc)
@@ -104,8 +128,9 @@ class LiveAnalysis(QObject):
         self._unsubscribe()
         self._unsubscribe = doc.subscribe(self._on_change)
         self._region_ids = {r.id for r in doc.regions()}
-        self._stale_sheet = True
-        self._stale_values.clear()
+        self._parts = {p.id: p for p in doc.parts()}
+        self._block_ids = {b.id for b in doc.blocks()}
+        self._reach = EVERYTHING
         self.region_id = None
         self._schedule()
 
@@ -115,30 +140,46 @@ class LiveAnalysis(QObject):
         if not (change.added or change.removed or change.updated or change.analysis):
             self.documentChanged.emit(change)  # the title: nothing to analyse again
             return
+        reach = self._reach
         for eid in change.added:
-            if eid in doc and isinstance(doc[eid], Region):
+            if eid not in doc:
+                continue
+            element = doc[eid]
+            if isinstance(element, Region):
                 self._region_ids.add(eid)
-            elif eid in doc:
-                self._stale_sheet = True
+                continue
+            reach = reach.merged(Reach(sheet=True))
+            if isinstance(element, PlacedPart):
+                self._parts[eid] = element
+            elif isinstance(element, Block):
+                self._block_ids.add(eid)
         for eid in change.removed:
             if eid in self._region_ids:
                 self._region_ids.discard(eid)
-            elif eid not in doc:
-                self._stale_sheet = True
+            elif eid not in doc:  # a wire, label or junction reaches only the drawing
+                self._parts.pop(eid, None)
+                self._block_ids.discard(eid)
+                reach = reach.merged(Reach(sheet=True))
         for eid in change.updated:
             new = doc[eid]
             if isinstance(new, Region):
                 continue
             old = self._parts.get(eid)
-            if isinstance(new, PlacedPart) and old is not None and _value_only(old, new):
-                self._stale_values.add(eid)
-                self._parts[eid] = new
+            if isinstance(new, PlacedPart) and old is not None:
+                reach = reach.merged(_part_reach(old, new))
             else:
-                self._stale_sheet = True
+                reach = reach.merged(Reach(sheet=True))
+            if isinstance(new, PlacedPart):
+                self._parts[eid] = new
+        self._reach = reach
         self._schedule()
         self.documentChanged.emit(change)
 
     def _schedule(self) -> None:
+        """A new state of the document (or another region) to analyse."""
+        if self.shown_generation == self.generation:
+            self._frame_timer.start()  # the shown numbers start to age
+        self.generation += 1
         self._check_timer.stop()
         self._timer.start()
 
@@ -160,67 +201,63 @@ class LiveAnalysis(QObject):
 
     # -- the work -----------------------------------------------------------------------------
     def refresh(self) -> None:
-        """Analyse the current region now (the timer calls this once per burst of changes)."""
+        """Analyse the current state now (the timer calls this once per burst of changes): at
+        once on a small sheet, else in the background."""
         self._timer.stop()
-        doc = self.doc
         chosen = self._choose_region()
         if chosen != self.region_id:
             self.region_id = chosen
             self.currentChanged.emit(chosen)
-        if chosen is None:
-            self.analysis = None
-            self.analysed.emit(None)
-            self.checked.emit("no region to check")
+        reach, self._reach = self._reach, Reach()
+        worker = self._worker
+        if len(self._parts) < self.inline_parts and (worker is None or not worker.busy):
+            self._show(self._analyser.analyse(Job(self.generation, self.doc, chosen, reach)))
+            self._check_timer.start()
             return
-        try:
-            hz = parse_frequency(doc.analysis.freq)
-        except CircuitError:
-            self._update_sheet(doc, None)
-            self.analysis = analyse_region(doc, chosen, conn=self.conn)  # says what is wrong
-        else:
-            self._update_sheet(doc, hz)
-            self.analysis = analyse_region(doc, chosen, conn=self.conn, freq=hz,
-                                           circuit=self._circuit)
-        self.analysed.emit(self.analysis)
-        self._check_timer.start()
+        if worker is None:
+            worker = self._worker = AnalysisWorker(self._analyser, self._answered.emit,
+                                                   self._reported.emit)
+            self.destroyed.connect(worker.stop)
+        worker.submit(Job(self.generation, self.doc.snapshot(), chosen, reach))
 
-    def _update_sheet(self, doc: Document, hz: float | None) -> None:
-        """Bring the kept connectivity and circuit up to date with the document."""
-        before = self.conn
-        if self._stale_sheet or self.conn is None:
-            self.conn = extract(doc, previous=self.conn)  # re-joins only the nets a move touched
-            self._parts = {p.id: p for p in doc.parts()}
-        if hz != self._circuit_hz and doc.blocks():
-            self._circuit = None  # blocks stand in by their equivalent at the frequency
-        self._stale_sheet = False
-        changed, self._stale_values = self._stale_values, set()
-        if hz is None:
-            self._circuit = None
-            return
-        try:
-            if self._circuit is None or before is None:
-                self._circuit = build_circuit(doc, self.conn, hz)
-            elif self.conn is not before:  # rebuilds only the parts the edit changed or rewired
-                self._circuit = updated_circuit(self._circuit, doc, before, self.conn, hz)
-            elif changed:
-                sub = Document()
-                for eid in sorted(changed):
-                    sub.add(doc[eid])
-                self._circuit = self._circuit.replaced(build_circuit(sub, self.conn, hz))
-        except CircuitError:
-            self._circuit = None  # analyse_region builds again and reports the reason
-        self._circuit_hz = hz
+    def _show(self, answer: Answer) -> None:
+        if answer.generation != self.generation:
+            return  # the document has moved on: a newer answer is on its way
+        self.analysis, self.conn = answer.analysis, answer.conn
+        self.shown_generation = answer.generation
+        self._frame_timer.stop()
+        self._set_updating(False)
+        self.analysed.emit(self.analysis)
 
     def _check(self) -> None:
-        analysis = self.analysis
-        if analysis is None or not analysis.ok:
-            self.checked.emit("no equivalent to check" if analysis is None
-                              else "no equivalent to check: the cut is not valid")
-            return
-        try:
-            self.checked.emit(equivalence(analysis, self.doc.analysis.form))
-        except CircuitError as exc:
-            self.checked.emit(str(exc))
+        self._checked_generation = self.generation
+        self.checked.emit(check(self.analysis, self.doc.analysis.form))
+
+    def _show_check(self, generation: int, result: object) -> None:
+        if generation == self.generation == self.shown_generation:
+            self._checked_generation = generation
+            self.checked.emit(result)
+
+    def finish(self, timeout_s: float = 60.0) -> bool:
+        """Run the event loop until the numbers and the check shown are of the document as it
+        is (a screenshot, a script); False if ``timeout_s`` seconds pass first."""
+        deadline = time.monotonic() + timeout_s
+        while self._timer.isActive() or self._check_timer.isActive() or \
+                self._checked_generation != self.generation:
+            if time.monotonic() > deadline:
+                return False
+            QCoreApplication.processEvents()
+            time.sleep(0.001)  # the worker's answer is on its way
+        return True
+
+    def _frame_passed(self) -> None:
+        if self.shown_generation != self.generation:
+            self._set_updating(True)
+
+    def _set_updating(self, on: bool) -> None:
+        if on != self.is_updating:
+            self.is_updating = on
+            self.updating.emit(on)
 
     # -- sweeps -------------------------------------------------------------------------------
     def sweep(self, freqs: np.ndarray) -> Sweep:

@@ -168,6 +168,7 @@ def _screenshot(args: argparse.Namespace, window) -> int:
               f"rendered at {got[0]}x{got[1]}", file=sys.stderr)
     window.canvas.view.fit()
     window.canvas.scene.select_ids([doc.by_designator(n).id for n in names])
+    window.analysis.finish()  # a large sheet is analysed in the background
     QApplication.processEvents()
     ok = window.grab().save(str(args.screenshot))
     window.close()

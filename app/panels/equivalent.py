@@ -113,6 +113,7 @@ class EquivalentDock(QDockWidget):
 
         live.analysed.connect(self.show_analysis)
         live.checked.connect(self.show_check)
+        live.updating.connect(self.show_updating)
         live.currentChanged.connect(lambda _: self._fill_regions())
         canvas.selectionChanged.connect(lambda _: self._on_selection())
         live.documentChanged.connect(self._on_change)
@@ -274,6 +275,11 @@ class EquivalentDock(QDockWidget):
         self.forms.setText("<br>".join(forms_text(eq, form)))
         self.realisation.setText(keep_values(realisation_text(eq)))
         self.power.setText(keep_values(power_text(eq, self.doc.analysis.basis)))
+
+    def show_updating(self, on: bool) -> None:
+        """The numbers shown lag behind the document (greyed, and the title says so)."""
+        self.setWindowTitle("Equivalent (updating…)" if on else "Equivalent")
+        self.values.setEnabled(not on)
 
     def show_check(self, result: EquivalenceReport | str) -> None:
         self.check.setEnabled(True)

@@ -126,6 +126,16 @@ class Document:
 
     __hash__ = None  # mutable
 
+    def snapshot(self) -> Document:
+        """A copy that later mutations of this document do not reach, with no subscribers:
+        the elements are frozen, so copying the indexes is enough (a background analysis
+        reads one while the document is edited)."""
+        copy = Document.__new__(Document)
+        copy.__dict__.update(self.__dict__)
+        copy._elements, copy._block_ids = dict(self._elements), dict(self._block_ids)
+        copy._designators, copy._listeners, copy._pending = dict(self._designators), [], _Pending()
+        return copy
+
     def of_type(self, cls: type[T]) -> list[T]:
         return [e for e in self._elements.values() if isinstance(e, cls)]
 

@@ -273,7 +273,7 @@ class Netlist:
         netlist.groups = {kind: Group(columns, g.rows, g.nodes, _group_values(columns, g.rows),
                                       g.span)
                           for kind, g in self.groups.items()}
-        netlist.memo = {key: found for key, found in self.memo.items()
+        netlist.memo = {key: found for key, found in dict(self.memo).items()  # may grow meanwhile
                         if (key[0] if isinstance(key, tuple) else key) in self.STRUCTURAL}
         return netlist
 

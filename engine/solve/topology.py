@@ -22,6 +22,7 @@ engine/solve/branches.py.
 
 from __future__ import annotations
 
+import threading
 from collections.abc import Collection, Iterable, Sequence
 from dataclasses import dataclass
 from itertools import chain
@@ -156,11 +157,13 @@ def _complement(rows: np.ndarray | None, size: int) -> np.ndarray:
 
 class NetlistCache:
     """The netlists of the last ``keep`` regions, each tied to the columns it was built from,
-    most recently used first. The one instance is :data:`NETLISTS`."""
+    most recently used first. The one instance is :data:`NETLISTS`. The app analyses in a
+    background thread while panels call the engine, so the list is shared under a lock."""
 
     def __init__(self, keep: int) -> None:
         self.keep = keep
         self._recent: list[Netlist] = []
+        self._lock = threading.RLock()
 
     def of(self, columns: Columns, rows: np.ndarray | None = None) -> Netlist:
         """The :class:`Netlist` of the parts at ``rows`` of ``columns`` (None: all), reused
@@ -171,14 +174,15 @@ class NetlistCache:
         only in value (a value edit through ``Circuit.replaced``), its nets and node arrays are
         reused and only the values read again (:meth:`Netlist.with_values`).
         """
-        recent = self._recent
-        for i, kept in enumerate(recent):
-            found = kept.with_values(columns, rows)
-            if found is kept:
-                recent.insert(0, recent.pop(i))
-                return kept
-            if found is not None:
-                return self._kept(found)
+        with self._lock:
+            recent = self._recent
+            for i, kept in enumerate(recent):
+                found = kept.with_values(columns, rows)
+                if found is kept:
+                    recent.insert(0, recent.pop(i))
+                    return kept
+                if found is not None:
+                    return self._kept(found)
         return self._kept(Netlist.of(columns, rows))
 
     def forget(self, keep: int = 0) -> None:
@@ -186,13 +190,15 @@ class NetlistCache:
         matrices) refers back to them; clearing the memos frees that memory at once instead of
         at the next cyclic garbage collection, which a first analysis would otherwise pay for
         in fresh pages."""
-        for netlist in self._recent[keep:]:
-            netlist.memo.clear()
-        del self._recent[keep:]
+        with self._lock:
+            for netlist in self._recent[keep:]:
+                netlist.memo.clear()
+            del self._recent[keep:]
 
     def _kept(self, netlist: Netlist) -> Netlist:
-        self._recent.insert(0, netlist)
-        self.forget(self.keep)
+        with self._lock:
+            self._recent.insert(0, netlist)
+            self.forget(self.keep)
         return netlist
 
 

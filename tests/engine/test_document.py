@@ -281,3 +281,16 @@ def test_equal_when_elements_analysis_and_title_are(doc: Document) -> None:
 def test_a_document_is_not_hashable(doc: Document) -> None:
     with pytest.raises(TypeError):
         hash(doc)
+
+
+def test_a_snapshot_is_not_reached_by_later_mutations(doc: Document, seen: Recorder) -> None:
+    # what a background reader holds: equal to the document when taken, untouched afterwards
+    copy = doc.snapshot()
+    assert copy == doc and copy.by_designator("R2").id == "p2"
+    doc.replace_fields("p2", value="22k", designator="R9")
+    doc.remove("w1")
+    doc.set_analysis(Analysis(freq="1k"))
+    assert copy["p2"].value == "10k" and copy.by_designator("R2").id == "p2"
+    assert copy.by_designator("R9") is None and "w1" in copy and copy.analysis == Analysis()
+    copy.add(Wire("w9", ((0, 0), (0, 2))))  # its own indexes and no subscribers of its own
+    assert "w9" not in doc and len(seen.changes) == 3

@@ -1,0 +1,96 @@
+"""A background thread that runs the live analysis's jobs, newest first and only the newest.
+
+Jobs wait in one slot: a job submitted while another waits takes its place (carrying the
+dropped job's reach), so the thread never works on a state the document has already left
+behind. After each job it hands over the numbers, then runs the equivalence check of the same
+analysis unless a newer job is already waiting, and hands that over too unless one arrived
+meanwhile. The hand-over functions are called in the worker thread; the app passes the emit of
+a queued Qt signal, so they reach the GUI thread through its event loop.
+
+A Python thread (not a QThread): the work needs no event loop of its own, and a daemon thread
+never holds up the application's exit. It shares the interpreter with the GUI thread: numpy and
+SuperLU release the interpreter lock while they compute, and for the Python parts of the work
+the interpreter hands the lock over at every switch interval, which the worker sets to
+:data:`SWITCH_S` so that an input event waits at most about that long.
+"""
+
+from __future__ import annotations
+
+import sys
+import threading
+from collections.abc import Callable
+
+from .analyser import Analyser, Answer, Job, check
+
+__all__ = ["SWITCH_S", "AnalysisWorker"]
+
+#: The interpreter's thread switch interval while a worker exists (seconds; Python's own
+#: default is 5 ms, a third of a frame).
+SWITCH_S = 0.001
+
+
+class AnalysisWorker:
+    """Runs ``analyser``'s jobs in one daemon thread; ``numbers(answer)`` and
+    ``report(generation, check result)`` receive the results, in the worker thread."""
+
+    def __init__(self, analyser: Analyser, numbers: Callable[[Answer], None],
+                 report: Callable[[int, object], None]) -> None:
+        self.analyser = analyser
+        self._numbers, self._report = numbers, report
+        self._cond = threading.Condition()
+        self._waiting: Job | None = None
+        self._running = False
+        self._stopped = False
+        self._thread: threading.Thread | None = None
+
+    @property
+    def busy(self) -> bool:
+        """True while a job runs or waits (the analyser is the worker's then)."""
+        with self._cond:
+            return self._running or self._waiting is not None
+
+    def submit(self, job: Job) -> None:
+        """Run ``job`` next, in place of any job still waiting."""
+        with self._cond:
+            if self._waiting is not None:
+                job = job.after(self._waiting)
+            self._waiting = job
+            if self._thread is None:
+                sys.setswitchinterval(SWITCH_S)
+                self._thread = threading.Thread(target=self._run, name="live analysis",
+                                                daemon=True)
+                self._thread.start()
+            self._cond.notify()
+
+    def stop(self) -> None:
+        """End the thread after the job it runs (the waiting one is dropped)."""
+        with self._cond:
+            self._stopped, self._waiting = True, None
+            self._cond.notify()
+
+    def _newer_waiting(self) -> bool:
+        with self._cond:
+            return self._waiting is not None or self._stopped
+
+    def _run(self) -> None:
+        while True:
+            with self._cond:
+                self._running = False
+                while self._waiting is None and not self._stopped:
+                    self._cond.wait()
+                if self._stopped:
+                    return
+                job, self._waiting, self._running = self._waiting, None, True
+            try:
+                self._work(job)
+            except RuntimeError:  # the receiving Qt object is gone: the window closed
+                self.stop()
+
+    def _work(self, job: Job) -> None:
+        answer = self.analyser.analyse(job)
+        self._numbers(answer)
+        if self._newer_waiting():
+            return  # the check of a state already left behind: dropped
+        result = check(answer.analysis, job.doc.analysis.form)
+        if not self._newer_waiting():
+            self._report(job.generation, result)
