@@ -53,6 +53,8 @@ def updated_circuit(circuit: Circuit, doc: Document, before: Connectivity,
         return circuit
     old, new = before._sheet, after._sheet
     if new.keys is not old.keys and replaced_in_place(old.elements, new.elements) is None:
+        if not new.blocks and _placed_anew(old.parts, new.parts, before, after):
+            return circuit  # wires added or removed around parts that kept their nets
         return build_circuit(doc, after, freq)  # parts added, removed or renamed
     pins = new.designated_pins
     ids = {new.keys[k][0] for k in np.flatnonzero(
@@ -74,6 +76,20 @@ def updated_circuit(circuit: Circuit, doc: Document, before: Connectivity,
                                   for i in range(len(ROLES[part.kind]))])
     changed = [p for p in scratch if p != circuit[p.name]]
     return circuit.replaced(changed) if changed else circuit
+
+
+def _placed_anew(old: list[PlacedPart], new: list[PlacedPart], before: Connectivity,
+                 after: Connectivity) -> bool:
+    """Whether ``new`` are ``old`` changed at most in where they are drawn, each pin on a net
+    of the same name as before: the circuit reads nothing else of them."""
+    if len(old) != len(new):
+        return False
+    for p, q in zip(old, new, strict=True):
+        if p is not q and replace(q, at=p.at, rotation=p.rotation, mirror=p.mirror,
+                                  captions=p.captions) != p:
+            return False
+    return all(before.net_of_pin.get(pin) == after.net_of_pin[pin]
+               for pin in ((q.id, i) for q in new for i in range(len(ROLES[q.kind]))))
 
 
 def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str]) -> Circuit:
