@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import cache
+from typing import NamedTuple
 
 import numpy as np
 
@@ -102,10 +103,10 @@ def padded(box: Bounds) -> Bounds:
     return (box[0] - PAD_X, box[1] - PAD_Y, box[2] + PAD_X, box[3] + PAD_Y)
 
 
-@dataclass(frozen=True, slots=True)
-class PlacedCaption:
+class PlacedCaption(NamedTuple):
     """One caption as drawn: its lines, anchor point and alignment (for text_baselines), its
-    box, and whether it was crowded (no spot around the symbol was free)."""
+    box, and whether it was crowded (no spot around the symbol was free). A named tuple: a
+    sheet makes thousands."""
 
     role: str
     lines: tuple[str, ...]

@@ -15,7 +15,7 @@ three agree. Units: grid units, x right, y down.
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable, Iterator
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from functools import cache
 
 import numpy as np
@@ -42,8 +42,8 @@ __all__ = ["PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
 #: order (one spot at a time or a whole sheet at once) choose the same spot.
 DIGITS = 6
 #: How many of each caption's spots the whole-sheet pass scores (most captions take one of the
-#: first three; later spots are scored one at a time, only where reached).
-SHEET_SPOTS = 3
+#: first few; later spots are scored one at a time, only where reached).
+SHEET_SPOTS = 2
 
 #: One caption to place: its role, its position among the part's captions, its lines, its
 #: candidate spots, and the anchor point a dragged caption keeps (None: not dragged).
@@ -97,8 +97,8 @@ class Placement:
         if roles is None:
             return None
         ox, oy = self._origins[part_id]
-        return [replace(c, at=(c.at[0] - ox, c.at[1] - oy),
-                        box=(c.box[0] - ox, c.box[1] - oy, c.box[2] - ox, c.box[3] - oy))
+        return [c._replace(at=(c.at[0] - ox, c.at[1] - oy),
+                           box=(c.box[0] - ox, c.box[1] - oy, c.box[2] - ox, c.box[3] - oy))
                 for c in roles.values()]
 
     def update(self, doc: Document, changed: Iterable[str]) -> set[str]:
@@ -220,7 +220,7 @@ class Placement:
         old = self._reach.pop(part.id, None)
         if old is not None:
             self._reaches.remove(old, part.id)
-        self._reach[part.id] = _union(reach)
+        self._reach[part.id] = reach[0] if len(reach) == 1 else _union(reach)
         if index_reach:
             self._reaches.add("reach", self._reach[part.id], part.id, (rank, 0))
         self._origins[part.id] = part.at
@@ -233,17 +233,22 @@ class Placement:
         ``fixed`` holds the fixed obstacles' scores of the spots when they are known."""
         px, py = origin
         score: Callable[[Bounds], float] = self._index.score
+        placed, ranks = self._placed.score, self._ranks
+        # placing the whole sheet, every caption held was placed before this one
+        before = None if fixed is not None else rank
+        known = 0 if fixed is None else len(fixed)
         best, best_k = float("inf"), 0
         crowded = True
         for k, (x0, y0, x1, y1) in enumerate(where.rooms):
             room = (x0 + px, y0 + py, x1 + px, y1 + py)
-            cost = round(fixed[k] if fixed is not None and k < len(fixed) else score(room),
-                         DIGITS)
-            if cost >= best:
-                continue
-            # placing the whole sheet, every caption held was placed before this one
-            cost += round(self._placed.score(room, None if fixed is not None else rank,
-                                             self._ranks), DIGITS)
+            cost = fixed[k] if k < known else score(room)
+            if cost:
+                cost = round(cost, DIGITS)
+                if cost >= best:
+                    continue
+            covered = placed(room, before, ranks)
+            if covered:
+                cost += round(covered, DIGITS)
             if cost < best:
                 best, best_k = cost, k
                 if cost == 0:
