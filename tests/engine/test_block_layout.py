@@ -275,3 +275,13 @@ def test_a_ground_marker_moves_out_along_its_stub_until_it_is_clear():
     assert marker.style == "ground" and stub[0] == (0, 0) and stub[-1] == marker.at
     assert marker.at[0] - 1 > 1.5  # its bars start right of the box
 
+
+def test_a_ground_marker_hangs_below_its_pin_when_another_net_runs_past_on_the_right():
+    obstacles = Obstacles()
+    obstacles.occupy([(1, y) for y in range(-6, 7)], "other")  # a lead of another net at x = 1
+    marker, stub = place_marker(obstacles, "ground", GROUND, (0, 0), [(0, 0)],
+                                keep_out=(-5.0, -1.0, -0.5, 1.0))
+    assert stub[0] == (0, 0) and stub[-1] == marker.at and marker.at[0] == 0
+    assert marker.at[1] > 0  # straight down from the pin, crossing nothing
+    assert not any(p in obstacles.taken for p in grid_walk(stub))
+
