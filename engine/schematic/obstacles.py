@@ -197,18 +197,19 @@ def fixed_scores(rooms: np.ndarray, boxes: np.ndarray, weights: np.ndarray) -> n
         return np.zeros(len(rooms))
     box_row, box_key = _covered(boxes)
     order = np.argsort(box_key, kind="stable")
-    box_row, box_key = box_row[order], box_key[order]
+    box_row = box_row[order]
+    cells, first, held = np.unique(box_key[order], return_index=True, return_counts=True)
     room_row, room_key = _covered(rooms)
-    first = np.searchsorted(box_key, room_key, "left")
-    n = np.searchsorted(box_key, room_key, "right") - first
+    at = np.minimum(np.searchsorted(cells, room_key), len(cells) - 1)
+    n = np.where(cells[at] == room_key, held[at], 0)
     k = np.arange(int(n.sum())) - np.repeat(np.cumsum(n) - n, n)
     pr = np.repeat(room_row, n)
-    pb = box_row[np.repeat(first, n) + k]
-    r, b = rooms[pr], boxes[pb]
-    x0 = np.maximum(r[:, 0], b[:, 0])
-    y0 = np.maximum(r[:, 1], b[:, 1])
-    w = np.minimum(r[:, 2], b[:, 2]) - x0
-    h = np.minimum(r[:, 3], b[:, 3]) - y0
+    pb = box_row[np.repeat(first[at], n) + k]
+    # column by column: gathers from one-dimensional arrays are the cheap kind
+    x0 = np.maximum(rooms[:, 0][pr], boxes[:, 0][pb])
+    y0 = np.maximum(rooms[:, 1][pr], boxes[:, 1][pb])
+    w = np.minimum(rooms[:, 2][pr], boxes[:, 2][pb]) - x0
+    h = np.minimum(rooms[:, 3][pr], boxes[:, 3][pb]) - y0
     here = _key(np.floor_divide(x0, JOIN_CELL).astype(np.int64),
                 np.floor_divide(y0, JOIN_CELL).astype(np.int64)) == np.repeat(room_key, n)
     keep = (w > EPS) & (h > EPS) & here
