@@ -205,9 +205,11 @@ class Placement:
         rank = self._ranks[part.id]
         px, py = part.at
         out: dict[str, PlacedCaption] = {}
-        x0, y0, x1, y1 = _reach_at_origin(tuple(where for *_, where, _ in plan)) if plan else (
-            _body_at_origin(self._fixed[part.id][0][1], part.at))
-        reach = [(x0 + px, y0 + py, x1 + px, y1 + py)]
+        if plan:
+            x0, y0, x1, y1 = _reach_at_origin(tuple(where for *_, where, _ in plan))
+            reach = [(x0 + px, y0 + py, x1 + px, y1 + py)]
+        else:
+            reach = [self._fixed[part.id][0][1]]  # its body
         for role, i, lines, where, at in plan:
             if at is not None:  # dragged: kept whatever it covers
                 caption = PlacedCaption(role, lines, at, "c", text_box(lines, at, "c"))
@@ -264,10 +266,6 @@ class Placement:
 def _reach_at_origin(spots: tuple[Spots, ...]) -> Bounds:
     """Where the captions with these ``spots`` may go (their symbol's body included)."""
     return _union([found.reach for found in spots])
-
-
-def _body_at_origin(body: Bounds, at: FPoint) -> Bounds:
-    return (body[0] - at[0], body[1] - at[1], body[2] - at[0], body[3] - at[1])
 
 
 def _union(boxes: list[Bounds]) -> Bounds:
