@@ -32,7 +32,7 @@ from .symbols import (
 )
 
 __all__ = ["DESCENT", "PlacedCaption", "Spots", "dragged", "overlap", "part_texts", "spots",
-           "text_box"]
+           "text_box", "union"]
 
 #: Descent below the last baseline, in font sizes.
 DESCENT = 0.24
@@ -158,7 +158,7 @@ def spots(kind: str, rotation: int, mirror: bool, style: str, role: str, lines: 
     boxes = tuple(_shifted(_text_box_at_origin(lines, width, align, FONT_SIZE), at)
                   for at, align in found)
     rooms = tuple(map(padded, boxes))
-    reach = _union([body, boxes[0], _reach(body, lines, width)])
+    reach = union([body, boxes[0], _reach(body, lines, width)])
     return Spots(ats, aligns, boxes, rooms, np.array(rooms, dtype=float), reach)
 
 
@@ -197,6 +197,7 @@ def _reach(body: Bounds, lines: int, width: float) -> Bounds:
     return (x0 - GAP - width - FONT_SIZE, y0 - rows, x1 + GAP + width + FONT_SIZE, y1 + rows)
 
 
-def _union(boxes: list[Bounds]) -> Bounds:
+def union(boxes: list[Bounds]) -> Bounds:
+    """The smallest box holding ``boxes``."""
     x0s, y0s, x1s, y1s = zip(*boxes, strict=True)
     return (min(x0s), min(y0s), max(x1s), max(y1s))

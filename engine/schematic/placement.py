@@ -29,6 +29,7 @@ from .caption_spots import (
     part_texts,
     spots,
     text_box,
+    union,
 )
 from .document import Document
 from .model import CAPTION_ROLES, Element, PlacedPart
@@ -222,7 +223,7 @@ class Placement:
         old = self._reach.pop(part.id, None)
         if old is not None:
             self._reaches.remove(old, part.id)
-        self._reach[part.id] = reach[0] if len(reach) == 1 else _union(reach)
+        self._reach[part.id] = reach[0] if len(reach) == 1 else union(reach)
         if index_reach:
             self._reaches.add("reach", self._reach[part.id], part.id, (rank, 0))
         self._origins[part.id] = part.at
@@ -265,9 +266,6 @@ class Placement:
 @cache
 def _reach_at_origin(spots: tuple[Spots, ...]) -> Bounds:
     """Where the captions with these ``spots`` may go (their symbol's body included)."""
-    return _union([found.reach for found in spots])
+    return union([found.reach for found in spots])
 
 
-def _union(boxes: list[Bounds]) -> Bounds:
-    x0s, y0s, x1s, y1s = zip(*boxes, strict=True)
-    return (min(x0s), min(y0s), max(x1s), max(y1s))
