@@ -12,8 +12,8 @@ Three figures, each printed beside a floor measured in the same run on the same 
   given the previous result) — against moving one bare item and repainting. A first extraction
   of the whole sheet (no previous result) is printed beside it;
 * captions: placing every caption of the sheet (engine.schematic.placement, part of the open)
-against the
-  bare open, and re-placing them after a move (part of the move) against the bare move.
+  against the bare open, and re-placing them after a move (part of the move) against the bare
+  move.
 
 Run from the repository root: ``python3 benchmarks/canvas.py [--parts N]`` (offscreen unless a
 display is set). Targets: open under 1 s; frames without stalls (worst under 50 ms); a move with

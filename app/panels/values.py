@@ -23,7 +23,9 @@ _VALUE_SPACES = re.compile(
 def keep_values(text: str) -> str:
     """``text`` with non-breaking spaces inside every value ("114.6 µW", "- j 450.5 mV",
     "846.8 mV ∠ -32.14°"), so a line breaks only between values and words."""
-    return _VALUE_SPACES.sub("\u00a0", text)
+    # a line may still break after a hyphen-minus before a no-break space (UAX #14, LB12a):
+    # a word joiner (U+2060) holds the sign to its j
+    return _VALUE_SPACES.sub("\u00a0", text).replace("-\u00a0j", "-\u2060\u00a0j")
 
 
 def text_label(text: str = "", selectable: bool = True) -> QLabel:
@@ -111,4 +113,4 @@ class ValuesTable(QWidget):
 
     def text(self, key: str, form: str) -> str:
         """What a cell says, with plain spaces."""
-        return self.cells[key, form].text().replace("\u00a0", " ")
+        return self.cells[key, form].text().replace("\u00a0", " ").replace("\u2060", "")

@@ -19,10 +19,7 @@ from __future__ import annotations
 import math
 import re
 import xml.etree.ElementTree as ET
-from bisect import bisect_left, bisect_right
-from collections import Counter, defaultdict
 from collections.abc import Iterable, Sequence
-from itertools import pairwise
 
 from ..errors import CircuitError, ValueParseError
 from ..schematic.captions import block_caption, drawn_form
@@ -47,16 +44,15 @@ from ..schematic.symbols import (
     Polygon,
     Shape,
     TextAnchor,
-    pin_positions,
     place,
     placed_bounds,
     symbol,
     text_baselines,
     text_bounds,
-    transform,
 )
 from ..solve.mna import describe_freq
 from ..solve.units import parse_frequency
+from .dots import coupling_dots, junction_points
 from .palette import PALETTE, Palette
 
 __all__ = ["SCALE", "document_svg", "junction_points"]
@@ -258,79 +254,6 @@ def _outline_around(region: Region, doc: Document, style: str) -> list[tuple[flo
     return [(x0, y0), (x1, y0), (x1, y1), (x0, y1)]
 
 
-def junction_points(doc: Document) -> list[tuple[int, int]]:
-    """Where a junction dot is drawn: every explicit Junction, and every pin or wire end at
-    which three or more connections meet (a wire end counts one, a wire passing through or
-    bending there counts two, a pin one). Crossings without a junction never get a dot, as
-    they do not connect (engine.schematic.connectivity)."""
-    count: Counter[tuple[int, int]] = Counter()
-    # per row (y) of horizontal segments and per column (x) of vertical ones: their ends, sorted
-    rows: dict[int, list[tuple[int, int]]] = defaultdict(list)
-    columns: dict[int, list[tuple[int, int]]] = defaultdict(list)
-    for wire in doc.wires():
-        if len(set(wire.points)) < 2:  # a zero-length wire joins nothing new
-            continue
-        count[wire.points[0]] += 1
-        count[wire.points[-1]] += 1
-        for p in wire.points[1:-1]:
-            count[p] += 2
-        for (x0, y0), (x1, y1) in pairwise(wire.points):
-            if y0 == y1 and x0 != x1:
-                rows[y0].append((min(x0, x1), max(x0, x1)))
-            elif x0 == x1 and y0 != y1:
-                columns[x0].append((min(y0, y1), max(y0, y1)))
-    for pin in _all_pins(doc):
-        count[pin] += 1
-    across, along = _Spans(rows), _Spans(columns)
-    for (x, y) in list(count):
-        count[x, y] += 2 * (across.inside(y, x) + along.inside(x, y))
-    dots = {p for p, n in count.items() if n >= 3} | {j.at for j in doc.junctions()}
-    return sorted(dots)
-
-
-class _Spans:
-    """Open segments grouped by the line they lie on, counted by bisection: the segments
-    holding ``at`` strictly inside are those starting before it less those ending at or before
-    it (a segment that ends before ``at`` also starts before it)."""
-
-    def __init__(self, lines: dict[int, list[tuple[int, int]]]) -> None:
-        self.starts = {k: sorted(lo for lo, _ in v) for k, v in lines.items()}
-        self.ends = {k: sorted(hi for _, hi in v) for k, v in lines.items()}
-
-    def inside(self, line: int, at: int) -> int:
-        starts = self.starts.get(line)
-        if starts is None:
-            return 0
-        return bisect_left(starts, at) - bisect_right(self.ends[line], at)
-
-
-def _all_pins(doc: Document) -> Iterable[tuple[int, int]]:
-    for e in doc:
-        if isinstance(e, PlacedPart):
-            yield from pin_positions(e.kind, e.at, e.rotation, e.mirror)
-        elif isinstance(e, Block):
-            yield from pin_positions("block", e.at, e.rotation, e.mirror)
-        elif isinstance(e, NetLabel):
-            yield from pin_positions("ground" if e.style == "ground" else "label", e.at,
-                                     e.rotation)
-
-
-def _coupling_dots(doc: Document, style: str) -> list[tuple[float, float]]:
-    """The dot at the first node of each inductor a coupling names (dot convention)."""
-    parts = {p.designator: p for p in doc.parts()}
-    named = {d for p in parts.values() if p.kind == "coupling" for d in p.couples}
-    dots = []
-    for designator in sorted(named):
-        inductor = parts.get(designator)
-        if inductor is None or inductor.kind != "inductor":
-            continue
-        anchor = symbol("inductor", style).anchor("dot")
-        assert anchor is not None
-        dx, dy = transform(anchor.at, inductor.rotation, inductor.mirror)
-        dots.append((inductor.at[0] + dx, inductor.at[1] + dy))
-    return dots
-
-
 def _dot(parent: ET.Element, at: tuple[float, float], radius: float, cls: str,
          colour: str) -> None:
     ET.SubElement(parent, "circle", {"class": cls, "cx": _n(at[0]), "cy": _n(at[1]),
@@ -378,7 +301,7 @@ def document_svg(doc: Document, *, style: str = "iec", title: str | None = None,
     dots = sheet.layer("dots")
     for at in junction_points(doc):
         _dot(dots, at, JUNCTION_RADIUS, "junction", palette.ink)
-    for at in _coupling_dots(doc, style):
+    for at in coupling_dots(doc, style):
         _dot(dots, at, COUPLING_DOT_RADIUS, "coupling-dot", palette.ink)
     _heading(sheet, title if title is not None else doc.title, doc, freq_hz)
     _frame(sheet, background)

@@ -52,8 +52,13 @@ CLEAR = 0.5
 BEND = 3
 #: How far (grid units) beyond the drawing a lead may wander to get round things.
 MARGIN = 6
-#: How far (grid units) from where the region stood the block may move to find room.
+#: How far (grid units, in each axis) from where the region stood the block may move to find
+#: room inside the region's outline, and how far to find any room at all.
 REACH = 16
+FAR_REACH = 32
+#: How much further (grid units) than the nearest free spot outside the outline a better
+#: placed one may lie.
+SLACK = 8
 
 
 def union(boxes: Iterable[Bounds]) -> Bounds:
@@ -237,25 +242,55 @@ def _pin(doc: Document, key: tuple[str, int]) -> Point:
 
 
 def place_block(obstacles: Obstacles, centre: Point, boxes_at, area: Bounds) -> Point:
-    """The grid point nearest to ``centre`` (within :data:`REACH`) where the block's boxes
-    (``boxes_at(point)``) are free and lie inside ``area`` where they can; ``centre`` itself
-    when no spot is free (the block then overlaps what crowds it, rather than not collapsing)."""
-    cx, cy = centre
-    reach = union([grown(b, REACH + 1.0) for b in boxes_at(centre)])
+    """The grid point nearest to ``centre`` where the block's boxes (``boxes_at(point)``) are
+    free and lie inside ``area``, searched out to :data:`REACH`; else a free spot outside it,
+    searched outward ring by ring to :data:`FAR_REACH` (:func:`_outside_choice` picks among
+    the nearest); ``centre`` itself when no spot is free (the block then overlaps what crowds
+    it, rather than not collapsing)."""
+    reach = union([grown(b, FAR_REACH + 1.0) for b in boxes_at(centre)])
     obstacles = Obstacles([b for b in obstacles.boxes if _meet(b, reach)],
                           {p: n for p, n in obstacles.taken.items() if _holds(reach, p)})
-    spots = sorted(((x, y) for x in range(cx - REACH, cx + REACH + 1)
-                    for y in range(cy - REACH, cy + REACH + 1)),
-                   key=lambda p: (abs(p[0] - cx) + abs(p[1] - cy), p))
-    outside = None
-    for spot in spots:
+    outside: list[tuple[int, Point]] = []
+    for distance, spot in _rings(centre, FAR_REACH):
+        if outside and distance > max(2 * REACH, outside[0][0] + SLACK):
+            break  # no spot inside is left to find, nor a better one outside
         boxes = boxes_at(spot)
-        if all(obstacles.free(b, 1.0) for b in boxes):
-            if all(_meet(b, area) and _holds(area, b[:2]) and _holds(area, b[2:])
-                   for b in boxes):
-                return spot
-            outside = outside or spot
-    return outside or centre
+        if not all(obstacles.free(b, 1.0) for b in boxes):
+            continue
+        near = max(abs(spot[0] - centre[0]), abs(spot[1] - centre[1])) <= REACH
+        if near and all(_meet(b, area) and _holds(area, b[:2]) and _holds(area, b[2:])
+                        for b in boxes):
+            return spot
+        outside.append((distance, spot))
+    if not outside:
+        return centre
+    return _outside_choice([(d, p) for d, p in outside if d <= outside[0][0] + SLACK], area)
+
+
+def _rings(centre: Point, reach: int) -> Iterator[tuple[int, Point]]:
+    """Grid points by Manhattan distance from ``centre`` out to ``reach`` in both axes, each
+    ring in (x, y) order, with their distances."""
+    cx, cy = centre
+    for d in range(2 * reach + 1):
+        ring = sorted({(cx + dx, cy + sy * (d - abs(dx))) for dx in range(-d, d + 1)
+                       for sy in (-1, 1) if abs(dx) <= reach and d - abs(dx) <= reach})
+        for spot in ring:
+            yield d, spot
+
+
+def _outside_choice(spots: list[tuple[int, Point]], area: Bounds) -> Point:
+    """Of the free ``spots`` outside the region (with their distances), the nearest from
+    which the plus lead, laid first, need not pass the minus pin's way out to reach the
+    region: a spot where the region lies beyond the minus pin, seen from the plus pin, comes
+    after the others."""
+    ax, ay = (area[0] + area[2]) / 2, (area[1] + area[3]) / 2
+
+    def passes(spot: Point) -> bool:
+        (px, py), (mx, my) = pin_positions("block", spot)
+        ux, uy = mx - px, my - py
+        return (ax - px) * ux + (ay - py) * uy > ux * ux + uy * uy
+
+    return min(spots, key=lambda found: (passes(found[1]), found[0], found[1]))[1]
 
 
 _STEPS = ((1, 0), (-1, 0), (0, 1), (0, -1))
@@ -323,20 +358,34 @@ def place_marker(obstacles: Obstacles, style: str, name: str, pin: Point,
                  along: list[Point], keep_out: Bounds
                  ) -> tuple[NetLabel, tuple[Point, ...]] | None:
     """A ground or label named ``name`` (``style`` "ground" or "label") at one of the grid
-    points ``along`` the pin's leads, or at the end of a short stub straight out of ``pin`` to
-    the right; its body and name clear of every box, every occupied point (the leads' included)
-    and the block's ``keep_out``. Returns the marker (id left empty) and the stub's points
-    (empty when it sits on a lead), or None."""
+    points ``along`` the pin's leads, or at the end of a short straight stub out of ``pin``
+    (to the right first, then down, left and up); its body and name clear of every box, every
+    occupied point (the leads' included) and the block's ``keep_out``. Returns the marker (id
+    left empty) and the stub's points (empty when it sits on a lead), or None."""
     turns = (0,) if style == "ground" else (0, 270, 90, 180)
-    on_lead = [pt for pt in along if pt != pin and not _holds(keep_out, pt)]
-    stubs = [(pin[0] + k, pin[1]) for k in range(1, 7)]
-    for at, stub in [*((pt, ()) for pt in on_lead), *((pt, (pin, pt)) for pt in stubs)]:
-        if stub and any(obstacles.blocked(p, frozenset()) or _holds(keep_out, p)
-                        for p in grid_walk(stub)[1:]):
-            break
+    for at, stub in _marker_spots(obstacles, pin, along, keep_out):
         for turn in turns:
             body = marker_body(style, at, turn, name)
             if obstacles.free(body, 0.3) and not _meet(grown(body, 0.3), keep_out):
                 return NetLabel("", name, at, turn, style), stub
     return None
 
+
+#: Directions a marker's stub may leave its pin in, most wanted first, and its longest length.
+_STUB_WAYS = ((1, 0), (0, 1), (-1, 0), (0, -1))
+STUB = 6
+
+
+def _marker_spots(obstacles: Obstacles, pin: Point, along: list[Point], keep_out: Bounds
+                  ) -> Iterator[tuple[Point, tuple[Point, ...]]]:
+    """Where a marker of ``pin``'s net may sit: the points of its leads, then the ends of
+    straight stubs out of the pin that cross nothing taken and stay out of ``keep_out``."""
+    for pt in along:
+        if pt != pin and not _holds(keep_out, pt):
+            yield pt, ()
+    for dx, dy in _STUB_WAYS:
+        for k in range(1, STUB + 1):
+            end = (pin[0] + dx * k, pin[1] + dy * k)
+            if obstacles.blocked(end, frozenset()) or _holds(keep_out, end):
+                break  # a longer stub this way would cross it too
+            yield end, (pin, end)

@@ -7,7 +7,8 @@ from __future__ import annotations
 
 import pytest
 from PySide6.QtCore import QPoint, QRect, Qt
-from PySide6.QtWidgets import QAbstractButton, QApplication, QWidget
+from PySide6.QtGui import QTextLayout
+from PySide6.QtWidgets import QAbstractButton, QApplication, QLabel, QWidget
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle
 
 from portcut import assets
@@ -61,7 +62,10 @@ def test_no_button_is_clipped_on_any_example(window, name, size):
 def test_values_keep_their_units_and_terms_together():
     # line breaks may fall only between values (non-breaking space U+00A0, Unicode UAX #14)
     assert keep_values("114.6 µW") == "114.6\u00a0µW"
-    assert keep_values("717 mV - j 450.5 mV") == "717\u00a0mV -\u00a0j\u00a0450.5\u00a0mV"
+    # a break may fall after a hyphen-minus even before a no-break space (UAX #14, LB12a), so
+    # a word joiner (U+2060) holds the minus to its j
+    assert keep_values("717 mV - j 450.5 mV") == "717\u00a0mV -\u2060\u00a0j\u00a0450.5\u00a0mV"
+    assert keep_values("717 mV + j 450.5 mV") == "717\u00a0mV +\u00a0j\u00a0450.5\u00a0mV"
     assert keep_values("846.8 mV ∠ -32.14°") == "846.8\u00a0mV\u00a0∠\u00a0-32.14°"
     assert keep_values("R2 inside, 3 nets") == "R2 inside, 3 nets"
 
@@ -80,6 +84,38 @@ def test_the_forms_stack_when_the_panel_is_narrow(window):
         below = polar.geometry().top() > rect.geometry().top()
         assert below is stacked
         assert rect.text().count(" ") == 1  # the one place to break: between the two terms
+
+
+def _laid_lines(label: QLabel, width: int) -> list[str]:
+    """The lines Qt's text layout breaks ``label``'s text into at ``width`` pixels, in the
+    label's own font."""
+    layout = QTextLayout(label.text(), label.font())
+    layout.beginLayout()
+    lines = []
+    while (line := layout.createLine()).isValid():
+        line.setLineWidth(width)
+        lines.append(label.text()[line.textStart():line.textStart() + line.textLength()])
+    layout.endLayout()
+    return lines
+
+
+def test_a_stacked_complex_value_breaks_only_between_its_terms(window):
+    # the anti-alias filter at 10 kHz: Voc and Z have negative imaginary parts ("- j ...")
+    assert window.files.open_path(assets.example_path("rc_antialias"), as_copy=True)
+    window.resize(1280, 720)
+    panel = window.equivalent_dock
+    values = panel.values
+    window.resizeDocks([panel], [240], Qt.Orientation.Horizontal)
+    settle()
+    assert values.stacked
+    signed = [values.cells[key, "rectangular"] for key, _ in values.ROWS]
+    assert any(" - j " in values.text(key, "rectangular") for key, _ in values.ROWS)
+    for cell in signed:
+        for width in (cell.width(), 60, 40):
+            for line in _laid_lines(cell, width):
+                # never split at the sign or the j of a term, nor inside a number and its unit
+                assert not line.rstrip().endswith(("-", "+", "j")), (cell.text(), width, line)
+                assert not line.startswith(("\u00a0", "\u2060", "j")), (cell.text(), width, line)
 
 
 def test_undo_and_redo_keep_their_labels(window, drive):

@@ -18,7 +18,6 @@ import pytest
 
 from portcut import assets
 from portcut.engine.drawing.svg import SCALE, document_svg
-from portcut.engine.errors import CircuitError
 from portcut.engine.schematic import Document, Region, Wire, extract, load
 from portcut.engine.schematic.block_layout import Obstacles, grid_walk, place_marker, route
 from portcut.engine.schematic.model import Block, NetLabel, PlacedPart
@@ -235,10 +234,6 @@ def test_collapsed_ladders_at_every_pitch_draw_clear_leads(pitch, inside, labell
         _check_sheet(doc, style)
 
 
-@pytest.mark.xfail(strict=True, raises=CircuitError,
-                   reason="with captions where the placement puts them, the second collapse of "
-                          "this 5-unit ladder finds no clear lead path and refuses; the block's "
-                          "spot search must learn to move further than its 16-unit reach")
 def test_a_second_block_keeps_clear_of_the_first():
     doc = _ladder(6, 5, 2, labelled=True)
     (source_side,) = doc.regions()
@@ -279,4 +274,14 @@ def test_a_ground_marker_moves_out_along_its_stub_until_it_is_clear():
                                 keep_out=(-5.0, -1.0, -0.5, 1.0))
     assert marker.style == "ground" and stub[0] == (0, 0) and stub[-1] == marker.at
     assert marker.at[0] - 1 > 1.5  # its bars start right of the box
+
+
+def test_a_ground_marker_hangs_below_its_pin_when_another_net_runs_past_on_the_right():
+    obstacles = Obstacles()
+    obstacles.occupy([(1, y) for y in range(-6, 7)], "other")  # a lead of another net at x = 1
+    marker, stub = place_marker(obstacles, "ground", GROUND, (0, 0), [(0, 0)],
+                                keep_out=(-5.0, -1.0, -0.5, 1.0))
+    assert stub[0] == (0, 0) and stub[-1] == marker.at and marker.at[0] == 0
+    assert marker.at[1] > 0  # straight down from the pin, crossing nothing
+    assert not any(p in obstacles.taken for p in grid_walk(stub))
 
