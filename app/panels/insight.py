@@ -85,6 +85,9 @@ class InsightDock(QDockWidget):
         self.run_button = self.monte_box.run_button
         self.run_button.clicked.connect(self.run_monte_carlo)
         self._build()
+        # the figures take several solves: worked out only while the dock is shown
+        self._stale = False
+        self.visibilityChanged.connect(lambda shown: shown and self._stale and self._refresh())
         live.analysed.connect(self.show_analysis)
         self.show_analysis(live.analysis)
 
@@ -132,8 +135,17 @@ class InsightDock(QDockWidget):
         return a.circuit, set(a.part_names), a.equivalent.port
 
     def show_analysis(self, analysis: RegionAnalysis | None) -> None:
+        """Follow ``analysis``: at once while the dock is shown, else when it is next shown."""
         self.analysis = analysis
         self.monte_box.clear()
+        # a dock tabbed behind another stays "visible" to Qt but shows nothing
+        self._stale = self.visibleRegion().isEmpty()
+        if not self._stale:
+            self._refresh()
+
+    def _refresh(self) -> None:
+        self._stale = False
+        analysis = self.analysis
         if not self._usable():
             self.status.setText("Draw a valid region to see which parts matter"
                                 if analysis is None or analysis.ok else analysis.message)

@@ -165,3 +165,22 @@ def test_monte_carlo_matches_first_order_propagation(window, drive, distribution
     assert abs(m.mean["voc"] - voc.n) <= 4 * voc.s / math.sqrt(m.n) + second
     # the sample σ within 3 % (its own standard error is about 1/√(2n) = 0.7 %)
     assert m.std["voc"] == pytest.approx(voc.s, rel=0.03)
+
+
+def test_a_hidden_panel_catches_up_when_shown(window, drive):
+    # The figures cost several solves, so a tabbed-away panel waits until it is shown; then it
+    # ranks the divider's parts as above (common practice: S(voc, R2) = +R1/(R1+R2) = 0.25, and
+    # with R2 typed as 1k, S(voc, R2) = 1k/2k = 0.5).
+    dock = _drawn(window, drive, divider())
+    window.equivalent_dock.raise_()
+    settle()
+    assert dock.visibleRegion().isEmpty()
+    drive.key(Qt.Key.Key_S)
+    drive.click(drive.by("R2").at)
+    type_into(window.inspector.editors["value"].edit, "1k")
+    row = dock.ranked_parts().index("R2")
+    assert dock.table.item(row, 1).text() == "+0.250"  # not yet followed
+    dock.raise_()
+    settle()
+    row = dock.ranked_parts().index("R2")
+    assert dock.table.item(row, 1).text() == "+0.500"
