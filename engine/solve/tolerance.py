@@ -20,6 +20,7 @@ import numpy as np
 from ..errors import CircuitError, ValueParseError
 from . import topology
 from .adjoint import port_solution, port_stamps
+from .limits import board_yield
 from .sensitivity import sensitivity, valued_parts
 from .units import parse_frequency
 
@@ -235,15 +236,7 @@ def monte_carlo(circuit, region: Collection[str], tolerances: Mapping[str, float
     samples = _Batch(cut, f, tol).figures(deltas)
     for a in samples.values():
         a.flags.writeable = False
-    yield_pct = None
-    if limits:
-        inside = np.ones(n, dtype=bool)
-        for name, (lo, hi) in limits.items():
-            if lo is not None:
-                inside &= samples[name] >= lo
-            if hi is not None:
-                inside &= samples[name] <= hi
-        yield_pct = 100.0 * float(inside.mean())
+    yield_pct = board_yield(samples, limits).overall if limits else None
     return MonteCarlo(cut.port, f, n, distribution, seed, samples,
                       {k: float(v.mean()) for k, v in samples.items()},
                       {k: float(v.std(ddof=1)) for k, v in samples.items()}, limits, yield_pct)
