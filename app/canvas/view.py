@@ -8,7 +8,7 @@ canvas, as in Qt's text editors).
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Protocol
 
 from PySide6.QtCore import QEvent, QLineF, QPoint, QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import (
@@ -29,8 +29,8 @@ from ..theme import qcolor
 from .grid import UNIT, to_scene
 
 if TYPE_CHECKING:
-    from .canvas import Canvas
-    from .tools import CanvasEvent
+    from .scene import SchematicScene
+    from .tools import CanvasEvent, Tool
 
 __all__ = ["ENTRY_MIME", "SchematicView"]
 
@@ -44,6 +44,22 @@ _ARROWS = {Qt.Key.Key_Left: (-1, 0), Qt.Key.Key_Right: (1, 0), Qt.Key.Key_Up: (0
            Qt.Key.Key_Down: (0, 1)}
 
 
+class ViewHost(Protocol):
+    """What the view uses of the canvas (app.canvas.Canvas is one): its scene, current tool and
+    keyboard cursor (a grid point), the pointer event at a scene point, and two gestures."""
+
+    scene: SchematicScene
+    tool: Tool
+    cursor: Point
+
+    def event_at(self, scene_pos: QPointF, button: Qt.MouseButton = ...,
+                 modifiers: Qt.KeyboardModifier = ..., keyboard: bool = ...) -> CanvasEvent: ...
+
+    def place(self, key: str, once: bool = False) -> None: ...
+
+    def cancel(self) -> None: ...
+
+
 class SchematicView(QGraphicsView):
     """Shows the canvas's scene and feeds its current tool."""
 
@@ -51,7 +67,7 @@ class SchematicView(QGraphicsView):
     #: Grid point under the pointer or keyboard cursor.
     cursorMoved = Signal(tuple)
 
-    def __init__(self, canvas: Canvas) -> None:
+    def __init__(self, canvas: ViewHost) -> None:
         super().__init__(canvas.scene)
         self.canvas = canvas
         self.setRenderHints(QPainter.RenderHint.Antialiasing
