@@ -1,8 +1,7 @@
-"""SVG export benchmark: engine.drawing.svg.document_svg on generated ladder sheets of 2,000 and
-20,000
-parts (benchmarks/canvas.py's generator: two parts, two wires and a tee per cell), laid out in
-rows of 40 cells and as one long row (every tee on one rail: where a count of the segments
-through each point per line grows with the square of the line's length).
+"""SVG export benchmark: engine.drawing.svg.document_svg on generated ladder sheets of 2,000
+and 20,000 parts (benchmarks/canvas.py's generator: two parts, two wires and a tee per cell),
+laid out in rows of 40 cells and as one long row (every tee on one rail: where a count of the
+segments through each point per line grows with the square of the line's length).
 
 For each size it prints the export's time per part beside a floor measured in the same run: an
 ElementTree tree with one group, one polyline and one text per part and one polyline per wire,

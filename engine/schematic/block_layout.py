@@ -1,9 +1,9 @@
 """Where a collapsed block goes and how its two leads reach the sheet, clear of everything drawn.
 
 The sheet is read as the SVG writer and the canvas draw it: every symbol's body
-(engine.schematic.symbols.placed_bounds), every caption's box (engine.schematic.symbols.text_bounds
-at the symbol's
-anchors) and every grid point a wire or pin of each net occupies. :class:`Obstacles` holds that
+(engine.schematic.symbols.placed_bounds), every caption's box
+(engine.schematic.symbols.text_bounds at the symbol's anchors) and every grid point a wire or
+pin of each net occupies. :class:`Obstacles` holds that
 picture; :func:`place_block` finds the free spot nearest to where the region stood for the
 block with its captions; :func:`route` finds an orthogonal lead on the integer grid by A*
 search (unit steps, a penalty per bend), never through a body, a caption, a point of another

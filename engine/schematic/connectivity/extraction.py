@@ -51,9 +51,9 @@ class Connectivity:
 
     ``net_of_pin[(element_id, pin_index)]`` for every pin of a part, block or net marker
     (pin order of engine.schematic.symbols.PINS); ``net_of_wire[wire_id]``; ``warnings`` in a
-    stable order;
-    ``nets[name]`` the grid points of each net (its pins, wire vertices and junctions),
-    gathered on first use. Read-only: a later ``extract(doc, previous=...)`` starts from it.
+    stable order; ``nets[name]`` the grid points of each net (its pins, wire vertices and
+    junctions), gathered on first use. Read-only: a later ``extract(doc, previous=...)``
+    starts from it.
     """
 
     net_of_pin: dict[tuple[str, int], str]
