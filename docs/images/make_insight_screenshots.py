@@ -24,7 +24,6 @@ from PySide6.QtWidgets import QApplication
 
 from portcut import assets
 from portcut.app.commands import ReplaceElements
-from portcut.app.panels import _show_sweep
 from portcut.app.panels.sweep import FOLLOW_MS
 from portcut.app.settings import Settings
 from portcut.app.window import MainWindow
@@ -53,7 +52,8 @@ def _type(edit, text: str) -> None:
     edit.editingFinished.emit()
 
 
-def _insight(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWindow:
+def _bridge(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWindow:
+    """The bridge with ±1 % gauges, the insight panel shown with a 0-10 Hz noise band."""
     window = _window(scratch, size)
     window.files.open_path(assets.example_path("strain_gauge_bridge"), as_copy=True)
     doc = window.workbench.doc
@@ -66,6 +66,14 @@ def _insight(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWind
     _settle(app)
     _type(dock.band_lo, "0")
     _type(dock.band_hi, "10")
+    window.canvas.view.fit()
+    _settle(app)
+    return window
+
+
+def _insight(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWindow:
+    window = _bridge(app, scratch, size)
+    dock = window.insight_dock
     dock.run_button.click()
     views = dock.monte_box.views
     _type(views["voc"].high.edit, "20m")   # the ADC's offset budget
@@ -84,7 +92,7 @@ def _sweep(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWindow
     window = _window(scratch, size)
     window.files.open_path(assets.example_path("rc_antialias"), as_copy=True)
     _settle(app)
-    _show_sweep(window)
+    window.equivalent_dock.sweep_button.click()
     dock = window.sweep_dock
     window.resizeDocks([dock], [int(size[1] * 0.55)], Qt.Orientation.Vertical)
     for key, on in (("phase", False), ("voc", False), ("noise", True), ("sensitivity", True)):
@@ -108,6 +116,9 @@ def main() -> int:
             path = out / f"{name}-{tag}.png"
             window.grab().save(str(path))
             print(f"wrote {path}")
+    path = out / "insight-panel.png"  # the panel's top: parts by influence, noise, standard values
+    _bridge(app, scratch, SIZES[1]).grab().save(str(path))
+    print(f"wrote {path}")
     os._exit(0)  # no teardown: closing would ask about the unsaved sheets
 
 

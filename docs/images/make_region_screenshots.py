@@ -22,7 +22,6 @@ from PySide6.QtWidgets import QApplication
 
 from portcut import assets
 from portcut.app.commands import ReplaceElements
-from portcut.app.panels import _show_sweep
 from portcut.app.panels.sweep import FOLLOW_MS
 from portcut.app.region_edits import port_text
 from portcut.app.settings import Settings
@@ -71,7 +70,7 @@ def main() -> int:
     window.workbench.undo_stack.undo()
 
     window.resize(SIZE[0], 1000)
-    _show_sweep(window)
+    window.equivalent_dock.sweep_button.click()
     _shoot(app, window, "sweep-view.png")
 
     window = _window(app, scratch)
