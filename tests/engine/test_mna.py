@@ -1,4 +1,4 @@
-"""The MNA assembly, factorization and error bound (engine/solve/mna.py), entry by entry.
+"""The MNA assembly, factorization and error bound (engine/solve/mna/), entry by entry.
 
 Stamps are checked against the modified nodal form of Ho, Ruehli and Brennan, "The modified
 nodal approach to network analysis", IEEE Trans. Circuits and Systems CAS-22 (1975): node rows
