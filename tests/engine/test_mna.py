@@ -18,7 +18,7 @@ import pytest
 from portcut.engine import GROUND, Circuit, SingularCircuitError
 from portcut.engine.cli.bench import mixed_circuit
 from portcut.engine.solve import mna
-from portcut.engine.solve.mna import EPS, Factor, Netlist, Singular, System, assemble
+from portcut.engine.solve.mna import EPS, Factor, Netlist, System, assemble
 
 
 def build(c: Circuit, reference: str = GROUND) -> System:
@@ -193,8 +193,31 @@ def test_singular_message_names_undetermined_unknowns_and_op_amps() -> None:
     c.voltage_source("V1", "p", GROUND, 1)
     c.opamp("U1", "p", GROUND, "o")  # no feedback: nothing fixes the output
     s = build(c)
-    with pytest.raises(Singular, match=r"no equation determines .*U1.*negative feedback"):
+    with pytest.raises(SingularCircuitError,
+                       match=r"no equation determines .*U1.*negative feedback"):
         Factor(s, 0)
+
+
+def test_a_defect_is_not_reported_as_a_singular_circuit() -> None:
+    # A right-hand side of the wrong shape is the caller's bug: it must surface as the error
+    # SciPy raises, not as "no unique solution".
+    s = build(divider())
+    factor = Factor(s, 0)
+    with pytest.raises(ValueError) as raised:
+        factor.solve(np.ones(s.size + 1))
+    assert not isinstance(raised.value, SingularCircuitError)
+
+
+def test_only_superlus_singular_report_becomes_a_circuit_error(monkeypatch: pytest.MonkeyPatch
+                                                                ) -> None:
+    # Any other failure of the factorization (here a stand-in for running out of memory) is no
+    # property of the circuit and passes through unchanged.
+    def failing(*_args: object, **_kwargs: object) -> None:
+        raise RuntimeError("not enough memory")
+
+    monkeypatch.setattr(mna.factor, "splu", failing)
+    with pytest.raises(RuntimeError, match="not enough memory"):
+        Factor(build(divider()), 0)
 
 
 def test_error_bound_covers_the_actual_error() -> None:

@@ -22,21 +22,21 @@ through its parts sum to the current injected into it (the right-hand side); a c
 read ``V(a) - V(b) - s L I - s M I' = 0`` with ``M = k sqrt(L1 L2)`` for a coupled partner, so at
 DC an inductor is a short; a capacitor stamps ``s C`` and is open at DC.
 
-A matrix that cannot be factorized, or a solution that is not finite, raises :class:`Singular`
-(a :class:`~engine.errors.SingularCircuitError`) naming the likely culprits; no NumPy or SciPy
-exception or warning leaves this module.
+A matrix that SuperLU finds exactly singular, or a solution that is not finite, raises
+:class:`~engine.errors.SingularCircuitError` naming the likely culprits; any other exception is a
+defect and passes through.
 
 The package: :mod:`.netlist` (the parts as arrays, the branch unknowns), :mod:`.stamping` (each
 kind's entries), :mod:`.system` (assembly), :mod:`.factor` (factorization, solves, error bounds)
 and :mod:`.diagnosis` (why a system is singular).
 """
 
-from .diagnosis import Singular, describe_freq
+from .diagnosis import describe_freq, singular
 from .factor import EPS, ORDERING, Factor, bound, rounding
 from .netlist import WIDE_SPAN, Branches, Group, Netlist
 from .system import System, assemble
 
 __all__ = [
-    "EPS", "ORDERING", "WIDE_SPAN", "Branches", "Factor", "Group", "Netlist", "Singular",
-    "System", "assemble", "bound", "describe_freq", "rounding",
+    "EPS", "ORDERING", "WIDE_SPAN", "Branches", "Factor", "Group", "Netlist", "System",
+    "assemble", "bound", "describe_freq", "rounding", "singular",
 ]

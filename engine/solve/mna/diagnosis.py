@@ -10,7 +10,7 @@ from ...errors import SingularCircuitError
 from ..units import format_eng
 from .system import System
 
-__all__ = ["Singular", "describe_freq"]
+__all__ = ["describe_freq", "singular"]
 
 
 def describe_freq(freq: float) -> str:
@@ -18,13 +18,12 @@ def describe_freq(freq: float) -> str:
     return "DC" if freq == 0 else format_eng(freq, "Hz")
 
 
-class Singular(SingularCircuitError):
-    """The system has no unique solution; the message names the likely culprits."""
-
-    def __init__(self, system: System, freq: float, matrix: sp.spmatrix | None = None) -> None:
-        self.system, self.freq = system, freq
-        super().__init__(f"the circuit equations have no unique solution at {describe_freq(freq)}"
-                         f"{_culprits(system, matrix)}")
+def singular(system: System, freq: float, matrix: sp.spmatrix | None = None
+             ) -> SingularCircuitError:
+    """The error for ``system`` having no unique solution at ``freq`` Hz, naming the likely
+    culprits (read from ``matrix``, the system's matrix there, where given)."""
+    return SingularCircuitError(f"the circuit equations have no unique solution at "
+                                f"{describe_freq(freq)}{_culprits(system, matrix)}")
 
 
 def _culprits(system: System, matrix: sp.spmatrix | None) -> str:

@@ -2,13 +2,11 @@
 
 from __future__ import annotations
 
-import warnings
-
 import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 
-from .diagnosis import Singular
+from .diagnosis import singular
 from .system import System
 
 __all__ = ["EPS", "ORDERING", "Factor", "bound", "rounding"]
@@ -23,19 +21,23 @@ ORDERING = "MMD_AT_PLUS_A"
 class Factor:
     """One sparse LU factorization of ``A(j 2 pi freq)``, solving many right-hand sides.
 
-    Raises :class:`Singular` where SuperLU finds the matrix singular (however SciPy signals it)
-    and where a solution is not finite.
+    Raises :class:`~engine.errors.SingularCircuitError` where SuperLU finds the matrix exactly
+    singular and where a solution is not finite (a matrix singular to working precision). Any
+    other exception is a defect of the caller (a right-hand side of the wrong shape, say) and
+    passes through as it is.
     """
 
     def __init__(self, system: System, freq: float) -> None:
         self.system, self.freq = system, freq
         self.matrix = system.matrix(freq)
         try:
-            with warnings.catch_warnings():
-                warnings.simplefilter("error")
-                self._lu = splu(self.matrix, permc_spec=ORDERING)
-        except (RuntimeError, ValueError, ArithmeticError, np.linalg.LinAlgError, Warning):
-            raise Singular(system, freq, self.matrix) from None
+            self._lu = splu(self.matrix, permc_spec=ORDERING)
+        except RuntimeError as exc:
+            # SuperLU reports a zero pivot as RuntimeError("Factor is exactly singular"); its
+            # other RuntimeErrors (out of memory, say) are no property of the circuit
+            if "singular" not in str(exc):
+                raise
+            raise singular(system, freq, self.matrix) from None
 
     def solve(self, rhs: np.ndarray, transposed: bool = False) -> np.ndarray:
         """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k); refined by one step
@@ -45,19 +47,17 @@ class Factor:
             # SuperLU solves in the factor's own dtype: real factor, complex rhs in two parts
             return self.solve(data.real, transposed) + 1j * self.solve(data.imag, transposed)
         trans = "T" if transposed else "N"
-        try:  # (SuperLU's solve raises; it neither warns nor heeds NumPy's error state)
-            x = self._lu.solve(data, trans=trans)
-            if self.system.refined:
-                # One step of refinement with the residual: the wide form's rows mix scales,
-                # where the pivots SuperLU picks can leave an error well above the rounding
-                # of the data; one step brings it back (docs/method.md).
-                a = self.matrix.T if transposed else self.matrix
-                with np.errstate(all="ignore"):
-                    x = x + self._lu.solve(data - a @ x, trans=trans)
-        except (RuntimeError, ValueError, ArithmeticError):
-            raise Singular(self.system, self.freq, self.matrix) from None
+        # (a factor found is never singular to SuperLU's solve: what it raises is a defect)
+        x = self._lu.solve(data, trans=trans)
+        if self.system.refined:
+            # One step of refinement with the residual: the wide form's rows mix scales,
+            # where the pivots SuperLU picks can leave an error well above the rounding
+            # of the data; one step brings it back (docs/method.md).
+            a = self.matrix.T if transposed else self.matrix
+            with np.errstate(all="ignore"):
+                x = x + self._lu.solve(data - a @ x, trans=trans)
         if not np.isfinite(x).all():
-            raise Singular(self.system, self.freq, self.matrix)
+            raise singular(self.system, self.freq, self.matrix)
         return x
 
     def error_bound(self, x: np.ndarray, rhs: np.ndarray, adjoint: np.ndarray) -> float:
