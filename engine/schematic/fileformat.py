@@ -417,7 +417,7 @@ def _params(data: Any, path: str, kind: str, designator: str) -> tuple[tuple[str
     out = []
     for key in known:
         if key in data:
-            text = _text(data[key], f"{path}.{key}")
+            text = _text(data[key], f"{path}.{key}", lines=key == "table")
             if key == "table":
                 try:
                     parse_table(text, name=f"{designator} readings")
@@ -555,10 +555,10 @@ def _fields(data: Any, path: str, required: tuple[str, ...] = (),
     return {**(defaults or {}), **data}
 
 
-def _text(value: Any, path: str) -> str:
+def _text(value: Any, path: str, lines: bool = False) -> str:
     if not isinstance(value, str):
         raise DocumentError(f"{path}: expected text, got {_shown(value)}")
-    problem = text_problem(value)
+    problem = text_problem(value, lines)
     if problem:
         raise DocumentError(f"{path}: {problem}")
     return value

@@ -599,6 +599,53 @@ def test_a_lone_surrogate_in_any_text_is_refused_by_its_path(path: tuple) -> Non
     assert re.match(rf"^{where}: (character \d+ is U\+DFFF|expected one of)", message), message
 
 
+#: Characters no name or title may hold: XML 1.0 section 2.2 (Char production, from memory)
+#: allows none of U+0000-U+0008, U+000B, U+000C, U+000E-U+001F, U+FFFE, U+FFFF; tab, line
+#: feed and carriage return it allows, but a one-line name or title cannot hold them.
+UNSHOWABLE = ["\x00", "\x01", "\x08", "\x0b", "\x1f", "\ufffe", "\uffff", "\t", "\n", "\r"]
+
+
+@pytest.mark.parametrize("char", UNSHOWABLE, ids=lambda c: f"U+{ord(c):04X}")
+@pytest.mark.parametrize("path", TEXT_PATHS, ids=lambda p: ".".join(map(str, p)))
+def test_a_control_character_in_any_text_is_refused_by_its_path(path: tuple, char: str) -> None:
+    text = mangled(setter(*path, value=_value_at(json.loads(BASE), path) + char))
+    with pytest.raises(DocumentError) as caught:
+        loads(text)
+    where = re.escape(path[0] + "".join(f"[{k}]" if isinstance(k, int) else f".{k}"
+                                        for k in path[1:]))
+    assert re.match(rf"^{where}: (character \d+ is U\+{ord(char):04X}|expected one of)",
+                    str(caught.value)), str(caught.value)
+
+
+@pytest.mark.parametrize("char", UNSHOWABLE, ids=lambda c: f"U+{ord(c):04X}")
+def test_a_control_character_is_refused_by_every_document_edit(char: str) -> None:
+    doc = rich_document()
+    with pytest.raises(DocumentError, match=rf"^title: character 2 is U\+{ord(char):04X}"):
+        doc.set_title(f"x{char}")
+    part = doc.parts()[0]
+    with pytest.raises(DocumentError, match=rf"^PlacedPart {part.id}: designator: "):
+        doc.replace(replace(part, designator=f"R{char}9"))
+    with pytest.raises(DocumentError, match=r"^PlacedPart q1: params: character 2 is "):
+        doc.add(PlacedPart("q1", "measured_source", "MS9", (40, 40),
+                           params=(("voc", f"1{char}"),)))
+    with pytest.raises(DocumentError, match=r"^analysis: freq: character 3 is "):
+        doc.set_analysis(Analysis(f"1k{char}"))
+    assert doc == rich_document()  # nothing was taken
+
+
+def test_a_table_of_readings_may_run_over_lines_and_round_trips() -> None:
+    # a table's rows may be separated by line breaks and its columns by tabs, as a pasted
+    # spreadsheet range is (common practice); every other character refused elsewhere stays
+    # refused there too
+    doc = rich_document()
+    table = "1k\t2.5\n10k\t4.5\r\nopen\t5"
+    doc.add(PlacedPart("q1", "measured_source", "MS9", (40, 40), params=(("table", table),)))
+    assert loads(dumps(doc)) == doc
+    with pytest.raises(DocumentError, match=r"params: character 3 is U\+0000"):
+        doc.add(PlacedPart("q2", "measured_source", "MS8", (40, 50),
+                           params=(("table", "1k\x00, 2"),)))
+
+
 def test_a_lone_surrogate_escaped_in_the_file_bytes_is_refused_and_saving_never_fails(
         tmp_path: Path) -> None:
     raw = BASE.replace('"title": "', '"title": "\\ud800', 1).encode("utf-8")
