@@ -84,6 +84,8 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
                                                  system.refined)[..., 0]
         except np.linalg.LinAlgError:
             ok[part] = False
+        if system.netlist.has_dependent:
+            ok[part] &= ~_near_singular(stack)
     ok &= np.isfinite(x).all(axis=(1, 2))
     if adjoint is not None:
         ok &= np.isfinite(adjoint).all(axis=1)
@@ -103,6 +105,25 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
     redo = _solve_sparse(system, freqs[~ok], rhs, k)
     solved.x[~ok], solved.bound[~ok], solved.ok[~ok] = redo.x, redo.bound, redo.ok
     return _Solved(solved.x, solved.bound, solved.ok, redo.failure)
+
+
+def _near_singular(stack: np.ndarray) -> np.ndarray:
+    """Per matrix of ``stack``: True where, rows and then columns scaled to a largest entry of
+    1, its singular values span so much that the sparse factorization's pivot test might find
+    it singular; those frequencies are left to that test, so that a sweep decides as the
+    single-frequency calls do. (A triangular factor's smallest pivot is at least its smallest
+    singular value, and ``A = P L U`` with ``|L| <= 1`` gives ``sigma_min(A) <= n
+    sigma_min(U)``; ``n`` more covers the growth of the largest pivot.)"""
+    n = stack.shape[1]
+    with np.errstate(all="ignore"):
+        scaled = stack / np.abs(stack).max(axis=2, keepdims=True)
+        scaled = scaled / np.abs(scaled).max(axis=1, keepdims=True)
+    usable = np.isfinite(scaled).all(axis=(1, 2))  # an empty row or an overflow: not here
+    near = ~usable
+    if usable.any():
+        values = np.linalg.svd(scaled[usable], compute_uv=False)
+        near[usable] = values[:, -1] <= n * n * mna.singular_pivot(n) * values[:, 0]
+    return near
 
 
 def _dense_solve(stack: np.ndarray, rhs: np.ndarray, refined: bool) -> np.ndarray:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.linalg import splu
@@ -9,13 +11,14 @@ from scipy.sparse.linalg import splu
 from .diagnosis import singular
 from .system import System
 
-__all__ = ["EPS", "ORDERING", "Factor", "bound", "rounding"]
+__all__ = ["EPS", "ORDERING", "Factor", "bound", "equilibration", "rounding", "singular_pivot"]
 
 EPS = float(np.finfo(float).eps)
 #: Column ordering handed to SuperLU: minimum degree on the pattern of A + A^T suits MNA, whose
 #: pattern is symmetric but for the few controlled-source entries (about half the fill of COLAMD
 #: on an RC mesh; see docs/performance.md).
 ORDERING = "MMD_AT_PLUS_A"
+_SINGULAR_REPORTS = ("Factor is exactly singular", "failed to factorize matrix")
 
 
 class Factor:
@@ -30,14 +33,22 @@ class Factor:
     def __init__(self, system: System, freq: float) -> None:
         self.system, self.freq = system, freq
         self.matrix = system.matrix(freq)
+        # Rows that mix scales (the wide form) and pivots read to tell a singular system
+        # (dependent sources) call for the matrix equilibrated first (docs/method.md).
+        dependent = system.netlist.has_dependent
+        self._scales = equilibration(self.matrix) if system.refined or dependent else None
+        scaled = self.matrix if self._scales is None else _scaled(self.matrix, *self._scales)
         try:
-            self._lu = splu(self.matrix, permc_spec=ORDERING)
+            self._lu = splu(scaled, permc_spec=ORDERING)
         except RuntimeError as exc:
-            # SuperLU reports a zero pivot as RuntimeError("Factor is exactly singular"); its
-            # other RuntimeErrors (out of memory, say) are no property of the circuit
-            if "singular" not in str(exc):
+            # SuperLU's two reports of a singular matrix: a zero pivot, and (SciPy's guard for
+            # singular matrices on which its pivoting fails) an aborted supernode update; its
+            # other errors (out of memory, say) are no property of the circuit
+            if not str(exc).startswith(_SINGULAR_REPORTS):
                 raise
             raise singular(system, freq, self.matrix) from None
+        if dependent and _singular_pivots(self._lu):
+            raise singular(system, freq, self.matrix)
 
     def solve(self, rhs: np.ndarray, transposed: bool = False) -> np.ndarray:
         """``A^{-1} rhs`` (or ``A^{-T} rhs``); rhs of shape (n,) or (n, k); refined by one step
@@ -46,19 +57,31 @@ class Factor:
         if np.iscomplexobj(data) and not np.iscomplexobj(self.matrix.data):
             # SuperLU solves in the factor's own dtype: real factor, complex rhs in two parts
             return self.solve(data.real, transposed) + 1j * self.solve(data.imag, transposed)
-        trans = "T" if transposed else "N"
         # (a factor found is never singular to SuperLU's solve: what it raises is a defect)
-        x = self._lu.solve(data, trans=trans)
+        x = self._solved(data, transposed)
         if self.system.refined:
             # One step of refinement with the residual: the wide form's rows mix scales,
             # where the pivots SuperLU picks can leave an error well above the rounding
             # of the data; one step brings it back (docs/method.md).
             a = self.matrix.T if transposed else self.matrix
             with np.errstate(all="ignore"):
-                x = x + self._lu.solve(data - a @ x, trans=trans)
+                x = x + self._solved(data - a @ x, transposed)
         if not np.isfinite(x).all():
             raise singular(self.system, self.freq, self.matrix)
         return x
+
+    def _solved(self, data: np.ndarray, transposed: bool) -> np.ndarray:
+        """One solve through the factor of the (equilibrated) matrix: with ``R A C`` factored,
+        ``A x = b`` is ``x = C (R A C)^{-1} R b`` and ``A^T z = d`` is
+        ``z = R (R A C)^{-T} C d``."""
+        trans = "T" if transposed else "N"
+        if self._scales is None:
+            return self._lu.solve(data, trans=trans)
+        rows, cols = self._scales
+        first, last = (cols, rows) if transposed else (rows, cols)
+        if data.ndim == 2:
+            first, last = first[:, None], last[:, None]
+        return last * self._lu.solve(first * data, trans=trans)
 
     def error_bound(self, x: np.ndarray, rhs: np.ndarray, adjoint: np.ndarray) -> float:
         """Bound on ``|c.x_true - c.x|`` for the linear functional c with ``A^T adjoint = c``.
@@ -75,6 +98,55 @@ class Factor:
             per_entry = np.abs(a.data) * np.repeat(np.abs(x), np.diff(a.indptr))
             abs_ax = np.bincount(a.indices, per_entry, a.shape[0])
         return float(bound(adjoint, residual, abs_ax, rhs, rounding(a)))
+
+
+def equilibration(matrix: sp.csc_matrix) -> tuple[np.ndarray, np.ndarray]:
+    """Row scales ``r`` and column scales ``c``, powers of two, with which the largest entry of
+    every row and then of every column of ``diag(r) A diag(c)`` lies in [0.5, 1): exact in
+    floating point, so the scaled system has the same solution to the last bit; rows or
+    columns without a finite non-zero entry keep the scale 1."""
+    n = matrix.shape[0]
+    magnitude = np.abs(matrix.data)
+    rows = np.zeros(n)
+    np.maximum.at(rows, matrix.indices, magnitude)
+    row_scale = _power_of_two(rows)
+    scaled = magnitude * row_scale[matrix.indices]
+    cols = np.zeros(n)
+    filled = np.diff(matrix.indptr) > 0
+    if scaled.size:
+        cols[filled] = np.maximum.reduceat(scaled, matrix.indptr[:-1][filled])
+    return row_scale, _power_of_two(cols)
+
+
+def _power_of_two(largest: np.ndarray) -> np.ndarray:
+    """``2**-e`` with ``largest = m 2**e``, 0.5 <= m < 1; 1 where ``largest`` is 0 or not
+    finite."""
+    ok = np.isfinite(largest) & (largest > 0)
+    _, exponent = np.frexp(np.where(ok, largest, 1.0))
+    return np.where(ok, np.ldexp(1.0, -exponent), 1.0)
+
+
+def _scaled(matrix: sp.csc_matrix, rows: np.ndarray, cols: np.ndarray) -> sp.csc_matrix:
+    """``diag(rows) matrix diag(cols)``, in CSC form with the same structure."""
+    per_column = np.repeat(cols, np.diff(matrix.indptr))
+    with np.errstate(all="ignore"):  # entries past double range stay inf or nan
+        data = matrix.data * (rows[matrix.indices] * per_column)
+    return sp.csc_matrix((data, matrix.indices, matrix.indptr), shape=matrix.shape)
+
+
+def singular_pivot(size: int) -> float:
+    """The pivot, relative to the largest, below which the factor of an equilibrated matrix of
+    ``size`` unknowns is taken as singular: ``1e4 sqrt(size) eps``. Elimination leaves a
+    singular matrix a pivot at the rounding of its sums, about ``sqrt(size) eps``; a
+    non-singular one with its pivots this small would keep fewer than 4 digits anyway."""
+    return 1e4 * math.sqrt(size) * EPS
+
+
+def _singular_pivots(lu: object) -> bool:
+    """Whether the factor of an equilibrated matrix has a pivot below :func:`singular_pivot`."""
+    pivots = np.abs(lu.U.diagonal())
+    return bool(pivots.size) and bool(pivots.min() <= singular_pivot(pivots.size)
+                                      * pivots.max())
 
 
 def rounding(matrix: sp.spmatrix) -> float:
