@@ -238,6 +238,9 @@ def test_an_in_memory_region_with_a_bad_port_is_refused_by_name() -> None:
 
 
 # generated documents ----------------------------------------------------------------------------
+#: Text a sheet can hold (engine/schematic/text.py): no surrogates, no control characters, not
+#: U+FFFE or U+FFFF.
+storable = st.characters(exclude_categories=("Cs", "Cc"), exclude_characters="\ufffe\uffff")
 ident = st.text(string.ascii_letters + string.digits + "_-·Ω ", min_size=1, max_size=6)
 designator = st.from_regex(r"[A-Za-z][A-Za-z0-9_]{0,4}", fullmatch=True)
 coordinate = st.integers(-fileformat.COORD_LIMIT, fileformat.COORD_LIMIT)
@@ -261,14 +264,15 @@ def scope_elements(draw, depth: int, numbers: Iterator[int]) -> list[Any]:
             out.append(PlacedPart(element_id, draw(st.sampled_from(PART_KINDS)),
                                   f"{draw(designator)}_{next(numbers)}",
                                   draw(grid_point), draw(rotation), draw(st.booleans()),
-                                  draw(value_text), draw(phase_text), draw(st.text(max_size=3)),
+                                  draw(value_text), draw(phase_text),
+                                  draw(st.text(storable, max_size=3)),
                                   tuple(draw(st.lists(designator, max_size=2)))))
         elif what == "wire":
             out.append(Wire(element_id, draw(orthogonal_polylines(coordinate))))
         elif what == "junction":
             out.append(Junction(element_id, draw(grid_point)))
         elif what == "label":
-            out.append(NetLabel(element_id, draw(st.text(max_size=8)), draw(grid_point),
+            out.append(NetLabel(element_id, draw(st.text(storable, max_size=8)), draw(grid_point),
                                 draw(rotation), draw(st.sampled_from(("label", "ground")))))
         else:
             inner = draw(scope_elements(depth - 1, numbers))
@@ -286,7 +290,7 @@ def scope_elements(draw, depth: int, numbers: Iterator[int]) -> list[Any]:
     return out
 
 
-net_name = st.text(min_size=1, max_size=5).filter(str.strip)
+net_name = st.text(storable, min_size=1, max_size=5).filter(str.strip)
 chosen = st.none() | st.tuples(net_name, net_name).filter(lambda port: port[0] != port[1])
 
 
@@ -295,14 +299,15 @@ def regions(draw, members_from: list[Any], element_id: str | None = None) -> Reg
     ids = [e.id for e in members_from]
     members = draw(st.sets(st.sampled_from(ids))) if ids else set()
     port = draw(chosen)
-    return Region(element_id or draw(ident), draw(st.text(max_size=6)), frozenset(members),
+    return Region(element_id or draw(ident), draw(st.text(storable, max_size=6)),
+                  frozenset(members),
                   tuple(draw(st.lists(outline_point, max_size=4))),
                   port is None and draw(st.booleans()), port)
 
 
 @st.composite
 def documents(draw) -> Document:
-    doc = Document(draw(st.text(max_size=12)))
+    doc = Document(draw(st.text(storable, max_size=12)))
     elements = draw(scope_elements(2, itertools.count()))
     for e in elements:
         doc.add(e)

@@ -143,8 +143,23 @@ def output_into_a_load_only() -> tuple[Circuit, tuple[str, str], str]:
     return c, ("a", "c"), "no unique solution"
 
 
-CASES = [follower, output_into_a_load_only, inverting_stage_at_the_port, virtual_ground_at_the_port,
-         both_inputs_on_one_net, no_feedback, nullor_loop]
+def port_on_an_undriven_output() -> tuple[Circuit, tuple[str, str], str]:
+    # the output drives a loop of its own, the inputs sense another net: nothing fixes the
+    # output's voltage with the port open, so only a short across it does (Norton only); its
+    # admittance is exactly zero, however it rounds
+    c = Circuit()
+    c.resistor("R0", "a", GROUND, 10.0)
+    c.resistor("R1", "b", GROUND, 4.7e3)
+    c.resistor("R2", "c", "b", 1e3)
+    c.resistor("R3", "o", GROUND, 10.0)
+    c.resistor("R4", "o", "a", 100.0)
+    c.opamp("U1", "b", GROUND, "o")
+    return c, ("o", "c"), "norton only"
+
+
+CASES = [follower, output_into_a_load_only, port_on_an_undriven_output,
+         inverting_stage_at_the_port, virtual_ground_at_the_port, both_inputs_on_one_net,
+         no_feedback, nullor_loop]
 
 
 @pytest.mark.parametrize("freq", [0.0, 1e3])
@@ -168,6 +183,8 @@ def test_the_reference_sees_what_the_cases_claim() -> None:
     assert _reference(*both_inputs_on_one_net()[:2], 0) is None
     assert _reference(*no_feedback()[:2], 0) is None
     assert _reference(*output_into_a_load_only()[:2], 0) is None
+    undriven = _reference(*port_on_an_undriven_output()[:2], 0)
+    assert not undriven.has_thevenin and undriven.has_norton
 
 
 @st.composite

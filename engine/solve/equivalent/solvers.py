@@ -94,7 +94,11 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
     for j, b in enumerate(both.T):
         col = x[:, :, j]
         with np.errstate(all="ignore"):
-            residual = b - (g @ col.T).T - s[:, None] * (m @ col.T).T
+            # in extended precision, as Factor.error_bound computes it
+            wide = np.clongdouble
+            across = col.T.astype(wide)
+            residual = (b[:, None].astype(wide) - g.astype(wide) @ across
+                        - s.astype(wide)[None, :] * (m.astype(wide) @ across)).T.astype(complex)
             abs_ax = (abs(g) @ np.abs(col).T).T + np.abs(s)[:, None] * (abs(m) @ np.abs(col).T).T
         bound[:, j] = mna.bound(x[:, :, 1] if adjoint is None else adjoint, residual, abs_ax, b,
                                 gamma)

@@ -32,12 +32,21 @@ and :mod:`.diagnosis` (why a system is singular).
 """
 
 from .diagnosis import describe_freq, singular
-from .factor import EPS, ORDERING, Factor, bound, equilibration, rounding, singular_pivot
+from .factor import (
+    EPS,
+    ORDERING,
+    Factor,
+    bound,
+    equilibration,
+    precise_residual,
+    rounding,
+    singular_pivot,
+)
 from .netlist import WIDE_SPAN, Branches, Group, Netlist
 from .system import System, assemble
 
 __all__ = [
-    "EPS", "ORDERING", "WIDE_SPAN", "Branches", "Factor", "Group", "Netlist", "System",
-    "assemble", "bound", "describe_freq", "equilibration", "rounding", "singular",
-    "singular_pivot",
+    "EPS", "ORDERING", "WIDE_SPAN", "Branches", "Factor", "Group", "Netlist",
+    "System", "assemble", "bound", "describe_freq", "equilibration", "precise_residual",
+    "rounding", "singular", "singular_pivot",
 ]

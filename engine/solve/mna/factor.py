@@ -11,7 +11,10 @@ from scipy.sparse.linalg import splu
 from .diagnosis import singular
 from .system import System
 
-__all__ = ["EPS", "ORDERING", "Factor", "bound", "equilibration", "rounding", "singular_pivot"]
+__all__ = [
+    "EPS", "ORDERING", "Factor", "bound", "equilibration", "precise_residual",
+    "rounding", "singular_pivot",
+]
 
 EPS = float(np.finfo(float).eps)
 #: Column ordering handed to SuperLU: minimum degree on the pattern of A + A^T suits MNA, whose
@@ -81,23 +84,40 @@ class Factor:
         first, last = (cols, rows) if transposed else (rows, cols)
         if data.ndim == 2:
             first, last = first[:, None], last[:, None]
-        return last * self._lu.solve(first * data, trans=trans)
+        with np.errstate(all="ignore"):  # values past double range: caught as not finite
+            return last * self._lu.solve(first * data, trans=trans)
 
     def error_bound(self, x: np.ndarray, rhs: np.ndarray, adjoint: np.ndarray) -> float:
         """Bound on ``|c.x_true - c.x|`` for the linear functional c with ``A^T adjoint = c``.
 
         ``x`` solves ``A x = rhs`` in floating point. The exact solution differs by
-        ``A^{-1} r`` with the residual ``r = rhs - A x``, so ``c.x`` is off by ``adjoint . r``;
-        ``r`` is itself computed with an error below ``gamma (|A||x| + |rhs|)``, with
-        ``gamma = (nz + 1) eps`` and nz the most non-zeros in one row (the same rounding that a
-        perturbation of the part values by one unit in the last place would cause).
+        ``A^{-1} r`` with the residual ``r = rhs - A x``, so ``c.x`` is off by ``adjoint . r``
+        (to first order in the adjoint's own error). ``r`` is computed in extended precision
+        (:data:`PRECISE`), so that it is the error really left in ``x``, not the rounding of
+        the residual's own sums; the matrix and right-hand side carry their own rounding (each
+        part value to one unit in the last place, each sum of stamps to its terms), below
+        ``gamma (|A||x| + |rhs|)``, ``gamma = (nz + 1) eps``, nz the most non-zeros in one row.
         """
         a = self.matrix
         with np.errstate(all="ignore"):
-            residual = rhs - a @ x
+            residual = precise_residual(a, x, rhs)
             per_entry = np.abs(a.data) * np.repeat(np.abs(x), np.diff(a.indptr))
             abs_ax = np.bincount(a.indices, per_entry, a.shape[0])
         return float(bound(adjoint, residual, abs_ax, rhs, rounding(a)))
+
+
+#: The extended precision residuals are computed in (80-bit on x86; where the platform has
+#: none it is double precision, and the residual carries its own rounding too).
+PRECISE = np.longdouble
+
+
+def precise_residual(matrix: sp.spmatrix, x: np.ndarray, rhs: np.ndarray) -> np.ndarray:
+    """``rhs - matrix @ x`` computed in :data:`PRECISE`, returned at working precision; ``x``
+    and ``rhs`` of shape (n,) or (n, k)."""
+    kind = np.clongdouble if np.iscomplexobj(matrix.data) or np.iscomplexobj(x) \
+        or np.iscomplexobj(rhs) else PRECISE
+    out = rhs.astype(kind) - matrix.astype(kind) @ x.astype(kind)
+    return out.astype(complex if kind is np.clongdouble else float)
 
 
 def equilibration(matrix: sp.csc_matrix) -> tuple[np.ndarray, np.ndarray]:

@@ -19,9 +19,10 @@ _ALWAYS_BRANCH = ("voltage_source", "vcvs", "ccvs", "inductor", "opamp")
 #: ... and in a system assembled for wide impedance spans (:class:`Branches`).
 _WIDE_BRANCH = (*_ALWAYS_BRANCH, "resistor", "impedance", "capacitor")
 #: Impedance spans (largest / smallest part impedance at one frequency) beyond this are solved
-#: with the wide branches: past it, a node sum of admittances keeps fewer than 10 of its 16
-#: digits (docs/method.md).
-WIDE_SPAN = 1e6
+#: with the wide branches: past it, a node sum of admittances keeps fewer than 11 of its 16
+#: digits, and the error bound of a nodal solve can no longer be held below 1e-9
+#: (docs/method.md).
+WIDE_SPAN = 1e5
 
 
 class Group:
