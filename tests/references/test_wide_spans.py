@@ -179,3 +179,24 @@ def test_large_capacitor_and_small_inductor_in_both_orientations() -> None:
         assert eq.has_thevenin and eq.has_norton, port
         assert abs(eq.z - want) <= RTOL * abs(want), (port, eq.z)
         assert np.isfinite(eq.z_error)
+
+
+def test_a_wide_system_whose_unscaled_pivots_lost_seven_digits() -> None:
+    # A random passive region at 1 GHz (0.1 F beside 470 MΩ, a span of 3e17): unequilibrated,
+    # SuperLU's pivots left z 1e-7 off even after refinement; reference: exact sympy tableau
+    # solve (sympy_nodal.py), and the bound must hold it to RTOL.
+    c = Circuit()
+    for name, a, b, ohms in [("R1", "n1", GROUND, 0.01), ("R2", "n2", "n1", 0.1),
+                             ("R3", "n3", GROUND, 1e7), ("R4", "n4", GROUND, 4.7e8),
+                             ("R5", "n5", "n4", 0.0047), ("W6", "n5", "n2", 0.0),
+                             ("R7", "n3", "n2", 1e7), ("R11", "x10", "n3", 0.1),
+                             ("R12", "n3", "n5", 1e7), ("R15", "x14", GROUND, 22.0)]:
+        c.resistor(name, a, b, ohms)
+    c.capacitor("C8", "n5", GROUND, 0.1)
+    c.inductor("L9", "n1", "x10", 1e-4)
+    c.inductor("L13", "n3", "x14", 1e-6)
+    port, w = ("n5", "n3"), 2 * math.pi * 1e9
+    ref = port_reference(c, port, _exact_freq(w))
+    loaded = c.copy()
+    loaded.resistor("LOAD", *port, 1e3)
+    assert_matches(equivalent(loaded, set(c.names), port, w / (2 * math.pi)), ref)
