@@ -33,7 +33,7 @@ def text_problem(text: str, lines: bool = False) -> str:
         return (f"{where}, half of a UTF-16 surrogate pair, which no file can store; delete it "
                 "or type the character again")
     if char in _SPACING:
-        return (f"{where} ({_SPACING[char]}), which a single line of text cannot hold; use a "
-                "space instead")
+        return (f"{where} ({_SPACING[char]}), but this text is one line of text; use a space "
+                "instead")
     return (f"{where}, a control character or non-character that a drawing cannot show; "
             "delete it")
