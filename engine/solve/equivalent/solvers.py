@@ -7,6 +7,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+import scipy.sparse as sp
 
 from ...errors import SingularCircuitError
 from .. import mna
@@ -94,11 +95,7 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
     for j, b in enumerate(both.T):
         col = x[:, :, j]
         with np.errstate(all="ignore"):
-            # in extended precision, as Factor.error_bound computes it
-            wide = np.clongdouble
-            across = col.T.astype(wide)
-            residual = (b[:, None].astype(wide) - g.astype(wide) @ across
-                        - s.astype(wide)[None, :] * (m.astype(wide) @ across)).T.astype(complex)
+            residual = _residual(g, m, s, col, b, system.refined)
             abs_ax = (abs(g) @ np.abs(col).T).T + np.abs(s)[:, None] * (abs(m) @ np.abs(col).T).T
         bound[:, j] = mna.bound(x[:, :, 1] if adjoint is None else adjoint, residual, abs_ax, b,
                                 gamma)
@@ -128,6 +125,18 @@ def _near_singular(stack: np.ndarray) -> np.ndarray:
         values = np.linalg.svd(scaled[usable], compute_uv=False)
         near[usable] = values[:, -1] <= n * n * mna.singular_pivot(n) * values[:, 0]
     return near
+
+
+def _residual(g: sp.spmatrix, m: sp.spmatrix, s: np.ndarray, x: np.ndarray, b: np.ndarray,
+              precise: bool) -> np.ndarray:
+    """``b - (G + s M) x`` per frequency (rows of ``x``); ``precise``: in extended precision,
+    as :meth:`engine.solve.mna.Factor.error_bound` computes it for the wide form."""
+    if not precise:
+        return b - (g @ x.T).T - s[:, None] * (m @ x.T).T
+    wide = np.clongdouble
+    across = x.T.astype(wide)
+    return (b[:, None].astype(wide) - g.astype(wide) @ across
+            - s.astype(wide)[None, :] * (m.astype(wide) @ across)).T.astype(complex)
 
 
 def _dense_solve(stack: np.ndarray, rhs: np.ndarray, refined: bool) -> np.ndarray:
