@@ -200,3 +200,23 @@ def test_a_wide_system_whose_unscaled_pivots_lost_seven_digits() -> None:
     loaded = c.copy()
     loaded.resistor("LOAD", *port, 1e3)
     assert_matches(equivalent(loaded, set(c.names), port, w / (2 * math.pi)), ref)
+
+
+def test_a_high_gain_inverting_stage_in_the_wide_form_is_not_taken_as_singular() -> None:
+    # 1 mΩ in and 100 kΩ back around an ideal op-amp (a gain of 1e8) beside a 1 mΩ port part:
+    # well posed, but its equilibrated wide-form factor has a pivot of 6.6e-12 of the largest;
+    # reference: exact sympy tableau solve (sympy_nodal.py), at DC, 1 Hz and 1 GHz.
+    c = Circuit()
+    c.resistor("W1", "n1", GROUND, 0.0)
+    c.resistor("R2", "n2", GROUND, 1e-3)
+    c.opamp("U5", GROUND, "x3", "x4")
+    c.resistor("R6", "x3", GROUND, 1e-3)
+    c.resistor("R7", "x3", "x4", 1e5)
+    c.resistor("R8", "x4", "n1", 1e-3)
+    _compare(with_load_across(c, ("n2", "n1")), set(c.names), ("n2", "n1"), c)
+
+
+def with_load_across(c: Circuit, port: tuple[str, str]) -> Circuit:
+    loaded = c.copy()
+    loaded.resistor("LOAD", *port, 1e3)
+    return loaded
