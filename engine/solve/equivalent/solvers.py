@@ -85,7 +85,7 @@ def _solve_dense(system: mna.System, freqs: np.ndarray, rhs: np.ndarray, k: int)
                                                  system.refined)[..., 0]
         except np.linalg.LinAlgError:
             ok[part] = False
-        if system.netlist.has_dependent:
+        if mna.reads_pivots(system):
             ok[part] &= ~_near_singular(stack)
     ok &= np.isfinite(x).all(axis=(1, 2))
     if adjoint is not None:

@@ -39,6 +39,7 @@ from .factor import (
     bound,
     equilibration,
     precise_residual,
+    reads_pivots,
     rounding,
     singular_pivot,
 )
@@ -48,5 +49,5 @@ from .system import System, assemble
 __all__ = [
     "EPS", "ORDERING", "WIDE_SPAN", "Branches", "Factor", "Group", "Netlist",
     "System", "assemble", "bound", "describe_freq", "equilibration", "precise_residual",
-    "rounding", "singular", "singular_pivot",
+    "reads_pivots", "rounding", "singular", "singular_pivot",
 ]
