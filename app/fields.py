@@ -41,7 +41,8 @@ Writer = Callable[[Document, Element, str], list[Element]]
 @dataclass(frozen=True)
 class Field:
     """One line of the inspector: ``name`` (the element attribute), a title, a tooltip, and how
-    to read it from and write it to an element."""
+    to read it from and write it to an element; ``lines``: the text may hold tabs and line
+    breaks (a table of readings)."""
 
     name: str
     title: str
@@ -50,6 +51,7 @@ class Field:
     unit: str = ""
     warner: Callable[[Element, str], str] | None = None
     reader: Callable[[Element], str] | None = None
+    lines: bool = False
 
     def read(self, element: Element) -> str:
         if self.reader is not None:
@@ -60,7 +62,7 @@ class Field:
     def write(self, doc: Document, element: Element, text: str) -> list[Element]:
         """The new elements for ``text``; raises CircuitError (ValueParseError or
         DocumentError) with the reason when the text cannot be taken."""
-        problem = text_problem(text)
+        problem = text_problem(text, self.lines)
         if problem:
             owner = getattr(element, "designator", None) or getattr(element, "name", "")
             raise DocumentError(f"{owner} {self.title.lower()}: {problem}".lstrip())
@@ -202,7 +204,7 @@ def _param_field(kind: str, name: str, description: str, unit: str) -> Field:
 
     return Field(f"param:{name}", SYMBOLS[name], f"{description[0].upper()}{description[1:]}"
                  f"{' (optional)' if name in _OPTIONAL else ''}", write, unit,
-                 reader=lambda part: dict(part.params).get(name, ""))
+                 reader=lambda part: dict(part.params).get(name, ""), lines=name == "table")
 
 
 def _device_fields(kind: str) -> list[Field]:

@@ -352,19 +352,24 @@ def _check_texts(element: Element | Analysis, where: str) -> None:
     """Refuse text no file can store in the element's own fields (a block's contents were
     checked when they were on the sheet)."""
     for f in fields(element):
-        for text in _texts(getattr(element, f.name)):
-            problem = text_problem(text)
+        value = getattr(element, f.name)
+        if f.name == "params":  # (name, text) pairs: only a table of readings spans lines
+            found = [e for k, t in value for e in ((k, False), (t, k == "table"))]
+        else:
+            found = [(t, False) for t in _texts(value)]
+        for text, lines in found:
+            problem = text_problem(text, lines)
             if problem:
                 raise DocumentError(f"{where}: {f.name}: {problem}")
 
 
-def _texts(value: object) -> tuple[str, ...]:
-    """The strings of a field: itself, or those of a tuple or set of names."""
+def _texts(value: object) -> list[str]:
+    """The strings of a field: itself, or those in its tuples and sets (nested ones too)."""
     if isinstance(value, str):
-        return (value,)
+        return [value]
     if isinstance(value, tuple | frozenset):
-        return tuple(v for v in value if isinstance(v, str))
-    return ()
+        return [text for v in value for text in _texts(v)]
+    return []
 
 
 def _check_wire(wire: Wire, where: str) -> None:

@@ -36,10 +36,12 @@ def fields(data: Any, path: str, required: tuple[str, ...] = (),
     return {**(defaults or {}), **data}
 
 
-def text_field(value: Any, path: str) -> str:
+def text_field(value: Any, path: str, lines: bool = False) -> str:
+    """``value`` as storable text (line breaks only where ``lines``), else DocumentError at
+    ``path``."""
     if not isinstance(value, str):
         raise DocumentError(f"{path}: expected text, got {shown(value)}")
-    problem = text_problem(value)
+    problem = text_problem(value, lines)
     if problem:
         raise DocumentError(f"{path}: {problem}")
     return value

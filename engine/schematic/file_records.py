@@ -185,7 +185,7 @@ def _params(data: Any, path: str, kind: str, designator: str) -> tuple[tuple[str
     out = []
     for key in known:
         if key in data:
-            text = text_field(data[key], f"{path}.{key}")
+            text = text_field(data[key], f"{path}.{key}", lines=key == "table")
             if key == "table":
                 try:
                     parse_table(text, name=f"{designator} readings")

@@ -17,7 +17,9 @@ import numpy as np
 
 from ..errors import CircuitError, SingularCircuitError
 from . import mna, topology
-from .equivalent import DENSE_SWEEP_LIMIT, Equivalent, _dense_solve, _equivalent_of, _port_of
+from .equivalent import Equivalent
+from .equivalent.reduce import _equivalent_of, _port_of
+from .equivalent.solvers import DENSE_SWEEP_LIMIT, _dense_solve
 from .mna import describe_freq
 from .stamps import ValueStamps, value_stamps
 

@@ -1,4 +1,4 @@
-"""Thevenin/Norton results, sweeps, collapse and the equivalence check (engine/solve/equivalent.py).
+"""Thevenin/Norton results, sweeps, collapse and the equivalence check (engine/solve/equivalent/).
 
 Each check names its source: closed forms any circuit-analysis handbook gives are marked
 "common practice"; Alexander & Sadiku, Fundamentals of Electric Circuits, is quoted from memory.
@@ -26,7 +26,7 @@ from portcut.engine import (
 
 REL = 1e-12  # systems of a few nets with values within six decades
 # the module, not the function
-EQUIVALENT = importlib.import_module("portcut.engine.solve.equivalent")
+SOLVERS = importlib.import_module("portcut.engine.solve.equivalent.solvers")
 
 
 def close(got: complex, want: complex) -> bool:
@@ -251,7 +251,7 @@ def low_pass(r: float = 1e3, cap: float = 100e-9) -> Circuit:
 @pytest.mark.parametrize("dense_limit", [0, 1000], ids=["per-frequency LU", "batched dense"])
 def test_sweep_of_an_rc_low_pass(dense_limit: int, monkeypatch: pytest.MonkeyPatch) -> None:
     # Common practice: voc = V / (1 + j w R C), z = R / (1 + j w R C); at DC voc = V, z = R.
-    monkeypatch.setattr(EQUIVALENT, "DENSE_SWEEP_LIMIT", dense_limit)
+    monkeypatch.setattr(SOLVERS, "DENSE_SWEEP_LIMIT", dense_limit)
     freqs = np.array([0.0, 10.0, 1591.5494309189535, 1e5, 1e7])
     got = sweep(low_pass(), {"V1", "R1", "C1"}, freqs, ("out", GROUND))
     ratio = 1 / (1 + 2j * np.pi * freqs * 1e3 * 100e-9)
@@ -478,7 +478,7 @@ def test_formatted_forms_and_summary() -> None:
 def test_series_parts_read_the_same_in_every_output() -> None:
     # a 100 Ω + 4.278 µF region reads as both parts; with no resistance only the capacitor,
     # never "0 Ω in series with" (the panel and reduce share this text)
-    Realisation = EQUIVALENT.Realisation
+    Realisation = importlib.import_module("portcut.engine.solve.equivalent").Realisation
     assert Realisation(100.0, "capacitor", 4.278e-6, 1e4).parts_text() == \
         "100 Ω in series with 4.278 µF"
     assert Realisation(0.0, "capacitor", 4.278e-6, 1e4).parts_text() == "4.278 µF"

@@ -237,6 +237,9 @@ def test_an_in_memory_region_with_a_bad_port_is_refused_by_name() -> None:
 
 
 # generated documents ----------------------------------------------------------------------------
+#: Text a sheet can hold (engine/schematic/text.py): no surrogates, no control characters, not
+#: U+FFFE or U+FFFF.
+storable = st.characters(exclude_categories=("Cs", "Cc"), exclude_characters="\ufffe\uffff")
 ident = st.text(string.ascii_letters + string.digits + "_-·Ω ", min_size=1, max_size=6)
 designator = st.from_regex(r"[A-Za-z][A-Za-z0-9_]{0,4}", fullmatch=True)
 coordinate = st.integers(-fileformat.COORD_LIMIT, fileformat.COORD_LIMIT)
@@ -260,14 +263,15 @@ def scope_elements(draw, depth: int, numbers: Iterator[int]) -> list[Any]:
             out.append(PlacedPart(element_id, draw(st.sampled_from(PART_KINDS)),
                                   f"{draw(designator)}_{next(numbers)}",
                                   draw(grid_point), draw(rotation), draw(st.booleans()),
-                                  draw(value_text), draw(phase_text), draw(st.text(max_size=3)),
+                                  draw(value_text), draw(phase_text),
+                                  draw(st.text(storable, max_size=3)),
                                   tuple(draw(st.lists(designator, max_size=2)))))
         elif what == "wire":
             out.append(Wire(element_id, draw(orthogonal_polylines(coordinate))))
         elif what == "junction":
             out.append(Junction(element_id, draw(grid_point)))
         elif what == "label":
-            out.append(NetLabel(element_id, draw(st.text(max_size=8)), draw(grid_point),
+            out.append(NetLabel(element_id, draw(st.text(storable, max_size=8)), draw(grid_point),
                                 draw(rotation), draw(st.sampled_from(("label", "ground")))))
         else:
             inner = draw(scope_elements(depth - 1, numbers))
@@ -285,7 +289,7 @@ def scope_elements(draw, depth: int, numbers: Iterator[int]) -> list[Any]:
     return out
 
 
-net_name = st.text(min_size=1, max_size=5).filter(str.strip)
+net_name = st.text(storable, min_size=1, max_size=5).filter(str.strip)
 chosen = st.none() | st.tuples(net_name, net_name).filter(lambda port: port[0] != port[1])
 
 
@@ -294,14 +298,15 @@ def regions(draw, members_from: list[Any], element_id: str | None = None) -> Reg
     ids = [e.id for e in members_from]
     members = draw(st.sets(st.sampled_from(ids))) if ids else set()
     port = draw(chosen)
-    return Region(element_id or draw(ident), draw(st.text(max_size=6)), frozenset(members),
+    return Region(element_id or draw(ident), draw(st.text(storable, max_size=6)),
+                  frozenset(members),
                   tuple(draw(st.lists(outline_point, max_size=4))),
                   port is None and draw(st.booleans()), port)
 
 
 @st.composite
 def documents(draw) -> Document:
-    doc = Document(draw(st.text(max_size=12)))
+    doc = Document(draw(st.text(storable, max_size=12)))
     elements = draw(scope_elements(2, itertools.count()))
     for e in elements:
         doc.add(e)
@@ -596,6 +601,53 @@ def test_a_lone_surrogate_in_any_text_is_refused_by_its_path(path: tuple) -> Non
     where = re.escape(path[0] + "".join(f"[{k}]" if isinstance(k, int) else f".{k}"
                                         for k in path[1:]))
     assert re.match(rf"^{where}: (character \d+ is U\+DFFF|expected one of)", message), message
+
+
+#: Characters no name or title may hold: XML 1.0 section 2.2 (Char production, from memory)
+#: allows none of U+0000-U+0008, U+000B, U+000C, U+000E-U+001F, U+FFFE, U+FFFF; tab, line
+#: feed and carriage return it allows, but a one-line name or title cannot hold them.
+UNSHOWABLE = ["\x00", "\x01", "\x08", "\x0b", "\x1f", "\ufffe", "\uffff", "\t", "\n", "\r"]
+
+
+@pytest.mark.parametrize("char", UNSHOWABLE, ids=lambda c: f"U+{ord(c):04X}")
+@pytest.mark.parametrize("path", TEXT_PATHS, ids=lambda p: ".".join(map(str, p)))
+def test_a_control_character_in_any_text_is_refused_by_its_path(path: tuple, char: str) -> None:
+    text = mangled(setter(*path, value=_value_at(json.loads(BASE), path) + char))
+    with pytest.raises(DocumentError) as caught:
+        loads(text)
+    where = re.escape(path[0] + "".join(f"[{k}]" if isinstance(k, int) else f".{k}"
+                                        for k in path[1:]))
+    assert re.match(rf"^{where}: (character \d+ is U\+{ord(char):04X}|expected one of)",
+                    str(caught.value)), str(caught.value)
+
+
+@pytest.mark.parametrize("char", UNSHOWABLE, ids=lambda c: f"U+{ord(c):04X}")
+def test_a_control_character_is_refused_by_every_document_edit(char: str) -> None:
+    doc = rich_document()
+    with pytest.raises(DocumentError, match=rf"^title: character 2 is U\+{ord(char):04X}"):
+        doc.set_title(f"x{char}")
+    part = doc.parts()[0]
+    with pytest.raises(DocumentError, match=rf"^PlacedPart {part.id}: designator: "):
+        doc.replace(replace(part, designator=f"R{char}9"))
+    with pytest.raises(DocumentError, match=r"^PlacedPart q1: params: character 2 is "):
+        doc.add(PlacedPart("q1", "measured_source", "MS9", (40, 40),
+                           params=(("voc", f"1{char}"),)))
+    with pytest.raises(DocumentError, match=r"^analysis: freq: character 3 is "):
+        doc.set_analysis(Analysis(f"1k{char}"))
+    assert doc == rich_document()  # nothing was taken
+
+
+def test_a_table_of_readings_may_run_over_lines_and_round_trips() -> None:
+    # a table's rows may be separated by line breaks and its columns by tabs, as a pasted
+    # spreadsheet range is (common practice); every other character refused elsewhere stays
+    # refused there too
+    doc = rich_document()
+    table = "1k\t2.5\n10k\t4.5\r\nopen\t5"
+    doc.add(PlacedPart("q1", "measured_source", "MS9", (40, 40), params=(("table", table),)))
+    assert loads(dumps(doc)) == doc
+    with pytest.raises(DocumentError, match=r"params: character 3 is U\+0000"):
+        doc.add(PlacedPart("q2", "measured_source", "MS8", (40, 50),
+                           params=(("table", "1k\x00, 2"),)))
 
 
 def test_a_lone_surrogate_escaped_in_the_file_bytes_is_refused_and_saving_never_fails(

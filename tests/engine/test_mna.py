@@ -1,4 +1,4 @@
-"""The MNA assembly, factorization and error bound (engine/solve/mna.py), entry by entry.
+"""The MNA assembly, factorization and error bound (engine/solve/mna/), entry by entry.
 
 Stamps are checked against the modified nodal form of Ho, Ruehli and Brennan, "The modified
 nodal approach to network analysis", IEEE Trans. Circuits and Systems CAS-22 (1975): node rows
@@ -20,7 +20,7 @@ from circuits import divider as shared_divider
 from portcut.engine import GROUND, Circuit, SingularCircuitError
 from portcut.engine.cli.bench import mixed_circuit
 from portcut.engine.solve import mna
-from portcut.engine.solve.mna import EPS, Factor, Netlist, Singular, System, assemble
+from portcut.engine.solve.mna import EPS, Factor, Netlist, System, assemble
 
 
 def build(c: Circuit, reference: str = GROUND) -> System:
@@ -191,8 +191,31 @@ def test_singular_message_names_undetermined_unknowns_and_op_amps() -> None:
     c.voltage_source("V1", "p", GROUND, 1)
     c.opamp("U1", "p", GROUND, "o")  # no feedback: nothing fixes the output
     s = build(c)
-    with pytest.raises(Singular, match=r"no equation determines .*U1.*negative feedback"):
+    with pytest.raises(SingularCircuitError,
+                       match=r"no equation determines .*U1.*negative feedback"):
         Factor(s, 0)
+
+
+def test_a_defect_is_not_reported_as_a_singular_circuit() -> None:
+    # A right-hand side of the wrong shape is the caller's bug: it must surface as the error
+    # SciPy raises, not as "no unique solution".
+    s = build(divider())
+    factor = Factor(s, 0)
+    with pytest.raises(ValueError) as raised:
+        factor.solve(np.ones(s.size + 1))
+    assert not isinstance(raised.value, SingularCircuitError)
+
+
+def test_only_superlus_singular_report_becomes_a_circuit_error(monkeypatch: pytest.MonkeyPatch
+                                                                ) -> None:
+    # Any other failure of the factorization (here a stand-in for running out of memory) is no
+    # property of the circuit and passes through unchanged.
+    def failing(*_args: object, **_kwargs: object) -> None:
+        raise RuntimeError("not enough memory")
+
+    monkeypatch.setattr(mna.factor, "splu", failing)
+    with pytest.raises(RuntimeError, match="not enough memory"):
+        Factor(build(divider()), 0)
 
 
 def test_error_bound_covers_the_actual_error() -> None:
@@ -227,7 +250,7 @@ def test_small_matrices_compressed_here_equal_scipys_conversion(monkeypatch: pyt
     netlist = Netlist([p for p in c if p.name in region])
     pinned = [netlist.index[GROUND]] + [netlist.index[f"t{i}"] for i in range(4)]
     here = assemble(netlist, pinned)
-    monkeypatch.setattr(mna, "_SMALL_MATRIX", -1)
+    monkeypatch.setattr(mna.system, "_SMALL_MATRIX", -1)
     by_scipy = assemble(netlist, pinned)
     for mine, theirs in ((here.matrix(freq), by_scipy.matrix(freq)),
                          *zip(here.parts(), by_scipy.parts(), strict=True)):
