@@ -29,6 +29,7 @@ __all__ = [
     "outline_with",
     "outline_without",
     "port_marks",
+    "port_marks_read",
     "region_name",
 ]
 
@@ -153,6 +154,20 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
         for pt in dict.fromkeys((round(x, 3), round(y, 3)) for x, y in points):
             marks.append(PortMark(pt, role, net))
     return tuple(marks)
+
+
+def port_marks_read(doc: Document, conn: Connectivity, region: Region,
+                    port: tuple[str, str]) -> tuple:
+    """All that :func:`port_marks` reads of the sheet for these arguments: the region, the
+    port, the wires on the port nets and where each pin on them is. Equal for two
+    states of the sheet, the marks are equal too; far cheaper to work out than the marks on a
+    large sheet, whose ground net has many wires crossing the outline."""
+    on_port = set(port)
+    wires = tuple(w for w in doc.wires() if conn.net_of_wire.get(w.id) in on_port)
+    pins = tuple((key, element_pins(doc[key[0]])[key[1]],
+                  isinstance(doc[key[0]], PlacedPart | Block))
+                 for key, net in conn.net_of_pin.items() if net in on_port and key[0] in doc)
+    return region, port, wires, pins
 
 
 def _used_outside(doc: Document, conn: Connectivity, region: Region, net: str) -> bool:

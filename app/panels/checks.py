@@ -10,9 +10,11 @@ from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QDockWidget, QListWidget, QListWidgetItem, QWidget
 from shiboken6 import isValid
 
+from portcut.engine import Circuit
 from portcut.engine.errors import CircuitError
-from portcut.engine.schematic import Change, Connectivity, Document, extract
+from portcut.engine.schematic import Change, Connectivity, Document, build_circuit, extract
 from portcut.engine.schematic.checks import SheetCheck, circuit_checks, drawing_checks
+from portcut.engine.schematic.connectivity import updated_circuit
 from portcut.engine.solve.units import parse_frequency
 
 from ..canvas import Canvas
@@ -51,6 +53,8 @@ class ChecksDock(QDockWidget):
         self._marks: CheckMarksItem | None = None
         self._drawn: list[SheetCheck] = []
         self._circuit: list[SheetCheck] = []
+        # the circuit the last circuit check built, the nets and the frequency it was built on
+        self._built: tuple[Circuit, Connectivity, float] | None = None
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
         self._circuit_timer = QTimer(self, singleShot=True, interval=CIRCUIT_PAUSE_MS)
@@ -62,6 +66,7 @@ class ChecksDock(QDockWidget):
     def _follow(self, doc: Document) -> None:
         self._unsubscribe()
         self._circuit_timer.stop()
+        self._built = None
         self._unsubscribe = doc.subscribe(self._on_change)
         self._timer.start()
 
@@ -91,8 +96,26 @@ class ChecksDock(QDockWidget):
             freq = parse_frequency(doc.analysis.freq)
         except CircuitError:
             freq = 0.0  # the equivalent panel says what is wrong with the frequency
-        self._circuit = circuit_checks(doc, self._conn, freq, self._drawn)
+        try:
+            circuit = self._built_circuit(doc, freq)
+        except CircuitError:
+            self._circuit = []  # the inspector says which value does not read
+        else:
+            self._circuit = circuit_checks(doc, self._conn, freq, self._drawn, circuit)
         self._show(self._drawn + self._circuit)
+
+    def _built_circuit(self, doc: Document, freq: float) -> Circuit:
+        """The circuit of ``doc`` on the current nets at ``freq`` hertz: the one the last check
+        built, with only the parts changed or rewired since rebuilt (the engine's
+        updated_circuit), so a check after a nudge on a large sheet costs no circuit build."""
+        built = self._built
+        self._built = None  # until this one is known to be good
+        if built is not None and built[2] == freq:
+            circuit = updated_circuit(built[0], doc, built[1], self._conn, freq)
+        else:
+            circuit = build_circuit(doc, self._conn, freq)
+        self._built = (circuit, self._conn, freq)
+        return circuit
 
     def _show(self, checks: list[SheetCheck]) -> None:
         self.checks = checks
