@@ -159,15 +159,20 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
 def port_marks_read(doc: Document, conn: Connectivity, region: Region,
                     port: tuple[str, str]) -> tuple:
     """All that :func:`port_marks` reads of the sheet for these arguments: the region, the
-    port, the wires on the port nets and where each pin on them is. Equal for two
-    states of the sheet, the marks are equal too; far cheaper to work out than the marks on a
-    large sheet, whose ground net has many wires crossing the outline."""
-    on_port = set(port)
+    port, the wires on the port nets, how the region's elements with pins on them are placed
+    (which fixes where those pins are) and which elements outside have pins on them. Equal
+    for two states of the sheet, the marks are equal too; a tenth of the marks' cost on a
+    large sheet, whose ground net has many wires."""
+    on_port, members = set(port), region.members
     wires = tuple(w for w in doc.wires() if conn.net_of_wire.get(w.id) in on_port)
-    pins = tuple((key, element_pins(doc[key[0]])[key[1]],
-                  isinstance(doc[key[0]], PlacedPart | Block))
-                 for key, net in conn.net_of_pin.items() if net in on_port and key[0] in doc)
-    return region, port, wires, pins
+    pins = []
+    for key, net in conn.net_of_pin.items():
+        if net in on_port and key[0] in doc:
+            e = doc[key[0]]
+            pins.append((key, type(e), getattr(e, "kind", getattr(e, "style", None)), e.at,
+                         e.rotation, getattr(e, "mirror", False)) if key[0] in members else
+                        (key, isinstance(e, PlacedPart | Block)))
+    return region, port, wires, tuple(pins)
 
 
 def _used_outside(doc: Document, conn: Connectivity, region: Region, net: str) -> bool:
