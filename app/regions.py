@@ -139,14 +139,14 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
     if len(region.outline) < 3:
         return ()
     edges = list(zip(region.outline, region.outline[1:] + region.outline[:1], strict=True))
-    members = [doc[m] for m in sorted(region.members) if m in doc]  # sorted: marks repeatable
     marks: list[PortMark] = []
     for role, net in zip(("plus", "minus"), port, strict=True):
         points = [pt for wire in doc.wires() if conn.net_of_wire.get(wire.id) == net
                   for a, b in pairwise(wire.points) for pt in _crossings(a, b, edges)]
         if not points:
-            pins = [pin for m in members for i, pin in enumerate(element_pins(m))
-                    if conn.net_of_pin.get((m.id, i)) == net]
+            on_net = sorted(key for key, name in conn.net_of_pin.items()  # sorted: repeatable
+                            if name == net and key[0] in region.members and key[0] in doc)
+            pins = [element_pins(doc[eid])[i] for eid, i in on_net]
             if pins and _used_outside(doc, conn, region, net):
                 points = [min(_nearest(edges, p) for p in pins)[1]]  # ties: the lower point
             elif pins:
