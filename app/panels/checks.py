@@ -17,6 +17,7 @@ from portcut.engine.schematic.checks import SheetCheck, circuit_checks, drawing_
 from portcut.engine.schematic.connectivity import updated_circuit
 from portcut.engine.solve.units import parse_frequency
 
+from ..analysis import LiveAnalysis
 from ..canvas import Canvas
 from ..canvas.grid import to_scene
 from ..canvas.marks import CheckMarksItem
@@ -55,6 +56,8 @@ class ChecksDock(QDockWidget):
         self._circuit: list[SheetCheck] = []
         # the circuit the last circuit check built, the nets and the frequency it was built on
         self._built: tuple[Circuit, Connectivity, float] | None = None
+        self._live: LiveAnalysis | None = None
+        self._awaited = False  # the drawing is checked once the live analysis answers
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
         self._circuit_timer = QTimer(self, singleShot=True, interval=CIRCUIT_PAUSE_MS)
@@ -66,7 +69,7 @@ class ChecksDock(QDockWidget):
     def _follow(self, doc: Document) -> None:
         self._unsubscribe()
         self._circuit_timer.stop()
-        self._built = None
+        self._built, self._awaited = None, False
         self._unsubscribe = doc.subscribe(self._on_change)
         self._timer.start()
 
@@ -75,12 +78,35 @@ class ChecksDock(QDockWidget):
             self._circuit_timer.stop()  # the drawing's checks come first, then the circuit's
             self._timer.start()
 
+    def read_nets_from(self, live: LiveAnalysis) -> None:
+        """Take the nets of a large sheet from ``live``'s answers instead of extracting them a
+        second time in the GUI thread, which would hold up the analysis running meanwhile."""
+        self._live = live
+        live.analysed.connect(self._answered)
+
     def refresh(self) -> None:
         """Check the drawing now (the timer calls this once per burst of changes); the
-        circuit's checks, which cost a circuit build, follow once the edits pause."""
+        circuit's checks, which cost a circuit build, follow once the edits pause. On a sheet
+        the live analysis reads in the background, once its answer brings the nets."""
         self._timer.stop()
+        live, doc = self._live, self.workbench.doc
+        self._awaited = live is not None and bool(doc.regions()) and \
+            len(doc.parts()) >= live.inline_parts
+        if not self._awaited:
+            self._check_drawing(None)
+
+    def _answered(self, analysis: object) -> None:
+        if self._awaited:
+            self._awaited = False
+            live = self._live
+            # the nets of the document as it is, unless there was no region to read them for
+            now = analysis is not None and live.shown_generation == live.generation
+            self._check_drawing(live.conn if now else None)
+
+    def _check_drawing(self, conn: Connectivity | None) -> None:
+        """The drawing's checks on nets ``conn`` (extracted here when None)."""
         doc = self.workbench.doc
-        self._conn = extract(doc, previous=self._conn)
+        self._conn = conn or extract(doc, previous=self._conn)
         self._drawn = drawing_checks(doc, self._conn)
         # until the circuit is checked again, its last findings stay where their parts do
         self._show(self._drawn + [c for c in self._circuit if c.element_id in doc])

@@ -6,11 +6,11 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
-from sheets import divider, open_sheet, settle
+from sheets import SOURCE_SIDE, divider, lasso, open_sheet, settle
 
 from portcut.app.canvas.marks import CheckMarksItem
 from portcut.engine.schematic import PlacedPart, Wire, build_circuit, extract
-from portcut.engine.schematic.checks import sheet_checks
+from portcut.engine.schematic.checks import drawing_checks, sheet_checks
 
 
 def _marks(window) -> tuple:
@@ -95,3 +95,25 @@ def test_the_circuit_checks_follow_a_nudge_and_a_value_edit(window, drive, qtbot
     expected = sheet_checks(drive.doc, extract(drive.doc))
     assert [c.kind for c in expected] == ["floating"]
     qtbot.waitUntil(lambda: dock.checks == expected, timeout=3000)
+
+
+def test_on_a_sheet_analysed_in_the_background_the_checks_read_its_nets(window, drive, qtbot):
+    # the drawing is checked on the nets the live analysis's answer brings: a shorted part
+    # drawn along the ground rail is listed, cleared once deleted and listed again on undo
+    doc = divider()
+    doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", "R9", (12, 6), value="1k"))
+    open_sheet(window, doc)
+    lasso(drive, SOURCE_SIDE)
+    window.analysis.inline_parts = 0  # the worker analyses from now on
+    dock = window.checks_dock
+    drive.key(Qt.Key.Key_S)
+    drive.click(drive.by("R9").at)
+    for key, listed in ((Qt.Key.Key_Delete, False), (Qt.Key.Key_Z, True)):
+        drive.key(key, Qt.KeyboardModifier.ControlModifier if listed else
+                  Qt.KeyboardModifier.NoModifier)
+        qtbot.waitUntil(lambda: window.analysis.shown_generation == window.analysis.generation,
+                        timeout=10000)
+        qtbot.waitUntil(lambda listed=listed: any(
+            c.kind == "shorted" for c in dock.checks) == listed, timeout=3000)
+        assert dock._conn is window.analysis.conn  # no second extraction
+        assert dock.checks[:len(dock._drawn)] == drawing_checks(drive.doc, extract(drive.doc))
