@@ -1,7 +1,9 @@
 """The checks panel: every wiring fault of the sheet (engine.schematic.checks), one line each,
 and a warning triangle on the canvas where each one is. A click on a line selects the element
 at fault and centres the view on it. Lines and marks follow every edit: the drawing's checks on a
-zero timer, so a burst of changes costs one check, the circuit's once the edits pause.
+zero timer, so a burst of changes costs one check (on a sheet the live analysis reads in the
+background, on the nets its answer brings), the circuit's once the edits pause, on the circuit
+of the last check updated where the edits changed it.
 """
 
 from __future__ import annotations
