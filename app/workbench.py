@@ -33,7 +33,8 @@ class Workbench(QObject):
 
     def push(self, command: QUndoCommand) -> None:
         """Do an edit, undoably."""
-        self.undo_stack.push(command)
+        with self.doc.batch():  # a move merged into the last step, folding a link wire away,
+            self.undo_stack.push(command)  # is one change with the move, not a second one
 
     def replace_document(self, doc: Document, path: Path | None) -> None:
         """Edit ``doc`` from now on; the undo history starts afresh and is clean."""

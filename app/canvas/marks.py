@@ -22,7 +22,7 @@ from portcut.engine.schematic.reduction import RegionAnalysis
 from portcut.engine.schematic.symbols import MARK_FONT_SIZE, MARK_TEXT, STROKE_WIDTH
 
 from ..analysis import LiveAnalysis
-from ..regions import PortMark, body_bounds, port_marks
+from ..regions import PortMark, body_bounds, port_marks, port_marks_read
 from ..theme import qcolor
 from .grid import UNIT
 from .items import Z_DOT, Z_REGION, Z_WIRE, Look
@@ -206,7 +206,7 @@ class CutMarks(QObject):
         self.live = live
         self._fault: FaultItem | None = None
         self._ports: PortMarksItem | None = None
-        # the marks depend on the drawing only: kept while connectivity, region and port stay
+        # the marks depend on the drawing only: kept while what they read of it stays
         self._marks_for: tuple | None = None
         self._marks: tuple[PortMark, ...] = ()
         live.analysed.connect(self.show)
@@ -232,10 +232,11 @@ class CutMarks(QObject):
             return
         if analysis.ok:
             fault.clear()
-            key = (self.live.conn, region, analysis.equivalent.port)
+            port = analysis.equivalent.port
+            key = port_marks_read(doc, self.live.conn, region, port)
             if key != self._marks_for:
                 self._marks_for = key
-                self._marks = port_marks(doc, self.live.conn, region, analysis.equivalent.port)
+                self._marks = port_marks(doc, self.live.conn, region, port)
             ports.show_marks(self._marks)
             return
         ports.show_marks(())

@@ -98,6 +98,7 @@ def install(host: PanelHost) -> Panels:
     host.tabifyDockWidget(history, checks)
 
     live = LiveAnalysis(host.workbench, parent)
+    checks.read_nets_from(live)
     cut_marks = CutMarks(host.canvas.scene, live, parent)
     host.add_tool(ToolSpec("boundary", "&Boundary", "B", "Draw a region to reduce: drag a "
                            "lasso, Ctrl+drag a rectangle, Shift+click a part (B)",

@@ -1,7 +1,9 @@
 """The checks panel: every wiring fault of the sheet (engine.schematic.checks), one line each,
 and a warning triangle on the canvas where each one is. A click on a line selects the element
 at fault and centres the view on it. Lines and marks follow every edit: the drawing's checks on a
-zero timer, so a burst of changes costs one check, the circuit's once the edits pause.
+zero timer, so a burst of changes costs one check (on a sheet the live analysis reads in the
+background, on the nets its answer brings), the circuit's once the edits pause, on the circuit
+of the last check updated where the edits changed it.
 """
 
 from __future__ import annotations
@@ -10,11 +12,14 @@ from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QDockWidget, QListWidget, QListWidgetItem, QWidget
 from shiboken6 import isValid
 
+from portcut.engine import Circuit
 from portcut.engine.errors import CircuitError
-from portcut.engine.schematic import Change, Connectivity, Document, extract
+from portcut.engine.schematic import Change, Connectivity, Document, build_circuit, extract
 from portcut.engine.schematic.checks import SheetCheck, circuit_checks, drawing_checks
+from portcut.engine.schematic.connectivity import updated_circuit
 from portcut.engine.solve.units import parse_frequency
 
+from ..analysis import LiveAnalysis
 from ..canvas import Canvas
 from ..canvas.grid import to_scene
 from ..canvas.marks import CheckMarksItem
@@ -51,6 +56,10 @@ class ChecksDock(QDockWidget):
         self._marks: CheckMarksItem | None = None
         self._drawn: list[SheetCheck] = []
         self._circuit: list[SheetCheck] = []
+        # the circuit the last circuit check built, the nets and the frequency it was built on
+        self._built: tuple[Circuit, Connectivity, float] | None = None
+        self._live: LiveAnalysis | None = None
+        self._awaited = False  # the drawing is checked once the live analysis answers
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
         self._circuit_timer = QTimer(self, singleShot=True, interval=CIRCUIT_PAUSE_MS)
@@ -62,6 +71,7 @@ class ChecksDock(QDockWidget):
     def _follow(self, doc: Document) -> None:
         self._unsubscribe()
         self._circuit_timer.stop()
+        self._built, self._awaited = None, False
         self._unsubscribe = doc.subscribe(self._on_change)
         self._timer.start()
 
@@ -70,12 +80,35 @@ class ChecksDock(QDockWidget):
             self._circuit_timer.stop()  # the drawing's checks come first, then the circuit's
             self._timer.start()
 
+    def read_nets_from(self, live: LiveAnalysis) -> None:
+        """Take the nets of a large sheet from ``live``'s answers instead of extracting them a
+        second time in the GUI thread, which would hold up the analysis running meanwhile."""
+        self._live = live
+        live.analysed.connect(self._answered)
+
     def refresh(self) -> None:
         """Check the drawing now (the timer calls this once per burst of changes); the
-        circuit's checks, which cost a circuit build, follow once the edits pause."""
+        circuit's checks, which cost a circuit build, follow once the edits pause. On a sheet
+        the live analysis reads in the background, once its answer brings the nets."""
         self._timer.stop()
+        live, doc = self._live, self.workbench.doc
+        self._awaited = live is not None and bool(doc.regions()) and \
+            len(doc.parts()) >= live.inline_parts
+        if not self._awaited:
+            self._check_drawing(None)
+
+    def _answered(self, analysis: object) -> None:
+        if self._awaited:
+            self._awaited = False
+            live = self._live
+            # the nets of the document as it is, unless there was no region to read them for
+            now = analysis is not None and live.shown_generation == live.generation
+            self._check_drawing(live.conn if now else None)
+
+    def _check_drawing(self, conn: Connectivity | None) -> None:
+        """The drawing's checks on nets ``conn`` (extracted here when None)."""
         doc = self.workbench.doc
-        self._conn = extract(doc, previous=self._conn)
+        self._conn = conn or extract(doc, previous=self._conn)
         self._drawn = drawing_checks(doc, self._conn)
         # until the circuit is checked again, its last findings stay where their parts do
         self._show(self._drawn + [c for c in self._circuit if c.element_id in doc])
@@ -91,8 +124,26 @@ class ChecksDock(QDockWidget):
             freq = parse_frequency(doc.analysis.freq)
         except CircuitError:
             freq = 0.0  # the equivalent panel says what is wrong with the frequency
-        self._circuit = circuit_checks(doc, self._conn, freq, self._drawn)
+        try:
+            circuit = self._built_circuit(doc, freq)
+        except CircuitError:
+            self._circuit = []  # the inspector says which value does not read
+        else:
+            self._circuit = circuit_checks(doc, self._conn, freq, self._drawn, circuit)
         self._show(self._drawn + self._circuit)
+
+    def _built_circuit(self, doc: Document, freq: float) -> Circuit:
+        """The circuit of ``doc`` on the current nets at ``freq`` hertz: the one the last check
+        built, with only the parts changed or rewired since rebuilt (the engine's
+        updated_circuit), so a check after a nudge on a large sheet costs no circuit build."""
+        built = self._built
+        self._built = None  # until this one is known to be good
+        if built is not None and built[2] == freq:
+            circuit = updated_circuit(built[0], doc, built[1], self._conn, freq)
+        else:
+            circuit = build_circuit(doc, self._conn, freq)
+        self._built = (circuit, self._conn, freq)
+        return circuit
 
     def _show(self, checks: list[SheetCheck]) -> None:
         self.checks = checks

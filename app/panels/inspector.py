@@ -224,6 +224,8 @@ class InspectorDock(QDockWidget):
         target = ids[0] if len(ids) == 1 else ("" if not ids else None)
         if target == self._shown and not force and target is not None:
             return
+        if target and target == self._shown and self._show_new_version(doc[target]):
+            return
         self._clear()
         self._shown = target
         self._show_derived(doc[target] if target else None)
@@ -242,6 +244,22 @@ class InspectorDock(QDockWidget):
             self.details.setText(self._placement(element))
             if isinstance(element, Block):
                 self._show_block(element)
+
+    def _show_new_version(self, element: Element) -> bool:
+        """Show a new version of the element shown (moved, a value typed, undone) in the editors
+        already there, where it has the same fields; False where it has not. Rebuilding them
+        would cost a relayout of the panel on every nudge."""
+        if [editor.field for editor in self.editors.values()] != fields_for(element):
+            return False
+        self.heading.setText(_describe(element))
+        for editor in self.editors.values():
+            editor.show_element(element)
+        self._show_derived(element)
+        self.details.setText(self._placement(element))
+        self.expand_button.hide()
+        if isinstance(element, Block):
+            self._show_block(element)
+        return True
 
     def _show_block(self, block: Block) -> None:
         """A block's form and values at the analysis frequency, and Expand."""

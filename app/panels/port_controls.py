@@ -11,7 +11,7 @@ from PySide6.QtCore import QObject, Signal
 from PySide6.QtWidgets import QComboBox, QFormLayout, QPushButton
 
 from portcut.engine.errors import CircuitError
-from portcut.engine.schematic import Region
+from portcut.engine.schematic import Connectivity, Region
 from portcut.engine.schematic.ports import region_nets
 from portcut.engine.schematic.reduction import RegionAnalysis
 
@@ -47,6 +47,9 @@ class PortControls(QObject):
         self.automatic_button.setToolTip("Forget the chosen port and take the two nets where "
                                          "the region meets the rest")
         self.automatic_button.clicked.connect(self.automatic_port)
+        # what the boxes list, and the region's nets with the connectivity they were read off
+        self._listed: tuple | None = None
+        self._nets_for: tuple[Connectivity, frozenset[str], tuple[str, ...]] | None = None
 
     def add_rows(self, layout: QFormLayout) -> None:
         """The Port + and Port − rows."""
@@ -55,13 +58,31 @@ class PortControls(QObject):
 
     def show_port(self, analysis: RegionAnalysis | None) -> None:
         """Fill the boxes: "automatic" (with the nets it found) and the region's nets; a chosen
-        net the region no longer has stays listed, marked gone."""
-        doc, region, conn = self.workbench.doc, self.region(), self.live.conn
+        net the region no longer has stays listed, marked gone. The boxes are filled again only
+        when what they list changed: a large region has hundreds of nets, and most edits keep
+        them."""
+        region, conn = self.region(), self.live.conn
         usable = (region is not None and conn is not None and analysis is not None
                   and analysis.region_id == region.id)
-        nets = region_nets(doc, region, conn) if usable else ()
+        nets = self._nets(region, conn) if usable else ()
         automatic = analysis.equivalent.port if usable and analysis.ok and \
             region.port is None else None
+        listed = (usable, nets, automatic, region.port if usable else None)
+        if listed != self._listed:
+            self._listed = listed
+            self._fill(region, nets, automatic, usable)
+        self.automatic_button.setVisible(usable and region.port is not None and not analysis.ok)
+
+    def _nets(self, region: Region, conn: Connectivity) -> tuple[str, ...]:
+        """The region's nets, worked out again only for new connectivity or a changed region."""
+        if self._nets_for is None or self._nets_for[0] is not conn or \
+                self._nets_for[1] != region.members:
+            self._nets_for = (conn, region.members,
+                              region_nets(self.workbench.doc, region, conn))
+        return self._nets_for[2]
+
+    def _fill(self, region: Region | None, nets: tuple[str, ...],
+              automatic: tuple[str, str] | None, usable: bool) -> None:
         for i, (role, box) in enumerate(self.boxes.items()):
             box.clear()
             box.setEnabled(usable)
@@ -76,9 +97,9 @@ class PortControls(QObject):
                 box.addItem(f"{chosen} (gone)", chosen)
             box.setCurrentIndex(0 if chosen is None else box.findData(chosen))
             box.setAccessibleDescription(f"{role}: {box.currentText()}")
-        self.automatic_button.setVisible(usable and region.port is not None and not analysis.ok)
 
     def _choose(self, role: str, index: int) -> None:
+        self._listed = None  # the boxes show the choice: the next answer puts them right
         doc, region, analysis = self.workbench.doc, self.region(), self.live.analysis
         if region is None or self.live.conn is None:
             return

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 from ..errors import CircuitError, SingularCircuitError
 from ..solve import mna, topology
-from ..solve.circuit import GROUND, Part
+from ..solve.circuit import GROUND, Circuit, Part
 from .connectivity import Connectivity, build_circuit
 from .document import Document
 from .model import Block, PlacedPart
@@ -51,14 +51,17 @@ def drawing_checks(doc: Document, conn: Connectivity) -> list[SheetCheck]:
 
 
 def circuit_checks(doc: Document, conn: Connectivity, freq: float = 0.0,
-                   drawn: list[SheetCheck] | None = None) -> list[SheetCheck]:
-    """The existence faults of the circuit at ``freq`` hertz (it is built, so this costs about
-    a circuit build). A part that ``drawn`` lists with loose pins is not listed again as a
+                   drawn: list[SheetCheck] | None = None,
+                   circuit: Circuit | None = None) -> list[SheetCheck]:
+    """The existence faults of the circuit at ``freq`` hertz: ``circuit``, the one
+    ``build_circuit(doc, conn, freq)`` makes, built here when not given (this costs about a
+    circuit build). A part that ``drawn`` lists with loose pins is not listed again as a
     floating island. Nothing when the values do not read (the inspector says why)."""
-    try:
-        circuit = build_circuit(doc, conn, freq)
-    except CircuitError:
-        return []
+    if circuit is None:
+        try:
+            circuit = build_circuit(doc, conn, freq)
+        except CircuitError:
+            return []
     parts = list(circuit)
     if not parts:
         return []

@@ -6,10 +6,11 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
-from sheets import divider, open_sheet, settle
+from sheets import SOURCE_SIDE, divider, lasso, open_sheet, settle
 
 from portcut.app.canvas.marks import CheckMarksItem
-from portcut.engine.schematic import PlacedPart, Wire
+from portcut.engine.schematic import PlacedPart, Wire, build_circuit, extract
+from portcut.engine.schematic.checks import drawing_checks, sheet_checks
 
 
 def _marks(window) -> tuple:
@@ -64,3 +65,55 @@ def test_a_floating_island_is_listed_once_the_edits_pause(window, drive, qtbot):
     assert dock.list.item(0).text().startswith("Floating: ")
     assert dock.checks[0].element_id == drive.by("R7").id
     assert len(_marks(window)) == 1
+
+
+def test_the_circuit_checks_follow_a_nudge_and_a_value_edit(window, drive, qtbot):
+    # the circuit a check builds is kept and only its changed parts rebuilt: after a nudge
+    # and a value typed, the list is what checking the sheet from scratch gives
+    doc = divider()
+    for designator, x in (("R7", 24), ("R8", 28)):  # an island, as above (common practice)
+        doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", designator, (x, 4), 90,
+                           value="1k"))
+    doc.add(Wire(doc.new_id(Wire), ((24, 2), (28, 2))))
+    doc.add(Wire(doc.new_id(Wire), ((24, 6), (28, 6))))
+    open_sheet(window, doc)
+    dock = window.checks_dock
+    qtbot.waitUntil(lambda: dock.list.count() == 1, timeout=3000)
+    drive.click(drive.by("R8").at)
+    drive.key(Qt.Key.Key_Right)  # R8 leaves the loop's wires: R7 stands shorted on its own
+    editor = window.inspector.editors["value"]
+    editor.edit.setFocus()
+    QTest.keyClick(editor.edit, Qt.Key.Key_A, Qt.KeyboardModifier.ControlModifier)
+    QTest.keyClicks(editor.edit, "2k2")
+    QTest.keyClick(editor.edit, Qt.Key.Key_Return)
+    assert drive.by("R8").value == "2k2" and drive.by("R8").at == (29, 4)
+    qtbot.waitUntil(lambda: not dock._timer.isActive() and not dock._circuit_timer.isActive(),
+                    timeout=3000)  # the circuit checked again, once the edits paused
+    assert dock.checks == sheet_checks(drive.doc, extract(drive.doc))
+    assert dock._built[0] == build_circuit(drive.doc, extract(drive.doc))
+    drive.key(Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier, times=2)
+    expected = sheet_checks(drive.doc, extract(drive.doc))
+    assert [c.kind for c in expected] == ["floating"]
+    qtbot.waitUntil(lambda: dock.checks == expected, timeout=3000)
+
+
+def test_on_a_sheet_analysed_in_the_background_the_checks_read_its_nets(window, drive, qtbot):
+    # the drawing is checked on the nets the live analysis's answer brings: a shorted part
+    # drawn along the ground rail is listed, cleared once deleted and listed again on undo
+    doc = divider()
+    doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", "R9", (12, 6), value="1k"))
+    open_sheet(window, doc)
+    lasso(drive, SOURCE_SIDE)
+    window.analysis.inline_parts = 0  # the worker analyses from now on
+    dock = window.checks_dock
+    drive.key(Qt.Key.Key_S)
+    drive.click(drive.by("R9").at)
+    for key, listed in ((Qt.Key.Key_Delete, False), (Qt.Key.Key_Z, True)):
+        drive.key(key, Qt.KeyboardModifier.ControlModifier if listed else
+                  Qt.KeyboardModifier.NoModifier)
+        qtbot.waitUntil(lambda: window.analysis.shown_generation == window.analysis.generation,
+                        timeout=10000)
+        qtbot.waitUntil(lambda listed=listed: any(
+            c.kind == "shorted" for c in dock.checks) == listed, timeout=3000)
+        assert dock._conn is window.analysis.conn  # no second extraction
+        assert dock.checks[:len(dock._drawn)] == drawing_checks(drive.doc, extract(drive.doc))

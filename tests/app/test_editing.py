@@ -270,7 +270,13 @@ def test_nudging_a_tapped_part_away_and_back_leaves_no_stray_link(window, drive)
     drive.click((8, 4))
     drive.key(Qt.Key.Key_Down)                     # off the wires: links hold the taps
     assert len(doc.wires()) == len(start.wires()) + 2
+    changes = []
+    unsubscribe = doc.subscribe(changes.append)
     drive.key(Qt.Key.Key_Up)                       # back: the links fold away
+    unsubscribe()
     assert doc == start
+    # one change tells the listeners of the move and of the links gone with it
+    (change,) = changes
+    assert change.updated == {drive.by("R2").id} and len(change.removed) == 2
     drive.key(Qt.Key.Key_Left)                     # along the wires: the taps slide, no link
     assert len(doc.wires()) == len(start.wires())

@@ -195,3 +195,25 @@ def test_text_no_file_can_store_is_refused_in_every_field(window, drive, char):
     else:
         raise AssertionError(f"a region name took {char!r}")
     assert [*doc] == before
+
+
+def test_a_moved_part_shows_its_new_place_and_keeps_its_fields(window, drive):
+    drive.place("resistor", (0, 0))
+    drive.click((0, 0))
+    value = window.inspector.editors["value"]
+    _type(value, "2k2")
+    _type(window.inspector.editors["value"], "x")  # refused: the field says why
+    assert value.in_error
+    drive.canvas.view.setFocus()
+    drive.key(Qt.Key.Key_Right)
+    at = drive.by("R1").at
+    assert window.inspector.details.text().startswith(f"At ({at[0]}, {at[1]}), turned 0°")
+    assert window.inspector.editors["value"] is value  # the same editors, the new version
+    assert value.edit.text() == "2k2" and not value.in_error
+    assert value.element is drive.by("R1")
+    drive.key(Qt.Key.Key_R)  # turned: still the same fields
+    assert "turned 90°" in window.inspector.details.text()
+    drive.key(Qt.Key.Key_Z, CTRL, times=2)  # the move and turn (one step), the value
+    assert value.edit.text() == "1k" and value.element is drive.by("R1")
+    assert window.inspector.details.text().startswith("At (0, 0), turned 0°")
+    assert [e.field for e in window.inspector.editors.values()] == fields_for(drive.by("R1"))

@@ -155,3 +155,24 @@ def test_a_region_with_a_chosen_port_collapses_with_that_polarity(window, drive)
     click_button(panel.expand_button)
     assert drive.doc.regions()[0].port == ("gnd", "out")
     assert _port(window) == ("gnd", "out")
+
+
+def test_the_boxes_follow_an_edit_that_changes_the_regions_nets(window, drive):
+    # the boxes are filled again only when what they list changes: a value typed keeps them,
+    # a label deleted (its net is named after its lowest pin then) renews them
+    open_sheet(window, divider())
+    lasso(drive, SOURCE_SIDE)
+    boxes = window.equivalent_dock.port_boxes
+    drive.key(Qt.Key.Key_S)
+    drive.click(drive.by("R1").at)
+    type_into(window.inspector.editors["value"].edit, "2k")
+    assert drive.by("R1").value == "2k"
+    assert _items(boxes["plus"]) == ["automatic (out)", "ground", "R1.a", "out"]
+    drive.click((12, 2))  # the label "out" on the top wire
+    drive.key(Qt.Key.Key_Delete)
+    settle()
+    assert _items(boxes["plus"]) == ["automatic (R1.b)", "ground", "R1.a", "R1.b"]
+    assert _items(boxes["minus"]) == ["automatic (ground)", "ground", "R1.a", "R1.b"]
+    drive.key(Qt.Key.Key_Z, CTRL)
+    settle()
+    assert _items(boxes["minus"]) == ["automatic (ground)", "ground", "R1.a", "out"]

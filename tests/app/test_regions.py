@@ -7,6 +7,7 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
+from dataclasses import replace
 
 import pytest
 from PySide6.QtCore import QPointF, Qt
@@ -15,7 +16,8 @@ from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, WITHOUT_SOURCE, divider, lasso, open_sheet, settle
 
 from portcut.app.canvas.grid import to_scene
-from portcut.engine.schematic import Region
+from portcut.app.regions import port_marks, port_marks_read
+from portcut.engine.schematic import Document, Region, Wire, extract
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 SHIFT = Qt.KeyboardModifier.ShiftModifier
@@ -235,3 +237,40 @@ def test_port_marks_do_not_depend_on_set_order():
                            env={**os.environ, "PYTHONHASHSEED": str(seed)}).stdout
             for seed in range(4)}
     assert len(seen) == 1 and "PortMark" in seen.pop()
+
+
+def test_what_the_port_marks_read_changes_whenever_the_marks_do():
+    # the canvas works the marks out again only when port_marks_read changes: every one-step
+    # move of an element of the divider that moves a mark must change it, and a value typed
+    # (which moves nothing) must not
+    doc = divider()
+    members = frozenset(p.id for p in doc.parts() if p.designator != "RL")
+    doc.add(Region("reg", "source side", members, tuple(map(tuple, SOURCE_SIDE[:-1]))))
+    port = ("out", "gnd")
+
+    def read(d: Document) -> tuple:
+        conn, region = extract(d), d["reg"]
+        return port_marks(d, conn, region, port), port_marks_read(d, conn, region, port)
+
+    marks, seen = read(doc)
+    moved = 0
+    for element in [e for e in doc if not isinstance(e, Region)]:
+        for dx, dy in ((1, 0), (0, 1), (-1, 0), (0, -1)):
+            if isinstance(element, Wire):
+                new = replace(element, points=tuple((x + dx, y + dy) for x, y in element.points))
+            else:
+                new = replace(element, at=(element.at[0] + dx, element.at[1] + dy))
+            edited = doc.snapshot()
+            edited.replace(new)
+            marks_after, seen_after = read(edited)
+            if marks_after != marks:
+                moved += 1
+                assert seen_after != seen, f"{element.id} moved by {(dx, dy)}"
+    assert moved >= 4  # the top wire and the ground rail, up and down at least
+    edited = doc.snapshot()  # a wire of net out drawn up across the top edge: a third mark
+    edited.add(Wire("up", ((8, 2), (8, -3))))
+    marks_after, seen_after = read(edited)
+    assert len(marks_after) == 3 and seen_after != seen
+    edited = doc.snapshot()
+    edited.replace(replace(edited.by_designator("R1"), value="2k"))
+    assert read(edited) == (marks, seen)
