@@ -17,9 +17,24 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["COMPLEX_VALUED", "CONTROLLED_BY_CURRENT", "CURRENT_CARRYING", "DEVICE_KINDS",
-           "KINDS", "KIND_CODE", "PART_KINDS", "REFERRING", "SENSING", "SOURCES", "TABLE", "TRAITS",
-           "VALUED", "VALUE_UNITS", "Kind"]
+__all__ = [
+    "COMPLEX_VALUED",
+    "CONTROLLED_BY_CURRENT",
+    "CURRENTLESS",
+    "CURRENT_CARRYING",
+    "DEVICE_KINDS",
+    "KINDS",
+    "KIND_CODE",
+    "PART_KINDS",
+    "REFERRING",
+    "SENSING",
+    "SOURCES",
+    "TABLE",
+    "TRAITS",
+    "VALUED",
+    "VALUE_UNITS",
+    "Kind",
+]
 
 
 @dataclass(frozen=True, slots=True)
@@ -100,3 +115,5 @@ VALUE_UNITS: dict[str, str] = {name: TRAITS[name].unit for name in VALUED}
 COMPLEX_VALUED: tuple[str, ...] = tuple(k.name for k in TABLE if k.complex_value)
 #: Primitive kinds whose current can control a current-controlled source.
 CURRENT_CARRYING: tuple[str, ...] = tuple(k.name for k in TABLE if not k.device and k.own_current)
+#: Primitive kinds with no single current of their own to control a source with.
+CURRENTLESS: tuple[str, ...] = tuple(k.name for k in TABLE if not k.device and not k.own_current)

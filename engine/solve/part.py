@@ -11,6 +11,7 @@ from typing import TYPE_CHECKING
 
 from ..errors import CircuitError
 from .kinds import CONTROLLED_BY_CURRENT as _CURRENT_CONTROLLED
+from .kinds import CURRENTLESS as _CURRENTLESS
 from .kinds import KINDS, REFERRING
 from .kinds import SOURCES as _SOURCES
 from .units import VALUE_UNITS, parse_value
@@ -114,7 +115,7 @@ def _validated(part: Part, value: complex | float, circuit: Circuit, *,
         (control,) = part.refs
         if control == name:
             raise CircuitError(f"{name}: a source cannot be controlled by its own current")
-        if control in circuit and circuit[control].kind in {"opamp", "coupling"}:
+        if control in circuit and circuit[control].kind in _CURRENTLESS:
             raise CircuitError(f"{name}: {control} has no single branch current to sense")
     if part.kind == "coupling":
         _validate_coupling(part, value, circuit)

@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ...solve.kinds import CONTROLLED_BY_CURRENT
+from ...solve.kinds import CONTROLLED_BY_CURRENT, CURRENTLESS
 from ..model import Block, PlacedPart
 from ..symbols import Point
 from .sheet import _Sheet
@@ -124,7 +124,7 @@ def _reference_problem(part: PlacedPart, parts: dict[str, PlacedPart],
         if part.control not in parts:
             return (f"{part.designator} is controlled by the current of {part.control}, "
                     f"which {_missing(part.control, blocks)}")
-        if part.control == part.designator or parts[part.control].kind in {"opamp", "coupling"}:
+        if part.control == part.designator or parts[part.control].kind in CURRENTLESS:
             return (f"{part.designator} cannot be controlled by {part.control}, which has no "
                     "single branch current")
     return ""
