@@ -10,7 +10,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from ...errors import CircuitError
-from ..mna import describe_freq
 from ..units import UNDEFINED, denoised, format_complex, format_eng, format_phasor
 
 __all__ = ["EquivalenceReport", "Equivalent", "Forms", "PowerTransfer", "Realisation", "Sweep"]
@@ -106,21 +105,6 @@ class Equivalent:
             return fmt(denoised(value), unit, digits)
         return Forms(text(self.voc, "V", self.has_thevenin), text(self.isc, "A", self.has_norton),
                      text(self.z, "Ω"))
-
-    def summary(self) -> str:
-        """A few lines for a report: port, frequency, both forms (or why one is missing)."""
-        plus, minus = self.port
-        rect, pol = self.rectangular(), self.polar()
-        lines = [f"port {plus} (+) / {minus} (-) at {describe_freq(self.freq)}"]
-        if self.has_thevenin:
-            lines.append(f"Thevenin: voc = {pol.voc}, z = {rect.z}")
-        else:
-            lines.append("Thevenin: none (the impedance is infinite)")
-        if self.has_norton:
-            lines.append(f"Norton: isc = {pol.isc}, z = {rect.z}")
-        else:
-            lines.append("Norton: none (the impedance is zero)")
-        return "\n".join(lines)
 
     def realisation(self) -> Realisation:
         """The series R + L or R + C (or pure R) whose impedance is ``z`` at ``freq``.
