@@ -18,33 +18,17 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-from PySide6.QtCore import QSettings, Qt
-from PySide6.QtTest import QTest
+from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QApplication
+from shots import settle as _settle
+from shots import window as _shot_window
 
 from portcut import assets
 from portcut.app.commands import ReplaceElements
-from portcut.app.panels.sweep import FOLLOW_MS
-from portcut.app.settings import Settings
 from portcut.app.window import MainWindow
 
 SIZES = ((1280, 720), (1400, 860))
 GAUGES = ("R1", "R2", "R3", "R4")
-
-
-def _window(scratch: str, size: tuple[int, int]) -> MainWindow:
-    ini = Path(scratch) / f"{len(os.listdir(scratch))}.ini"
-    window = MainWindow(Settings(QSettings(str(ini), QSettings.Format.IniFormat)))
-    window.files.report = lambda *message: None
-    window.resize(*size)
-    window.show()
-    return window
-
-
-def _settle(app: QApplication) -> None:
-    for _ in range(6):
-        app.processEvents()
-    QTest.qWait(FOLLOW_MS + 100)  # the sweep view waits for edits to settle before sweeping
 
 
 def _type(edit, text: str) -> None:
@@ -54,7 +38,7 @@ def _type(edit, text: str) -> None:
 
 def _bridge(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWindow:
     """The bridge with ±1 % gauges, the insight panel shown with a 0-10 Hz noise band."""
-    window = _window(scratch, size)
+    window = _shot_window(scratch, size)
     window.files.open_path(assets.example_path("strain_gauge_bridge"), as_copy=True)
     doc = window.workbench.doc
     gauges = [replace(doc.by_designator(n), tolerance="F") for n in GAUGES]
@@ -89,7 +73,7 @@ def _insight(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWind
 
 
 def _sweep(app: QApplication, scratch: str, size: tuple[int, int]) -> MainWindow:
-    window = _window(scratch, size)
+    window = _shot_window(scratch, size)
     window.files.open_path(assets.example_path("rc_antialias"), as_copy=True)
     _settle(app)
     window.equivalent_dock.sweep_button.click()

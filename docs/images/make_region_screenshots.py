@@ -16,35 +16,18 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-from PySide6.QtCore import QSettings
-from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QApplication
+from shots import settle as _settle
+from shots import window as _shot_window
 
 from portcut import assets
 from portcut.app.commands import ReplaceElements
-from portcut.app.panels.sweep import FOLLOW_MS
 from portcut.app.region_edits import port_text
-from portcut.app.settings import Settings
 from portcut.app.window import MainWindow
 from portcut.engine.schematic import fileformat
 
 HERE = Path(__file__).resolve().parent
 SIZE = (1400, 900)
-
-
-def _window(app: QApplication, scratch: str) -> MainWindow:
-    window = MainWindow(Settings(QSettings(str(Path(scratch) / f"{len(os.listdir(scratch))}.ini"),
-                                           QSettings.Format.IniFormat)))
-    window.files.report = lambda *message: None
-    window.resize(*SIZE)
-    window.show()
-    return window
-
-
-def _settle(app: QApplication) -> None:
-    for _ in range(6):
-        app.processEvents()
-    QTest.qWait(FOLLOW_MS + 100)  # the sweep view waits for edits to settle before sweeping
 
 
 def _shoot(app: QApplication, window: MainWindow, name: str) -> None:
@@ -60,7 +43,7 @@ def main() -> int:
     app = QApplication.instance() or QApplication([])
     scratch = tempfile.mkdtemp()
 
-    window = _window(app, scratch)
+    window = _shot_window(scratch, SIZE)
     window.files.open_path(assets.example_path("rc_antialias"), as_copy=True)
     _shoot(app, window, "region-valid.png")
 
@@ -73,7 +56,7 @@ def main() -> int:
     window.equivalent_dock.sweep_button.click()
     _shoot(app, window, "sweep-view.png")
 
-    window = _window(app, scratch)
+    window = _shot_window(scratch, SIZE)
     doc = fileformat.load(assets.example_path("rc_antialias"))
     region = doc.regions()[0]
     left_out = doc.by_designator("R1")
@@ -81,7 +64,7 @@ def main() -> int:
     window.workbench.replace_document(doc, None)
     _shoot(app, window, "region-invalid.png")
 
-    window = _window(app, scratch)
+    window = _shot_window(scratch, SIZE)
     window.files.open_path(assets.example_path("strain_gauge_bridge"), as_copy=True)
     doc = window.workbench.doc
     region = replace(doc.regions()[0], swap=False, port=("adc_p", "adc_n"))

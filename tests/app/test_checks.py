@@ -18,6 +18,18 @@ def _marks(window) -> tuple:
     return items[0].points if items else ()
 
 
+def _with_island():
+    """The divider and, beside it, R7 and R8 in a loop of their own: an island away from
+    ground."""
+    doc = divider()
+    for designator, x in (("R7", 24), ("R8", 28)):
+        doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", designator, (x, 4), 90,
+                           value="1k"))
+    doc.add(Wire(doc.new_id(Wire), ((24, 2), (28, 2))))
+    doc.add(Wire(doc.new_id(Wire), ((24, 6), (28, 6))))
+    return doc
+
+
 def test_a_shorted_part_is_marked_listed_and_selected_from_its_line(window, drive):
     doc = divider()
     # R9 lies along the top wire: both its pins are taps on net "out"
@@ -53,12 +65,7 @@ def test_a_shorted_part_is_marked_listed_and_selected_from_its_line(window, driv
 def test_a_floating_island_is_listed_once_the_edits_pause(window, drive, qtbot):
     # R7 and R8 form a loop of their own, joined to nothing else: an island with no path to
     # ground, whose potential nodal analysis cannot fix (common practice)
-    doc = divider()
-    for designator, x in (("R7", 24), ("R8", 28)):
-        doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", designator, (x, 4), 90,
-                           value="1k"))
-    doc.add(Wire(doc.new_id(Wire), ((24, 2), (28, 2))))
-    doc.add(Wire(doc.new_id(Wire), ((24, 6), (28, 6))))
+    doc = _with_island()
     open_sheet(window, doc)
     dock = window.checks_dock
     qtbot.waitUntil(lambda: dock.list.count() == 1, timeout=3000)
@@ -70,12 +77,7 @@ def test_a_floating_island_is_listed_once_the_edits_pause(window, drive, qtbot):
 def test_the_circuit_checks_follow_a_nudge_and_a_value_edit(window, drive, qtbot):
     # the circuit a check builds is kept and only its changed parts rebuilt: after a nudge
     # and a value typed, the list is what checking the sheet from scratch gives
-    doc = divider()
-    for designator, x in (("R7", 24), ("R8", 28)):  # an island, as above (common practice)
-        doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", designator, (x, 4), 90,
-                           value="1k"))
-    doc.add(Wire(doc.new_id(Wire), ((24, 2), (28, 2))))
-    doc.add(Wire(doc.new_id(Wire), ((24, 6), (28, 6))))
+    doc = _with_island()
     open_sheet(window, doc)
     dock = window.checks_dock
     qtbot.waitUntil(lambda: dock.list.count() == 1, timeout=3000)

@@ -106,15 +106,21 @@ def test_the_sweep_follows_an_edit(window, drive, qtbot):
                     timeout=2000)
 
 
-def test_a_collapsed_block_is_swept_through_its_contents(window, drive):
+def _block_alone(window, drive) -> None:
+    """An RC divider's source side collapsed into a block, and a new region of the block
+    alone."""
     open_sheet(window, divider(second="capacitor", second_value="100n"))
     lasso(drive, SOURCE_SIDE)
     click_button(window.equivalent_dock.collapse_button)
     (block,) = drive.doc.blocks()
     window.canvas.scene.select_ids([])
     drive.key(Qt.Key.Key_B)
-    drive.click(block.at, SHIFT)  # a new region of the block alone
+    drive.click(block.at, SHIFT)
     settle()
+
+
+def test_a_collapsed_block_is_swept_through_its_contents(window, drive):
+    _block_alone(window, drive)
     assert window.analysis.analysis.ok, window.analysis.analysis.message
     click_button(window.equivalent_dock.sweep_button)
     settle()
@@ -210,14 +216,7 @@ def test_the_sensitivity_trace_is_the_engines_checked_by_finite_differences(wind
 
 
 def test_insight_traces_of_a_collapsed_block_say_to_expand_it(window, drive):
-    open_sheet(window, divider(second="capacitor", second_value="100n"))
-    lasso(drive, SOURCE_SIDE)
-    click_button(window.equivalent_dock.collapse_button)
-    (block,) = drive.doc.blocks()
-    window.canvas.scene.select_ids([])
-    drive.key(Qt.Key.Key_B)
-    drive.click(block.at, SHIFT)
-    settle()
+    _block_alone(window, drive)
     click_button(window.equivalent_dock.sweep_button)
     dock = window.sweep_dock
     _check(dock.traces.boxes["noise"])
