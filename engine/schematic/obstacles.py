@@ -19,7 +19,7 @@ from .caption_spots import text_box
 from .model import Block, Element, Junction, NetLabel, PlacedPart, Wire
 from .symbols import JUNCTION_RADIUS, STROKE_WIDTH, Bounds, place, placed_bounds, symbol
 
-__all__ = ["WEIGHTS", "CellIndex", "fixed_scores", "obstacles"]
+__all__ = ["WEIGHTS", "CellIndex", "fixed_scores", "obstacles", "overlapping"]
 
 #: Cost per square grid unit of covering each kind of obstacle.
 WEIGHTS = {"body": 100.0, "caption": 100.0, "wire": 20.0, "dot": 20.0}
@@ -116,11 +116,13 @@ class CellIndex:
             for j in range(j0, j1):
                 cells[(i, j)].append(entry)
 
-    def remove(self, box: Bounds, owner: str) -> None:
+    def remove(self, box: Bounds, owner: str, rank: tuple[int, int] | None = None) -> None:
+        """Drop ``owner``'s entries of ``box`` (with ``rank``: only the one of that rank)."""
         for cell in _cells(box):
             entries = self.cells.get(cell)
             if entries:
-                self.cells[cell] = [e for e in entries if not (e[2] == owner and e[1] == box)]
+                self.cells[cell] = [e for e in entries if not (
+                    e[2] == owner and e[1] == box and rank in (None, e[3]))]
 
     def owners(self, box: Bounds) -> set[str]:
         """Owners of the boxes overlapping ``box``."""
@@ -189,12 +191,22 @@ def _key(i: np.ndarray, j: np.ndarray) -> np.ndarray:
 
 def fixed_scores(rooms: np.ndarray, boxes: np.ndarray, weights: np.ndarray) -> np.ndarray:
     """The weighted area each of ``rooms`` (rows x0 y0 x1 y1) shares with ``boxes`` (same
-    layout, cost per square unit in ``weights``): :meth:`CellIndex.score` for all at once.
+    layout, cost per square unit in ``weights``): :meth:`CellIndex.score` for all at once."""
+    if not len(rooms) or not len(boxes):
+        return np.zeros(len(rooms))
+    pr, pb, w, h = overlapping(rooms, boxes)
+    return np.bincount(pr, weights=weights[pb] * w * h, minlength=len(rooms))
+
+
+def overlapping(rooms: np.ndarray, boxes: np.ndarray) -> tuple[np.ndarray, ...]:
+    """Every pair of one of ``rooms`` and one of ``boxes`` (rows x0 y0 x1 y1) sharing some
+    area: the room's row, the box's row, and the width and height they share.
 
     Rooms and boxes are paired through the cells both touch; a pair's overlap is counted in the
     one cell holding its top-left corner, so it is counted once."""
     if not len(rooms) or not len(boxes):
-        return np.zeros(len(rooms))
+        none = np.zeros(0, dtype=np.int64)
+        return none, none, np.zeros(0), np.zeros(0)
     box_row, box_key = _covered(boxes)
     order = np.argsort(box_key, kind="stable")
     box_row = box_row[order]
@@ -213,4 +225,4 @@ def fixed_scores(rooms: np.ndarray, boxes: np.ndarray, weights: np.ndarray) -> n
     here = _key(np.floor_divide(x0, JOIN_CELL).astype(np.int64),
                 np.floor_divide(y0, JOIN_CELL).astype(np.int64)) == np.repeat(room_key, n)
     keep = (w > EPS) & (h > EPS) & here
-    return np.bincount(pr[keep], weights=(weights[pb] * w * h)[keep], minlength=len(rooms))
+    return pr[keep], pb[keep], w[keep], h[keep]
