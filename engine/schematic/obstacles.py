@@ -10,8 +10,9 @@ in array operations, giving the same sums. Units: grid units, x right, y down.
 from __future__ import annotations
 
 from collections import defaultdict
+from collections.abc import Iterable
 from functools import cache
-from itertools import pairwise
+from itertools import chain, pairwise
 
 import numpy as np
 
@@ -19,7 +20,7 @@ from .caption_spots import text_box
 from .model import Block, Element, Junction, NetLabel, PlacedPart, Wire
 from .symbols import JUNCTION_RADIUS, STROKE_WIDTH, Bounds, place, placed_bounds, symbol
 
-__all__ = ["WEIGHTS", "CellIndex", "fixed_scores", "obstacles", "overlapping"]
+__all__ = ["WEIGHTS", "CellIndex", "box_array", "fixed_scores", "obstacles", "overlapping"]
 
 #: Cost per square grid unit of covering each kind of obstacle.
 WEIGHTS = {"body": 100.0, "caption": 100.0, "wire": 20.0, "dot": 20.0}
@@ -92,7 +93,7 @@ class CellIndex:
         index = cls()
         if not entries:
             return index
-        boxes = np.array([e[1] for e in entries], dtype=float)
+        boxes = box_array(e[1] for e in entries)
         lo = np.floor_divide(boxes[:, :2], CELL).astype(np.int64)
         span = np.floor_divide(boxes[:, 2:], CELL).astype(np.int64) - lo + 1
         row, i, j = _expand(lo, span)
@@ -129,6 +130,19 @@ class CellIndex:
         return {e[2] for cell in _cells(box) for e in self.cells.get(cell, ())
                 if _shared(box, e[1]) > 0}
 
+    def ranked_after(self, box: Bounds, rank: tuple[int, int]) -> set[tuple[int, int]]:
+        """Ranks after ``rank`` of the boxes sharing some area with ``box``."""
+        bx0, by0, bx1, by1 = box
+        cells = self.cells
+        found = set()
+        j0, j1 = int(by0 // CELL), int(by1 // CELL) + 1
+        for i in range(int(bx0 // CELL), int(bx1 // CELL) + 1):
+            for j in range(j0, j1):
+                for _, (x0, y0, x1, y1), _, entry_rank in cells.get((i, j), ()):
+                    if entry_rank > rank and x0 < bx1 and bx0 < x1 and y0 < by1 and by0 < y1:
+                        found.add(entry_rank)
+        return found
+
     def score(self, box: Bounds, rank: tuple[int, int] | None = None,
               ranks: dict[str, int] | None = None) -> float:
         """The weighted area ``box`` shares with the boxes held; with ``rank``, captions
@@ -153,6 +167,12 @@ class CellIndex:
                         continue  # placed after this one: not an obstacle for it
                     total += WEIGHTS[kind] * w * h
         return total
+
+
+def box_array(boxes: Iterable[Bounds]) -> np.ndarray:
+    """``boxes`` as an array, one row per box (x0 y0 x1 y1); read as one flat run of numbers,
+    which numpy takes far faster than a list of tuples."""
+    return np.fromiter(chain.from_iterable(boxes), dtype=float).reshape(-1, 4)
 
 
 def _shared(a: Bounds, b: Bounds) -> float:

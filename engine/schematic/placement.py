@@ -20,10 +20,13 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field
 from functools import cache
 from heapq import heappop, heappush
+from itertools import chain
 
 import numpy as np
 
 from .caption_spots import (
+    PAD_X,
+    PAD_Y,
     PlacedCaption,
     Spots,
     dragged,
@@ -36,7 +39,7 @@ from .caption_spots import (
 )
 from .document import Document
 from .model import CAPTION_ROLES, Element, PlacedPart
-from .obstacles import WEIGHTS, CellIndex, fixed_scores, obstacles, overlapping
+from .obstacles import WEIGHTS, CellIndex, box_array, fixed_scores, obstacles, overlapping
 from .symbols import Bounds, FPoint, text_width
 
 __all__ = ["PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
@@ -49,6 +52,12 @@ DIGITS = 6
 #: One caption to place: its role, its position among the part's captions, its lines, its
 #: candidate spots, and the anchor point a dragged caption keeps (None: not dragged).
 _Plan = tuple[str, int, tuple[str, ...], Spots, FPoint | None]
+#: How many spots of a caption covered at its first choice are scored at once (most of them
+#: take one of the first few; later ones are scored one at a time, only where reached).
+SUSPECT_SPOTS = 4
+#: A caption's room is its box grown by the padding; grown a little more here, so that no
+#: rounding hides a room a box covers.
+GROWN_X, GROWN_Y = PAD_X + 1e-6, PAD_Y + 1e-6
 
 
 @dataclass
@@ -184,7 +193,8 @@ class Placement:
         spot; those covered there (suspects) are placed by :meth:`_best`, in placing order, and
         one that lands elsewhere makes suspects of the later ones its new box covers."""
         rows = [(part, entry) for part, plan in zip(parts, plans, strict=True) for entry in plan]
-        scores = self._sheet_scores(rows)
+        fixed = _FixedScores(self._fixed, rows)
+        scores = fixed.scores
         ranks = self._ranks
         out, rooms, free = [], [], []
         for r, ((part, (role, _, lines, where, at)), known) in enumerate(zip(rows, scores,
@@ -192,9 +202,12 @@ class Placement:
             if known is None:
                 out.append(_pinned(role, lines, at))
                 continue
-            rounded = [round(cost, DIGITS) for cost in known]
-            best = min(rounded)
-            k = rounded.index(best)
+            if known[0]:
+                rounded = [round(cost, DIGITS) for cost in known]
+                best = min(rounded)
+                k = rounded.index(best)
+            else:
+                best, k = 0.0, 0
             px, py = part.at
             ax, ay = where.at[k]
             x0, y0, x1, y1 = where.boxes[k]
@@ -203,19 +216,20 @@ class Placement:
             x0, y0, x1, y1 = where.rooms[k]
             rooms.append((x0 + px, y0 + py, x1 + px, y1 + py))
             free.append(r)
+        suspects: list[int] = []
+        if free:
+            taken = np.array(free, dtype=np.int64)
+            pr, pb, _, _ = overlapping(box_array(rooms), box_array(c.box for c in out))
+            suspects = np.unique(taken[pr][pb < taken[pr]]).tolist()
+        waiting = set(suspects)  # left out of the index of placed captions until placed
         self._placed = placed = CellIndex.of([
             ("caption", c.box, part.id, (ranks[part.id], entry[1]))
-            for (part, entry), c in zip(rows, out, strict=True)])
-        if rows:
-            pr, pb, _, _ = overlapping(np.array(rooms, dtype=float).reshape(-1, 4),
-                                       np.array([c.box for c in out], dtype=float))
-            taken = np.array(free, dtype=np.int64)[pr]
-            suspects = np.unique(taken[pb < taken]).tolist()
-        else:
-            suspects = []
-        # where each caption not dragged was put first, to find the suspects a move makes
-        chosen = CellIndex.of([("room", room, str(r), (0, 0))
-                               for r, room in zip(free, rooms, strict=True)]) if suspects else None
+            for r, ((part, entry), c) in enumerate(zip(rows, out, strict=True))
+            if r not in waiting])
+        if not suspects:
+            return self._keep(parts, plans, out)
+        fixed.extend(suspects, SUSPECT_SPOTS)
+        row_of = {(ranks[part.id], entry[1]): r for r, (part, entry) in enumerate(rows)}
         done = set()
         while suspects:
             r = heappop(suspects)
@@ -226,40 +240,29 @@ class Placement:
             rank = (ranks[part.id], i)
             caption = self._best(role, lines, where, part.at, rank, scores[r])
             first, out[r] = out[r], caption
-            if caption.box != first.box:
+            moved = caption.box != first.box
+            if moved and r not in waiting:
                 placed.remove(first.box, part.id, rank)
+            if moved or r in waiting:
                 placed.add("caption", caption.box, part.id, rank)
-                for later in chosen.owners(caption.box):
-                    if int(later) > r:
-                        heappush(suspects, int(later))
+            if moved:  # the later captions whose room (their box, padded) its new box covers
+                x0, y0, x1, y1 = caption.box
+                for held in placed.ranked_after((x0 - GROWN_X, y0 - GROWN_Y, x1 + GROWN_X,
+                                                 y1 + GROWN_Y), rank):
+                    later = row_of[held]
+                    if scores[later] is not None:  # not dragged
+                        heappush(suspects, later)
+        return self._keep(parts, plans, out)
+
+    def _keep(self, parts: list[PlacedPart], plans: list[list[_Plan]],
+              out: list[PlacedCaption]) -> None:
+        """Hold the captions ``out`` (in placing order) of ``parts`` and their reaches."""
         captions = iter(out)
         for part, plan in zip(parts, plans, strict=True):
             found = {entry[0]: next(captions) for entry in plan}
             self._reach[part.id] = self._reach_of(part, plan, found)
             self._origins[part.id] = part.at
             self.captions[part.id] = found
-
-    def _sheet_scores(self, rows: list[tuple[PlacedPart, _Plan]]) -> list[list[float] | None]:
-        """The fixed obstacles' scores of each caption's spots (None: dragged), worked out for
-        the whole sheet at once: only the first spot where it is free of them, else all."""
-        free = [(part, where) for part, (*_, where, at) in rows if at is None]
-        fixed = [entry for boxes in self._fixed.values() for entry in boxes]
-        boxes = np.array([box for _, box in fixed], dtype=float).reshape(-1, 4)
-        weights = np.array([WEIGHTS[kind] for kind, _ in fixed])
-        at = np.array([part.at for part, _ in free], dtype=float).reshape(-1, 2)
-        shifts = np.hstack((at, at))
-        firsts = np.array([where.rooms[0] for _, where in free], dtype=float).reshape(-1, 4)
-        scores = [[cost] for cost in fixed_scores(firsts + shifts, boxes, weights).tolist()]
-        crowded = [j for j, known in enumerate(scores) if round(known[0], DIGITS)]
-        if crowded:
-            counts = [len(free[j][1].rooms) - 1 for j in crowded]
-            rest = np.concatenate([free[j][1].array[1:] for j in crowded]) + np.repeat(
-                shifts[crowded], counts, axis=0)
-            more = iter(fixed_scores(rest, boxes, weights).tolist())
-            for j, n in zip(crowded, counts, strict=True):
-                scores[j].extend(next(more) for _ in range(n))
-        found = iter(scores)
-        return [None if at is not None else next(found) for _, (*_, at) in rows]
 
     def _place_part(self, part: PlacedPart, plan: list[_Plan]) -> dict[str, PlacedCaption]:
         """Place the part's captions after the captions placed before it."""
@@ -335,6 +338,46 @@ def _collector_paused() -> Iterator[None]:
     finally:
         if was:
             gc.enable()
+
+
+class _FixedScores:
+    """The fixed obstacles' scores of the spots of every caption of a sheet, worked out in
+    array operations: ``scores[row]`` lists those of a caption's first spots (None: dragged).
+    At first a caption's first spot is scored, and every spot where that one is not free."""
+
+    def __init__(self, fixed: dict[str, list[tuple[str, Bounds]]],
+                 rows: list[tuple[PlacedPart, _Plan]]) -> None:
+        entries = [entry for boxes in fixed.values() for entry in boxes]
+        self.boxes = box_array(box for _, box in entries)
+        self.weights = np.array([WEIGHTS[kind] for kind, _ in entries])
+        self.spots = [where for _, (*_, where, _) in rows]
+        at = np.fromiter(chain.from_iterable(part.at for part, _ in rows),
+                         dtype=float).reshape(-1, 2)
+        self.shifts = np.hstack((at, at))
+        free = [r for r, (_, (*_, at)) in enumerate(rows) if at is None]
+        self.scores: list[list[float] | None] = [None] * len(rows)
+        for r in free:
+            self.scores[r] = []
+        self.extend(free, 1)
+        self.extend([r for r in free if round(self.scores[r][0], DIGITS)], None)
+
+    def extend(self, rows: list[int], upto: int | None) -> None:
+        """Score the spots of the captions of ``rows`` up to the ``upto``-th (None: all)."""
+        scores, spots = self.scores, self.spots
+        start = [len(scores[r]) for r in rows]
+        end = [len(spots[r].rooms) if upto is None else min(upto, len(spots[r].rooms))
+               for r in rows]
+        todo = [(r, a, b) for r, a, b in zip(rows, start, end, strict=True) if b > a]
+        if not todo:
+            return
+        rooms = box_array(chain.from_iterable(spots[r].rooms[a:b] for r, a, b in todo))
+        rooms += np.repeat(self.shifts[[r for r, _, _ in todo]], [b - a for _, a, b in todo],
+                           axis=0)
+        more = fixed_scores(rooms, self.boxes, self.weights).tolist()
+        at = 0
+        for r, a, b in todo:
+            scores[r] += more[at:at + b - a]
+            at += b - a
 
 
 def _pinned(role: str, lines: tuple[str, ...], at: FPoint) -> PlacedCaption:
