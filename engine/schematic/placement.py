@@ -39,7 +39,7 @@ from .caption_spots import (
 )
 from .document import Document
 from .model import CAPTION_ROLES, Element, PlacedPart
-from .obstacles import WEIGHTS, CellIndex, box_array, fixed_scores, obstacles, overlapping
+from .obstacles import WEIGHTS, BoxCells, CellIndex, box_array, fixed_scores, obstacles, overlapping
 from .symbols import Bounds, FPoint, text_width
 
 __all__ = ["PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
@@ -89,10 +89,13 @@ class Placement:
             fixed = placement._fixed
             for element in doc:
                 fixed[element.id] = obstacles(element, style)
-            placement._index = CellIndex.of([(kind, box, eid, (-1, 0)) for eid, boxes
-                                             in fixed.items() for kind, box in boxes])
+            entries = [(kind, box, eid, (-1, 0)) for eid, boxes in fixed.items()
+                       for kind, box in boxes]
+            boxes = box_array(entry[1] for entry in entries)
+            placement._index = CellIndex.of(entries, boxes)
             parts = doc.parts()
-            placement._place_sheet(parts, [placement._plan(part) for part in parts])
+            placement._place_sheet(parts, [placement._plan(part) for part in parts],
+                                   _FixedScores(boxes, np.array([WEIGHTS[e[0]] for e in entries])))
             ranks = placement._ranks
             placement._reaches = CellIndex.of([("reach", box, eid, (ranks[eid], 0))
                                                for eid, box in placement._reach.items()])
@@ -183,7 +186,8 @@ class Placement:
                 plan.append((role, i, lines, found, pinned.get(role)))
         return plan
 
-    def _place_sheet(self, parts: list[PlacedPart], plans: list[list[_Plan]]) -> None:
+    def _place_sheet(self, parts: list[PlacedPart], plans: list[list[_Plan]],
+                     fixed: _FixedScores) -> None:
         """Place every caption of the sheet, giving what :meth:`_place_part` gives part after
         part in placing order, with the spot search of :meth:`_best` run for few captions.
 
@@ -191,9 +195,10 @@ class Placement:
         before it, which only add; so a caption takes the first spot of lowest fixed score
         unless a caption placed before it covers that spot. Every caption first takes that
         spot; those covered there (suspects) are placed by :meth:`_best`, in placing order, and
-        one that lands elsewhere makes suspects of the later ones its new box covers."""
+        one that lands elsewhere makes suspects of the later ones its new box covers;
+        ``fixed`` scores spots against the fixed obstacles."""
         rows = [(part, entry) for part, plan in zip(parts, plans, strict=True) for entry in plan]
-        fixed = _FixedScores(self._fixed, rows)
+        fixed.start(rows)
         scores = fixed.scores
         ranks = self._ranks
         out, rooms, free = [], [], []
@@ -289,11 +294,13 @@ class Placement:
         """Where the part's captions may go: their spots, its body and the dragged ones."""
         if not plan:
             return self._fixed[part.id][0][1]  # its body
-        x0, y0, x1, y1 = _reach_at_origin(tuple(where for *_, where, _ in plan))
+        x0, y0, x1, y1 = _reach_at_origin(tuple([entry[3] for entry in plan]))
         px, py = part.at
         reach = (x0 + px, y0 + py, x1 + px, y1 + py)
-        held = [captions[role].box for role, *_, at in plan if at is not None]
-        return union([reach, *held]) if held else reach
+        if part.captions:
+            held = [captions[entry[0]].box for entry in plan if entry[4] is not None]
+            return union([reach, *held]) if held else reach
+        return reach
 
     def _best(self, role: str, lines: tuple[str, ...], where: Spots, origin: FPoint,
               rank: tuple[int, int], fixed: list[float] | None) -> PlacedCaption:
@@ -342,20 +349,25 @@ def _collector_paused() -> Iterator[None]:
 
 class _FixedScores:
     """The fixed obstacles' scores of the spots of every caption of a sheet, worked out in
-    array operations: ``scores[row]`` lists those of a caption's first spots (None: dragged).
-    At first a caption's first spot is scored, and every spot where that one is not free."""
+    array operations: ``scores[row]`` lists those of a caption's first spots (None: dragged)."""
 
-    def __init__(self, fixed: dict[str, list[tuple[str, Bounds]]],
-                 rows: list[tuple[PlacedPart, _Plan]]) -> None:
-        entries = [entry for boxes in fixed.values() for entry in boxes]
-        self.boxes = box_array(box for _, box in entries)
-        self.weights = np.array([WEIGHTS[kind] for kind, _ in entries])
+    def __init__(self, boxes: np.ndarray, weights: np.ndarray) -> None:
+        """Scores against the fixed obstacles' ``boxes`` (a :func:`box_array`) costing
+        ``weights`` per square unit."""
+        self.boxes, self.weights = BoxCells(boxes), weights
+        self.spots: list[Spots] = []
+        self.shifts = np.zeros((0, 4))
+        self.scores: list[list[float] | None] = []
+
+    def start(self, rows: list[tuple[PlacedPart, _Plan]]) -> None:
+        """Score the first spot of the captions of ``rows`` not dragged, and all the spots of
+        those whose first spot is not free."""
         self.spots = [where for _, (*_, where, _) in rows]
         at = np.fromiter(chain.from_iterable(part.at for part, _ in rows),
                          dtype=float).reshape(-1, 2)
         self.shifts = np.hstack((at, at))
         free = [r for r, (_, (*_, at)) in enumerate(rows) if at is None]
-        self.scores: list[list[float] | None] = [None] * len(rows)
+        self.scores = [None] * len(rows)
         for r in free:
             self.scores[r] = []
         self.extend(free, 1)
