@@ -367,11 +367,15 @@ class _FixedScores:
                          dtype=float).reshape(-1, 2)
         self.shifts = np.hstack((at, at))
         free = [r for r, (_, (*_, at)) in enumerate(rows) if at is None]
-        self.scores = [None] * len(rows)
-        for r in free:
-            self.scores[r] = []
-        self.extend(free, 1)
-        self.extend([r for r in free if round(self.scores[r][0], DIGITS)], None)
+        self.scores = scores = [None] * len(rows)
+        if not free:
+            return
+        spots = self.spots
+        rooms = box_array(spots[r].rooms[0] for r in free) + self.shifts[free]
+        for r, cost in zip(free, fixed_scores(rooms, self.boxes, self.weights).tolist(),
+                           strict=True):
+            scores[r] = [cost]
+        self.extend([r for r in free if round(scores[r][0], DIGITS)], None)
 
     def extend(self, rows: list[int], upto: int | None) -> None:
         """Score the spots of the captions of ``rows`` up to the ``upto``-th (None: all)."""
