@@ -20,7 +20,6 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field
 from functools import cache
 from heapq import heappop, heappush
-from itertools import chain
 
 import numpy as np
 
@@ -39,19 +38,13 @@ from .caption_spots import (
 )
 from .document import Document
 from .model import CAPTION_ROLES, Element, PlacedPart
-from .obstacles import WEIGHTS, BoxCells, CellIndex, box_array, fixed_scores, obstacles, overlapping
+from .obstacles import WEIGHTS, CellIndex, box_array, obstacles, overlapping
+from .spot_scores import DIGITS, Plan, SpotScores
 from .symbols import Bounds, FPoint, text_width
 
 __all__ = ["PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
            "text_box", "text_width"]
 
-#: Scores are compared to a millionth of a square grid unit, so that sums taken in another
-#: order (one spot at a time or a whole sheet at once) choose the same spot.
-DIGITS = 6
-
-#: One caption to place: its role, its position among the part's captions, its lines, its
-#: candidate spots, and the anchor point a dragged caption keeps (None: not dragged).
-_Plan = tuple[str, int, tuple[str, ...], Spots, FPoint | None]
 #: How many spots of a caption covered at its first choice are scored at once (most of them
 #: take one of the first few; later ones are scored one at a time, only where reached).
 SUSPECT_SPOTS = 4
@@ -95,7 +88,7 @@ class Placement:
             placement._index = CellIndex.of(entries, boxes)
             parts = doc.parts()
             placement._place_sheet(parts, [placement._plan(part) for part in parts],
-                                   _FixedScores(boxes, np.array([WEIGHTS[e[0]] for e in entries])))
+                                   SpotScores(boxes, np.array([WEIGHTS[e[0]] for e in entries])))
             ranks = placement._ranks
             placement._reaches = CellIndex.of([("reach", box, eid, (ranks[eid], 0))
                                                for eid, box in placement._reach.items()])
@@ -173,7 +166,7 @@ class Placement:
             self._reaches.remove(reach, eid)
         self._origins.pop(eid, None)
 
-    def _plan(self, part: PlacedPart) -> list[_Plan]:
+    def _plan(self, part: PlacedPart) -> list[Plan]:
         """The part's captions to place, in placing order."""
         texts = part_texts(part, ac=self.ac)
         pinned = {role: (part.at[0] + dx, part.at[1] + dy) for role, dx, dy in part.captions}
@@ -186,8 +179,8 @@ class Placement:
                 plan.append((role, i, lines, found, pinned.get(role)))
         return plan
 
-    def _place_sheet(self, parts: list[PlacedPart], plans: list[list[_Plan]],
-                     fixed: _FixedScores) -> None:
+    def _place_sheet(self, parts: list[PlacedPart], plans: list[list[Plan]],
+                     fixed: SpotScores) -> None:
         """Place every caption of the sheet, giving what :meth:`_place_part` gives part after
         part in placing order, with the spot search of :meth:`_best` run for few captions.
 
@@ -259,7 +252,7 @@ class Placement:
                         heappush(suspects, later)
         return self._keep(parts, plans, out)
 
-    def _keep(self, parts: list[PlacedPart], plans: list[list[_Plan]],
+    def _keep(self, parts: list[PlacedPart], plans: list[list[Plan]],
               out: list[PlacedCaption]) -> None:
         """Hold the captions ``out`` (in placing order) of ``parts`` and their reaches."""
         captions = iter(out)
@@ -269,7 +262,7 @@ class Placement:
             self._origins[part.id] = part.at
             self.captions[part.id] = found
 
-    def _place_part(self, part: PlacedPart, plan: list[_Plan]) -> dict[str, PlacedCaption]:
+    def _place_part(self, part: PlacedPart, plan: list[Plan]) -> dict[str, PlacedCaption]:
         """Place the part's captions after the captions placed before it."""
         rank = self._ranks[part.id]
         out: dict[str, PlacedCaption] = {}
@@ -289,7 +282,7 @@ class Placement:
         self.captions[part.id] = out
         return out
 
-    def _reach_of(self, part: PlacedPart, plan: list[_Plan],
+    def _reach_of(self, part: PlacedPart, plan: list[Plan],
                   captions: dict[str, PlacedCaption]) -> Bounds:
         """Where the part's captions may go: their spots, its body and the dragged ones."""
         if not plan:
@@ -345,55 +338,6 @@ def _collector_paused() -> Iterator[None]:
     finally:
         if was:
             gc.enable()
-
-
-class _FixedScores:
-    """The fixed obstacles' scores of the spots of every caption of a sheet, worked out in
-    array operations: ``scores[row]`` lists those of a caption's first spots (None: dragged)."""
-
-    def __init__(self, boxes: np.ndarray, weights: np.ndarray) -> None:
-        """Scores against the fixed obstacles' ``boxes`` (a :func:`box_array`) costing
-        ``weights`` per square unit."""
-        self.boxes, self.weights = BoxCells(boxes), weights
-        self.spots: list[Spots] = []
-        self.shifts = np.zeros((0, 4))
-        self.scores: list[list[float] | None] = []
-
-    def start(self, rows: list[tuple[PlacedPart, _Plan]]) -> None:
-        """Score the first spot of the captions of ``rows`` not dragged, and all the spots of
-        those whose first spot is not free."""
-        self.spots = [where for _, (*_, where, _) in rows]
-        at = np.fromiter(chain.from_iterable(part.at for part, _ in rows),
-                         dtype=float).reshape(-1, 2)
-        self.shifts = np.hstack((at, at))
-        free = [r for r, (_, (*_, at)) in enumerate(rows) if at is None]
-        self.scores = scores = [None] * len(rows)
-        if not free:
-            return
-        spots = self.spots
-        rooms = box_array(spots[r].rooms[0] for r in free) + self.shifts[free]
-        for r, cost in zip(free, fixed_scores(rooms, self.boxes, self.weights).tolist(),
-                           strict=True):
-            scores[r] = [cost]
-        self.extend([r for r in free if round(scores[r][0], DIGITS)], None)
-
-    def extend(self, rows: list[int], upto: int | None) -> None:
-        """Score the spots of the captions of ``rows`` up to the ``upto``-th (None: all)."""
-        scores, spots = self.scores, self.spots
-        start = [len(scores[r]) for r in rows]
-        end = [len(spots[r].rooms) if upto is None else min(upto, len(spots[r].rooms))
-               for r in rows]
-        todo = [(r, a, b) for r, a, b in zip(rows, start, end, strict=True) if b > a]
-        if not todo:
-            return
-        rooms = box_array(chain.from_iterable(spots[r].rooms[a:b] for r, a, b in todo))
-        rooms += np.repeat(self.shifts[[r for r, _, _ in todo]], [b - a for _, a, b in todo],
-                           axis=0)
-        more = fixed_scores(rooms, self.boxes, self.weights).tolist()
-        at = 0
-        for r, a, b in todo:
-            scores[r] += more[at:at + b - a]
-            at += b - a
 
 
 def _pinned(role: str, lines: tuple[str, ...], at: FPoint) -> PlacedCaption:
