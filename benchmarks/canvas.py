@@ -16,7 +16,13 @@ Three figures, each printed beside a floor measured in the same run on the same 
   move.
 
 Run from the repository root: ``python3 benchmarks/canvas.py [--parts N]`` (offscreen unless a
-display is set). Targets: open under 1 s; frames without stalls (worst under 50 ms); a move with
+display is set). ``--count-placing N`` only places the sheet's captions N times, for counting
+executed instructions, which host load cannot move (callgrind's "Collected" total over N)::
+
+    valgrind --tool=callgrind --instr-atstart=no --collect-atstart=no \\
+        --toggle-collect=map_next --callgrind-out-file=/dev/null \\
+        .venv/bin/python benchmarks/canvas.py --count-placing 3
+ Targets: open under 1 s; frames without stalls (worst under 50 ms); a move with
 re-extraction under 16 ms (one frame at 60 Hz); placing the captions adds under 100 ms to the
 open.
 """
@@ -25,7 +31,9 @@ from __future__ import annotations
 
 import argparse
 import os
+import shutil
 import statistics
+import subprocess
 import sys
 import time
 from collections.abc import Callable
@@ -124,11 +132,27 @@ def _frames(view: QGraphicsView, zoom: Callable[[float], None]) -> list[float]:
     return times
 
 
+def _count_placing(sheet: Document, count: int) -> None:
+    """Place ``sheet``'s captions ``count`` times with callgrind collecting (when it runs)."""
+    for _ in range(2):  # warm: imports, first-call caches
+        Placement.of(sheet)
+    control = shutil.which("callgrind_control")
+    if control:
+        subprocess.run([control, "-i", "on", str(os.getpid())], capture_output=True,
+                       check=False)
+    list(map(lambda _: Placement.of(sheet), range(count)))  # collected inside map's calls
+
+
 def main(argv: list[str] | None = None) -> int:
     args = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     args.add_argument("--parts", type=int, default=2000)
     args.add_argument("--repeat", type=int, default=3, help="best of N for the open figure")
+    args.add_argument("--count-placing", type=int, default=0, metavar="N",
+                      help="only place the captions N times (under callgrind: see above)")
     opts = args.parse_args(argv)
+    if opts.count_placing:
+        _count_placing(generated_sheet(opts.parts), opts.count_placing)
+        return 0
     app = QApplication.instance() or QApplication([])
     sheet = generated_sheet(opts.parts)
     text = dumps(sheet)

@@ -12,8 +12,6 @@ from dataclasses import dataclass
 from functools import cache
 from typing import NamedTuple
 
-import numpy as np
-
 from ..solve.devices import DEVICE_KINDS
 from .captions import value_caption
 from .model import PlacedPart
@@ -133,14 +131,13 @@ def dragged(part: PlacedPart, caption: PlacedCaption,
 class Spots:
     """The candidate spots of one caption around a symbol placed at the origin, most wanted
     first: anchor points, alignments, text boxes and the padded boxes that are scored
-    (``rooms``, also as an array, one row per spot, x0 y0 x1 y1); ``reach`` holds every spot's
+    (``rooms``); ``reach`` holds every spot's
     box and the body. Made once per kind of caption (:func:`spots`), so compared by identity."""
 
     at: tuple[FPoint, ...]
     align: tuple[str, ...]
     boxes: tuple[Bounds, ...]
     rooms: tuple[Bounds, ...]
-    array: np.ndarray
     reach: Bounds
 
 
@@ -159,7 +156,7 @@ def spots(kind: str, rotation: int, mirror: bool, style: str, role: str, lines: 
                   for at, align in found)
     rooms = tuple(map(padded, boxes))
     reach = union([body, boxes[0], _reach(body, lines, width)])
-    return Spots(ats, aligns, boxes, rooms, np.array(rooms, dtype=float), reach)
+    return Spots(ats, aligns, boxes, rooms, reach)
 
 
 def _shifted(box: Bounds, by: FPoint) -> Bounds:

@@ -10,8 +10,9 @@ in array operations, giving the same sums. Units: grid units, x right, y down.
 from __future__ import annotations
 
 from collections import defaultdict
+from collections.abc import Iterable
 from functools import cache
-from itertools import pairwise
+from itertools import chain, pairwise
 
 import numpy as np
 
@@ -19,7 +20,8 @@ from .caption_spots import text_box
 from .model import Block, Element, Junction, NetLabel, PlacedPart, Wire
 from .symbols import JUNCTION_RADIUS, STROKE_WIDTH, Bounds, place, placed_bounds, symbol
 
-__all__ = ["WEIGHTS", "CellIndex", "fixed_scores", "obstacles"]
+__all__ = ["WEIGHTS", "BoxCells", "CellIndex", "box_array", "fixed_scores", "obstacles",
+           "overlapping"]
 
 #: Cost per square grid unit of covering each kind of obstacle.
 WEIGHTS = {"body": 100.0, "caption": 100.0, "wire": 20.0, "dot": 20.0}
@@ -87,12 +89,14 @@ class CellIndex:
         self.cells: dict[tuple[int, int], list[Entry]] = defaultdict(list)
 
     @classmethod
-    def of(cls, entries: list[Entry]) -> CellIndex:
-        """An index holding ``entries``, built in array operations (as :meth:`add` would)."""
+    def of(cls, entries: list[Entry], boxes: np.ndarray | None = None) -> CellIndex:
+        """An index holding ``entries``, built in array operations (as :meth:`add` would);
+        ``boxes``: their boxes as a :func:`box_array`, where already made."""
         index = cls()
         if not entries:
             return index
-        boxes = np.array([e[1] for e in entries], dtype=float)
+        if boxes is None:
+            boxes = box_array(e[1] for e in entries)
         lo = np.floor_divide(boxes[:, :2], CELL).astype(np.int64)
         span = np.floor_divide(boxes[:, 2:], CELL).astype(np.int64) - lo + 1
         row, i, j = _expand(lo, span)
@@ -116,16 +120,31 @@ class CellIndex:
             for j in range(j0, j1):
                 cells[(i, j)].append(entry)
 
-    def remove(self, box: Bounds, owner: str) -> None:
+    def remove(self, box: Bounds, owner: str, rank: tuple[int, int] | None = None) -> None:
+        """Drop ``owner``'s entries of ``box`` (with ``rank``: only the one of that rank)."""
         for cell in _cells(box):
             entries = self.cells.get(cell)
             if entries:
-                self.cells[cell] = [e for e in entries if not (e[2] == owner and e[1] == box)]
+                self.cells[cell] = [e for e in entries if not (
+                    e[2] == owner and e[1] == box and rank in (None, e[3]))]
 
     def owners(self, box: Bounds) -> set[str]:
         """Owners of the boxes overlapping ``box``."""
         return {e[2] for cell in _cells(box) for e in self.cells.get(cell, ())
                 if _shared(box, e[1]) > 0}
+
+    def ranked_after(self, box: Bounds, rank: tuple[int, int]) -> set[tuple[int, int]]:
+        """Ranks after ``rank`` of the boxes sharing some area with ``box``."""
+        bx0, by0, bx1, by1 = box
+        cells = self.cells
+        found = set()
+        j0, j1 = int(by0 // CELL), int(by1 // CELL) + 1
+        for i in range(int(bx0 // CELL), int(bx1 // CELL) + 1):
+            for j in range(j0, j1):
+                for _, (x0, y0, x1, y1), _, entry_rank in cells.get((i, j), ()):
+                    if entry_rank > rank and x0 < bx1 and bx0 < x1 and y0 < by1 and by0 < y1:
+                        found.add(entry_rank)
+        return found
 
     def score(self, box: Bounds, rank: tuple[int, int] | None = None,
               ranks: dict[str, int] | None = None) -> float:
@@ -151,6 +170,12 @@ class CellIndex:
                         continue  # placed after this one: not an obstacle for it
                     total += WEIGHTS[kind] * w * h
         return total
+
+
+def box_array(boxes: Iterable[Bounds]) -> np.ndarray:
+    """``boxes`` as an array, one row per box (x0 y0 x1 y1); read as one flat run of numbers,
+    which numpy takes far faster than a list of tuples."""
+    return np.fromiter(chain.from_iterable(boxes), dtype=float).reshape(-1, 4)
 
 
 def _shared(a: Bounds, b: Bounds) -> float:
@@ -187,30 +212,58 @@ def _key(i: np.ndarray, j: np.ndarray) -> np.ndarray:
     return i * (1 << 32) + j  # one number per cell (|j| stays far below 2**31)
 
 
-def fixed_scores(rooms: np.ndarray, boxes: np.ndarray, weights: np.ndarray) -> np.ndarray:
+def fixed_scores(rooms: np.ndarray, boxes: np.ndarray | BoxCells,
+                 weights: np.ndarray) -> np.ndarray:
     """The weighted area each of ``rooms`` (rows x0 y0 x1 y1) shares with ``boxes`` (same
-    layout, cost per square unit in ``weights``): :meth:`CellIndex.score` for all at once.
-
-    Rooms and boxes are paired through the cells both touch; a pair's overlap is counted in the
-    one cell holding its top-left corner, so it is counted once."""
-    if not len(rooms) or not len(boxes):
+    layout, or already by cell; cost per square unit in ``weights``): :meth:`CellIndex.score`
+    for all at once."""
+    cells = boxes if isinstance(boxes, BoxCells) else BoxCells(boxes)
+    if not len(rooms) or not len(cells.boxes):
         return np.zeros(len(rooms))
-    box_row, box_key = _covered(boxes)
-    order = np.argsort(box_key, kind="stable")
-    box_row = box_row[order]
-    cells, first, held = np.unique(box_key[order], return_index=True, return_counts=True)
-    room_row, room_key = _covered(rooms)
-    at = np.minimum(np.searchsorted(cells, room_key), len(cells) - 1)
-    n = np.where(cells[at] == room_key, held[at], 0)
-    k = np.arange(int(n.sum())) - np.repeat(np.cumsum(n) - n, n)
-    pr = np.repeat(room_row, n)
-    pb = box_row[np.repeat(first[at], n) + k]
-    # column by column: gathers from one-dimensional arrays are the cheap kind
-    x0 = np.maximum(rooms[:, 0][pr], boxes[:, 0][pb])
-    y0 = np.maximum(rooms[:, 1][pr], boxes[:, 1][pb])
-    w = np.minimum(rooms[:, 2][pr], boxes[:, 2][pb]) - x0
-    h = np.minimum(rooms[:, 3][pr], boxes[:, 3][pb]) - y0
-    here = _key(np.floor_divide(x0, JOIN_CELL).astype(np.int64),
-                np.floor_divide(y0, JOIN_CELL).astype(np.int64)) == np.repeat(room_key, n)
-    keep = (w > EPS) & (h > EPS) & here
-    return np.bincount(pr[keep], weights=(weights[pb] * w * h)[keep], minlength=len(rooms))
+    pr, pb, w, h = cells.pairs(rooms)
+    return np.bincount(pr, weights=weights[pb] * w * h, minlength=len(rooms))
+
+
+def overlapping(rooms: np.ndarray, boxes: np.ndarray) -> tuple[np.ndarray, ...]:
+    """Every pair of one of ``rooms`` and one of ``boxes`` (rows x0 y0 x1 y1) sharing some
+    area: the room's row, the box's row, and the width and height they share."""
+    return BoxCells(boxes).pairs(rooms)
+
+
+class BoxCells:
+    """Boxes (rows x0 y0 x1 y1) by the :data:`JOIN_CELL` cells they touch, to be paired with
+    many rooms, in one or several calls of :meth:`pairs`."""
+
+    def __init__(self, boxes: np.ndarray) -> None:
+        self.boxes = boxes
+        box_row, box_key = _covered(boxes)
+        order = np.argsort(box_key, kind="stable")
+        self.row = box_row[order]
+        self.cells, self.first, self.held = np.unique(box_key[order], return_index=True,
+                                                      return_counts=True)
+
+    def pairs(self, rooms: np.ndarray) -> tuple[np.ndarray, ...]:
+        """Every pair of one of ``rooms`` and one of the boxes sharing some area: the room's
+        row, the box's row, and the width and height they share.
+
+        Rooms and boxes are paired through the cells both touch; a pair's overlap is counted
+        in the one cell holding its top-left corner, so it is counted once."""
+        boxes, cells = self.boxes, self.cells
+        if not len(rooms) or not len(boxes):
+            none = np.zeros(0, dtype=np.int64)
+            return none, none, np.zeros(0), np.zeros(0)
+        room_row, room_key = _covered(rooms)
+        at = np.minimum(np.searchsorted(cells, room_key), len(cells) - 1)
+        n = np.where(cells[at] == room_key, self.held[at], 0)
+        k = np.arange(int(n.sum())) - np.repeat(np.cumsum(n) - n, n)
+        pr = np.repeat(room_row, n)
+        pb = self.row[np.repeat(self.first[at], n) + k]
+        # column by column: gathers from one-dimensional arrays are the cheap kind
+        x0 = np.maximum(rooms[:, 0][pr], boxes[:, 0][pb])
+        y0 = np.maximum(rooms[:, 1][pr], boxes[:, 1][pb])
+        w = np.minimum(rooms[:, 2][pr], boxes[:, 2][pb]) - x0
+        h = np.minimum(rooms[:, 3][pr], boxes[:, 3][pb]) - y0
+        here = _key(np.floor_divide(x0, JOIN_CELL).astype(np.int64),
+                    np.floor_divide(y0, JOIN_CELL).astype(np.int64)) == np.repeat(room_key, n)
+        keep = (w > EPS) & (h > EPS) & here
+        return pr[keep], pb[keep], w[keep], h[keep]

@@ -14,13 +14,18 @@ three agree. Units: grid units, x right, y down.
 
 from __future__ import annotations
 
+import gc
 from collections.abc import Callable, Iterable, Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from functools import cache
+from heapq import heappop, heappush
 
 import numpy as np
 
 from .caption_spots import (
+    PAD_X,
+    PAD_Y,
     PlacedCaption,
     Spots,
     dragged,
@@ -33,22 +38,19 @@ from .caption_spots import (
 )
 from .document import Document
 from .model import CAPTION_ROLES, Element, PlacedPart
-from .obstacles import WEIGHTS, CellIndex, fixed_scores, obstacles
+from .obstacles import WEIGHTS, CellIndex, box_array, obstacles, overlapping
+from .spot_scores import DIGITS, Plan, SpotScores
 from .symbols import Bounds, FPoint, text_width
 
 __all__ = ["PlacedCaption", "Placement", "dragged", "overlap", "part_texts",
            "text_box", "text_width"]
 
-#: Scores are compared to a millionth of a square grid unit, so that sums taken in another
-#: order (one spot at a time or a whole sheet at once) choose the same spot.
-DIGITS = 6
-#: How many of each caption's spots the whole-sheet pass scores (most captions take one of the
-#: first few; later spots are scored one at a time, only where reached).
-SHEET_SPOTS = 2
-
-#: One caption to place: its role, its position among the part's captions, its lines, its
-#: candidate spots, and the anchor point a dragged caption keeps (None: not dragged).
-_Plan = tuple[str, int, tuple[str, ...], Spots, FPoint | None]
+#: How many spots of a caption covered at its first choice are scored at once (most of them
+#: take one of the first few; later ones are scored one at a time, only where reached).
+SUSPECT_SPOTS = 4
+#: A caption's room is its box grown by the padding; grown a little more here, so that no
+#: rounding hides a room a box covers.
+GROWN_X, GROWN_Y = PAD_X + 1e-6, PAD_Y + 1e-6
 
 
 @dataclass
@@ -75,20 +77,21 @@ class Placement:
     def of(cls, doc: Document, style: str = "iec", ac: bool = False) -> Placement:
         """Captions for every part of ``doc`` drawn in ``style`` (``ac``: sources as phasors)."""
         placement = cls(style, ac)
-        placement._rank(doc)
-        fixed = placement._fixed
-        for element in doc:
-            fixed[element.id] = obstacles(element, style)
-        placement._index = CellIndex.of([(kind, box, eid, (-1, 0)) for eid, boxes in fixed.items()
-                                         for kind, box in boxes])
-        parts = doc.parts()
-        plans = [placement._plan(part) for part in parts]
-        found = iter(placement._sheet_scores(parts, plans))
-        for part, plan in zip(parts, plans, strict=True):
-            placement._place_part(part, plan, found, index_reach=False)
-        ranks = placement._ranks
-        placement._reaches = CellIndex.of([("reach", box, eid, (ranks[eid], 0))
-                                           for eid, box in placement._reach.items()])
+        with _collector_paused():
+            placement._rank(doc)
+            fixed = placement._fixed
+            for element in doc:
+                fixed[element.id] = obstacles(element, style)
+            entries = [(kind, box, eid, (-1, 0)) for eid, boxes in fixed.items()
+                       for kind, box in boxes]
+            boxes = box_array(entry[1] for entry in entries)
+            placement._index = CellIndex.of(entries, boxes)
+            parts = doc.parts()
+            placement._place_sheet(parts, [placement._plan(part) for part in parts],
+                                   SpotScores(boxes, np.array([WEIGHTS[e[0]] for e in entries])))
+            ranks = placement._ranks
+            placement._reaches = CellIndex.of([("reach", box, eid, (ranks[eid], 0))
+                                               for eid, box in placement._reach.items()])
         return placement
 
     def around(self, part_id: str) -> list[PlacedCaption] | None:
@@ -163,7 +166,7 @@ class Placement:
             self._reaches.remove(reach, eid)
         self._origins.pop(eid, None)
 
-    def _plan(self, part: PlacedPart) -> list[_Plan]:
+    def _plan(self, part: PlacedPart) -> list[Plan]:
         """The part's captions to place, in placing order."""
         texts = part_texts(part, ac=self.ac)
         pinned = {role: (part.at[0] + dx, part.at[1] + dy) for role, dx, dy in part.captions}
@@ -176,69 +179,130 @@ class Placement:
                 plan.append((role, i, lines, found, pinned.get(role)))
         return plan
 
-    def _sheet_scores(self, parts: list[PlacedPart],
-                      plans: list[list[_Plan]]) -> list[list[float]]:
-        """The fixed obstacles' score of the first :data:`SHEET_SPOTS` spots of every caption
-        not dragged, in placing order, worked out for the whole sheet at once."""
-        rooms, shifts, counts = [], [], []
-        for part, plan in zip(parts, plans, strict=True):
-            for _, _, _, found, at in plan:
-                if at is None:
-                    rooms.append(found.array[:SHEET_SPOTS])
-                    shifts.append((part.at[0], part.at[1]) * 2)
-                    counts.append(min(len(found.rooms), SHEET_SPOTS))
-        if not rooms:
-            return []
-        fixed = [entry for boxes in self._fixed.values() for entry in boxes]
-        boxes = np.array([box for _, box in fixed], dtype=float).reshape(-1, 4)
-        weights = np.array([WEIGHTS[kind] for kind, _ in fixed])
-        sheet = np.concatenate(rooms) + np.repeat(np.array(shifts, dtype=float), counts, axis=0)
-        scores = fixed_scores(sheet, boxes, weights).tolist()
-        ends = np.cumsum(counts).tolist()
-        return [scores[end - n:end] for end, n in zip(ends, counts, strict=True)]
+    def _place_sheet(self, parts: list[PlacedPart], plans: list[list[Plan]],
+                     fixed: SpotScores) -> None:
+        """Place every caption of the sheet, giving what :meth:`_place_part` gives part after
+        part in placing order, with the spot search of :meth:`_best` run for few captions.
 
-    def _place_part(self, part: PlacedPart, plan: list[_Plan],
-                    found: Iterator[list[float]] | None = None, *,
-                    index_reach: bool = True) -> dict[str, PlacedCaption]:
-        """Place the part's captions; ``found`` gives the fixed obstacles' scores of the first
-        spots of each caption not dragged (None: ask the obstacle index); ``index_reach``
-        False leaves the part's reach out of the reach index (the caller indexes them all)."""
+        A caption's score at a spot is its fixed obstacles' score plus the captions placed
+        before it, which only add; so a caption takes the first spot of lowest fixed score
+        unless a caption placed before it covers that spot. Every caption first takes that
+        spot; those covered there (suspects) are placed by :meth:`_best`, in placing order, and
+        one that lands elsewhere makes suspects of the later ones its new box covers;
+        ``fixed`` scores spots against the fixed obstacles."""
+        rows = [(part, entry) for part, plan in zip(parts, plans, strict=True) for entry in plan]
+        fixed.start(rows)
+        scores = fixed.scores
+        ranks = self._ranks
+        out, rooms, free = [], [], []
+        for r, ((part, (role, _, lines, where, at)), known) in enumerate(zip(rows, scores,
+                                                                              strict=True)):
+            if known is None:
+                out.append(_pinned(role, lines, at))
+                continue
+            if known[0]:
+                rounded = [round(cost, DIGITS) for cost in known]
+                best = min(rounded)
+                k = rounded.index(best)
+            else:
+                best, k = 0.0, 0
+            px, py = part.at
+            ax, ay = where.at[k]
+            x0, y0, x1, y1 = where.boxes[k]
+            out.append(PlacedCaption(role, lines, (ax + px, ay + py), where.align[k],
+                                     (x0 + px, y0 + py, x1 + px, y1 + py), best != 0))
+            x0, y0, x1, y1 = where.rooms[k]
+            rooms.append((x0 + px, y0 + py, x1 + px, y1 + py))
+            free.append(r)
+        suspects: list[int] = []
+        if free:
+            taken = np.array(free, dtype=np.int64)
+            pr, pb, _, _ = overlapping(box_array(rooms), box_array(c.box for c in out))
+            suspects = np.unique(taken[pr][pb < taken[pr]]).tolist()
+        waiting = set(suspects)  # left out of the index of placed captions until placed
+        self._placed = placed = CellIndex.of([
+            ("caption", c.box, part.id, (ranks[part.id], entry[1]))
+            for r, ((part, entry), c) in enumerate(zip(rows, out, strict=True))
+            if r not in waiting])
+        if not suspects:
+            return self._keep(parts, plans, out)
+        fixed.extend(suspects, SUSPECT_SPOTS)
+        row_of = {(ranks[part.id], entry[1]): r for r, (part, entry) in enumerate(rows)}
+        done = set()
+        while suspects:
+            r = heappop(suspects)
+            if r in done:
+                continue
+            done.add(r)
+            part, (role, i, lines, where, _) = rows[r]
+            rank = (ranks[part.id], i)
+            caption = self._best(role, lines, where, part.at, rank, scores[r])
+            first, out[r] = out[r], caption
+            moved = caption.box != first.box
+            if moved and r not in waiting:
+                placed.remove(first.box, part.id, rank)
+            if moved or r in waiting:
+                placed.add("caption", caption.box, part.id, rank)
+            if moved:  # the later captions whose room (their box, padded) its new box covers
+                x0, y0, x1, y1 = caption.box
+                for held in placed.ranked_after((x0 - GROWN_X, y0 - GROWN_Y, x1 + GROWN_X,
+                                                 y1 + GROWN_Y), rank):
+                    later = row_of[held]
+                    if scores[later] is not None:  # not dragged
+                        heappush(suspects, later)
+        return self._keep(parts, plans, out)
+
+    def _keep(self, parts: list[PlacedPart], plans: list[list[Plan]],
+              out: list[PlacedCaption]) -> None:
+        """Hold the captions ``out`` (in placing order) of ``parts`` and their reaches."""
+        captions = iter(out)
+        for part, plan in zip(parts, plans, strict=True):
+            found = {entry[0]: next(captions) for entry in plan}
+            self._reach[part.id] = self._reach_of(part, plan, found)
+            self._origins[part.id] = part.at
+            self.captions[part.id] = found
+
+    def _place_part(self, part: PlacedPart, plan: list[Plan]) -> dict[str, PlacedCaption]:
+        """Place the part's captions after the captions placed before it."""
         rank = self._ranks[part.id]
-        px, py = part.at
         out: dict[str, PlacedCaption] = {}
-        if plan:
-            x0, y0, x1, y1 = _reach_at_origin(tuple(where for *_, where, _ in plan))
-            reach = [(x0 + px, y0 + py, x1 + px, y1 + py)]
-        else:
-            reach = [self._fixed[part.id][0][1]]  # its body
         for role, i, lines, where, at in plan:
             if at is not None:  # dragged: kept whatever it covers
-                caption = PlacedCaption(role, lines, at, "c", text_box(lines, at, "c"))
-                reach.append(caption.box)
+                caption = _pinned(role, lines, at)
             else:
-                scores = None if found is None else next(found)
-                caption = self._best(role, lines, where, part.at, (rank, i), scores)
+                caption = self._best(role, lines, where, part.at, (rank, i), None)
             self._placed.add("caption", caption.box, part.id, (rank, i))
             out[role] = caption
         old = self._reach.pop(part.id, None)
         if old is not None:
             self._reaches.remove(old, part.id)
-        self._reach[part.id] = reach[0] if len(reach) == 1 else union(reach)
-        if index_reach:
-            self._reaches.add("reach", self._reach[part.id], part.id, (rank, 0))
+        self._reach[part.id] = self._reach_of(part, plan, out)
+        self._reaches.add("reach", self._reach[part.id], part.id, (rank, 0))
         self._origins[part.id] = part.at
         self.captions[part.id] = out
         return out
 
+    def _reach_of(self, part: PlacedPart, plan: list[Plan],
+                  captions: dict[str, PlacedCaption]) -> Bounds:
+        """Where the part's captions may go: their spots, its body and the dragged ones."""
+        if not plan:
+            return self._fixed[part.id][0][1]  # its body
+        x0, y0, x1, y1 = _reach_at_origin(tuple([entry[3] for entry in plan]))
+        px, py = part.at
+        reach = (x0 + px, y0 + py, x1 + px, y1 + py)
+        if part.captions:
+            held = [captions[entry[0]].box for entry in plan if entry[4] is not None]
+            return union([reach, *held]) if held else reach
+        return reach
+
     def _best(self, role: str, lines: tuple[str, ...], where: Spots, origin: FPoint,
               rank: tuple[int, int], fixed: list[float] | None) -> PlacedCaption:
         """The first spot nothing covers, or else the least covered one (marked crowded);
-        ``fixed`` holds the fixed obstacles' scores of the spots when they are known."""
+        ``fixed`` holds the fixed obstacles' scores of the first spots when they are known;
+        captions placed after ``rank`` are left out."""
         px, py = origin
         score: Callable[[Bounds], float] = self._index.score
         placed, ranks = self._placed.score, self._ranks
-        # placing the whole sheet, every caption held was placed before this one
-        before = None if fixed is not None else rank
         known = 0 if fixed is None else len(fixed)
         best, best_k = float("inf"), 0
         crowded = True
@@ -249,7 +313,7 @@ class Placement:
                 cost = round(cost, DIGITS)
                 if cost >= best:
                     continue
-            covered = placed(room, before, ranks)
+            covered = placed(room, rank, ranks)
             if covered:
                 cost += round(covered, DIGITS)
             if cost < best:
@@ -261,6 +325,24 @@ class Placement:
         x0, y0, x1, y1 = where.boxes[best_k]
         return PlacedCaption(role, lines, (ax + px, ay + py), where.align[best_k],
                              (x0 + px, y0 + py, x1 + px, y1 + py), crowded)
+
+
+@contextmanager
+def _collector_paused() -> Iterator[None]:
+    """Hold off the cyclic garbage collector: placing a sheet makes many small tuples and no
+    cycles, and the collections they would set off cost a fifth of the time."""
+    was = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
+
+
+def _pinned(role: str, lines: tuple[str, ...], at: FPoint) -> PlacedCaption:
+    """A dragged caption: centred on ``at`` whatever it covers."""
+    return PlacedCaption(role, lines, at, "c", text_box(lines, at, "c"))
 
 
 @cache
