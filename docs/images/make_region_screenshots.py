@@ -1,5 +1,6 @@
 """Renders the user guide's region screenshots offscreen: a valid region, an invalid one, a
-collapsed block, the sweep view and a port chosen by hand, from the bundled examples.
+collapsed block, the sweep view, a port chosen by hand and a selected block, from the bundled
+examples.
 
 Run from the repository root: ``python3 docs/images/make_region_screenshots.py``. Settings are
 throwaway; nothing of the user's is read or written.
@@ -70,6 +71,14 @@ def main() -> int:
     region = replace(doc.regions()[0], swap=False, port=("adc_p", "adc_n"))
     window.workbench.push(ReplaceElements(doc, [region], port_text(region)))
     _shoot(app, window, "region-port.png")
+
+    window = _shot_window(scratch, SIZE)  # a block selected: its values in both panels
+    window.files.open_path(assets.example_path("audio_crossover"), as_copy=True)
+    _settle(app)
+    window.equivalent_dock.collapse()
+    (block,) = window.workbench.doc.blocks()
+    window.canvas.scene.select_ids([block.id])
+    _shoot(app, window, "block-selected.png")
     os._exit(0)  # no teardown: closing would ask about the unsaved sheets
 
 
