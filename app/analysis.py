@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import time
 from dataclasses import fields, replace
+from functools import partial
 
 import numpy as np
 from PySide6.QtCore import QCoreApplication, QObject, Qt, QTimer, Signal
@@ -228,6 +229,8 @@ class LiveAnalysis(QObject):
         self._frame_timer.stop()
         self._set_updating(False)
         self.analysed.emit(self.analysis)
+        if self._worker is not None:  # after the repaint this posts: then the check may start
+            QTimer.singleShot(0, partial(self._worker.drawn, answer.generation))
 
     def _check(self) -> None:
         self._checked_generation = self.generation

@@ -2,10 +2,12 @@
 
 Jobs wait in one slot: a job submitted while another waits takes its place (carrying the
 dropped job's reach), so the thread never works on a state the document has already left
-behind. After each job it hands over the numbers, then runs the equivalence check of the same
-analysis unless a newer job is already waiting, and hands that over too unless one arrived
-meanwhile. The hand-over functions are called in the worker thread; the app passes the emit of
-a queued Qt signal, so they reach the GUI thread through its event loop.
+behind. After each job it hands over the numbers, waits until the GUI thread says it has drawn
+them (:meth:`AnalysisWorker.drawn`; at most :data:`DRAW_WAIT_S`), so that the check's Python
+work does not contend with that repaint for the interpreter lock, then runs the equivalence
+check of the same analysis unless a newer job is already waiting, and hands that over too
+unless one arrived meanwhile. The hand-over functions are called in the worker thread; the app
+passes the emit of a queued Qt signal, so they reach the GUI thread through its event loop.
 
 A Python thread (not a QThread): the work needs no event loop of its own, and a daemon thread
 never holds up the application's exit. It shares the interpreter with the GUI thread: numpy and
@@ -22,11 +24,14 @@ from collections.abc import Callable
 
 from .analyser import Analyser, Answer, Job, check
 
-__all__ = ["SWITCH_S", "AnalysisWorker"]
+__all__ = ["DRAW_WAIT_S", "SWITCH_S", "AnalysisWorker"]
 
 #: The interpreter's thread switch interval while a worker exists (seconds; Python's own
 #: default is 5 ms, a third of a frame).
 SWITCH_S = 0.001
+#: The longest the check waits for the numbers to be drawn (seconds): an answer the GUI thread
+#: drops as stale is never drawn, and a newer job is then on its way.
+DRAW_WAIT_S = 0.1
 
 
 class AnalysisWorker:
@@ -41,6 +46,7 @@ class AnalysisWorker:
         self._waiting: Job | None = None
         self._running = False
         self._stopped = False
+        self._drawn = 0  # the newest generation whose numbers the GUI thread has drawn
         self._thread: threading.Thread | None = None
 
     @property
@@ -60,6 +66,12 @@ class AnalysisWorker:
                 self._thread = threading.Thread(target=self._run, name="live analysis",
                                                 daemon=True)
                 self._thread.start()
+            self._cond.notify()
+
+    def drawn(self, generation: int) -> None:
+        """The GUI thread has drawn the numbers of ``generation``: its check may start."""
+        with self._cond:
+            self._drawn = max(self._drawn, generation)
             self._cond.notify()
 
     def stop(self) -> None:
@@ -89,6 +101,9 @@ class AnalysisWorker:
     def _work(self, job: Job) -> None:
         answer = self.analyser.analyse(job)
         self._numbers(answer)
+        with self._cond:
+            self._cond.wait_for(lambda: self._drawn >= job.generation or self._stopped
+                                or self._waiting is not None, timeout=DRAW_WAIT_S)
         if self._newer_waiting():
             return  # the check of a state already left behind: dropped
         result = check(answer.analysis, job.doc.analysis.form)

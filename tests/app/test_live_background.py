@@ -19,7 +19,9 @@ from PySide6.QtWidgets import QApplication
 from sheets import SOURCE_SIDE, divider, lasso, open_sheet
 
 from portcut.app import worker as worker_module
+from portcut.app.analyser import Answer, Job, Reach
 from portcut.engine import EquivalenceReport
+from portcut.engine.schematic import Document
 from portcut.engine.solve.units import parse_value
 
 V1, R1 = 10.0, 1e3
@@ -144,3 +146,25 @@ def test_the_check_of_a_state_left_behind_is_dropped(window, drive, qtbot, monke
     assert reported == [live.generation]  # the held check was never handed over
     assert len(checked) == 1 and isinstance(checked[0], EquivalenceReport)
     assert live.analysis.equivalent.z.real == pytest.approx(_thevenin_z(3e3), rel=1e-12)
+
+
+class _NoRegion:
+    """An analyser with nothing to analyse: every job answers at once."""
+
+    def analyse(self, job):
+        return Answer(job.generation, None, None, None, 0.0)
+
+
+def test_the_check_waits_until_the_numbers_are_drawn(monkeypatch):
+    # the check's Python work must not contend with the repaint of the numbers: it starts only
+    # once the GUI thread says it has drawn them
+    monkeypatch.setattr(worker_module, "DRAW_WAIT_S", 60.0)
+    numbers, reported = threading.Event(), threading.Event()
+    worker = worker_module.AnalysisWorker(_NoRegion(), lambda answer: numbers.set(),
+                                          lambda generation, result: reported.set())
+    worker.submit(Job(1, Document(), None, Reach()))
+    assert numbers.wait(10)
+    assert not reported.wait(0.2)  # not drawn yet: no check
+    worker.drawn(1)
+    assert reported.wait(10)
+    worker.stop()
