@@ -106,7 +106,6 @@ class LiveAnalysis(QObject):
         self._worker: AnalysisWorker | None = None
         self._parts: dict[str, PlacedPart] = {}
         self._region_ids: set[str] = set()
-        self._block_ids: set[str] = set()
         self._reach = EVERYTHING
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
@@ -130,7 +129,6 @@ class LiveAnalysis(QObject):
         self._unsubscribe = doc.subscribe(self._on_change)
         self._region_ids = {r.id for r in doc.regions()}
         self._parts = {p.id: p for p in doc.parts()}
-        self._block_ids = {b.id for b in doc.blocks()}
         self._reach = EVERYTHING
         self.region_id = None
         self._schedule()
@@ -152,14 +150,11 @@ class LiveAnalysis(QObject):
             reach = reach.merged(Reach(sheet=True))
             if isinstance(element, PlacedPart):
                 self._parts[eid] = element
-            elif isinstance(element, Block):
-                self._block_ids.add(eid)
         for eid in change.removed:
             if eid in self._region_ids:
                 self._region_ids.discard(eid)
-            elif eid not in doc:  # a wire, label or junction reaches only the drawing
+            elif eid not in doc:  # gone for good, not replaced within the change
                 self._parts.pop(eid, None)
-                self._block_ids.discard(eid)
                 reach = reach.merged(Reach(sheet=True))
         for eid in change.updated:
             new = doc[eid]

@@ -78,6 +78,14 @@ def test_unsaved_changes_prompt(window, drive, monkeypatch, tmp_path: Path):
     assert target.exists() and len(load(target).parts()) == 2
 
 
+def _crash(window: MainWindow) -> None:
+    """The process "dies": its locks are gone, its files stay."""
+    window.recovery.lock.unlock()
+    for _, lock in window.recovery.adopted:
+        lock.unlock()
+    window.recovery = None
+
+
 def test_autosave_is_offered_back_after_a_crash(qtbot, settings, tmp_path: Path, monkeypatch):
     folder = tmp_path / "recovery"
     first = MainWindow(settings, recovery_folder=folder)
@@ -87,8 +95,7 @@ def test_autosave_is_offered_back_after_a_crash(qtbot, settings, tmp_path: Path,
     first.canvas.move_selection((3, 0))
     assert first.recovery.autosave()
     lost = loads(dumps(first.workbench.doc))
-    first.recovery.lock.unlock()      # the process "dies": its lock is gone, its files stay
-    first.recovery = None
+    _crash(first)
     monkeypatch.setattr(dialogs, "ask_restore", lambda parent, what: "autosaved" in what)
     second = MainWindow(settings, recovery_folder=folder)
     qtbot.addWidget(second)
@@ -101,14 +108,6 @@ def test_autosave_is_offered_back_after_a_crash(qtbot, settings, tmp_path: Path,
         [second.recovery.document.name, second.recovery.meta.name])
     second.files.save_to(tmp_path / "saved.json")     # saved: nothing left to recover
     assert not second.recovery.document.exists()
-
-
-def _crash(window: MainWindow) -> None:
-    """The process "dies": its locks are gone, its files stay."""
-    window.recovery.lock.unlock()
-    for _, lock in window.recovery.adopted:
-        lock.unlock()
-    window.recovery = None
 
 
 def test_restored_work_survives_a_second_crash_before_it_is_autosaved(
