@@ -8,11 +8,11 @@ symbol's body inside, by the even-odd rule); ``body_bounds`` and ``enclosed`` ar
 
 from __future__ import annotations
 
-import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from itertools import pairwise
 
+import numpy as np
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath, QPolygonF
 
@@ -146,11 +146,13 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
         if not points:
             on_net = sorted(key for key, name in conn.net_of_pin.items()  # sorted: repeatable
                             if name == net and key[0] in region.members and key[0] in doc)
-            pins = [element_pins(doc[eid])[i] for eid, i in on_net]
-            if pins and _used_outside(doc, conn, region, net):
-                points = [min(_nearest(edges, p) for p in pins)[1]]  # ties: the lower point
-            elif pins:
-                points = [min(pins, key=lambda p: (_nearest(edges, p)[0], p))]
+            pins = np.array([element_pins(doc[eid])[i] for eid, i in on_net], dtype=float)
+            if len(pins):
+                dist, near = _nearest(edges, pins)
+                if _used_outside(doc, conn, region, net):  # the outline point (ties: lower)
+                    points = [tuple(near[np.lexsort((near[:, 1], near[:, 0], dist))[0]])]
+                else:  # the pin itself (ties: the lower pin)
+                    points = [tuple(pins[np.lexsort((pins[:, 1], pins[:, 0], dist))[0]])]
         for pt in dict.fromkeys((round(x, 3), round(y, 3)) for x, y in points):
             marks.append(PortMark(pt, role, net))
     return tuple(marks)
@@ -199,14 +201,19 @@ def _crossings(a: FPoint, b: FPoint, edges: list[tuple[FPoint, FPoint]]) -> list
     return found
 
 
-def _nearest(edges: list[tuple[FPoint, FPoint]], pt: FPoint) -> tuple[float, FPoint]:
-    """(distance, point) of the outline point nearest to ``pt``."""
-    best = (math.inf, pt)
-    for p, q in edges:
-        sx, sy = q[0] - p[0], q[1] - p[1]
-        length = sx * sx + sy * sy
-        t = 0.0 if length == 0 else max(0.0, min(1.0, ((pt[0] - p[0]) * sx
-                                                       + (pt[1] - p[1]) * sy) / length))
-        near = (p[0] + t * sx, p[1] + t * sy)
-        best = min(best, (math.dist(near, pt), near))
-    return best
+def _nearest(edges: list[tuple[FPoint, FPoint]], pts: np.ndarray) -> tuple[np.ndarray,
+                                                                         np.ndarray]:
+    """The distance from each point of ``pts`` (n × 2) to the outline, and the outline point
+    nearest to it (n × 2; ties between edges: the lower point), in one pass over all points:
+    a port net such as ground may have hundreds of pins inside the region."""
+    p = np.array([e[0] for e in edges], dtype=float)
+    s = np.array([e[1] for e in edges], dtype=float) - p
+    length = (s * s).sum(axis=1)
+    w = pts[:, None, :] - p[None, :, :]
+    t = np.clip(np.divide((w * s).sum(axis=2), length, out=np.zeros(w.shape[:2]),
+                          where=length > 0), 0.0, 1.0)
+    near = p + t[:, :, None] * s
+    dist = np.hypot(near[:, :, 0] - pts[:, None, 0], near[:, :, 1] - pts[:, None, 1])
+    best = np.lexsort((near[:, :, 1], near[:, :, 0], dist), axis=1)[:, 0]
+    rows = np.arange(len(pts))
+    return dist[rows, best], near[rows, best]

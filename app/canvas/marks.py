@@ -76,7 +76,8 @@ class FaultItem(QGraphicsItem):
         self.update()
 
     def clear(self) -> None:
-        self.show_fault((), [], [])
+        if not (self.outline.isEmpty() and self.wires.isEmpty() and self.parts.isEmpty()):
+            self.show_fault((), [], [])  # (an update repaints the whole region: only if shown)
 
     def boundingRect(self) -> QRectF:
         return self._bounds
@@ -141,8 +142,9 @@ class PortMarksItem(_SpotMarksItem):
         self.marks: tuple[PortMark, ...] = ()
 
     def show_marks(self, marks: tuple[PortMark, ...]) -> None:
-        self.marks = marks
-        self._cover(m.at for m in marks)
+        if marks != self.marks:  # bounds over + and − span the region: repaint only a change
+            self.marks = marks
+            self._cover(m.at for m in marks)
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
               widget: QWidget | None = None) -> None:
@@ -173,8 +175,9 @@ class CheckMarksItem(_SpotMarksItem):
         self.points: tuple[tuple[int, int], ...] = ()
 
     def show_points(self, points: tuple[tuple[int, int], ...]) -> None:
-        self.points = points
-        self._cover(points)
+        if points != self.points:
+            self.points = points
+            self._cover(points)
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem,
               widget: QWidget | None = None) -> None:
@@ -206,7 +209,9 @@ class CutMarks(QObject):
         self.live = live
         self._fault: FaultItem | None = None
         self._ports: PortMarksItem | None = None
-        # the marks depend on the drawing only: kept while what they read of it stays
+        # the marks depend on the drawing only: kept while what they read of it stays (the
+        # same connectivity, region and port: nothing was redrawn since, so not even read)
+        self._read_from: tuple | None = None
         self._marks_for: tuple | None = None
         self._marks: tuple[PortMark, ...] = ()
         live.analysed.connect(self.show)
@@ -232,11 +237,14 @@ class CutMarks(QObject):
             return
         if analysis.ok:
             fault.clear()
-            port = analysis.equivalent.port
-            key = port_marks_read(doc, self.live.conn, region, port)
-            if key != self._marks_for:
-                self._marks_for = key
-                self._marks = port_marks(doc, self.live.conn, region, port)
+            port, conn = analysis.equivalent.port, self.live.conn
+            if self._read_from is None or self._read_from[0] is not conn or \
+                    self._read_from[1:] != (region, port):
+                self._read_from = (conn, region, port)
+                key = port_marks_read(doc, conn, region, port)
+                if key != self._marks_for:
+                    self._marks_for = key
+                    self._marks = port_marks(doc, conn, region, port)
             ports.show_marks(self._marks)
             return
         ports.show_marks(())
