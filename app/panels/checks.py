@@ -1,9 +1,9 @@
 """The checks panel: every wiring fault of the sheet (engine.schematic.checks), one line each,
 and a warning triangle on the canvas where each one is. A click on a line selects the element
 at fault and centres the view on it. Lines and marks follow every edit: the drawing's checks on a
-zero timer, so a burst of changes costs one check (on a sheet the live analysis reads in the
-background, on the nets its answer brings), the circuit's once the edits pause, on the circuit
-of the last check updated where the edits changed it.
+zero timer, so a burst of changes costs one check (where the live analysis follows a region, on
+the nets its answer brings, after the numbers are painted), the circuit's once the edits pause,
+on the circuit of the last check updated where the edits changed it.
 """
 
 from __future__ import annotations
@@ -81,29 +81,25 @@ class ChecksDock(QDockWidget):
             self._timer.start()
 
     def read_nets_from(self, live: LiveAnalysis) -> None:
-        """Take the nets of a large sheet from ``live``'s answers instead of extracting them a
-        second time in the GUI thread, which would hold up the analysis running meanwhile."""
+        """Take the nets from ``live``'s answers while it follows a region, instead of
+        extracting them a second time in the GUI thread."""
         self._live = live
         live.analysed.connect(self._answered)
 
     def refresh(self) -> None:
         """Check the drawing now (the timer calls this once per burst of changes); the
-        circuit's checks, which cost a circuit build, follow once the edits pause. On a sheet
-        the live analysis reads in the background, once its answer brings the nets."""
+        circuit's checks, which cost a circuit build, follow once the edits pause. Where the
+        live analysis follows a region, on the nets its answer brings, once it is in."""
         self._timer.stop()
-        live, doc = self._live, self.workbench.doc
-        self._awaited = live is not None and bool(doc.regions()) and \
-            len(doc.parts()) >= live.inline_parts
-        if not self._awaited:
-            self._check_drawing(None)
+        live = self._live
+        following = live is not None and bool(self.workbench.doc.regions())
+        self._awaited = following and live.shown_generation != live.generation
+        if not self._awaited:  # the answer for the document as it is came first, if any
+            self._check_drawing(live.conn if following and live.analysis is not None else None)
 
     def _answered(self, analysis: object) -> None:
         if self._awaited:
-            self._awaited = False
-            live = self._live
-            # the nets of the document as it is, unless there was no region to read them for
-            now = analysis is not None and live.shown_generation == live.generation
-            self._check_drawing(live.conn if now else None)
+            self._timer.start()  # after the numbers are painted
 
     def _check_drawing(self, conn: Connectivity | None) -> None:
         """The drawing's checks on nets ``conn`` (extracted here when None)."""
@@ -146,6 +142,9 @@ class ChecksDock(QDockWidget):
         return circuit
 
     def _show(self, checks: list[SheetCheck]) -> None:
+        if checks == self.checks and self._marks is not None and isValid(self._marks) and \
+                self._marks.scene() is self.canvas.scene:
+            return  # most edits change no finding: the list and marks stay
         self.checks = checks
         self.list.clear()
         for check in checks:

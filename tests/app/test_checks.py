@@ -4,6 +4,7 @@ included). A part with both ends on one node carries no current (common practice
 
 from __future__ import annotations
 
+import pytest
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, divider, lasso, open_sheet, settle
@@ -99,14 +100,17 @@ def test_the_circuit_checks_follow_a_nudge_and_a_value_edit(window, drive, qtbot
     qtbot.waitUntil(lambda: dock.checks == expected, timeout=3000)
 
 
-def test_on_a_sheet_analysed_in_the_background_the_checks_read_its_nets(window, drive, qtbot):
-    # the drawing is checked on the nets the live analysis's answer brings: a shorted part
-    # drawn along the ground rail is listed, cleared once deleted and listed again on undo
+@pytest.mark.parametrize("background", [False, True])
+def test_the_checks_read_the_nets_of_the_live_analysis(window, drive, qtbot, background):
+    # the drawing is checked on the nets the live analysis's answer brings, whether it ran at
+    # once or in the background: a shorted part drawn along the ground rail is listed,
+    # cleared once deleted and listed again on undo
     doc = divider()
     doc.add(PlacedPart(doc.new_id(PlacedPart), "resistor", "R9", (12, 6), value="1k"))
     open_sheet(window, doc)
     lasso(drive, SOURCE_SIDE)
-    window.analysis.inline_parts = 0  # the worker analyses from now on
+    if background:  # the worker analyses from now on
+        window.analysis.inline_parts = window.analysis.inline_ms = 0
     dock = window.checks_dock
     drive.key(Qt.Key.Key_S)
     drive.click(drive.by("R9").at)
