@@ -92,6 +92,8 @@ class Analyser:
         self.conn: Connectivity | None = None
         self._circuit: Circuit | None = None
         self._circuit_hz: float | None = None
+        #: How long the last job took (seconds), by whether it extracted the sheet again.
+        self.took: dict[bool, float] = {}
         # what earlier jobs with no region to analyse left to do
         self._reach = EVERYTHING
 
@@ -100,8 +102,9 @@ class Analyser:
         start = time.perf_counter()
         self._reach = self._reach.merged(job.reach)
         analysis = None if job.region_id is None else self._analysed(job.doc, job.region_id)
-        return Answer(job.generation, job.region_id, analysis, self.conn,
-                      time.perf_counter() - start)
+        seconds = time.perf_counter() - start
+        self.took[job.reach.sheet] = seconds
+        return Answer(job.generation, job.region_id, analysis, self.conn, seconds)
 
     def _analysed(self, doc: Document, region_id: str) -> RegionAnalysis:
         try:

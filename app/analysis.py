@@ -4,18 +4,25 @@ changed), without the user asking.
 
 Changes are collected as the document announces them, with how far they reach (app.analyser:
 a value edit rebuilds one part, a drawing change re-extracts), and the work runs once per
-burst, on a zero timer. Each state of the document it analyses has a generation number, one
-more with every change; an answer is shown only while its generation is still the document's,
-so a late answer never crosses a newer one.
+burst: where it runs at once (below), on a request posted at high priority, delivered before
+the layouts and paints the edit posted, so that the window paints the edit and its numbers in
+one frame; where it runs in the background, on a zero timer, after the edit is painted, so that
+the worker does not contend with that paint for the interpreter lock. Each state of the
+document it analyses has a generation number, one more with every change; an answer is shown
+only while its generation is still the document's, so a late answer never crosses a newer one.
 
-Where the work runs: on a sheet of fewer than :attr:`LiveAnalysis.inline_parts` parts, at once
-in the GUI thread (such a sheet analyses in about a millisecond, and tests and small sheets see
-their numbers without waiting); on a larger sheet, in the background (app.worker) on a snapshot
-of the document, the newest state only, so that typing, dragging and panning never wait for a
-solve. The equivalence check (the reduced circuit against the original, for the load as drawn)
-solves the whole circuit twice, so it follows in a second step, after the numbers are shown,
-and is dropped when a newer edit arrives. While the numbers shown are older than the document
-by more than :data:`FRAME_MS`, :attr:`LiveAnalysis.updating` says so.
+Where the work runs: at once in the GUI thread on a sheet of fewer than
+:attr:`LiveAnalysis.inline_parts` parts (such a sheet analyses in about a millisecond, and
+tests and small sheets see their numbers without waiting), and on a larger sheet where a job of
+the same reach (re-extracting the sheet or not) last took less than
+:attr:`LiveAnalysis.inline_ms`: handing such a job to the worker and its answer back would cost
+about as much as the job. Otherwise in the background (app.worker) on a snapshot of the
+document, the newest state only, so that typing, dragging and panning never wait for a solve.
+The equivalence check (the reduced circuit against the original, for the load as drawn)
+solves the whole circuit twice, so it follows in a second step, after the numbers are shown
+(in the background on a large sheet, wherever the numbers were worked out), and is dropped
+when a newer edit arrives. While the numbers shown are older than the document by more than
+:data:`FRAME_MS`, :attr:`LiveAnalysis.updating` says so.
 """
 
 from __future__ import annotations
@@ -25,7 +32,7 @@ from dataclasses import fields, replace
 from functools import partial
 
 import numpy as np
-from PySide6.QtCore import QCoreApplication, QObject, Qt, QTimer, Signal
+from PySide6.QtCore import QCoreApplication, QEvent, QObject, Qt, QTimer, Signal
 
 from portcut.engine import Sweep, sweep
 from portcut.engine.errors import CircuitError
@@ -50,12 +57,18 @@ from .analyser import EVERYTHING, Analyser, Answer, Job, Reach, check
 from .workbench import Workbench
 from .worker import AnalysisWorker
 
-__all__ = ["FRAME_MS", "INLINE_PARTS", "LiveAnalysis", "sweep_region"]
+__all__ = ["FRAME_MS", "INLINE_MS", "INLINE_PARTS", "LiveAnalysis", "sweep_region"]
 
 #: PlacedPart fields a value edit may change without touching nets or names.
 _VALUE_FIELDS = frozenset({"value", "phase_deg", "tolerance"})
 #: Sheets with fewer parts are analysed at once in the GUI thread (see docs/architecture.md).
 INLINE_PARTS = 50
+#: A job the analyser last did in less (ms) runs at once in the GUI thread on a large sheet
+#: too: handing it to the worker and its answer back costs about as much.
+INLINE_MS = 5.0
+#: The request to analyse the document as it is at once, posted once per burst of changes at
+#: high priority: delivered before the layouts and paints the edit itself posted.
+_REFRESH = QEvent.Type(QEvent.registerEventType())
 #: One frame at 60 Hz (ms): numbers older than the document by more are marked "updating".
 FRAME_MS = 16
 
@@ -101,6 +114,9 @@ class LiveAnalysis(QObject):
         self._checked_generation = 0
         #: Sheets with fewer parts are analysed at once (0: always in the background).
         self.inline_parts = INLINE_PARTS
+        #: On a larger sheet, a job is analysed at once where the last of the same reach took
+        #: less (milliseconds; 0: always in the background).
+        self.inline_ms = INLINE_MS
         self.is_updating = False
         self._analyser = Analyser()
         self._worker: AnalysisWorker | None = None
@@ -109,6 +125,7 @@ class LiveAnalysis(QObject):
         self._reach = EVERYTHING
         self._timer = QTimer(self, singleShot=True, interval=0)
         self._timer.timeout.connect(self.refresh)
+        self._refresh_posted = False
         self._check_timer = QTimer(self, singleShot=True, interval=0)
         self._check_timer.timeout.connect(self._check)
         self._frame_timer = QTimer(self, singleShot=True, interval=FRAME_MS)
@@ -176,8 +193,22 @@ class LiveAnalysis(QObject):
         if self.shown_generation == self.generation:
             self._frame_timer.start()  # the shown numbers start to age
         self.generation += 1
+        if self._worker is not None:
+            self._worker.moved_on(self.generation)
         self._check_timer.stop()
-        self._timer.start()
+        if not self._at_once(self._reach, len(self._parts) < self.inline_parts):
+            self._timer.start()  # after the edit is painted: the worker then has the lock
+        elif not self._refresh_posted:
+            self._refresh_posted = True
+            QCoreApplication.postEvent(self, QEvent(_REFRESH),
+                                       Qt.EventPriority.HighEventPriority.value)
+
+    def event(self, event: QEvent) -> bool:
+        if event.type() == _REFRESH:
+            if self._refresh_posted:  # else refresh() ran meanwhile
+                self.refresh()
+            return True
+        return super().event(event)
 
     # -- the current region -------------------------------------------------------------------
     def set_region(self, region_id: str | None) -> None:
@@ -197,24 +228,46 @@ class LiveAnalysis(QObject):
 
     # -- the work -----------------------------------------------------------------------------
     def refresh(self) -> None:
-        """Analyse the current state now (the timer calls this once per burst of changes): at
-        once on a small sheet, else in the background."""
+        """Analyse the current state now (the posted request calls this once per burst of
+        changes): at once where that is cheap (see :meth:`_at_once`), else in the
+        background."""
         self._timer.stop()
+        self._refresh_posted = False
         chosen = self._choose_region()
         if chosen != self.region_id:
             self.region_id = chosen
             self.currentChanged.emit(chosen)
         reach, self._reach = self._reach, Reach()
-        worker = self._worker
-        if len(self._parts) < self.inline_parts and (worker is None or not worker.busy):
-            self._show(self._analyser.analyse(Job(self.generation, self.doc, chosen, reach)))
-            self._check_timer.start()
+        small = len(self._parts) < self.inline_parts
+        if not self._at_once(reach, small):
+            self._background().submit(Job(self.generation, self.doc.snapshot(), chosen, reach))
             return
-        if worker is None:
-            worker = self._worker = AnalysisWorker(self._analyser, self._answered.emit,
-                                                   self._reported.emit)
-            self.destroyed.connect(worker.stop)
-        worker.submit(Job(self.generation, self.doc.snapshot(), chosen, reach))
+        answer = self._analyser.analyse(Job(self.generation, self.doc, chosen, reach))
+        self._show(answer)
+        if small:
+            self._check_timer.start()
+        else:  # the check solves the whole circuit twice: in the background
+            self._background().check(Job(self.generation, self.doc.snapshot(), chosen, reach),
+                                     answer)
+
+    def _at_once(self, reach: Reach, small: bool) -> bool:
+        """Analyse in the GUI thread? On a small sheet, and where a job of the same reach (a
+        re-extraction or not) last took under :attr:`inline_ms`; never while the worker has
+        the analyser."""
+        worker = self._worker
+        if worker is not None and worker.busy:
+            return False
+        if small:
+            return True
+        took = self._analyser.took.get(reach.sheet)
+        return took is not None and took * 1e3 < self.inline_ms
+
+    def _background(self) -> AnalysisWorker:
+        if self._worker is None:
+            self._worker = AnalysisWorker(self._analyser, self._answered.emit,
+                                          self._reported.emit)
+            self.destroyed.connect(self._worker.stop)
+        return self._worker
 
     def _show(self, answer: Answer) -> None:
         if answer.generation != self.generation:
@@ -240,8 +293,8 @@ class LiveAnalysis(QObject):
         """Run the event loop until the numbers and the check shown are of the document as it
         is (a screenshot, a script); False if ``timeout_s`` seconds pass first."""
         deadline = time.monotonic() + timeout_s
-        while self._timer.isActive() or self._check_timer.isActive() or \
-                self._checked_generation != self.generation:
+        while (self._refresh_posted or self._timer.isActive() or self._check_timer.isActive()
+               or self._checked_generation != self.generation):
             if time.monotonic() > deadline:
                 return False
             QCoreApplication.processEvents()

@@ -2,7 +2,8 @@
 last one and never shows an older result after a newer one; an answer or a check for a state
 the document has left is discarded; the panel says it is updating while the numbers lag.
 
-The worker runs here on the small divider (``inline_parts = 0``); where a test needs an answer
+The worker runs here on the small divider (``inline_parts = 0`` and ``inline_ms = 0``: no
+job counts as small or cheap); where a test needs an answer
 to be late, it holds the worker at a gate instead of relying on timing. Numbers are judged
 against the divider's Thevenin closed form (common practice): Voc = V1 R2 / (R1 + R2),
 Z = R1 R2 / (R1 + R2).
@@ -37,7 +38,7 @@ def _in_background(window, drive, r2: str = "2k"):
     open_sheet(window, divider(r2=r2))
     lasso(drive, SOURCE_SIDE)
     assert window.analysis.analysis.ok, window.analysis.analysis.message
-    window.analysis.inline_parts = 0
+    window.analysis.inline_parts = window.analysis.inline_ms = 0
     drive.key(Qt.Key.Key_S)
     drive.click(drive.by("R2").at)
     return window.analysis, window.inspector.editors["value"].edit
@@ -168,3 +169,50 @@ def test_the_check_waits_until_the_numbers_are_drawn(monkeypatch):
     worker.drawn(1)
     assert reported.wait(10)
     worker.stop()
+
+
+def test_the_check_of_a_state_the_document_moved_on_from_is_dropped(monkeypatch):
+    # told that the document is at a newer state, the worker drops the check it was waiting
+    # to run; a check handed over with its answer (analysed in the GUI thread) runs alone
+    monkeypatch.setattr(worker_module, "DRAW_WAIT_S", 60.0)
+    numbers, reported, generations = threading.Event(), threading.Event(), []
+
+    def report(generation, result) -> None:
+        generations.append(generation)
+        reported.set()
+
+    worker = worker_module.AnalysisWorker(_NoRegion(), lambda answer: numbers.set(), report)
+    worker.submit(Job(1, Document(), None, Reach()))
+    assert numbers.wait(10)
+    numbers.clear()
+    worker.moved_on(2)  # generation 1's check, waiting for the numbers to be drawn, is dropped
+    worker.check(Job(3, Document(), None, Reach()), Answer(3, None, None, None, 0.0))
+    assert not worker.busy  # a check leaves the analyser free for the GUI thread
+    worker.drawn(3)
+    assert reported.wait(10)
+    worker.stop()
+    assert generations == [3] and not numbers.is_set()  # its numbers were not handed over
+
+
+def test_a_cheap_job_on_a_large_sheet_is_answered_at_once(window, drive, monkeypatch):
+    # where a job of the same reach last took less than inline_ms, it runs in the GUI thread:
+    # the numbers are there when the Enter key returns, with no job for the worker; the check
+    # still runs in the background
+    live, edit = _in_background(window, drive)
+    live.inline_ms = 60e3
+    submitted, checked_in = [], []
+    worker = live._background()
+    monkeypatch.setattr(worker, "submit", submitted.append)
+    real = worker_module.check
+    monkeypatch.setattr(worker_module, "check", lambda *args: (
+        checked_in.append(threading.current_thread()), real(*args))[1])
+    edit.setFocus()
+    QTest.keyClick(edit, Qt.Key.Key_A, Qt.KeyboardModifier.ControlModifier)
+    QTest.keyClicks(edit, "3k")
+    QTest.keyClick(edit, Qt.Key.Key_Return)
+    QApplication.sendPostedEvents()  # the analysis request, posted ahead of the paints
+
+    assert live.shown_generation == live.generation and not submitted
+    assert live.analysis.equivalent.z.real == pytest.approx(_thevenin_z(3e3), rel=1e-12)
+    assert live.finish(10)
+    assert checked_in and threading.main_thread() not in checked_in
