@@ -10,7 +10,7 @@ from PySide6.QtWidgets import QGridLayout, QLabel, QWidget
 
 from portcut.engine.solve.equivalent import Equivalent
 
-__all__ = ["ValuesTable", "keep_values", "text_label"]
+__all__ = ["SelectableLabel", "ValuesTable", "keep_values", "text_label"]
 
 
 #: A space between a number and its unit (with any SI prefix), the spaces around the j of a
@@ -28,12 +28,28 @@ def keep_values(text: str) -> str:
     return _VALUE_SPACES.sub("\u00a0", text).replace("-\u00a0j", "-\u2060\u00a0j")
 
 
+class SelectableLabel(QLabel):
+    """A label whose text the mouse can select, made selectable only while the pointer is over
+    it or a selection is held: a selectable label keeps a whole text document and lays it out
+    again at every new text, which on a panel of them doubles the cost of showing new numbers
+    after each edit."""
+
+    _SELECT = Qt.TextInteractionFlag.TextSelectableByMouse
+
+    def enterEvent(self, event) -> None:
+        self.setTextInteractionFlags(self._SELECT)
+        super().enterEvent(event)
+
+    def leaveEvent(self, event) -> None:
+        super().leaveEvent(event)
+        if not self.hasSelectedText():
+            self.setTextInteractionFlags(Qt.TextInteractionFlag.NoTextInteraction)
+
+
 def text_label(text: str = "", selectable: bool = True) -> QLabel:
     """A wrapping label; ``selectable``: its text can be selected with the mouse."""
-    label = QLabel(text)
+    label = SelectableLabel(text) if selectable else QLabel(text)
     label.setWordWrap(True)
-    if selectable:
-        label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
     return label
 
 

@@ -10,7 +10,7 @@ import math
 from dataclasses import replace
 
 import pytest
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QPoint, Qt
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, click_button, divider, lasso, open_sheet, settle, type_into
 
@@ -229,3 +229,29 @@ def test_the_kept_circuit_stays_the_one_a_fresh_build_gives(window, drive):
     v = cmath.rect(2, math.radians(30))
     assert eq.voc == pytest.approx(v * 4700 / (33 + 4700), rel=1e-12)
     assert eq.z == pytest.approx(33 * 4700 / (33 + 4700), rel=1e-12)
+
+
+def test_the_numbers_can_be_selected_with_the_mouse(window, drive, qtbot):
+    # a value cell is selectable while the pointer is over it and keeps a selection made
+    # there once the pointer leaves; elsewhere it is a plain label (no text document to lay
+    # out again at every edit)
+    panel = _drawn(window, drive, divider())
+    cell = panel.values.cells["z", "rectangular"]
+    selectable = Qt.TextInteractionFlag.TextSelectableByMouse
+    assert not cell.textInteractionFlags() & selectable
+    left = QPoint(1, cell.height() // 2)
+    right = cell.rect().center()
+    QTest.mouseMove(cell, left)
+    qtbot.waitUntil(lambda: bool(cell.textInteractionFlags() & selectable), timeout=3000)
+    QTest.mousePress(cell, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier, left)
+    QTest.mouseMove(cell, right)
+    QTest.mouseRelease(cell, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier, right)
+    assert cell.selectedText()  # part of "750 Ω"
+    QTest.mouseMove(panel.values.names[0], panel.values.names[0].rect().center())
+    qtbot.waitUntil(lambda: cell.underMouse() is False, timeout=3000)
+    assert cell.textInteractionFlags() & selectable and cell.selectedText()
+    other = panel.values.cells["voc", "rectangular"]
+    QTest.mouseMove(other, other.rect().center())
+    QTest.mouseMove(panel.values.names[0], panel.values.names[0].rect().center())
+    qtbot.waitUntil(lambda: not other.underMouse(), timeout=3000)
+    assert not other.textInteractionFlags() & selectable
