@@ -1,5 +1,6 @@
 """One document flattened for extraction: every pin, wire vertex and junction as arrays, and
-each net marker's name; a later version of the document patches it where few elements changed."""
+each net marker's name; a later version of the document patches it where few elements changed
+(replaced, or wires and junctions added or removed)."""
 
 from __future__ import annotations
 
@@ -90,6 +91,20 @@ def replaced_in_place(old: list[Element], new: list[Element]) -> list[int] | Non
 #: A sheet is patched for a re-extraction only while at most one element in this many changed;
 #: past that, building it afresh costs less.
 _PATCH_SHARE = 8
+#: The element types that own no pins: adding or removing them keeps the pins' numbering.
+_UNPINNED = (Wire, Junction)
+
+
+@dataclass(frozen=True)
+class Origin:
+    """How the graph nodes of a sheet patched across added or removed wires and junctions map
+    to those of the sheet it was patched from (whose ``numbering`` is ``numbering``):
+    ``from_old[k]`` is the old node of new node ``k`` (-1: added), ``gone`` the old nodes
+    removed (ascending). Pins keep their numbers."""
+
+    numbering: object
+    from_old: np.ndarray
+    gone: np.ndarray
 
 
 def _int_array(points: Iterable[Point], size: int) -> np.ndarray:
@@ -104,10 +119,16 @@ class _Sheet:
 
     A sheet is never modified once made; :meth:`updated` gives the sheet of a later version of
     the document, reusing this one's arrays wherever the element is still the same object.
+    Sheets whose graph nodes are numbered alike share one ``numbering`` token; a sheet patched
+    from another across added or removed wires and junctions holds in ``origin`` how its nodes
+    map to those of the other (:class:`Origin`).
     """
 
     def __init__(self, elements: list[Element]) -> None:
         self.elements = elements  # in document order
+        self.numbering = object()
+        self.origin: Origin | None = None
+        self._positions: dict[str, int] | None = None
         by_type: dict[type, list] = defaultdict(list)
         for e in elements:
             by_type[type(e)].append(e)
@@ -148,6 +169,10 @@ class _Sheet:
         #: the automatic net name of each designated pin, ``"<designator>.<role>"``
         self.auto = [f"{e.designator}.{role}" for e in self.owners[:self.designated]
                      for role in _roles(e)]
+        self._flatten_wires()
+
+    def _flatten_wires(self) -> None:
+        """The arrays of the wires and junctions (they hold no pins)."""
         self.wire_ids = [w.id for w in self.wires]
         self.wire_points = np.fromiter(map(len, map(attrgetter("points"), self.wires)),
                                        dtype=np.int64, count=len(self.wires))
@@ -156,6 +181,16 @@ class _Sheet:
         self._index_vertices()
         self.junction_xy = _int_array(map(attrgetter("at"), self.junctions),
                                       2 * len(self.junctions))
+
+    @property
+    def node_count(self) -> int:
+        return self.pin_count + len(self.wires) + len(self.junctions)
+
+    def positions(self) -> dict[str, int]:
+        """Each element's position in :attr:`elements`, by id."""
+        if self._positions is None:
+            self._positions = {e.id: i for i, e in enumerate(self.elements)}
+        return self._positions
 
     def place(self) -> list[int]:
         """Each element's index in the list of its type (the same for every updated sheet)."""
@@ -188,14 +223,69 @@ class _Sheet:
         (:func:`_same_slot`); else, or where much changed, a sheet built afresh."""
         old = self.elements
         changed = replaced_in_place(old, elements)
-        if changed is None or len(changed) * _PATCH_SHARE > len(elements):
+        if changed is None:
+            return self._rewired(elements) or _Sheet(elements)
+        if len(changed) * _PATCH_SHARE > len(elements):
             return _Sheet(elements)
         if not changed:
             return self
         place = self.place()  # before the copy, which then shares it
+        positions = self.positions()
         sheet = copy(self)
-        sheet.elements = elements
+        sheet.elements, sheet.origin, sheet._positions = elements, None, positions
         sheet._write([(elements[p], place[p]) for p in changed])
+        return sheet
+
+    def _rewired(self, elements: list[Element]) -> _Sheet | None:
+        """The sheet of ``elements`` patched from this one where, besides replacements that keep
+        the node numbering (:func:`_same_slot`), only wires and junctions were added or removed
+        and the elements kept keep their order: the pins keep their numbers, the wires and
+        junctions are numbered afresh (``origin`` says how). None where the change is other or
+        large."""
+        positions = self.positions()
+        before = list(map(positions.get, map(attrgetter("id"), elements)))
+        kept = [p for p in before if p is not None]
+        changes = len(elements) - 2 * len(kept) + len(self.elements)  # added + removed
+        if changes * _PATCH_SHARE > len(elements) or any(map(int.__ge__, kept[:-1], kept[1:])):
+            return None
+        old = self.elements
+        pairs = list(zip(elements, before, strict=True))
+        gone = set(range(len(old))).difference(kept)
+        if not all(type(e) in _UNPINNED for e in (
+                *(old[p] for p in gone), *(e for e, p in pairs if p is None))):
+            return None
+        replaced = [(e, p) for e, p in pairs if p is not None and e is not old[p]]
+        if (len(replaced) + changes) * _PATCH_SHARE > len(elements) or not all(
+                _same_slot(old[p], e) for e, p in replaced):
+            return None
+        place = self.place()
+        sheet = copy(self)
+        sheet.elements, sheet._place, sheet._positions = elements, None, None
+        sheet.numbering = object()
+        # the pins, in place; the wires and junctions, afresh
+        sheet._write([(e, place[p]) for e, p in replaced if type(e) not in _UNPINNED])
+        moved = sheet.moved
+        sheet.wires = [e for e in elements if type(e) is Wire]
+        sheet.junctions = [e for e in elements if type(e) is Junction]
+        sheet._flatten_wires()
+        from_old = np.full(sheet.node_count, -1, dtype=np.int64)
+        from_old[:self.pin_count] = np.arange(self.pin_count)
+        wire_node = {w.id: self.pin_count + i for i, w in enumerate(self.wires)}
+        junction_node = {j.id: self.pin_count + len(self.wires) + i
+                         for i, j in enumerate(self.junctions)}
+        old_node = [*map(wire_node.get, sheet.wire_ids),
+                    *(junction_node.get(j.id) for j in sheet.junctions)]
+        for k, (e, o) in enumerate(zip([*sheet.wires, *sheet.junctions], old_node, strict=True),
+                                   start=self.pin_count):
+            if o is None:
+                moved.append(k)  # added
+                continue
+            from_old[k] = o
+            was = old[positions[e.id]]
+            if was is not e and (was.points != e.points if type(e) is Wire else was.at != e.at):
+                moved.append(k)
+        gone_nodes = np.setdiff1d(np.arange(self.pin_count, self.node_count), from_old)
+        sheet.origin = Origin(self.numbering, from_old, gone_nodes)
         return sheet
 
     def _write(self, replaced: list[tuple[Element, int]]) -> None:
