@@ -192,6 +192,22 @@ def step(doc: Document, draw) -> None:
         doc.replace(replace(e, at=(e.at[0] + dx, e.at[1] + dy)))
 
 
+def rewire(doc: Document, draw) -> None:
+    """One edit that adds or removes a wire or a junction (a move's link wire laid or taken
+    back), anywhere on the sheet: on a pin, a wire's end or bend, mid-segment or in the air."""
+    action = draw(st.sampled_from(("wire", "wire", "junction", "remove")))
+    x, y = draw(st.integers(-2, 12)), draw(st.sampled_from((0, 1, 2, 4, 6, 8)))
+    if action == "remove":
+        found = [e for e in doc if isinstance(e, Wire | Junction)]
+        if found:
+            doc.remove(draw(st.sampled_from(found)).id)
+    elif action == "junction":
+        doc.add(Junction(doc.new_id(Junction), (x, y)))
+    else:
+        dx, dy = draw(st.sampled_from(((1, 0), (0, 1), (3, 0), (0, 4), (-2, 0))))
+        doc.add(Wire(doc.new_id(Wire), ((x, y), (x + dx, y + dy))))
+
+
 def built(doc: Document, conn, freq: float):
     try:
         return build_circuit(doc, conn, freq)
@@ -209,7 +225,7 @@ def test_random_moves_and_edits_give_a_fresh_extraction_and_build(doc: Document,
     for _ in range(data.draw(st.integers(1, 6))):
         with doc.batch():
             for _ in range(data.draw(st.integers(1, 3))):
-                step(doc, data.draw)
+                data.draw(st.sampled_from((step, step, rewire)))(doc, data.draw)
         again = extract(doc, previous=conn)
         assert same_result(again, extract(doc))
         fresh = built(doc, again, freq)
@@ -223,6 +239,30 @@ def test_random_moves_and_edits_give_a_fresh_extraction_and_build(doc: Document,
             circuit = updated_circuit(circuit, doc, conn, again, freq)
             assert circuit == fresh
         conn = again
+
+
+def test_a_link_wire_laid_and_taken_back_rejoins_only_its_nets(monkeypatch) -> None:
+    """A part moved one step along its wire with a link wire laid from its old pin point, then
+    moved back with the link taken away: both re-extractions are patched (the wires numbered
+    again) and each joins again only the nets the part sits on."""
+    counts = rejoined_counts(monkeypatch)
+    doc = ladder(6, 8)
+    conn = extract(doc)
+    nodes = len(conn.net_of_pin) + len(conn.net_of_wire)
+    c = doc["c3"]  # pins (20, 0) on R4's left pin and (20, 4) on the rail
+    for _ in range(3):
+        with doc.batch():
+            doc.replace(replace(c, at=(21, 2)))
+            doc.add(Wire("link", ((20, 0), (21, 0))))
+        moved = extract(doc, previous=conn)
+        assert same_result(moved, extract(doc)) and moved.net_of_pin == conn.net_of_pin
+        with doc.batch():
+            doc.remove("link")
+            doc.replace(c)
+        back = extract(doc, previous=moved)
+        assert same_result(back, extract(doc)) and back.net_of_pin == conn.net_of_pin
+        conn = back
+    assert len(counts) == 6 and max(counts) < nodes / 2
 
 
 def test_resistors_moved_in_turn_on_a_ladder_rejoin_only_their_nets(monkeypatch) -> None:
