@@ -249,43 +249,46 @@ class _Sheet:
         if changes * _PATCH_SHARE > len(elements) or any(map(int.__ge__, kept[:-1], kept[1:])):
             return None
         old = self.elements
-        pairs = list(zip(elements, before, strict=True))
-        gone = set(range(len(old))).difference(kept)
+        gone = sorted(set(range(len(old))).difference(kept))
+        added = [i for i, p in enumerate(before) if p is None]
         if not all(type(e) in _UNPINNED for e in (
-                *(old[p] for p in gone), *(e for e, p in pairs if p is None))):
+                *(old[p] for p in gone), *(elements[i] for i in added))):
             return None
-        replaced = [(e, p) for e, p in pairs if p is not None and e is not old[p]]
+        replaced = [(i, p) for i, (e, p) in enumerate(zip(elements, before, strict=True))
+                    if p is not None and e is not old[p]]
         if (len(replaced) + changes) * _PATCH_SHARE > len(elements) or not all(
-                _same_slot(old[p], e) for e, p in replaced):
+                _same_slot(old[p], elements[i]) for i, p in replaced):
             return None
         place = self.place()
         sheet = copy(self)
-        sheet.elements, sheet._place, sheet._positions = elements, None, None
+        sheet.elements, sheet._positions = elements, None
         sheet.numbering = object()
         # the pins, in place; the wires and junctions, afresh
-        sheet._write([(e, place[p]) for e, p in replaced if type(e) not in _UNPINNED])
-        moved = sheet.moved
-        sheet.wires = [e for e in elements if type(e) is Wire]
-        sheet.junctions = [e for e in elements if type(e) is Junction]
+        sheet._write([(elements[i], place[p]) for i, p in replaced
+                      if type(elements[i]) not in _UNPINNED])
+        types = list(map(type, elements))
+        counters = {Wire: count(), Junction: count()}
+        sheet._place = [next(counters[t]) if t in counters else place[p]
+                        for t, p in zip(types, before, strict=True)]
+        sheet.wires = [e for e, t in zip(elements, types, strict=True) if t is Wire]
+        sheet.junctions = [e for e, t in zip(elements, types, strict=True) if t is Junction]
         sheet._flatten_wires()
-        from_old = np.full(sheet.node_count, -1, dtype=np.int64)
-        from_old[:self.pin_count] = np.arange(self.pin_count)
-        wire_node = {w.id: self.pin_count + i for i, w in enumerate(self.wires)}
-        junction_node = {j.id: self.pin_count + len(self.wires) + i
-                         for i, j in enumerate(self.junctions)}
-        old_node = [*map(wire_node.get, sheet.wire_ids),
-                    *(junction_node.get(j.id) for j in sheet.junctions)]
-        for k, (e, o) in enumerate(zip([*sheet.wires, *sheet.junctions], old_node, strict=True),
-                                   start=self.pin_count):
-            if o is None:
-                moved.append(k)  # added
-                continue
-            from_old[k] = o
-            was = old[positions[e.id]]
-            if was is not e and (was.points != e.points if type(e) is Wire else was.at != e.at):
-                moved.append(k)
-        gone_nodes = np.setdiff1d(np.arange(self.pin_count, self.node_count), from_old)
-        sheet.origin = Origin(self.numbering, from_old, gone_nodes)
+        old_base = {Wire: self.pin_count, Junction: self.pin_count + len(self.wires)}
+        new_base = {Wire: sheet.pin_count, Junction: sheet.pin_count + len(sheet.wires)}
+        from_old = np.arange(sheet.node_count)
+        for t, n in ((Wire, len(sheet.wires)), (Junction, len(sheet.junctions))):
+            from_old[new_base[t]:new_base[t] + n] = [
+                -1 if p is None else old_base[t] + place[p]
+                for p, u in zip(before, types, strict=True) if u is t]
+        moved = sheet.moved
+        for i, p in replaced:
+            e, was = elements[i], old[p]
+            if (was.points != e.points) if type(e) is Wire else (
+                    type(e) is Junction and was.at != e.at):
+                moved.append(new_base[type(e)] + sheet._place[i])
+        moved += [new_base[types[i]] + sheet._place[i] for i in added]
+        gone_nodes = np.array([old_base[type(old[p])] + place[p] for p in gone], dtype=np.int64)
+        sheet.origin = Origin(self.numbering, from_old, np.sort(gone_nodes))
         return sheet
 
     def _write(self, replaced: list[tuple[Element, int]]) -> None:
