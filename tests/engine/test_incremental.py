@@ -228,6 +228,10 @@ def test_random_moves_and_edits_give_a_fresh_extraction_and_build(doc: Document,
                 data.draw(st.sampled_from((step, step, rewire)))(doc, data.draw)
         again = extract(doc, previous=conn)
         assert same_result(again, extract(doc))
+        # the nets of some elements' pins, read off the sheet, as net_of_pin lists them
+        chosen = data.draw(st.sets(st.sampled_from(sorted(e.id for e in doc))))
+        assert again.pin_nets(chosen) == {net for (eid, _), net in again.net_of_pin.items()
+                                          if eid in chosen and isinstance(doc[eid], PlacedPart)}
         fresh = built(doc, again, freq)
         if isinstance(circuit, CircuitError):  # nothing kept to update: a live view builds
             circuit = fresh

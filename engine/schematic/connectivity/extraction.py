@@ -77,6 +77,19 @@ class Connectivity:
                   *(p for w in sheet.wires for p in w.points), *(j.at for j in sheet.junctions)]
         return _grouped(points, points_net, self._names)
 
+    def pin_nets(self, element_ids: Iterable[str]) -> set[str]:
+        """The nets that the pins of the parts and blocks among ``element_ids`` are on (other
+        ids are passed over)."""
+        sheet = self._sheet
+        owners = np.array([j for j in map(sheet.owner_of.get, element_ids) if j is not None],
+                          dtype=np.int64)
+        starts = sheet.first_pins[owners]
+        counts = sheet.first_pins[owners + 1] - starts
+        ends = np.cumsum(counts)
+        pins = np.arange(int(ends[-1]) if ends.size else 0) + np.repeat(starts - ends + counts,
+                                                                        counts)
+        return set(self._node_names[pins].tolist())
+
 
 
 

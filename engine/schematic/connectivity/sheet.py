@@ -152,10 +152,13 @@ class _Sheet:
         kinds = [*map(_KIND_CODE.__getitem__, map(attrgetter("kind"), self.parts)),
                  *[_KIND_CODE["block"]] * len(self.blocks)]
         self.owner_kind = np.array(kinds, dtype=np.int64)[order]
+        #: the owner index of each part and block, by id
+        self.owner_of = {e.id: j for j, e in enumerate(self.owners)}
         self.owners += self.labels
         offsets = [_pin_offsets(e) for e in self.owners]
         counts = [len(o) for o in offsets]
         self.first_pin: list[int] = [0, *accumulate(counts)]
+        self.first_pins = np.array(self.first_pin, dtype=np.int64)
         self.pin_owner: list[int] = np.repeat(np.arange(len(counts)), counts).tolist()
         self.pin_count = self.first_pin[-1]
         self.designated_pins = self.first_pin[self.designated]
