@@ -143,6 +143,25 @@ def test_many_replacements_in_place_still_update_the_kept_circuit() -> None:
     assert updated["R1"] is circuit["R1"] and updated["F1"].value == 2200
 
 
+def test_a_whole_extraction_around_parts_that_kept_their_nets_keeps_the_circuit() -> None:
+    # on a sheet this small a move with its link wire is extracted whole (flattened afresh)
+    doc = ladder(6, 3)
+    conn = extract(doc)
+    circuit = build_circuit(doc, conn)
+    c = doc["c1"]  # pins (8, 0) on R2's right pin and wire s2, (8, 4) on the rail
+    with doc.batch():  # one step right: its pins land on s2 and on the rail again
+        doc.replace(replace(c, at=(9, 2)))
+        doc.add(Wire("link", ((8, 0), (9, 0))))
+    again = extract(doc, previous=conn)
+    assert again._sheet.keys is not conn._sheet.keys
+    assert updated_circuit(circuit, doc, conn, again) is circuit
+    doc.replace(replace(c, at=(9, 3)))  # off both: C2 now touches nothing
+    doc.remove("link")
+    last = extract(doc, previous=again)
+    updated = updated_circuit(circuit, doc, again, last)
+    assert updated is not circuit and updated == build_circuit(doc, extract(doc))
+
+
 def test_an_edit_it_cannot_patch_is_built_afresh() -> None:
     doc = divider_with_spare()
     conn = extract(doc)
