@@ -10,8 +10,8 @@ from collections.abc import Iterable
 from copy import copy
 from dataclasses import dataclass
 from functools import cache, lru_cache
-from itertools import accumulate, chain, compress, count
-from operator import attrgetter, is_not
+from itertools import accumulate, chain, compress, count, repeat
+from operator import attrgetter, is_, is_not
 
 import numpy as np
 
@@ -196,7 +196,8 @@ class _Sheet:
         return self._positions
 
     def place(self) -> list[int]:
-        """Each element's index in the list of its type (the same for every updated sheet)."""
+        """Each element's index in the list of its type (shared with the sheets patched in
+        place from this one)."""
         if self._place is None:
             seen: dict[type, int] = defaultdict(int)
             self._place = []
@@ -245,21 +246,24 @@ class _Sheet:
         and the elements kept keep their order: the pins keep their numbers, the wires and
         junctions are numbered afresh (``origin`` says how). None where the change is other or
         large."""
-        positions = self.positions()
-        before = list(map(positions.get, map(attrgetter("id"), elements)))
-        kept = [p for p in before if p is not None]
-        changes = len(elements) - 2 * len(kept) + len(self.elements)  # added + removed
-        if changes * _PATCH_SHARE > len(elements) or any(map(int.__ge__, kept[:-1], kept[1:])):
+        old, n = self.elements, len(elements)
+        # each new element's old position (-1: added), in array passes over the elements
+        before = np.fromiter(map(self.positions().get, map(attrgetter("id"), elements),
+                                 repeat(-1)), dtype=np.int64, count=n)
+        at = np.flatnonzero(before >= 0)  # the kept elements' new positions
+        kept = before[at]
+        alive = np.zeros(len(old), dtype=bool)
+        alive[kept] = True
+        gone, added = np.flatnonzero(~alive).tolist(), np.flatnonzero(before < 0).tolist()
+        changes = len(gone) + len(added)
+        if changes * _PATCH_SHARE > n or (np.diff(kept) <= 0).any() or not all(
+                type(e) in _UNPINNED for e in (*map(old.__getitem__, gone),
+                                               *map(elements.__getitem__, added))):
             return None
-        old = self.elements
-        gone = sorted(set(range(len(old))).difference(kept))
-        added = [i for i, p in enumerate(before) if p is None]
-        if not all(type(e) in _UNPINNED for e in (
-                *(old[p] for p in gone), *(elements[i] for i in added))):
-            return None
-        replaced = [(i, p) for i, (e, p) in enumerate(zip(elements, before, strict=True))
-                    if p is not None and e is not old[p]]
-        if (len(replaced) + changes) * _PATCH_SHARE > len(elements) or not all(
+        at_list, kept_list = at.tolist(), kept.tolist()
+        replaced = list(compress(zip(at_list, kept_list, strict=True), map(
+            is_not, map(elements.__getitem__, at_list), map(old.__getitem__, kept_list))))
+        if (len(replaced) + changes) * _PATCH_SHARE > n or not all(
                 _same_slot(old[p], elements[i]) for i, p in replaced):
             return None
         place = self.place()
@@ -270,19 +274,24 @@ class _Sheet:
         sheet._write([(elements[i], place[p]) for i, p in replaced
                       if type(elements[i]) not in _UNPINNED])
         types = list(map(type, elements))
-        counters = {Wire: count(), Junction: count()}
-        sheet._place = [next(counters[t]) if t in counters else place[p]
-                        for t, p in zip(types, before, strict=True)]
-        sheet.wires = [e for e, t in zip(elements, types, strict=True) if t is Wire]
-        sheet.junctions = [e for e, t in zip(elements, types, strict=True) if t is Junction]
-        sheet._flatten_wires()
+        old_place, new_place = np.array(place, dtype=np.int64), np.empty(n, dtype=np.int64)
+        pinned = before >= 0  # every element but the wires and junctions is kept
         old_base = {Wire: self.pin_count, Junction: self.pin_count + len(self.wires)}
-        new_base = {Wire: sheet.pin_count, Junction: sheet.pin_count + len(sheet.wires)}
-        from_old = np.arange(sheet.node_count)
-        for t, n in ((Wire, len(sheet.wires)), (Junction, len(sheet.junctions))):
-            from_old[new_base[t]:new_base[t] + n] = [
-                -1 if p is None else old_base[t] + place[p]
-                for p, u in zip(before, types, strict=True) if u is t]
+        new_base: dict[type, int] = {}
+        from_old = np.arange(self.pin_count)
+        for t in (Wire, Junction):
+            mine = np.fromiter(map(is_, types, repeat(t)), dtype=bool, count=n)
+            pinned &= ~mine
+            setattr(sheet, "wires" if t is Wire else "junctions",
+                    list(compress(elements, mine.tolist())))
+            new_base[t] = len(from_old)
+            new_place[mine] = np.arange(int(mine.sum()))
+            was = before[mine]
+            from_old = np.concatenate([from_old, np.where(was >= 0, old_base[t] + old_place[was],
+                                                          -1)])
+        new_place[pinned] = old_place[before[pinned]]
+        sheet._place = new_place.tolist()
+        sheet._flatten_wires()
         moved = sheet.moved
         for i, p in replaced:
             e, was = elements[i], old[p]
