@@ -7,10 +7,11 @@ The sheet: the generated RC ladder of live_panel.py (502 parts; region "reg" of 
 
 * a value typed: R200 (inside the region, beside the port) between 1k and 2k2;
 * a one-step move of C100 (inside the region) right and back, planned as the select tool plans
-  an arrow-key nudge (app.editing.plan_placement): its pins leave the wire and the rail they
-  sat on, so two link wires are added to keep them joined, and taken out again on the way
-  back (as merging the two nudges into one undo step leaves the sheet);
-* a one-step move of the load RL (outside the region) right and back, its two wires following.
+  an arrow-key nudge (app.editing.plan_placement): its top pin leaves R100's pin, so a link
+  wire is laid to keep them joined, and taken away again on the way back (as merging the two
+  nudges into one undo step leaves the sheet);
+* the same for the load RL (outside the region), whose pins leave the ends of its two wires:
+  two link wires.
 
 Each job is handed a snapshot of the document, as the background worker is, with the reach the
 live view gives it. Beside each job, the floor measured in the same run right after it: the
