@@ -6,7 +6,8 @@ the last job reach (:class:`Reach`). The :class:`Analyser` keeps between jobs wh
 needs and renews it only as far as the reach goes:
 
 * the sheet's connectivity, re-extracted only when something is drawn, moved or deleted (a
-  move joins again only the nets it touches);
+  move joins again only the nets it touches, those of the link wires it lays or takes back
+  included);
 * the circuit, updated then too (engine.schematic.connectivity.updated_circuit: after a move,
   only the parts whose nets changed are rebuilt, none where the move kept its connections;
   rebuilt whole after an addition or removal, and on a frequency change where collapsed blocks
@@ -17,7 +18,8 @@ needs and renews it only as far as the reach goes:
   typed, a move that updates the circuit rather than building it again).
 
 Everything it hands out (Connectivity, Circuit, RegionAnalysis) is new for each job and never
-changed afterwards, so an answer may be read in another thread while the next job runs. One
+changed afterwards (the part names, a frozenset, may be shared by several), so an answer may be
+read in another thread while the next job runs. One
 Analyser runs one job at a time (app.worker sees to it).
 """
 
