@@ -6,16 +6,20 @@ the last job reach (:class:`Reach`). The :class:`Analyser` keeps between jobs wh
 needs and renews it only as far as the reach goes:
 
 * the sheet's connectivity, re-extracted only when something is drawn, moved or deleted (a
-  move joins again only the nets it touches);
+  move joins again only the nets it touches, those of the link wires it lays or takes back
+  included);
 * the circuit, updated then too (engine.schematic.connectivity.updated_circuit: after a move,
   only the parts whose nets changed are rebuilt, none where the move kept its connections;
   rebuilt whole after an addition or removal, and on a frequency change where collapsed blocks
   stand in for their contents); where only values were typed, just those parts are rebuilt and
   swapped in (engine.Circuit.replaced), so a value edit on a large sheet costs about one solve;
-* a change of the region alone (members, outline, polarity) reuses both.
+* a change of the region alone (members, outline, polarity) reuses both;
+* the region's part names, kept while the region and the circuit's part names stay (a value
+  typed, a move that updates the circuit rather than building it again).
 
 Everything it hands out (Connectivity, Circuit, RegionAnalysis) is new for each job and never
-changed afterwards, so an answer may be read in another thread while the next job runs. One
+changed afterwards (the part names, a frozenset, may be shared by several), so an answer may be
+read in another thread while the next job runs. One
 Analyser runs one job at a time (app.worker sees to it).
 """
 
@@ -26,12 +30,13 @@ from dataclasses import dataclass, replace
 
 from portcut.engine import Circuit, EquivalenceReport
 from portcut.engine.errors import CircuitError
-from portcut.engine.schematic import Connectivity, Document, build_circuit, extract
+from portcut.engine.schematic import Connectivity, Document, Region, build_circuit, extract
 from portcut.engine.schematic.connectivity import updated_circuit
 from portcut.engine.schematic.reduction import (
     RegionAnalysis,
     analyse_region,
     equivalence,
+    region_part_names,
 )
 from portcut.engine.solve.units import parse_frequency
 
@@ -96,6 +101,8 @@ class Analyser:
         self.took: dict[bool, float] = {}
         # what earlier jobs with no region to analyse left to do
         self._reach = EVERYTHING
+        # a region, a circuit and the region's part names on it
+        self._named: tuple[Region, Circuit, frozenset[str]] | None = None
 
     def analyse(self, job: Job) -> Answer:
         """Analyse ``job``'s region of ``job``'s document."""
@@ -113,7 +120,20 @@ class Analyser:
             self._update_sheet(doc, None)
             return analyse_region(doc, region_id, conn=self.conn)  # says what is wrong
         self._update_sheet(doc, hz)
-        return analyse_region(doc, region_id, conn=self.conn, freq=hz, circuit=self._circuit)
+        return analyse_region(doc, region_id, conn=self.conn, freq=hz, circuit=self._circuit,
+                              part_names=self._part_names(doc, region_id))
+
+    def _part_names(self, doc: Document, region_id: str) -> frozenset[str] | None:
+        """The region's part names on the kept circuit (None: no circuit kept): the ones found
+        before while the region is the same and the circuit holds parts of the same names
+        (engine.Circuit.same_names), since only a change to either can change them."""
+        region, circuit = doc[region_id], self._circuit
+        if circuit is None or not isinstance(region, Region):
+            return None
+        named = self._named
+        if named is None or named[0] is not region or not circuit.same_names(named[1]):
+            named = self._named = (region, circuit, region_part_names(doc, region, circuit))
+        return named[2]
 
     def _update_sheet(self, doc: Document, hz: float | None) -> None:
         """Bring the kept connectivity and circuit up to date with ``doc``."""

@@ -16,21 +16,17 @@ from dataclasses import replace
 from ..solve.circuit import GROUND
 from .connectivity import Connectivity, _natural_key, extract
 from .document import Document
-from .model import Block, Element, PlacedPart, Region
-from .symbols import PINS
+from .model import Element, Region
 
 __all__ = ["follow_renames", "lost_port_nets", "region_nets"]
 
 
 def region_nets(doc: Document, region: Region, conn: Connectivity) -> tuple[str, ...]:
     """The nets the region's parts and blocks have pins on, in natural order (ground, ``"gnd"``,
-    first): the nets a port may be chosen from."""
-    nets: set[str] = set()
-    for element in (doc[m] for m in region.members if m in doc):
-        if isinstance(element, PlacedPart | Block):
-            kind = "block" if isinstance(element, Block) else element.kind
-            nets.update(conn.net_of_pin[element.id, i] for i in range(len(PINS[kind])))
-    return tuple(sorted(nets, key=lambda n: (n != GROUND, _natural_key(n))))
+    first): the nets a port may be chosen from. ``conn`` is ``doc``'s connectivity, whose
+    sheet knows each element's pins."""
+    return tuple(sorted(conn.pin_nets(region.members),
+                        key=lambda n: (n != GROUND, _natural_key(n))))
 
 
 def lost_port_nets(region: Region, nets: Iterable[str]) -> tuple[str, ...]:

@@ -60,22 +60,25 @@ def region_part_names(doc: Document, region: Region, circuit: Circuit) -> frozen
 
 
 def analyse_region(doc: Document, region_id: str, *, conn: Connectivity | None = None,
-                   freq: float | None = None, circuit: Circuit | None = None) -> RegionAnalysis:
+                   freq: float | None = None, circuit: Circuit | None = None,
+                   part_names: frozenset[str] | None = None) -> RegionAnalysis:
     """Check the region's cut and compute its equivalent at ``freq`` hertz (default: the
     document's analysis frequency). ``conn`` and ``circuit``, when given, must be the
     document's current connectivity and circuit at that frequency (a live view keeps them
-    up to date instead of rebuilding). Never raises for a bad circuit: the answer says what is
-    wrong."""
+    up to date instead of rebuilding), and ``part_names``, when given with ``circuit``, the
+    region's :func:`region_part_names` on it. Never raises for a bad circuit: the answer says
+    what is wrong."""
     region = doc[region_id]
     if not isinstance(region, Region):
         raise DocumentError(f"{region_id} is a {type(region).__name__}, not a region")
     try:
         hz = parse_frequency(doc.analysis.freq) if freq is None else freq
         conn = conn or extract(doc)
-        circuit = circuit or build_circuit(doc, conn, hz)
+        if circuit is None:
+            circuit, part_names = build_circuit(doc, conn, hz), None
     except CircuitError as e:
         return RegionAnalysis(region_id, False, f"the circuit cannot be built: {e}")
-    names = region_part_names(doc, region, circuit)
+    names = region_part_names(doc, region, circuit) if part_names is None else part_names
     if not names:
         return RegionAnalysis(region_id, False, "the region holds no parts: draw the boundary "
                               "around the parts to reduce", freq=hz, circuit=circuit)

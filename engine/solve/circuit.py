@@ -50,6 +50,8 @@ class Circuit:
         self._store = _Store()
         self._devices: dict[str, _devices.Device] = {}
         self._members: dict[str, tuple[str, ...]] = {}
+        # shared by the circuits that hold parts of the same names (see same_names)
+        self._roster: object | None = None
         for part in parts:
             self.add(part)
 
@@ -87,7 +89,20 @@ class Circuit:
         new = Circuit()
         new._parts, new._store = dict(self._parts), self._store.copy(self._parts)
         new._devices, new._members = dict(self._devices), dict(self._members)
+        new._roster = self._roster_key()
         return new
+
+    def _roster_key(self) -> object:
+        if self._roster is None:
+            self._roster = object()
+        return self._roster
+
+    def same_names(self, other: Circuit) -> bool:
+        """Whether ``other`` is known to hold parts of the same names, and the same device
+        parts, as this circuit: one was made from the other by :meth:`replaced` or
+        :meth:`copy` with no part added since. A cheap test, for keeping what depends on the
+        names alone; False does not say that the names differ."""
+        return self._roster_key() is other._roster_key()
 
     # -- device parts -------------------------------------------------------------------------
     @property
@@ -109,6 +124,8 @@ class Circuit:
 
     def expand_names(self, names: Iterable[str]) -> set[str]:
         """``names`` with each device name replaced by its primitive parts."""
+        if not self._members:
+            return set(names)
         out: set[str] = set()
         for name in names:
             found = self._members.get(name) if isinstance(name, str) else None
@@ -207,6 +224,7 @@ class Circuit:
                                                                    replacing=True)
         new._store = self._store.replaced(self._parts, list(stored.values()))
         new._devices, new._members = self._devices, self._members
+        new._roster = self._roster_key()
         return new
 
     # -- building -----------------------------------------------------------------------------
@@ -218,6 +236,7 @@ class Circuit:
         part = _validated(part, _read(part.kind, part.name, part.value), self)
         self._parts[part.name] = part
         self._store.append(part)
+        self._roster = None
         return part
 
     def _two(self, kind: str, name: str, a: str, b: str, value: object) -> Part:

@@ -114,6 +114,17 @@ def test_replaced_swaps_parts_in_place_and_checks_only_the_new_ones(circuit: Cir
         circuit.replaced([Part("R9", "resistor", ("a", GROUND), 1)])
 
 
+def test_same_names_holds_through_replacements_and_copies_until_a_part_is_added(
+        circuit: Circuit) -> None:
+    changed = circuit.replaced([Part("R1", "resistor", ("in", "b"), "2k2")]).with_value("R2", 1)
+    assert changed.same_names(circuit) and circuit.same_names(changed)
+    grown = changed.copy()
+    assert grown.same_names(circuit)
+    grown.resistor("R3", "b", GROUND, "1k")
+    assert not grown.same_names(circuit) and not grown.same_names(changed)
+    assert not Circuit(circuit).same_names(circuit)  # built afresh: not known to be alike
+
+
 def _rows_as_parts(c: Circuit) -> list[tuple[str, str, tuple[str, ...], complex, bool]]:
     """What the columns say of each part, in names (for comparing with the parts)."""
     cols = c.columns()

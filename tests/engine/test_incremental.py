@@ -143,6 +143,25 @@ def test_many_replacements_in_place_still_update_the_kept_circuit() -> None:
     assert updated["R1"] is circuit["R1"] and updated["F1"].value == 2200
 
 
+def test_a_whole_extraction_around_parts_that_kept_their_nets_keeps_the_circuit() -> None:
+    # on a sheet this small a move with its link wire is extracted whole (flattened afresh)
+    doc = ladder(6, 3)
+    conn = extract(doc)
+    circuit = build_circuit(doc, conn)
+    c = doc["c1"]  # pins (8, 0) on R2's right pin and wire s2, (8, 4) on the rail
+    with doc.batch():  # one step right: its pins land on s2 and on the rail again
+        doc.replace(replace(c, at=(9, 2)))
+        doc.add(Wire("link", ((8, 0), (9, 0))))
+    again = extract(doc, previous=conn)
+    assert again._sheet.keys is not conn._sheet.keys
+    assert updated_circuit(circuit, doc, conn, again) is circuit
+    doc.replace(replace(c, at=(9, 3)))  # off both: C2 now touches nothing
+    doc.remove("link")
+    last = extract(doc, previous=again)
+    updated = updated_circuit(circuit, doc, again, last)
+    assert updated is not circuit and updated == build_circuit(doc, extract(doc))
+
+
 def test_an_edit_it_cannot_patch_is_built_afresh() -> None:
     doc = divider_with_spare()
     conn = extract(doc)
@@ -192,6 +211,22 @@ def step(doc: Document, draw) -> None:
         doc.replace(replace(e, at=(e.at[0] + dx, e.at[1] + dy)))
 
 
+def rewire(doc: Document, draw) -> None:
+    """One edit that adds or removes a wire or a junction (a move's link wire laid or taken
+    back), anywhere on the sheet: on a pin, a wire's end or bend, mid-segment or in the air."""
+    action = draw(st.sampled_from(("wire", "wire", "junction", "remove")))
+    x, y = draw(st.integers(-2, 12)), draw(st.sampled_from((0, 1, 2, 4, 6, 8)))
+    if action == "remove":
+        found = [e for e in doc if isinstance(e, Wire | Junction)]
+        if found:
+            doc.remove(draw(st.sampled_from(found)).id)
+    elif action == "junction":
+        doc.add(Junction(doc.new_id(Junction), (x, y)))
+    else:
+        dx, dy = draw(st.sampled_from(((1, 0), (0, 1), (3, 0), (0, 4), (-2, 0))))
+        doc.add(Wire(doc.new_id(Wire), ((x, y), (x + dx, y + dy))))
+
+
 def built(doc: Document, conn, freq: float):
     try:
         return build_circuit(doc, conn, freq)
@@ -209,9 +244,13 @@ def test_random_moves_and_edits_give_a_fresh_extraction_and_build(doc: Document,
     for _ in range(data.draw(st.integers(1, 6))):
         with doc.batch():
             for _ in range(data.draw(st.integers(1, 3))):
-                step(doc, data.draw)
+                data.draw(st.sampled_from((step, step, rewire)))(doc, data.draw)
         again = extract(doc, previous=conn)
         assert same_result(again, extract(doc))
+        # the nets of some elements' pins, read off the sheet, as net_of_pin lists them
+        chosen = data.draw(st.sets(st.sampled_from(sorted(e.id for e in doc))))
+        assert again.pin_nets(chosen) == {net for (eid, _), net in again.net_of_pin.items()
+                                          if eid in chosen and isinstance(doc[eid], PlacedPart)}
         fresh = built(doc, again, freq)
         if isinstance(circuit, CircuitError):  # nothing kept to update: a live view builds
             circuit = fresh
@@ -223,6 +262,30 @@ def test_random_moves_and_edits_give_a_fresh_extraction_and_build(doc: Document,
             circuit = updated_circuit(circuit, doc, conn, again, freq)
             assert circuit == fresh
         conn = again
+
+
+def test_a_link_wire_laid_and_taken_back_rejoins_only_its_nets(monkeypatch) -> None:
+    """A part moved one step along its wire with a link wire laid from its old pin point, then
+    moved back with the link taken away: both re-extractions are patched (the wires numbered
+    again) and each joins again only the nets the part sits on."""
+    counts = rejoined_counts(monkeypatch)
+    doc = ladder(6, 8)
+    conn = extract(doc)
+    nodes = len(conn.net_of_pin) + len(conn.net_of_wire)
+    c = doc["c3"]  # pins (20, 0) on R4's left pin and (20, 4) on the rail
+    for _ in range(3):
+        with doc.batch():
+            doc.replace(replace(c, at=(21, 2)))
+            doc.add(Wire("link", ((20, 0), (21, 0))))
+        moved = extract(doc, previous=conn)
+        assert same_result(moved, extract(doc)) and moved.net_of_pin == conn.net_of_pin
+        with doc.batch():
+            doc.remove("link")
+            doc.replace(c)
+        back = extract(doc, previous=moved)
+        assert same_result(back, extract(doc)) and back.net_of_pin == conn.net_of_pin
+        conn = back
+    assert len(counts) == 6 and max(counts) < nodes / 2
 
 
 def test_resistors_moved_in_turn_on_a_ladder_rejoin_only_their_nets(monkeypatch) -> None:

@@ -20,9 +20,9 @@ or a label comes to name it; edits elsewhere on the sheet leave it alone.
 
 Cost: linear in the number of elements plus a sort of the joining points per grid row and
 column; no pairwise comparison of elements. Re-extraction from the previous result (a move, a
-value typed) redoes per element only what the replaced elements changed, and joins and names
-again only the nets they touch (engine.schematic.connectivity.incremental); the warnings run
-whole, in array operations.
+value typed, wires added or removed) redoes per element only what the changed elements changed,
+and joins and names again only the nets they touch (engine.schematic.connectivity.incremental);
+the warnings run whole, in array operations.
 """
 
 from __future__ import annotations
@@ -32,6 +32,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 from functools import cached_property
 from itertools import pairwise
+from typing import NamedTuple
 
 import numpy as np
 
@@ -76,6 +77,19 @@ class Connectivity:
                   *(p for w in sheet.wires for p in w.points), *(j.at for j in sheet.junctions)]
         return _grouped(points, points_net, self._names)
 
+    def pin_nets(self, element_ids: Iterable[str]) -> set[str]:
+        """The nets that the pins of the parts and blocks among ``element_ids`` are on (other
+        ids are passed over)."""
+        sheet = self._sheet
+        owners = np.array([j for j in map(sheet.owner_of.get, element_ids) if j is not None],
+                          dtype=np.int64)
+        starts = sheet.first_pins[owners]
+        counts = sheet.first_pins[owners + 1] - starts
+        ends = np.cumsum(counts)
+        pins = np.arange(int(ends[-1]) if ends.size else 0) + np.repeat(starts - ends + counts,
+                                                                        counts)
+        return set(self._node_names[pins].tolist())
+
 
 
 
@@ -87,9 +101,10 @@ def extract(doc: Document | Iterable[Element],
 
     ``previous``, an earlier result (of any document), is a head start: what it worked out for
     each element that is still the same object is reused, since elements are immutable. Where
-    the edit since replaced a few elements without adding, removing or renaming any (a move,
-    a value typed), only the nets those elements touched before or touch now are joined and
-    named again (engine.schematic.connectivity.incremental); the result is the same either way.
+    the edit since replaced a few elements without renaming any and added or removed at most a
+    few wires and junctions (a move, its link wires, a value typed), only the nets those
+    elements touched before or touch now are joined and named again
+    (engine.schematic.connectivity.incremental); the result is the same either way.
 
     Grid coordinates must fit in 64-bit integers.
     """
@@ -103,11 +118,11 @@ def extract(doc: Document | Iterable[Element],
     n_pins, n_wires = sheet.pin_count, len(sheet.wires)
     warnings: list[ConnectivityWarning] = []
     label_pairs, label_names = label_edges(sheet, warnings)
-    same_nodes = previous is not None and sheet.keys is previous._sheet.keys
+    before = _nodes_before(sheet, previous)
     found = None
-    if same_nodes and previous._plain:
-        found = patched(sheet, previous._net, previous._names, label_pairs, label_names,
-                        warnings)
+    if before is not None and previous._plain:
+        found = patched(sheet, before.net, previous._names, label_pairs, label_names, warnings,
+                        before.gone)
     if found is None:
         n_nets, net = components(sheet, label_pairs)
         names, plain = net_names(sheet, net, n_nets, label_names, warnings)
@@ -116,18 +131,19 @@ def extract(doc: Document | Iterable[Element],
     else:
         net, names, renamed = found
         plain = True
-        node_names = previous._node_names.copy()
+        node_names = before.names.copy()
         node_names[renamed] = np.array(names, dtype=object)[net[renamed]]
-    if same_nodes:  # same nodes, same order: only what changed is written
-        before = previous._node_names
+    if before is not None:  # the pins numbered alike: only what changed is written
         pins = np.arange(n_pins) if renamed is None else renamed[renamed < n_pins]
-        wires = np.arange(n_pins, n_pins + n_wires) if renamed is None else \
-            renamed[(renamed >= n_pins) & (renamed < n_pins + n_wires)]
-        net_of_pin = _renamed(previous.net_of_pin, sheet.keys, pins, before, node_names)
-        net_of_wire = _renamed(previous.net_of_wire, sheet.wire_ids, wires - n_pins,
-                               before[n_pins:], node_names[n_pins:])
+        net_of_pin = _renamed(previous.net_of_pin, sheet.keys, pins, before.names, node_names)
     else:
         net_of_pin = dict(zip(sheet.keys, node_names[:n_pins].tolist(), strict=True))
+    if before is not None and sheet.numbering is previous._sheet.numbering:
+        wires = np.arange(n_pins, n_pins + n_wires) if renamed is None else \
+            renamed[(renamed >= n_pins) & (renamed < n_pins + n_wires)]
+        net_of_wire = _renamed(previous.net_of_wire, sheet.wire_ids, wires - n_pins,
+                               before.names[n_pins:], node_names[n_pins:])
+    else:  # wires added or removed: in the sheet's order, as a whole extraction gives them
         net_of_wire = dict(zip(sheet.wire_ids, node_names[n_pins:n_pins + n_wires].tolist(),
                                strict=True))
     warnings += _pin_warnings(sheet, net, names)
@@ -135,6 +151,35 @@ def extract(doc: Document | Iterable[Element],
     warnings += _part_warnings(sheet)
     return Connectivity(net_of_pin, net_of_wire, tuple(warnings), sheet, net, names, node_names,
                         plain)
+
+
+class _Before(NamedTuple):
+    """An earlier result read on a later sheet's graph nodes: each node's net number and net
+    name (an added node: net number ``len(names)``, which no net has, and no name), and the
+    net numbers of the earlier sheet's nodes removed since."""
+
+    net: np.ndarray
+    names: np.ndarray
+    gone: np.ndarray
+
+
+def _nodes_before(sheet: _Sheet, previous: Connectivity | None) -> _Before | None:
+    """``previous`` read on ``sheet``'s nodes, where ``sheet`` numbers them as ``previous``'s
+    sheet does or was patched from it across added or removed wires and junctions (its
+    ``origin``); else None."""
+    if previous is None:
+        return None
+    if sheet.numbering is previous._sheet.numbering:
+        return _Before(previous._net, previous._node_names, np.empty(0, dtype=np.int64))
+    origin = sheet.origin
+    if origin is None or origin.numbering is not previous._sheet.numbering:
+        return None
+    added = origin.from_old < 0
+    net = previous._net[origin.from_old]
+    net[added] = len(previous._names)
+    names = previous._node_names[origin.from_old]
+    names[added] = None
+    return _Before(net, names, previous._net[origin.gone])
 
 
 def _renamed(before: dict, keys: list, at: np.ndarray, names_before: np.ndarray,

@@ -1,14 +1,14 @@
-"""Re-extraction after a patch: only the nets that the moved elements touched before or touch
-now are joined and named again; every other net keeps its nodes, its number's order and its
-name, so the result is the one a whole extraction gives.
+"""Re-extraction after a patch: only the nets that the moved, added or removed elements touched
+before or touch now are joined and named again; every other net keeps its nodes, its number's
+order and its name, so the result is the one a whole extraction gives.
 
-Why that holds: an edge of the new graph between two unmoved nodes was an edge of the old one,
-so it stays inside one old net; every edge at a moved node ends at a node :func:`touched`
-finds. The nets re-joined are therefore closed under the new edges, and the rest are the old
-components unchanged. Nets are numbered by their lowest node, as the whole component search
-numbers them, and an automatic name depends only on its own net's members, unless a name had
-to be made fresh (``'``): then, and wherever a label's name meets a kept name, the caller
-extracts the whole sheet instead.
+Why that holds: two unmoved nodes that touch on the new sheet touched on the old one, so an
+edge between them stays inside one old net; every edge at a moved or added node ends at a node
+:func:`touched` finds; a removed node's net is joined again whole. The nets re-joined are
+therefore closed under the new edges, and the rest are the old components unchanged. Nets are
+numbered by their lowest node, as the whole component search numbers them, and an automatic
+name depends only on its own net's members, unless a name had to be made fresh (``'``): then,
+and wherever a label's name meets a kept name, the caller extracts the whole sheet instead.
 """
 
 from __future__ import annotations
@@ -34,16 +34,19 @@ class Patched(NamedTuple):
 
 def patched(sheet: _Sheet, net_before: np.ndarray, names_before: list[str],
             label_pairs: np.ndarray, label_names: dict[int, str],
-            warnings: list[ConnectivityWarning]) -> Patched | None:
-    """The nets of ``sheet``, patched from the sheet whose nets were ``net_before`` (per graph
-    node, the same numbering) and ``names_before`` (with no name made fresh), or None where a
-    whole extraction must decide (see the module docstring). ``label_pairs`` and
-    ``label_names`` are ``sheet``'s (naming.label_edges); the naming warnings are added to
-    ``warnings`` only when the answer is not None."""
+            warnings: list[ConnectivityWarning], gone: np.ndarray) -> Patched | None:
+    """The nets of ``sheet``, patched from the sheet whose nets were ``names_before`` (with no
+    name made fresh): ``net_before`` gives each graph node of ``sheet`` its net there (a node
+    added since: ``len(names_before)``), and ``gone`` the nets there of the nodes removed
+    since. None where a whole extraction must decide (see the module docstring).
+    ``label_pairs`` and ``label_names`` are ``sheet``'s (naming.label_edges); the naming
+    warnings are added to ``warnings`` only when the answer is not None."""
     n_before = len(names_before)
     moved = np.unique(np.array(sheet.moved, dtype=np.int64))
-    hit = np.zeros(n_before, dtype=bool)
+    hit = np.zeros(n_before + 1, dtype=bool)
     hit[net_before[touched(sheet, moved, label_pairs)]] = True
+    hit[gone] = True  # a removed node may have held its net together
+    hit[n_before] = True  # the added nodes
     rejoined = np.flatnonzero(hit[net_before])
     n_new, component = components(sheet, label_pairs, rejoined)
     net = net_before.copy()

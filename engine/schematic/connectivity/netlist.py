@@ -88,8 +88,10 @@ def _placed_anew(old: list[PlacedPart], new: list[PlacedPart], before: Connectiv
         if p is not q and replace(q, at=p.at, rotation=p.rotation, mirror=p.mirror,
                                   captions=p.captions) != p:
             return False
-    return all(before.net_of_pin.get(pin) == after.net_of_pin[pin]
-               for pin in ((q.id, i) for q in new for i in range(len(ROLES[q.kind]))))
+    # the same parts number their pins alike on both sheets: their nets compare as arrays
+    n = after._sheet.designated_pins
+    return before._sheet.keys[:n] == after._sheet.keys[:n] and bool(
+        (before._node_names[:n] == after._node_names[:n]).all())
 
 
 def _build(doc: Document, conn: Connectivity, freq: float, rename: dict[str, str]) -> Circuit:

@@ -1,5 +1,6 @@
 """One document flattened for extraction: every pin, wire vertex and junction as arrays, and
-each net marker's name; a later version of the document patches it where few elements changed."""
+each net marker's name; a later version of the document patches it where few elements changed
+(replaced, or wires and junctions added or removed)."""
 
 from __future__ import annotations
 
@@ -9,8 +10,8 @@ from collections.abc import Iterable
 from copy import copy
 from dataclasses import dataclass
 from functools import cache, lru_cache
-from itertools import accumulate, chain, compress, count
-from operator import attrgetter, is_not
+from itertools import accumulate, chain, compress, count, repeat
+from operator import attrgetter, is_, is_not
 
 import numpy as np
 
@@ -90,6 +91,20 @@ def replaced_in_place(old: list[Element], new: list[Element]) -> list[int] | Non
 #: A sheet is patched for a re-extraction only while at most one element in this many changed;
 #: past that, building it afresh costs less.
 _PATCH_SHARE = 8
+#: The element types that own no pins: adding or removing them keeps the pins' numbering.
+_UNPINNED = (Wire, Junction)
+
+
+@dataclass(frozen=True)
+class Origin:
+    """How the graph nodes of a sheet patched across added or removed wires and junctions map
+    to those of the sheet it was patched from (whose ``numbering`` is ``numbering``):
+    ``from_old[k]`` is the old node of new node ``k`` (-1: added), ``gone`` the old nodes
+    removed (ascending). Pins keep their numbers."""
+
+    numbering: object
+    from_old: np.ndarray
+    gone: np.ndarray
 
 
 def _int_array(points: Iterable[Point], size: int) -> np.ndarray:
@@ -104,10 +119,16 @@ class _Sheet:
 
     A sheet is never modified once made; :meth:`updated` gives the sheet of a later version of
     the document, reusing this one's arrays wherever the element is still the same object.
+    Sheets whose graph nodes are numbered alike share one ``numbering`` token; a sheet patched
+    from another across added or removed wires and junctions holds in ``origin`` how its nodes
+    map to those of the other (:class:`Origin`).
     """
 
     def __init__(self, elements: list[Element]) -> None:
         self.elements = elements  # in document order
+        self.numbering = object()
+        self.origin: Origin | None = None
+        self._positions: dict[str, int] | None = None
         by_type: dict[type, list] = defaultdict(list)
         for e in elements:
             by_type[type(e)].append(e)
@@ -131,10 +152,13 @@ class _Sheet:
         kinds = [*map(_KIND_CODE.__getitem__, map(attrgetter("kind"), self.parts)),
                  *[_KIND_CODE["block"]] * len(self.blocks)]
         self.owner_kind = np.array(kinds, dtype=np.int64)[order]
+        #: the owner index of each part and block, by id
+        self.owner_of = {e.id: j for j, e in enumerate(self.owners)}
         self.owners += self.labels
         offsets = [_pin_offsets(e) for e in self.owners]
         counts = [len(o) for o in offsets]
         self.first_pin: list[int] = [0, *accumulate(counts)]
+        self.first_pins = np.array(self.first_pin, dtype=np.int64)
         self.pin_owner: list[int] = np.repeat(np.arange(len(counts)), counts).tolist()
         self.pin_count = self.first_pin[-1]
         self.designated_pins = self.first_pin[self.designated]
@@ -148,6 +172,10 @@ class _Sheet:
         #: the automatic net name of each designated pin, ``"<designator>.<role>"``
         self.auto = [f"{e.designator}.{role}" for e in self.owners[:self.designated]
                      for role in _roles(e)]
+        self._flatten_wires()
+
+    def _flatten_wires(self) -> None:
+        """The arrays of the wires and junctions (they hold no pins)."""
         self.wire_ids = [w.id for w in self.wires]
         self.wire_points = np.fromiter(map(len, map(attrgetter("points"), self.wires)),
                                        dtype=np.int64, count=len(self.wires))
@@ -157,8 +185,19 @@ class _Sheet:
         self.junction_xy = _int_array(map(attrgetter("at"), self.junctions),
                                       2 * len(self.junctions))
 
+    @property
+    def node_count(self) -> int:
+        return self.pin_count + len(self.wires) + len(self.junctions)
+
+    def positions(self) -> dict[str, int]:
+        """Each element's position in :attr:`elements`, by id."""
+        if self._positions is None:
+            self._positions = {e.id: i for i, e in enumerate(self.elements)}
+        return self._positions
+
     def place(self) -> list[int]:
-        """Each element's index in the list of its type (the same for every updated sheet)."""
+        """Each element's index in the list of its type (shared with the sheets patched in
+        place from this one)."""
         if self._place is None:
             seen: dict[type, int] = defaultdict(int)
             self._place = []
@@ -188,14 +227,80 @@ class _Sheet:
         (:func:`_same_slot`); else, or where much changed, a sheet built afresh."""
         old = self.elements
         changed = replaced_in_place(old, elements)
-        if changed is None or len(changed) * _PATCH_SHARE > len(elements):
+        if changed is None:
+            return self._rewired(elements) or _Sheet(elements)
+        if len(changed) * _PATCH_SHARE > len(elements):
             return _Sheet(elements)
         if not changed:
             return self
         place = self.place()  # before the copy, which then shares it
+        positions = self.positions()
         sheet = copy(self)
-        sheet.elements = elements
+        sheet.elements, sheet.origin, sheet._positions = elements, None, positions
         sheet._write([(elements[p], place[p]) for p in changed])
+        return sheet
+
+    def _rewired(self, elements: list[Element]) -> _Sheet | None:
+        """The sheet of ``elements`` patched from this one where, besides replacements that keep
+        the node numbering (:func:`_same_slot`), only wires and junctions were added or removed
+        and the elements kept keep their order: the pins keep their numbers, the wires and
+        junctions are numbered afresh (``origin`` says how). None where the change is other or
+        large."""
+        old, n = self.elements, len(elements)
+        # each new element's old position (-1: added), in array passes over the elements
+        before = np.fromiter(map(self.positions().get, map(attrgetter("id"), elements),
+                                 repeat(-1)), dtype=np.int64, count=n)
+        at = np.flatnonzero(before >= 0)  # the kept elements' new positions
+        kept = before[at]
+        alive = np.zeros(len(old), dtype=bool)
+        alive[kept] = True
+        gone, added = np.flatnonzero(~alive).tolist(), np.flatnonzero(before < 0).tolist()
+        changes = len(gone) + len(added)
+        if changes * _PATCH_SHARE > n or (np.diff(kept) <= 0).any() or not all(
+                type(e) in _UNPINNED for e in (*map(old.__getitem__, gone),
+                                               *map(elements.__getitem__, added))):
+            return None
+        at_list, kept_list = at.tolist(), kept.tolist()
+        replaced = list(compress(zip(at_list, kept_list, strict=True), map(
+            is_not, map(elements.__getitem__, at_list), map(old.__getitem__, kept_list))))
+        if (len(replaced) + changes) * _PATCH_SHARE > n or not all(
+                _same_slot(old[p], elements[i]) for i, p in replaced):
+            return None
+        place = self.place()
+        sheet = copy(self)
+        sheet.elements, sheet._positions = elements, None
+        sheet.numbering = object()
+        # the pins, in place; the wires and junctions, afresh
+        sheet._write([(elements[i], place[p]) for i, p in replaced
+                      if type(elements[i]) not in _UNPINNED])
+        types = list(map(type, elements))
+        old_place, new_place = np.array(place, dtype=np.int64), np.empty(n, dtype=np.int64)
+        pinned = before >= 0  # every element but the wires and junctions is kept
+        old_base = {Wire: self.pin_count, Junction: self.pin_count + len(self.wires)}
+        new_base: dict[type, int] = {}
+        from_old = np.arange(self.pin_count)
+        for t in (Wire, Junction):
+            mine = np.fromiter(map(is_, types, repeat(t)), dtype=bool, count=n)
+            pinned &= ~mine
+            setattr(sheet, "wires" if t is Wire else "junctions",
+                    list(compress(elements, mine.tolist())))
+            new_base[t] = len(from_old)
+            new_place[mine] = np.arange(int(mine.sum()))
+            was = before[mine]
+            from_old = np.concatenate([from_old, np.where(was >= 0, old_base[t] + old_place[was],
+                                                          -1)])
+        new_place[pinned] = old_place[before[pinned]]
+        sheet._place = new_place.tolist()
+        sheet._flatten_wires()
+        moved = sheet.moved
+        for i, p in replaced:
+            e, was = elements[i], old[p]
+            if (was.points != e.points) if type(e) is Wire else (
+                    type(e) is Junction and was.at != e.at):
+                moved.append(new_base[type(e)] + sheet._place[i])
+        moved += [new_base[types[i]] + sheet._place[i] for i in added]
+        gone_nodes = np.array([old_base[type(old[p])] + place[p] for p in gone], dtype=np.int64)
+        sheet.origin = Origin(self.numbering, from_old, np.sort(gone_nodes))
         return sheet
 
     def _write(self, replaced: list[tuple[Element, int]]) -> None:
