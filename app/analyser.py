@@ -19,8 +19,8 @@ needs and renews it only as far as the reach goes:
 
 Everything it hands out (Connectivity, Circuit, RegionAnalysis) is new for each job and never
 changed afterwards (the part names, a frozenset, may be shared by several), so an answer may be
-read in another thread while the next job runs. One
-Analyser runs one job at a time (app.worker sees to it).
+read in another thread while the next job runs. One Analyser runs one job at a time (the live
+analysis runs a job in the GUI thread only while app.worker has none).
 """
 
 from __future__ import annotations
