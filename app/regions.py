@@ -19,8 +19,6 @@ from PySide6.QtGui import QPainterPath, QPolygonF
 from portcut.engine.schematic import Block, Connectivity, Document, PlacedPart, Region
 from portcut.engine.schematic.outline import Outline, body_bounds, enclosed
 
-from .sheet import element_pins
-
 __all__ = [
     "Outline",
     "PortMark",
@@ -144,12 +142,13 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
         points = [pt for wire in doc.wires() if conn.net_of_wire.get(wire.id) == net
                   for a, b in pairwise(wire.points) for pt in _crossings(a, b, edges)]
         if not points:
-            on_net = sorted(key for key, name in conn.net_of_pin.items()  # sorted: repeatable
-                            if name == net and key[0] in region.members and key[0] in doc)
-            pins = np.array([element_pins(doc[eid])[i] for eid, i in on_net], dtype=float)
-            if len(pins):
+            on_net = conn.pins_on(net)
+            inside = sorted((key, at) for key, at in on_net  # sorted: repeatable
+                            if key[0] in region.members and key[0] in doc)
+            if inside:
+                pins = np.array([at for _, at in inside], dtype=float)
                 dist, near = _nearest(edges, pins)
-                if _used_outside(doc, conn, region, net):  # the outline point (ties: lower)
+                if _used_outside(doc, region, on_net):  # the outline point (ties: lower)
                     points = [tuple(near[np.lexsort((near[:, 1], near[:, 0], dist))[0]])]
                 else:  # the pin itself (ties: the lower pin)
                     points = [tuple(pins[np.lexsort((pins[:, 1], pins[:, 0], dist))[0]])]
@@ -161,27 +160,21 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
 def port_marks_read(doc: Document, conn: Connectivity, region: Region,
                     port: tuple[str, str]) -> tuple:
     """All that :func:`port_marks` reads of the sheet for these arguments: the region, the
-    port, the wires on the port nets, how the region's elements with pins on them are placed
-    (which fixes where those pins are) and which elements outside have pins on them. Equal
-    for two states of the sheet, the marks are equal too; a tenth of the marks' cost on a
-    large sheet, whose ground net has many wires."""
+    port, the wires on the port nets, where the pins on them are and which of their elements
+    outside the region are parts or blocks. Equal for two states of the sheet, the marks are
+    equal too; a tenth of the marks' cost on a large sheet, whose ground net has many wires."""
     on_port, members = set(port), region.members
     wires = tuple(w for w in doc.wires() if conn.net_of_wire.get(w.id) in on_port)
-    pins = []
-    for key, net in conn.net_of_pin.items():
-        if net in on_port and key[0] in doc:
-            e = doc[key[0]]
-            pins.append((key, type(e), getattr(e, "kind", getattr(e, "style", None)), e.at,
-                         e.rotation, getattr(e, "mirror", False)) if key[0] in members else
-                        (key, isinstance(e, PlacedPart | Block)))
-    return region, port, wires, tuple(pins)
+    pins = tuple((key, at, key[0] in members or isinstance(doc[key[0]], PlacedPart | Block))
+                 for net in port for key, at in conn.pins_on(net) if key[0] in doc)
+    return region, port, wires, pins
 
 
-def _used_outside(doc: Document, conn: Connectivity, region: Region, net: str) -> bool:
-    """Does a part or block outside the region have a pin on ``net``?"""
-    return any(name == net and eid not in region.members
-               and isinstance(doc[eid], PlacedPart | Block)
-               for (eid, _), name in conn.net_of_pin.items())
+def _used_outside(doc: Document, region: Region, pins: list[tuple[tuple[str, int], FPoint]]
+                  ) -> bool:
+    """Is one of ``pins`` (a net's) on a part or block outside the region?"""
+    return any(eid not in region.members and eid in doc and isinstance(doc[eid], PlacedPart | Block)
+               for (eid, _), _ in pins)
 
 
 def _crossings(a: FPoint, b: FPoint, edges: list[tuple[FPoint, FPoint]]) -> list[FPoint]:

@@ -20,6 +20,7 @@ from test_connectivity import same_result
 
 from portcut.engine import CircuitError, equivalent
 from portcut.engine.schematic import (
+    Block,
     Document,
     Junction,
     NetLabel,
@@ -29,6 +30,7 @@ from portcut.engine.schematic import (
     extract,
 )
 from portcut.engine.schematic.connectivity import extraction, updated_circuit
+from portcut.engine.schematic.symbols import pin_positions
 from portcut.engine.solve.circuit import GROUND
 
 
@@ -227,6 +229,14 @@ def rewire(doc: Document, draw) -> None:
         doc.add(Wire(doc.new_id(Wire), ((x, y), (x + dx, y + dy))))
 
 
+def _pin_at(element, index: int) -> tuple[float, float]:
+    kind = element.kind if isinstance(element, PlacedPart) else \
+        "block" if isinstance(element, Block) else \
+        "ground" if element.style == "ground" else "label"
+    return pin_positions(kind, element.at, element.rotation,
+                         getattr(element, "mirror", False))[index]
+
+
 def built(doc: Document, conn, freq: float):
     try:
         return build_circuit(doc, conn, freq)
@@ -251,6 +261,11 @@ def test_random_moves_and_edits_give_a_fresh_extraction_and_build(doc: Document,
         chosen = data.draw(st.sets(st.sampled_from(sorted(e.id for e in doc))))
         assert again.pin_nets(chosen) == {net for (eid, _), net in again.net_of_pin.items()
                                           if eid in chosen and isinstance(doc[eid], PlacedPart)}
+        # the pins on one net, with where the symbols put them (engine.schematic.symbols)
+        net = data.draw(st.sampled_from(sorted(set(again.net_of_pin.values()) or {"none"})))
+        assert sorted(again.pins_on(net)) == sorted(
+            (key, _pin_at(doc[key[0]], key[1])) for key, name in again.net_of_pin.items()
+            if name == net)
         fresh = built(doc, again, freq)
         if isinstance(circuit, CircuitError):  # nothing kept to update: a live view builds
             circuit = fresh

@@ -90,7 +90,13 @@ class Connectivity:
                                                                         counts)
         return set(self._node_names[pins].tolist())
 
-
+    def pins_on(self, net: str) -> list[tuple[tuple[str, int], Point]]:
+        """Every pin on ``net``: its (element id, pin index) and where it is on the sheet, in
+        the sheet's pin order (a net of hundreds of pins is read without a pass over all)."""
+        sheet = self._sheet
+        at = np.flatnonzero(self._node_names[:sheet.pin_count] == net)
+        return [(sheet.keys[i], (x, y)) for i, x, y in zip(
+            at.tolist(), sheet.pin_x[at].tolist(), sheet.pin_y[at].tolist(), strict=True)]
 
 
 def extract(doc: Document | Iterable[Element],
