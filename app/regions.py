@@ -138,8 +138,10 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
         return ()
     edges = list(zip(region.outline, region.outline[1:] + region.outline[:1], strict=True))
     marks: list[PortMark] = []
+    on_port = [(wire, net) for wire in doc.wires()
+               if (net := conn.net_of_wire.get(wire.id)) in port]
     for role, net in zip(("plus", "minus"), port, strict=True):
-        points = [pt for wire in doc.wires() if conn.net_of_wire.get(wire.id) == net
+        points = [pt for wire, on in on_port if on == net
                   for a, b in pairwise(wire.points) for pt in _crossings(a, b, edges)]
         if not points:
             on_net = conn.pins_on(net)

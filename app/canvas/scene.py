@@ -244,6 +244,8 @@ class SchematicScene(QGraphicsScene):
     def selected_ids(self) -> list[str]:
         """Ids of the selected elements, in document order."""
         chosen = {i.element_id for i in self.selectedItems() if isinstance(i, ElementItem)}
+        if len(chosen) < 2:  # no order to find: no pass over the sheet (asked at every key)
+            return list(chosen)
         return [e.id for e in self.doc if e.id in chosen]
 
     def select_ids(self, ids: Iterable[str], add: bool = False) -> None:
