@@ -96,10 +96,10 @@ class EquivalentDock(QDockWidget):
         self.thevenin, self.norton = self.settings.thevenin, self.settings.norton
         self.message = text_label()
         self.values = ValuesTable()
-        self.forms = text_label()
-        self.realisation = text_label()
-        self.power = text_label()
-        self.check = text_label()
+        self.forms = text_label(plain=True)
+        self.realisation = text_label(plain=True)
+        self.power = text_label(plain=True)
+        self.check = text_label(plain=True)
         self.notice = text_label()
         self.swap_button = _button("Swap + / −", "Exchange the port's plus and minus nets",
                                    self.swap)
@@ -272,7 +272,7 @@ class EquivalentDock(QDockWidget):
     def _show_results(self, eq: Equivalent, form: str) -> None:
         """The values, the forms (``form`` first), Z as series parts and the matched load."""
         self.values.show_equivalent(eq)
-        self.forms.setText("<br>".join(forms_text(eq, form)))
+        self.forms.setText("\n".join(forms_text(eq, form)))
         self.realisation.setText(keep_values(realisation_text(eq)))
         self.power.setText(keep_values(power_text(eq, self.doc.analysis.basis)))
 

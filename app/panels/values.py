@@ -46,10 +46,14 @@ class SelectableLabel(QLabel):
             self.setTextInteractionFlags(Qt.TextInteractionFlag.NoTextInteraction)
 
 
-def text_label(text: str = "", selectable: bool = True) -> QLabel:
-    """A wrapping label; ``selectable``: its text can be selected with the mouse."""
+def text_label(text: str = "", selectable: bool = True, plain: bool = False) -> QLabel:
+    """A wrapping label; ``selectable``: its text can be selected with the mouse; ``plain``:
+    its text is shown as written, lines broken at "\\n" (laid out without a text document:
+    for the texts that change at every edit)."""
     label = SelectableLabel(text) if selectable else QLabel(text)
     label.setWordWrap(True)
+    if plain:
+        label.setTextFormat(Qt.TextFormat.PlainText)
     return label
 
 
@@ -73,7 +77,7 @@ class ValuesTable(QWidget):
         for key, title in self.ROWS:
             self.names.append(QLabel(f"<b>{title}</b>"))
             for form in self.FORMS:
-                cell = text_label()
+                cell = text_label(plain=True)
                 cell.setAccessibleName(f"{title} {form}")
                 self.cells[key, form] = cell
         self.stacked: bool | None = None

@@ -31,7 +31,7 @@ def _current_source() -> Document:
 
 def _panel_sentences(window) -> list[str]:
     panel = window.equivalent_dock
-    lines = panel.forms.text().split("<br>")
+    lines = panel.forms.text().split("\n")
     lines += [label.text() for label in (panel.realisation, panel.power)]
     return [line.replace("\u00a0", " ") for line in lines]
 
