@@ -120,13 +120,14 @@ class CellIndex:
             for j in range(j0, j1):
                 cells[(i, j)].append(entry)
 
-    def remove(self, box: Bounds, owner: str, rank: tuple[int, int] | None = None) -> None:
-        """Drop ``owner``'s entries of ``box`` (with ``rank``: only the one of that rank)."""
+    def remove(self, box: Bounds, owner: str, role: int | None = None) -> None:
+        """Drop ``owner``'s entries of ``box`` (with ``role``: only the caption of that position
+        among the part's captions, the second number of its rank)."""
         for cell in _cells(box):
             entries = self.cells.get(cell)
             if entries:
                 self.cells[cell] = [e for e in entries if not (
-                    e[2] == owner and e[1] == box and rank in (None, e[3]))]
+                    e[2] == owner and e[1] == box and role in (None, e[3][1]))]
 
     def owners(self, box: Bounds) -> set[str]:
         """Owners of the boxes overlapping ``box``."""
