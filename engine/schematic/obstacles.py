@@ -131,8 +131,14 @@ class CellIndex:
 
     def owners(self, box: Bounds) -> set[str]:
         """Owners of the boxes overlapping ``box``."""
-        return {e[2] for cell in _cells(box) for e in self.cells.get(cell, ())
-                if _shared(box, e[1]) > 0}
+        bx0, by0, bx1, by1 = box
+        cells = self.cells
+        found = set()
+        for cell in _cells(box):
+            for _, (x0, y0, x1, y1), owner, _ in cells.get(cell, ()):
+                if min(bx1, x1) - max(bx0, x0) > EPS and min(by1, y1) - max(by0, y0) > EPS:
+                    found.add(owner)
+        return found
 
     def ranked_after(self, box: Bounds, rank: tuple[int, int]) -> set[tuple[int, int]]:
         """Ranks after ``rank`` of the boxes sharing some area with ``box``."""

@@ -21,7 +21,8 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field
 from functools import cache
 from heapq import heappop, heappush
-from itertools import pairwise
+from itertools import compress, pairwise
+from operator import is_not
 
 import numpy as np
 
@@ -89,7 +90,8 @@ class Placement:
     _chosen: dict[str, dict[str, tuple[int, float]]] = field(default_factory=dict)
     _reach: dict[str, Bounds] = field(default_factory=dict)
     _ranks: dict[str, int] = field(default_factory=dict)
-    _order: list[str] = field(default_factory=list)  # the parts' ids in placing order
+    _elements: list[Element] = field(default_factory=list)  # the document's, in its order
+    _order: list[str] = field(default_factory=list)  # the parts' ids, in placing order
     _index: CellIndex = field(default_factory=CellIndex)    # fixed obstacles
     _placed: CellIndex = field(default_factory=CellIndex)   # captions placed
     _reaches: CellIndex = field(default_factory=CellIndex)  # where each part's captions may go
@@ -166,7 +168,13 @@ class Placement:
         """Hold the placing order of ``doc``'s parts; returns whether the parts held before
         kept their order among themselves (parts come and go, but a part taken off and put
         back in one step, for one, comes back last)."""
-        order = [p.id for p in doc.parts()]
+        elements, held = list(doc), self._elements
+        self._elements = elements
+        if len(elements) == len(held) and all(
+                elements[k].id == held[k].id
+                for k in compress(range(len(held)), map(is_not, elements, held))):
+            return True  # the same ids in the same order (most edits replace elements)
+        order = [e.id for e in elements if isinstance(e, PlacedPart)]
         if order == self._order:
             return True
         before, self._order = self._ranks, order
@@ -246,16 +254,17 @@ class Placement:
                 rank = (ranks[owner], i)
                 if at is not None or (after is not None and rank <= after):
                     continue
-                if key in waiting:
-                    held = waiting[key]
-                    if held is not None:
-                        held.append((box, came))
-                    continue
+                held = waiting.get(key, ())
+                if held is None:
+                    continue  # placed afresh anyway
                 x0, y0, x1, y1 = where.reach
                 if (min(bx1, x1 + px) - max(bx0, x0 + px) > EPS
                         and min(by1, y1 + py) - max(by0, y0 + py) > EPS):
-                    waiting[key] = [(box, came)]
-                    heappush(queue, (rank, owner))
+                    if held:
+                        held.append((box, came))
+                    else:
+                        waiting[key] = [(box, came)]
+                        heappush(queue, (rank, owner))
 
     def _settle(self, part: PlacedPart, rank: tuple[int, int], changes: list[Moved] | None,
                 waiting: Waiting, queue: list[tuple[tuple[int, int], str]]) -> bool:
