@@ -116,9 +116,9 @@ def main(argv: list[str] | None = None) -> int:
         rows.append((name, spent, timed.recaptioned / opts.edits))
     print(f"sheet: {len(doc.parts())} parts; floor: Placement.of per part "
           f"{per_part * 1e6:.1f} us")
-    print(f"{'gesture':24} {'update':>9} {'ratio':>7} {'parts recaptioned':>18}")
+    print(f"{'gesture':24} {'update':>9} {'ratio':>7} {'parts changed':>14}")
     for name, spent, recaptioned in rows:
-        print(f"{name:24} {spent * 1e3:6.3f} ms {spent / per_part:6.1f}x {recaptioned:18.1f}")
+        print(f"{name:24} {spent * 1e3:6.3f} ms {spent / per_part:6.1f}x {recaptioned:14.1f}")
     return 0
 
 

@@ -41,14 +41,7 @@ from .caption_spots import (
 )
 from .document import Document
 from .model import CAPTION_ROLES, Element, PlacedPart
-from .obstacles import (
-    EPS,
-    WEIGHTS,
-    CellIndex,
-    box_array,
-    obstacles,
-    overlapping,
-)
+from .obstacles import EPS, WEIGHTS, CellIndex, box_array, obstacles, overlapping
 from .spot_scores import DIGITS, Plan, SpotScores
 from .symbols import Bounds, FPoint, text_width
 
@@ -61,7 +54,6 @@ SUSPECT_SPOTS = 4
 #: A caption's room is its box grown by the padding; grown a little more here, so that no
 #: rounding hides a room a box covers.
 GROWN_X, GROWN_Y = PAD_X + 1e-6, PAD_Y + 1e-6
-
 
 #: A box that came (True) or went (False) near a caption: a fixed obstacle, or a caption placed
 #: before it.

@@ -14,6 +14,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from portcut.engine.schematic import Document, PlacedPart, Wire
+from portcut.engine.schematic.caption_spots import spots
 from portcut.engine.schematic.placement import Placement
 
 KINDS = ("resistor", "capacitor", "inductor", "voltage_source")
@@ -111,3 +112,16 @@ def test_placing_again_after_each_edit_matches_placing_at_once(seed: int, style:
                    if before.get(eid) != placement.captions.get(eid)}
         assert changed <= set().union(*named), (k, what)
         named.clear()
+
+
+@pytest.mark.parametrize("style", ["iec", "ieee"])
+@pytest.mark.parametrize("kind", KINDS)
+def test_a_captions_reach_holds_every_room_it_is_scored_in(kind: str, style: str) -> None:
+    # update looks for the captions a moved box can change through their reach; a room sticking
+    # out of it would go unseen
+    for rotation in (0, 90, 180, 270):
+        for role, lines in (("designator", 1), ("value", 1), ("value", 2)):
+            found = spots(kind, rotation, False, style, role, lines, 3.5)
+            x0, y0, x1, y1 = found.reach
+            assert all(x0 <= r[0] and y0 <= r[1] and r[2] <= x1 and r[3] <= y1
+                       for r in found.rooms), (rotation, role, lines)
