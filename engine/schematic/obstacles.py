@@ -160,17 +160,22 @@ class CellIndex:
         total = 0.0
         bx0, by0, bx1, by1 = box
         cells = self.cells
-        j0, j1 = int(by0 // CELL), int(by1 // CELL) + 1
-        for i in range(int(bx0 // CELL), int(bx1 // CELL) + 1):
-            for j in range(j0, j1):
+        i0, i1 = int(bx0 // CELL), int(bx1 // CELL)
+        j0, j1 = int(by0 // CELL), int(by1 // CELL)
+        alone = i0 == i1 and j0 == j1  # in one cell, which holds every overlap's corner
+        for i in range(i0, i1 + 1):
+            for j in range(j0, j1 + 1):
                 for kind, (x0, y0, x1, y1), owner, entry_rank in cells.get((i, j), ()):
                     if x0 >= bx1 or x1 <= bx0 or y0 >= by1 or y1 <= by0:
                         continue  # apart (the common case, settled without arithmetic)
-                    left, top = max(bx0, x0), max(by0, y0)
-                    w = min(bx1, x1) - left
-                    h = min(by1, y1) - top
+                    # max and min written out: this is the innermost loop of placing
+                    left = x0 if x0 > bx0 else bx0
+                    top = y0 if y0 > by0 else by0
+                    w = (x1 if x1 < bx1 else bx1) - left
+                    h = (y1 if y1 < by1 else by1) - top
                     # an overlap is counted in the one cell holding its top-left corner
-                    if w <= EPS or h <= EPS or int(left // CELL) != i or int(top // CELL) != j:
+                    if w <= EPS or h <= EPS or (not alone and (
+                            int(left // CELL) != i or int(top // CELL) != j)):
                         continue
                     if rank is not None and entry_rank[0] >= 0 and (
                             ranks.get(owner, -1), entry_rank[1]) >= rank:
