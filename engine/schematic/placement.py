@@ -15,7 +15,6 @@ three agree. Units: grid units, x right, y down.
 from __future__ import annotations
 
 import gc
-from collections import Counter
 from collections.abc import Callable, Iterable, Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass, field
@@ -141,15 +140,15 @@ class Placement:
             return out | self._place_again(doc)
         waiting: Waiting = {}
         queue: list[tuple[tuple[int, int], str]] = []
-        touched: list[Moved] = []
+        touched: list[list[Moved]] = []  # by element: boxes far apart are looked up apart
         present = {eid: doc[eid] for eid in changed if eid in doc}
         for eid in dict.fromkeys(changed):
             element = present.get(eid)
-            touched += self._refix(eid, element)
-            touched += self._replan(eid, element if isinstance(element, PlacedPart) else None,
-                                    waiting, queue)
-        for box, came in touched:
-            self._touch(box, came, None, waiting, queue)
+            touched.append(self._refix(eid, element) + self._replan(
+                eid, element if isinstance(element, PlacedPart) else None, waiting, queue))
+        for moved in touched:
+            if moved:
+                self._touch(moved, None, waiting, queue)
         while queue:
             rank, eid = heappop(queue)
             if self._settle(doc[eid], rank, waiting.pop((eid, rank[1])), waiting, queue):
@@ -194,9 +193,13 @@ class Placement:
             self._index.remove(box, eid)
         for kind, box in new:
             self._index.add(kind, box, eid, (-1, 0))
-        was, now = Counter(old), Counter(new)
-        return [*((box, False) for _, box in (was - now).elements()),
-                *((box, True) for _, box in (now - was).elements())]
+        gone, came = list(old), []
+        for entry in new:  # the few boxes of one element: lists beat counting
+            if entry in gone:
+                gone.remove(entry)
+            else:
+                came.append(entry)
+        return [*((box, False) for _, box in gone), *((box, True) for _, box in came)]
 
     def _replan(self, eid: str, part: PlacedPart | None, waiting: Waiting,
                 queue: list[tuple[tuple[int, int], str]]) -> list[Moved]:
@@ -233,13 +236,12 @@ class Placement:
             self._reaches.add("reach", reach, eid, (rank, 0))
         return [(c.box, False) for c in gone]
 
-    def _touch(self, box: Bounds, came: bool, after: tuple[int, int] | None, waiting: Waiting,
+    def _touch(self, moved: list[Moved], after: tuple[int, int] | None, waiting: Waiting,
                queue: list[tuple[tuple[int, int], str]]) -> None:
-        """Queue the captions not dragged whose spots ``box`` reaches (it ``came`` there, or
-        went), placed after ``after`` (None: all)."""
-        bx0, by0, bx1, by1 = box
+        """Queue the captions not dragged whose spots the boxes ``moved`` reach, placed after
+        ``after`` (None: all). The parts are looked up once, for all the boxes."""
         ranks = self._ranks
-        for owner in self._reaches.owners(box):
+        for owner in self._reaches.owners(union([box for box, _ in moved])):
             px, py = self._origins[owner]
             for _, i, _, where, at in self._plans[owner]:
                 key = (owner, i)
@@ -250,13 +252,17 @@ class Placement:
                 if held is None:
                     continue  # placed afresh anyway
                 x0, y0, x1, y1 = where.reach
-                if (min(bx1, x1 + px) - max(bx0, x0 + px) > EPS
-                        and min(by1, y1 + py) - max(by0, y0 + py) > EPS):
-                    if held:
-                        held.append((box, came))
-                    else:
-                        waiting[key] = [(box, came)]
-                        heappush(queue, (rank, owner))
+                x0, y0, x1, y1 = x0 + px, y0 + py, x1 + px, y1 + py
+                seen = [(box, came) for box, came in moved
+                        if min(box[2], x1) - max(box[0], x0) > EPS
+                        and min(box[3], y1) - max(box[1], y0) > EPS]
+                if not seen:
+                    continue
+                if held:
+                    held += seen
+                else:
+                    waiting[key] = seen
+                    heappush(queue, (rank, owner))
 
     def _settle(self, part: PlacedPart, rank: tuple[int, int], changes: list[Moved] | None,
                 waiting: Waiting, queue: list[tuple[tuple[int, int], str]]) -> bool:
@@ -279,11 +285,12 @@ class Placement:
             chosen[role] = (k, cost)
         captions[role] = new
         if old is None or old.box != new.box:
+            moved = [(new.box, True)]
             if old is not None:
                 self._placed.remove(old.box, part.id, i)
-                self._touch(old.box, False, rank, waiting, queue)
+                moved.append((old.box, False))
             self._placed.add("caption", new.box, part.id, rank)
-            self._touch(new.box, True, rank, waiting, queue)
+            self._touch(moved, rank, waiting, queue)
         return new != old
 
     def _stays(self, where: Spots, origin: FPoint, rank: tuple[int, int],
