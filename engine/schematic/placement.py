@@ -323,7 +323,11 @@ class Placement:
                 break
             if j != k:
                 x0, y0, x1, y1 = rooms[j]
-                cost = self._cost((x0 + px, y0 + py, x1 + px, y1 + py), rank)
+                room = (x0 + px, y0 + py, x1 + px, y1 + py)
+                cost = round(self._index.score(room), DIGITS)
+                if cost > now or (cost == now and j > k):
+                    continue  # beaten by the fixed obstacles alone: the captions only add
+                cost += round(self._placed.score(room, rank, self._ranks), DIGITS)
                 if cost < now or (cost == now and j < k):
                     return None
         return k, now
