@@ -506,7 +506,7 @@ def _pinned(role: str, lines: tuple[str, ...], at: FPoint) -> PlacedCaption:
 
 @cache
 def _reach_at_origin(spots: tuple[Spots, ...]) -> Bounds:
-    """Where the captions with these ``spots`` may go (their symbol's body included)."""
+    """The box holding every room of these ``spots`` (around a symbol at the origin)."""
     return union([found.reach for found in spots])
 
 
