@@ -131,8 +131,9 @@ def dragged(part: PlacedPart, caption: PlacedCaption,
 class Spots:
     """The candidate spots of one caption around a symbol placed at the origin, most wanted
     first: anchor points, alignments, text boxes and the padded boxes that are scored
-    (``rooms``); ``reach`` holds every spot's
-    box and the body. Made once per kind of caption (:func:`spots`), so compared by identity."""
+    (``rooms``); ``reach`` is the smallest box holding every room: nothing outside it changes
+    the caption's choice. Made once per kind of caption (:func:`spots`), so compared by
+    identity."""
 
     at: tuple[FPoint, ...]
     align: tuple[str, ...]
@@ -155,8 +156,7 @@ def spots(kind: str, rotation: int, mirror: bool, style: str, role: str, lines: 
     boxes = tuple(_shifted(_text_box_at_origin(lines, width, align, FONT_SIZE), at)
                   for at, align in found)
     rooms = tuple(map(padded, boxes))
-    reach = union([body, boxes[0], _reach(body, lines, width)])
-    return Spots(ats, aligns, boxes, rooms, reach)
+    return Spots(ats, aligns, boxes, rooms, union(list(rooms)))
 
 
 def _shifted(box: Bounds, by: FPoint) -> Bounds:
@@ -181,17 +181,6 @@ def _spots(anchor: TextAnchor | None, body: Bounds,
               ((x1, y0 - half), "e"), ((x0, y0 - half), "w"),
               ((x1, y1 + half), "e"), ((x0, y1 + half), "w")]
     return spots
-
-
-def _reach(body: Bounds, lines: int, width: float) -> Bounds:
-    """A box holding every spot of :func:`_spots` but the first, for ``lines`` lines ``width``
-    font sizes wide around ``body``: a text width beside it, five half-line rows and the text
-    above and below."""
-    x0, y0, x1, y1 = body
-    tx0, ty0, tx1, ty1 = _text_box_at_origin(lines, width, "c", FONT_SIZE)
-    width, height = tx1 - tx0, ty1 - ty0
-    rows = GAP + 2 * LINE_PITCH * FONT_SIZE + 2 * height
-    return (x0 - GAP - width - FONT_SIZE, y0 - rows, x1 + GAP + width + FONT_SIZE, y1 + rows)
 
 
 def union(boxes: list[Bounds]) -> Bounds:

@@ -120,18 +120,25 @@ class CellIndex:
             for j in range(j0, j1):
                 cells[(i, j)].append(entry)
 
-    def remove(self, box: Bounds, owner: str, rank: tuple[int, int] | None = None) -> None:
-        """Drop ``owner``'s entries of ``box`` (with ``rank``: only the one of that rank)."""
+    def remove(self, box: Bounds, owner: str, role: int | None = None) -> None:
+        """Drop ``owner``'s entries of ``box`` (with ``role``: only the caption of that position
+        among the part's captions, the second number of its rank)."""
         for cell in _cells(box):
             entries = self.cells.get(cell)
             if entries:
                 self.cells[cell] = [e for e in entries if not (
-                    e[2] == owner and e[1] == box and rank in (None, e[3]))]
+                    e[2] == owner and e[1] == box and role in (None, e[3][1]))]
 
     def owners(self, box: Bounds) -> set[str]:
         """Owners of the boxes overlapping ``box``."""
-        return {e[2] for cell in _cells(box) for e in self.cells.get(cell, ())
-                if _shared(box, e[1]) > 0}
+        bx0, by0, bx1, by1 = box
+        cells = self.cells
+        found = set()
+        for cell in _cells(box):
+            for _, (x0, y0, x1, y1), owner, _ in cells.get(cell, ()):
+                if min(bx1, x1) - max(bx0, x0) > EPS and min(by1, y1) - max(by0, y0) > EPS:
+                    found.add(owner)
+        return found
 
     def ranked_after(self, box: Bounds, rank: tuple[int, int]) -> set[tuple[int, int]]:
         """Ranks after ``rank`` of the boxes sharing some area with ``box``."""
@@ -153,17 +160,22 @@ class CellIndex:
         total = 0.0
         bx0, by0, bx1, by1 = box
         cells = self.cells
-        j0, j1 = int(by0 // CELL), int(by1 // CELL) + 1
-        for i in range(int(bx0 // CELL), int(bx1 // CELL) + 1):
-            for j in range(j0, j1):
+        i0, i1 = int(bx0 // CELL), int(bx1 // CELL)
+        j0, j1 = int(by0 // CELL), int(by1 // CELL)
+        alone = i0 == i1 and j0 == j1  # in one cell, which holds every overlap's corner
+        for i in range(i0, i1 + 1):
+            for j in range(j0, j1 + 1):
                 for kind, (x0, y0, x1, y1), owner, entry_rank in cells.get((i, j), ()):
                     if x0 >= bx1 or x1 <= bx0 or y0 >= by1 or y1 <= by0:
                         continue  # apart (the common case, settled without arithmetic)
-                    left, top = max(bx0, x0), max(by0, y0)
-                    w = min(bx1, x1) - left
-                    h = min(by1, y1) - top
+                    # max and min written out: this is the innermost loop of placing
+                    left = x0 if x0 > bx0 else bx0
+                    top = y0 if y0 > by0 else by0
+                    w = (x1 if x1 < bx1 else bx1) - left
+                    h = (y1 if y1 < by1 else by1) - top
                     # an overlap is counted in the one cell holding its top-left corner
-                    if w <= EPS or h <= EPS or int(left // CELL) != i or int(top // CELL) != j:
+                    if w <= EPS or h <= EPS or (not alone and (
+                            int(left // CELL) != i or int(top // CELL) != j)):
                         continue
                     if rank is not None and entry_rank[0] >= 0 and (
                             ranks.get(owner, -1), entry_rank[1]) >= rank:

@@ -20,6 +20,8 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field
 from functools import cache
 from heapq import heappop, heappush
+from itertools import compress, pairwise
+from operator import is_not
 
 import numpy as np
 
@@ -38,7 +40,7 @@ from .caption_spots import (
 )
 from .document import Document
 from .model import CAPTION_ROLES, Element, PlacedPart
-from .obstacles import WEIGHTS, CellIndex, box_array, obstacles, overlapping
+from .obstacles import EPS, WEIGHTS, CellIndex, box_array, obstacles, overlapping
 from .spot_scores import DIGITS, Plan, SpotScores
 from .symbols import Bounds, FPoint, text_width
 
@@ -51,6 +53,13 @@ SUSPECT_SPOTS = 4
 #: A caption's room is its box grown by the padding; grown a little more here, so that no
 #: rounding hides a room a box covers.
 GROWN_X, GROWN_Y = PAD_X + 1e-6, PAD_Y + 1e-6
+
+#: A box that came (True) or went (False) near a caption: a fixed obstacle, or a caption placed
+#: before it.
+Moved = tuple[Bounds, bool]
+#: What each caption waits for in :meth:`Placement.update`: the boxes moved around it since it
+#: was placed, or None: place it afresh.
+Waiting = dict[tuple[str, int], list[Moved] | None]
 
 
 @dataclass
@@ -67,8 +76,13 @@ class Placement:
     captions: dict[str, dict[str, PlacedCaption]] = field(default_factory=dict)
     _fixed: dict[str, list[tuple[str, Bounds]]] = field(default_factory=dict)
     _origins: dict[str, FPoint] = field(default_factory=dict)
+    _plans: dict[str, list[Plan]] = field(default_factory=dict)
+    # the spot each caption not dragged took (its position in the spots) and its score there
+    _chosen: dict[str, dict[str, tuple[int, float]]] = field(default_factory=dict)
     _reach: dict[str, Bounds] = field(default_factory=dict)
     _ranks: dict[str, int] = field(default_factory=dict)
+    _elements: list[Element] = field(default_factory=list)  # the document's, in its order
+    _order: list[str] = field(default_factory=list)  # the parts' ids, in placing order
     _index: CellIndex = field(default_factory=CellIndex)    # fixed obstacles
     _placed: CellIndex = field(default_factory=CellIndex)   # captions placed
     _reaches: CellIndex = field(default_factory=CellIndex)  # where each part's captions may go
@@ -87,11 +101,16 @@ class Placement:
             boxes = box_array(entry[1] for entry in entries)
             placement._index = CellIndex.of(entries, boxes)
             parts = doc.parts()
-            placement._place_sheet(parts, [placement._plan(part) for part in parts],
+            plans = [placement._plan(part) for part in parts]
+            placement._place_sheet(parts, plans,
                                    SpotScores(boxes, np.array([WEIGHTS[e[0]] for e in entries])))
-            ranks = placement._ranks
+            ranks, reach = placement._ranks, placement._reach
+            for part, plan in zip(parts, plans, strict=True):
+                found = _reach_of(part, plan)
+                if found is not None:
+                    reach[part.id] = found
             placement._reaches = CellIndex.of([("reach", box, eid, (ranks[eid], 0))
-                                               for eid, box in placement._reach.items()])
+                                               for eid, box in reach.items()])
         return placement
 
     def around(self, part_id: str) -> list[PlacedCaption] | None:
@@ -108,63 +127,210 @@ class Placement:
     def update(self, doc: Document, changed: Iterable[str]) -> set[str]:
         """Place again after the elements ``changed`` (ids, whether added, updated or removed)
         were edited in ``doc``; returns the ids of the parts whose captions moved or changed
-        (removed parts included)."""
+        (removed elements included).
+
+        A caption's choice depends on its own text and spots, the fixed obstacles over its
+        spots and the captions placed before it there. So only the captions of an edited part
+        whose text or spots changed are placed afresh; one that a changed box reaches keeps
+        its spot when no spot that box covers now beats it; and a caption that moves reaches
+        the later ones its old and new boxes cover, which are looked at in placing order."""
         changed = list(changed)
-        self._rank(doc)
-        dirty: set[str] = set()
-        gone: dict[str, dict[str, PlacedCaption]] = {}
-        for eid in changed:
-            for _, box in self._fixed.get(eid, ()):
-                dirty |= self._reaches.owners(box)
-            for c in self.captions.get(eid, {}).values():
-                dirty |= self._reaches.owners(c.box)
-            gone[eid] = self.captions.get(eid, {})
-            self._drop(eid)
-            if eid in doc:
-                self._add_fixed(doc[eid])
-                dirty |= {o for _, box in self._fixed[eid] for o in self._reaches.owners(box)}
-                if isinstance(doc[eid], PlacedPart):
-                    dirty.add(eid)
         out = {eid for eid in changed if eid not in doc}
-        # in placing order; a caption that moves can move those placed after it
-        while dirty:
-            eid = min((e for e in dirty if e in doc), key=self._ranks.__getitem__, default=None)
-            if eid is None:
-                break
-            dirty.discard(eid)
-            before = self.captions.get(eid, gone.get(eid))
-            self._drop_captions(eid)
-            part = doc[eid]
-            after = self._place_part(part, self._plan(part))
-            if after != before:
+        if not self._rank(doc):
+            return out | self._place_again(doc)
+        waiting: Waiting = {}
+        queue: list[tuple[tuple[int, int], str]] = []
+        touched: list[list[Moved]] = []  # by element: boxes far apart are looked up apart
+        present = {eid: doc[eid] for eid in changed if eid in doc}
+        for eid in dict.fromkeys(changed):
+            element = present.get(eid)
+            touched.append(self._refix(eid, element) + self._replan(
+                eid, element if isinstance(element, PlacedPart) else None, waiting, queue))
+        for moved in touched:
+            if moved:
+                self._touch(moved, None, waiting, queue)
+        while queue:
+            rank, eid = heappop(queue)
+            if self._settle(doc[eid], rank, waiting.pop((eid, rank[1])), waiting, queue):
                 out.add(eid)
-                rank = self._ranks[eid]
-                for c in (*(before or {}).values(), *after.values()):
-                    dirty |= {o for o in self._reaches.owners(c.box) if self._ranks[o] > rank}
         return out
 
-    def _rank(self, doc: Document) -> None:
-        self._ranks = {p.id: i for i, p in enumerate(doc.parts())}
+    def _rank(self, doc: Document) -> bool:
+        """Hold the placing order of ``doc``'s parts; returns whether the parts held before
+        kept their order among themselves (parts come and go, but a part taken off and put
+        back in one step, for one, comes back last)."""
+        elements, held = list(doc), self._elements
+        self._elements = elements
+        if len(elements) == len(held) and all(
+                elements[k].id == held[k].id
+                for k in compress(range(len(held)), map(is_not, elements, held))):
+            return True  # the same ids in the same order (most edits replace elements)
+        order = [e.id for e in elements if isinstance(e, PlacedPart)]
+        if order == self._order:
+            return True
+        before, self._order = self._ranks, order
+        self._ranks = {eid: i for i, eid in enumerate(order)}
+        kept = [before[eid] for eid in order if eid in before]
+        return all(a < b for a, b in pairwise(kept))
 
-    def _add_fixed(self, element: Element) -> None:
-        boxes = obstacles(element, self.style)
-        self._fixed[element.id] = boxes
-        for kind, box in boxes:
-            self._index.add(kind, box, element.id, (-1, 0))
+    def _place_again(self, doc: Document) -> set[str]:
+        """Place the whole sheet afresh; returns the parts whose captions changed."""
+        before = self.captions
+        self.__dict__.update(Placement.of(doc, self.style, self.ac).__dict__)
+        return {eid for eid in before.keys() | self.captions.keys()
+                if before.get(eid) != self.captions.get(eid)}
 
-    def _drop_captions(self, eid: str) -> None:
-        for c in self.captions.pop(eid, {}).values():
-            self._placed.remove(c.box, eid)
-
-    def _drop(self, eid: str) -> None:
-        """Forget everything of element ``eid``."""
-        for _, box in self._fixed.pop(eid, ()):
+    def _refix(self, eid: str, element: Element | None) -> list[Moved]:
+        """Hold the fixed obstacles of ``element`` (None: removed) instead of those element
+        ``eid`` had; returns the boxes gone and new."""
+        old = self._fixed.pop(eid, [])
+        new = [] if element is None else obstacles(element, self.style)
+        if element is not None:
+            self._fixed[eid] = new
+        if new == old:
+            return []
+        for _, box in old:
             self._index.remove(box, eid)
-        self._drop_captions(eid)
+        for kind, box in new:
+            self._index.add(kind, box, eid, (-1, 0))
+        gone, came = list(old), []
+        for entry in new:  # the few boxes of one element: lists beat counting
+            if entry in gone:
+                gone.remove(entry)
+            else:
+                came.append(entry)
+        return [*((box, False) for _, box in gone), *((box, True) for _, box in came)]
+
+    def _replan(self, eid: str, part: PlacedPart | None, waiting: Waiting,
+                queue: list[tuple[tuple[int, int], str]]) -> list[Moved]:
+        """Hold the captions to place of ``part`` (None: element ``eid`` is no part, or gone)
+        and queue those whose text, spots or origin changed; returns the boxes of its captions
+        dropped."""
+        plan = [] if part is None else self._plan(part)
+        old = {entry[0]: entry for entry in self._plans.pop(eid, [])}
+        moved = part is None or self._origins.get(eid) != part.at
+        captions = self.captions.pop(eid, {})
+        chosen = self._chosen.pop(eid, {})
         reach = self._reach.pop(eid, None)
         if reach is not None:
             self._reaches.remove(reach, eid)
-        self._origins.pop(eid, None)
+        kept = {entry[0] for entry in plan}
+        gone = [c for role, c in captions.items() if role not in kept]
+        for c in gone:
+            self._placed.remove(c.box, eid, CAPTION_ROLES.index(c.role))
+            del captions[c.role]
+            chosen.pop(c.role, None)
+        if part is None:
+            self._origins.pop(eid, None)
+            return [(c.box, False) for c in gone]
+        rank = self._ranks[eid]
+        for entry in plan:
+            if moved or old.get(entry[0]) != entry or entry[0] not in captions:
+                waiting[(eid, entry[1])] = None
+                heappush(queue, ((rank, entry[1]), eid))
+        self._plans[eid], self._origins[eid] = plan, part.at
+        self.captions[eid], self._chosen[eid] = captions, chosen
+        reach = _reach_of(part, plan)
+        if reach is not None:
+            self._reach[eid] = reach
+            self._reaches.add("reach", reach, eid, (rank, 0))
+        return [(c.box, False) for c in gone]
+
+    def _touch(self, moved: list[Moved], after: tuple[int, int] | None, waiting: Waiting,
+               queue: list[tuple[tuple[int, int], str]]) -> None:
+        """Queue the captions not dragged whose spots the boxes ``moved`` reach, placed after
+        ``after`` (None: all). The parts are looked up once, for all the boxes."""
+        ranks = self._ranks
+        for owner in self._reaches.owners(union([box for box, _ in moved])):
+            px, py = self._origins[owner]
+            for _, i, _, where, at in self._plans[owner]:
+                key = (owner, i)
+                rank = (ranks[owner], i)
+                if at is not None or (after is not None and rank <= after):
+                    continue
+                held = waiting.get(key, ())
+                if held is None:
+                    continue  # placed afresh anyway
+                x0, y0, x1, y1 = where.reach
+                x0, y0, x1, y1 = x0 + px, y0 + py, x1 + px, y1 + py
+                seen = [(box, came) for box, came in moved
+                        if min(box[2], x1) - max(box[0], x0) > EPS
+                        and min(box[3], y1) - max(box[1], y0) > EPS]
+                if not seen:
+                    continue
+                if held:
+                    held += seen
+                else:
+                    waiting[key] = seen
+                    heappush(queue, (rank, owner))
+
+    def _settle(self, part: PlacedPart, rank: tuple[int, int], changes: list[Moved] | None,
+                waiting: Waiting, queue: list[tuple[tuple[int, int], str]]) -> bool:
+        """Place the caption of ``part`` at ``rank`` after the boxes ``changes`` changed around
+        it (None: afresh), and queue the later captions its move reaches; returns whether the
+        caption changed."""
+        role, i, lines, where, at = next(e for e in self._plans[part.id] if e[1] == rank[1])
+        captions, chosen = self.captions[part.id], self._chosen[part.id]
+        old = captions.get(role)
+        if at is not None:  # dragged: kept whatever it covers
+            new = _pinned(role, lines, at)
+            chosen.pop(role, None)
+        else:
+            stays = None if changes is None else self._stays(where, part.at, rank,
+                                                             chosen[role], changes)
+            if stays is None:
+                new, k, cost = self._best(role, lines, where, part.at, rank)
+            else:
+                (k, cost), new = stays, old._replace(crowded=stays[1] != 0)
+            chosen[role] = (k, cost)
+        captions[role] = new
+        if old is None or old.box != new.box:
+            moved = [(new.box, True)]
+            if old is not None:
+                self._placed.remove(old.box, part.id, i)
+                moved.append((old.box, False))
+            self._placed.add("caption", new.box, part.id, rank)
+            self._touch(moved, rank, waiting, queue)
+        return new != old
+
+    def _stays(self, where: Spots, origin: FPoint, rank: tuple[int, int],
+               chosen: tuple[int, float], changes: list[Moved]) -> tuple[int, float] | None:
+        """The spot a caption took and its score now, if it is still the first of least score
+        after the boxes ``changes`` moved around it; else None.
+
+        Its spots scored as when it was placed but where a box moved over them: a box that
+        came only adds to a spot's score, so the spot taken is scored again if any box moved
+        over it, another spot only if a box went from it; and none after the spot taken can
+        beat a score of 0."""
+        k, before = chosen
+        px, py = origin
+        near = [(x0 - px, y0 - py, x1 - px, y1 - py, came) for (x0, y0, x1, y1), came in changes]
+        again = []
+        for j, (x0, y0, x1, y1) in enumerate(where.rooms):
+            for bx0, by0, bx1, by1, came in near:
+                if (j == k or not came) and x0 < bx1 and bx0 < x1 and y0 < by1 and by0 < y1:
+                    again.append(j)
+                    break
+        if not again:
+            return chosen
+        rooms = where.rooms
+        x0, y0, x1, y1 = rooms[k]
+        now = self._cost((x0 + px, y0 + py, x1 + px, y1 + py), rank) if k in again else before
+        if now > before:
+            return None
+        for j in again:
+            if j > k and now == 0:
+                break
+            if j != k:
+                x0, y0, x1, y1 = rooms[j]
+                room = (x0 + px, y0 + py, x1 + px, y1 + py)
+                cost = round(self._index.score(room), DIGITS)
+                if cost > now or (cost == now and j > k):
+                    continue  # beaten by the fixed obstacles alone: the captions only add
+                cost += round(self._placed.score(room, rank, self._ranks), DIGITS)
+                if cost < now or (cost == now and j < k):
+                    return None
+        return k, now
 
     def _plan(self, part: PlacedPart) -> list[Plan]:
         """The part's captions to place, in placing order."""
@@ -181,8 +347,8 @@ class Placement:
 
     def _place_sheet(self, parts: list[PlacedPart], plans: list[list[Plan]],
                      fixed: SpotScores) -> None:
-        """Place every caption of the sheet, giving what :meth:`_place_part` gives part after
-        part in placing order, with the spot search of :meth:`_best` run for few captions.
+        """Place every caption of the sheet, giving what placing part after part in placing
+        order gives, with the spot search of :meth:`_best` run for few captions.
 
         A caption's score at a spot is its fixed obstacles' score plus the captions placed
         before it, which only add; so a caption takes the first spot of lowest fixed score
@@ -194,11 +360,12 @@ class Placement:
         fixed.start(rows)
         scores = fixed.scores
         ranks = self._ranks
-        out, rooms, free = [], [], []
+        out, chosen, rooms, free = [], [], [], []
         for r, ((part, (role, _, lines, where, at)), known) in enumerate(zip(rows, scores,
                                                                               strict=True)):
             if known is None:
                 out.append(_pinned(role, lines, at))
+                chosen.append(None)
                 continue
             if known[0]:
                 rounded = [round(cost, DIGITS) for cost in known]
@@ -206,11 +373,9 @@ class Placement:
                 k = rounded.index(best)
             else:
                 best, k = 0.0, 0
+            out.append(_caption(role, lines, where, part.at, k, best != 0))
+            chosen.append((k, best))
             px, py = part.at
-            ax, ay = where.at[k]
-            x0, y0, x1, y1 = where.boxes[k]
-            out.append(PlacedCaption(role, lines, (ax + px, ay + py), where.align[k],
-                                     (x0 + px, y0 + py, x1 + px, y1 + py), best != 0))
             x0, y0, x1, y1 = where.rooms[k]
             rooms.append((x0 + px, y0 + py, x1 + px, y1 + py))
             free.append(r)
@@ -224,8 +389,6 @@ class Placement:
             ("caption", c.box, part.id, (ranks[part.id], entry[1]))
             for r, ((part, entry), c) in enumerate(zip(rows, out, strict=True))
             if r not in waiting])
-        if not suspects:
-            return self._keep(parts, plans, out)
         fixed.extend(suspects, SUSPECT_SPOTS)
         row_of = {(ranks[part.id], entry[1]): r for r, (part, entry) in enumerate(rows)}
         done = set()
@@ -236,11 +399,11 @@ class Placement:
             done.add(r)
             part, (role, i, lines, where, _) = rows[r]
             rank = (ranks[part.id], i)
-            caption = self._best(role, lines, where, part.at, rank, scores[r])
-            first, out[r] = out[r], caption
+            caption, k, cost = self._best(role, lines, where, part.at, rank, scores[r])
+            first, out[r], chosen[r] = out[r], caption, (k, cost)
             moved = caption.box != first.box
             if moved and r not in waiting:
-                placed.remove(first.box, part.id, rank)
+                placed.remove(first.box, part.id, i)
             if moved or r in waiting:
                 placed.add("caption", caption.box, part.id, rank)
             if moved:  # the later captions whose room (their box, padded) its new box covers
@@ -250,62 +413,35 @@ class Placement:
                     later = row_of[held]
                     if scores[later] is not None:  # not dragged
                         heappush(suspects, later)
-        return self._keep(parts, plans, out)
+        self._keep(parts, plans, out, chosen)
 
     def _keep(self, parts: list[PlacedPart], plans: list[list[Plan]],
-              out: list[PlacedCaption]) -> None:
-        """Hold the captions ``out`` (in placing order) of ``parts`` and their reaches."""
-        captions = iter(out)
+              out: list[PlacedCaption], chosen: list[tuple[int, float] | None]) -> None:
+        """Hold the captions ``out`` (in placing order) of ``parts``, and the spot each took
+        with its score (``chosen``, None for a dragged one)."""
+        found = iter(zip(out, chosen, strict=True))
         for part, plan in zip(parts, plans, strict=True):
-            found = {entry[0]: next(captions) for entry in plan}
-            self._reach[part.id] = self._reach_of(part, plan, found)
-            self._origins[part.id] = part.at
-            self.captions[part.id] = found
-
-    def _place_part(self, part: PlacedPart, plan: list[Plan]) -> dict[str, PlacedCaption]:
-        """Place the part's captions after the captions placed before it."""
-        rank = self._ranks[part.id]
-        out: dict[str, PlacedCaption] = {}
-        for role, i, lines, where, at in plan:
-            if at is not None:  # dragged: kept whatever it covers
-                caption = _pinned(role, lines, at)
-            else:
-                caption = self._best(role, lines, where, part.at, (rank, i), None)
-            self._placed.add("caption", caption.box, part.id, (rank, i))
-            out[role] = caption
-        old = self._reach.pop(part.id, None)
-        if old is not None:
-            self._reaches.remove(old, part.id)
-        self._reach[part.id] = self._reach_of(part, plan, out)
-        self._reaches.add("reach", self._reach[part.id], part.id, (rank, 0))
-        self._origins[part.id] = part.at
-        self.captions[part.id] = out
-        return out
-
-    def _reach_of(self, part: PlacedPart, plan: list[Plan],
-                  captions: dict[str, PlacedCaption]) -> Bounds:
-        """Where the part's captions may go: their spots, its body and the dragged ones."""
-        if not plan:
-            return self._fixed[part.id][0][1]  # its body
-        x0, y0, x1, y1 = _reach_at_origin(tuple([entry[3] for entry in plan]))
-        px, py = part.at
-        reach = (x0 + px, y0 + py, x1 + px, y1 + py)
-        if part.captions:
-            held = [captions[entry[0]].box for entry in plan if entry[4] is not None]
-            return union([reach, *held]) if held else reach
-        return reach
+            captions, spots_taken = {}, {}
+            for entry in plan:
+                caption, taken = next(found)
+                captions[entry[0]] = caption
+                if taken is not None:
+                    spots_taken[entry[0]] = taken
+            self.captions[part.id], self._chosen[part.id] = captions, spots_taken
+            self._plans[part.id], self._origins[part.id] = plan, part.at
 
     def _best(self, role: str, lines: tuple[str, ...], where: Spots, origin: FPoint,
-              rank: tuple[int, int], fixed: list[float] | None) -> PlacedCaption:
-        """The first spot nothing covers, or else the least covered one (marked crowded);
-        ``fixed`` holds the fixed obstacles' scores of the first spots when they are known;
-        captions placed after ``rank`` are left out."""
+              rank: tuple[int, int], fixed: list[float] | None = None
+              ) -> tuple[PlacedCaption, int, float]:
+        """The first spot nothing covers, or else the least covered one (marked crowded),
+        with its position among the spots and its score; ``fixed`` holds the fixed
+        obstacles' scores of the first spots when they are known; captions placed after
+        ``rank`` are left out."""
         px, py = origin
         score: Callable[[Bounds], float] = self._index.score
         placed, ranks = self._placed.score, self._ranks
         known = 0 if fixed is None else len(fixed)
         best, best_k = float("inf"), 0
-        crowded = True
         for k, (x0, y0, x1, y1) in enumerate(where.rooms):
             room = (x0 + px, y0 + py, x1 + px, y1 + py)
             cost = fixed[k] if k < known else score(room)
@@ -319,12 +455,35 @@ class Placement:
             if cost < best:
                 best, best_k = cost, k
                 if cost == 0:
-                    crowded = False
                     break
-        ax, ay = where.at[best_k]
-        x0, y0, x1, y1 = where.boxes[best_k]
-        return PlacedCaption(role, lines, (ax + px, ay + py), where.align[best_k],
-                             (x0 + px, y0 + py, x1 + px, y1 + py), crowded)
+        return _caption(role, lines, where, origin, best_k, best != 0), best_k, best
+
+    def _cost(self, room: Bounds, rank: tuple[int, int]) -> float:
+        """The score of ``room`` (on the sheet) for the caption of ``rank``: the fixed
+        obstacles and the captions placed before it that it covers, as :meth:`_best` counts
+        them."""
+        return (round(self._index.score(room), DIGITS)
+                + round(self._placed.score(room, rank, self._ranks), DIGITS))
+
+
+def _caption(role: str, lines: tuple[str, ...], where: Spots, origin: FPoint, k: int,
+             crowded: bool) -> PlacedCaption:
+    """The caption at the ``k``-th of spots ``where`` around a symbol at ``origin``."""
+    px, py = origin
+    ax, ay = where.at[k]
+    x0, y0, x1, y1 = where.boxes[k]
+    return PlacedCaption(role, lines, (ax + px, ay + py), where.align[k],
+                         (x0 + px, y0 + py, x1 + px, y1 + py), crowded)
+
+
+def _reach_of(part: PlacedPart, plan: list[Plan]) -> Bounds | None:
+    """Where the spots of the part's captions not dragged lie (None: it has none)."""
+    free = tuple([entry[3] for entry in plan if entry[4] is None])
+    if not free:
+        return None
+    x0, y0, x1, y1 = _reach_at_origin(free)
+    px, py = part.at
+    return (x0 + px, y0 + py, x1 + px, y1 + py)
 
 
 @contextmanager
@@ -347,7 +506,7 @@ def _pinned(role: str, lines: tuple[str, ...], at: FPoint) -> PlacedCaption:
 
 @cache
 def _reach_at_origin(spots: tuple[Spots, ...]) -> Bounds:
-    """Where the captions with these ``spots`` may go (their symbol's body included)."""
+    """The box holding every room of these ``spots`` (around a symbol at the origin)."""
     return union([found.reach for found in spots])
 
 
