@@ -57,8 +57,8 @@ def power_text(eq: Equivalent, basis: str) -> str:
             f"{format_eng(p.resistive_power, 'W', 4)} ({p.described()})")
 
 
-def _agreement(relative: float) -> str:
-    return "agree exactly" if relative == 0 else f"agree within {relative:.1e} (relative)"
+def _agreement(relative: float, verb: str) -> str:
+    return f"{verb} exactly" if relative == 0 else f"{verb} within {relative:.1e} (relative)"
 
 
 def equivalence_text(report: EquivalenceReport) -> str:
@@ -68,5 +68,5 @@ def equivalence_text(report: EquivalenceReport) -> str:
         else ""
     verdict = "Reduced circuit matches" if report.within(MATCH_RTOL) else "Reduced circuit DIFFERS"
     return (f"{verdict} for the load as drawn: outside voltages "
-            f"{_agreement(report.voltage_rel)}{worst}; port current "
-            f"{_agreement(report.current_rel)}")
+            f"{_agreement(report.voltage_rel, 'agree')}{worst}; port current "
+            f"{_agreement(report.current_rel, 'agrees')}")
