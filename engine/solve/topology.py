@@ -23,7 +23,8 @@ engine/solve/branches.py.
 from __future__ import annotations
 
 import threading
-from collections.abc import Collection, Iterable, Sequence
+from collections.abc import Collection, Iterable, Iterator, Sequence
+from contextlib import contextmanager
 from dataclasses import dataclass
 from itertools import chain
 
@@ -194,6 +195,20 @@ class NetlistCache:
             for netlist in self._recent[keep:]:
                 netlist.memo.clear()
             del self._recent[keep:]
+
+    @contextmanager
+    def set_aside(self) -> Iterator[None]:
+        """Within, no netlists are kept from before; afterwards those are kept again and the
+        ones built within dropped (a benchmark times a first analysis without taking a live
+        session's netlists from it)."""
+        with self._lock:
+            kept, self._recent = self._recent, []
+        try:
+            yield
+        finally:
+            with self._lock:
+                self.forget()
+                self._recent = kept
 
     def _kept(self, netlist: Netlist) -> Netlist:
         with self._lock:

@@ -17,6 +17,7 @@ from portcut.engine import GROUND, Circuit, CutError, SingularCircuitError, chec
 from portcut.engine.solve.circuit import REFERRING
 from portcut.engine.solve.mna import Netlist
 from portcut.engine.solve.topology import (
+    NETLISTS,
     check_voltage_loops,
     circuit_graph,
     cut,
@@ -302,3 +303,17 @@ def test_dropped_netlists_free_what_they_kept_without_a_garbage_collection() -> 
         assert all(ref() is None for ref in kept)
     finally:
         gc.enable()
+
+
+def test_netlists_set_aside_come_back_and_those_built_meanwhile_go() -> None:
+    # A benchmark times a first analysis inside set_aside(); the netlists a live session kept
+    # before must be the ones it finds afterwards, the ones built within gone.
+    before = divider()
+    kept = cut(before, REGION, ("a", GROUND)).netlist
+    with NETLISTS.set_aside():
+        again = divider()
+        equivalent(again, REGION, ("a", GROUND))
+        within = cut(again, REGION, ("a", GROUND)).netlist
+        assert within is not kept and within.memo  # nothing from before was found
+    assert cut(before, REGION, ("a", GROUND)).netlist is kept
+    assert not within.memo  # dropped, what it kept freed
