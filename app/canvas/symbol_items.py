@@ -88,6 +88,9 @@ class SymbolItem(ElementItem):
         while len(self._texts) < len(captions):
             text = QGraphicsSimpleTextItem(self)
             text.setPen(NO_PEN)
+            # drawn from a pixmap kept at the view's scale: laying the text out again at every
+            # repaint was the largest part of repainting a crowded sheet (its setters redraw it)
+            text.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
             self._texts.append((text, ""))
         for i, (text, _) in enumerate(self._texts):
             if i < len(captions):
