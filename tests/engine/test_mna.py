@@ -258,3 +258,17 @@ def test_small_matrices_compressed_here_equal_scipys_conversion(monkeypatch: pyt
         assert np.array_equal(mine.indptr, theirs.indptr)
         assert np.array_equal(mine.indices, theirs.indices)
         assert np.array_equal(mine.data, theirs.data)
+
+
+def test_equilibration_of_a_subnormal_entry_stays_finite() -> None:
+    # IEEE 754 binary64 (common practice): the largest finite power of two is 2**1023, while
+    # 1 / 5.6e-309 would need 2**1024; the scale must stop there, not overflow.
+    import scipy.sparse as sp
+
+    from portcut.engine.solve.mna.factor import equilibration
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        rows, cols = equilibration(sp.csc_matrix(np.diag([5.56268465e-309, 0.5])))
+    assert np.isfinite(rows).all() and np.isfinite(cols).all()
+    assert rows[0] == 2.0 ** 1023 and rows[1] == 1.0

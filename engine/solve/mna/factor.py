@@ -143,10 +143,10 @@ def equilibration(matrix: sp.csc_matrix) -> tuple[np.ndarray, np.ndarray]:
 
 def _power_of_two(largest: np.ndarray) -> np.ndarray:
     """``2**-e`` with ``largest = m 2**e``, 0.5 <= m < 1; 1 where ``largest`` is 0 or not
-    finite."""
+    finite. A subnormal ``largest`` gets at most ``2**1023``, the largest finite power of two."""
     ok = np.isfinite(largest) & (largest > 0)
     _, exponent = np.frexp(np.where(ok, largest, 1.0))
-    return np.where(ok, np.ldexp(1.0, -exponent), 1.0)
+    return np.where(ok, np.ldexp(1.0, np.minimum(-exponent, 1023)), 1.0)
 
 
 def _scaled(matrix: sp.csc_matrix, rows: np.ndarray, cols: np.ndarray) -> sp.csc_matrix:
