@@ -15,12 +15,14 @@ from functools import partial
 
 import numpy as np
 import pytest
+import scipy.sparse as sp
 from circuits import divider as shared_divider
 
 from portcut.engine import GROUND, Circuit, SingularCircuitError
 from portcut.engine.cli.bench import mixed_circuit
 from portcut.engine.solve import mna
 from portcut.engine.solve.mna import EPS, Factor, Netlist, System, assemble
+from portcut.engine.solve.mna.factor import equilibration
 
 
 def build(c: Circuit, reference: str = GROUND) -> System:
@@ -263,10 +265,6 @@ def test_small_matrices_compressed_here_equal_scipys_conversion(monkeypatch: pyt
 def test_equilibration_of_a_subnormal_entry_stays_finite() -> None:
     # IEEE 754 binary64 (common practice): the largest finite power of two is 2**1023, while
     # 1 / 5.6e-309 would need 2**1024; the scale must stop there, not overflow.
-    import scipy.sparse as sp
-
-    from portcut.engine.solve.mna.factor import equilibration
-
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         rows, cols = equilibration(sp.csc_matrix(np.diag([5.56268465e-309, 0.5])))
