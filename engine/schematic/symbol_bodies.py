@@ -213,7 +213,7 @@ def block_body(style: str, form: str) -> Body:
     # that leave the pins to the right, up or down never meet them
     anchors = (TextAnchor("designator", (-0.5, -3.4), "n"),
                TextAnchor("value", (-3.8, 0.0), "w"),
-               *_marks((2.75, -2.6), (2.75, 2.6)))
+               *_marks((2.9, -2.6), (2.9, 2.6)))
     source_shapes, source_anchors = BODIES["voltage_source" if form == "thevenin"
                                            else "current_source"](style)
     # the source stands upright at x = -2. Thevenin: its first pin (p) turned 90 degrees goes

@@ -17,8 +17,10 @@ from portcut.engine.schematic.symbols import (
     ALIGNS,
     BLOCK_FORMS,
     FONT_SIZE,
+    MARK_FONT_SIZE,
     PINS,
     ROLES,
+    STROKE_WIDTH,
     STYLES,
     Arc,
     Circle,
@@ -99,6 +101,13 @@ def test_block_texts_stand_clear_of_its_frame_and_away_from_its_pins(form):
     assert value[2] < x0 and name[3] < y0  # values left of the frame, designator above it
     # the pins sit on the right edge, so leads leave away from both texts
     assert all(px == x1 for px, _ in sym.pins)
+    # the port's + and - stand outside the dashed frame, a clear gap from its right side
+    (frame,) = (s for s in sym.shapes if isinstance(s, Polygon) and s.dashed)
+    right = max(x for x, _ in frame.points)
+    for role, mark in (("plus", "+"), ("minus", "−")):
+        outer = max((a for a in sym.anchors if a.role == role), key=lambda a: a.at[0])
+        left = text_bounds(outer.at, outer.align, [mark], MARK_FONT_SIZE)[0]
+        assert left - right > STROKE_WIDTH, (role, left, right)
 
 
 def test_net_label_shows_its_name_and_ground_has_no_text():
