@@ -19,10 +19,8 @@ from PySide6.QtWidgets import (
     QComboBox,
     QDockWidget,
     QFormLayout,
-    QFrame,
     QHBoxLayout,
     QPushButton,
-    QScrollArea,
     QVBoxLayout,
     QWidget,
 )
@@ -51,6 +49,7 @@ from .analysis_controls import AnalysisControls
 from .entry import ERROR_STYLE, CheckedEntry, mark_error
 from .port_controls import PortControls
 from .region_texts import block_text, boundary_text, expand_command
+from .scrolling import scrolled
 from .values import ValuesTable, keep_values, text_label
 
 __all__ = ["EquivalentDock", "block_text", "boundary_text", "expand_command", "keep_values"]
@@ -140,26 +139,17 @@ class EquivalentDock(QDockWidget):
             column.addWidget(widget)
         column.addStretch(1)
         body.setStyleSheet(ERROR_STYLE)
-        scroll = QScrollArea()
-        scroll.setWidgetResizable(True)
-        scroll.setFrameShape(QFrame.Shape.NoFrame)
-        # the panel is never narrower than its widest row (below), so a sideways scroll would
-        # only hide the first letters of the texts, which wrap instead
-        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
-        scroll.setWidget(body)
         # the commands stay below the scrolled texts, always in sight
         outer = QWidget()
         frame = QVBoxLayout(outer)
         frame.setContentsMargins(0, 0, 0, 0)
-        frame.addWidget(scroll, 1)
+        frame.addWidget(scrolled(body), 1)
         buttons = QVBoxLayout()
         buttons.setContentsMargins(9, 0, 9, 6)
         buttons.addLayout(row1)
         buttons.addLayout(row2)
         frame.addLayout(buttons)
         self.setWidget(outer)
-        scroll.setMinimumWidth(body.minimumSizeHint().width()
-                               + scroll.verticalScrollBar().sizeHint().width())
 
     @property
     def doc(self) -> Document:

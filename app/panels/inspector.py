@@ -37,6 +37,7 @@ from ..fields import Field, fields_for
 from ..workbench import Workbench
 from .entry import CheckedEntry
 from .equivalent import block_text, expand_command
+from .scrolling import scrolled
 
 __all__ = ["FieldEditor", "InspectorDock"]
 
@@ -138,7 +139,9 @@ class InspectorDock(QDockWidget):
         outer.addWidget(self.details)
         outer.addWidget(self.expand_button)
         outer.addStretch(1)
-        self.setWidget(body)
+        # the inspector grows to show a part's fields, scrolling beyond half the window: the
+        # panels tabbed below keep room for their first lines
+        self.setWidget(scrolled(body, grow_share=0.55))
         self._unsubscribe = workbench.doc.subscribe(self._on_change)
         workbench.documentReplaced.connect(self._on_document)
         canvas.selectionChanged.connect(self.show_selection)

@@ -1,13 +1,19 @@
 """The inspector in both directions: typing lands in the document (values read as SI prefixes
 and IEC 60062 codes), a refused entry shows the reason and keeps the old value, and document
-changes (undo, renames) show in the fields."""
+changes (undo, renames) show in the fields; a short inspector scrolls rather than stretch the
+window or lay texts over its buttons."""
 
 from __future__ import annotations
+
+from itertools import pairwise
 
 import pytest
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
+from sheets import click_button, settle
 
+from portcut import assets
+from portcut.app.canvas.grid import to_scene
 from portcut.app.fields import fields_for
 from portcut.app.panels.inspector import _TITLE, _TitleRecord
 from portcut.app.region_edits import renamed
@@ -217,3 +223,47 @@ def test_a_moved_part_shows_its_new_place_and_keeps_its_fields(window, drive):
     assert value.edit.text() == "1k" and value.element is drive.by("R1")
     assert window.inspector.details.text().startswith("At (0, 0), turned 0°")
     assert [e.field for e in window.inspector.editors.values()] == fields_for(drive.by("R1"))
+
+
+def _open_example(window, name: str) -> None:
+    assert window.files.open_path(assets.example_path(name), as_copy=True)
+    window.analysis.finish()
+
+
+def _clear_of_each_other(widgets) -> bool:
+    """Each widget as tall as its text needs at its width, and none over the next one."""
+    tall = all(w.height() >= w.heightForWidth(w.width()) for w in widgets
+               if w.hasHeightForWidth())
+    return tall and all(a.geometry().bottom() < b.geometry().top()
+                        for a, b in pairwise(widgets))
+
+
+def test_a_short_inspector_scrolls_instead_of_stretching_the_window(window, drive):
+    window.resize(1024, 640)
+    _open_example(window, "ce_stage_output")
+    q1 = drive.by("Q1")
+    window.canvas.view.centerOn(to_scene(q1.at))
+    drive.click(q1.at)
+    settle()
+    inspector = window.inspector
+    assert inspector.heading.text().startswith("Q1")
+    assert window.height() == 640  # the transistor's dozen fields do not push it taller
+    scroll = inspector.widget()
+    assert scroll.verticalScrollBar().maximum() > 0
+    last = inspector.details
+    scroll.ensureWidgetVisible(last)  # what does not fit is a scroll away
+    settle()
+    assert last.visibleRegion().boundingRect().height() == last.height()
+
+
+def test_a_blocks_details_stand_clear_of_its_expand_button(window, drive):
+    window.resize(1400, 860)
+    _open_example(window, "audio_crossover")  # a long region name: the details wrap
+    click_button(window.equivalent_dock.collapse_button)
+    block = drive.doc.blocks()[0]
+    window.canvas.view.centerOn(to_scene(block.at))
+    drive.click(block.at)
+    settle()
+    inspector = window.inspector
+    assert inspector.expand_button.isVisible()
+    assert _clear_of_each_other([inspector.details, inspector.expand_button])
