@@ -38,6 +38,7 @@ from ..workbench import Workbench
 from .entry import CheckedEntry
 from .equivalent import block_text, expand_command
 from .scrolling import scrolled
+from .values import text_label
 
 __all__ = ["FieldEditor", "InspectorDock"]
 
@@ -115,17 +116,14 @@ class InspectorDock(QDockWidget):
         font.setBold(True)
         self.heading.setFont(font)
         self.heading.setWordWrap(True)
-        self.details = QLabel()
-        self.details.setWordWrap(True)
-        self.details.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        # selectable under the pointer only: a nudge rewrites "At (x, y)" at every step
+        self.details = text_label()
         self.expand_button = QPushButton("Expand")
         self.expand_button.clicked.connect(self.expand)
         self.expand_button.hide()
         # a device part's small-signal values, worked out from what was entered (read-only)
-        self.derived = QLabel()
+        self.derived = text_label()
         self.derived.setObjectName("derived")
-        self.derived.setWordWrap(True)
-        self.derived.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         self.form = QFormLayout()
         outer = QVBoxLayout(body)
         outer.addWidget(self.heading)
