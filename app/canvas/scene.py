@@ -27,8 +27,10 @@ __all__ = ["SchematicScene"]
 #: Room around the drawing, grid units, so the view can always scroll past the edges.
 _MARGIN = 60.0
 _EMPTY_SHEET = QRectF(-30 * UNIT, -20 * UNIT, 60 * UNIT, 40 * UNIT)
-#: Side of the square tiles (grid units) whose junction dots are drawn together.
-_TILE = 32
+#: Side of the square tiles (grid units) whose junction dots are drawn together: a dot that
+#: comes or goes repaints its tile, so a move repaints at most 8 × 8 units of dots (tiles of 32
+#: made a nudge's repaint twice as long; smaller ones add items to every whole-sheet frame).
+_TILE = 8
 #: Grid lines closer than this on screen (device pixels) are thinned out.
 _MIN_GRID_PX = 7.0
 
