@@ -16,18 +16,18 @@ import numpy as np
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath, QPolygonF
 
-from portcut.engine.schematic import Block, Connectivity, Document, PlacedPart, Region
+from portcut.engine.schematic import Block, Connectivity, Document, PlacedPart, Region, Wire
 from portcut.engine.schematic.outline import Outline, body_bounds, enclosed
 
 __all__ = [
     "Outline",
     "PortMark",
+    "PortMarker",
     "body_bounds",
     "enclosed",
     "outline_with",
     "outline_without",
     "port_marks",
-    "port_marks_read",
     "region_name",
 ]
 
@@ -134,42 +134,72 @@ def port_marks(doc: Document, conn: Connectivity, region: Region,
     no wire carries across (joined by a net label or a ground marker) gets one mark on the
     outline next to the region's pin nearest to it; a chosen port net that nothing outside
     uses, on the region's pin on it nearest to the outline."""
-    if len(region.outline) < 3:
+    return PortMarker().marks(doc, conn, region, port)
+
+
+class PortMarker:
+    """Works out :func:`port_marks` again after each edit, each port net's marks only where
+    what they depend on changed: for a net whose wires cross the outline, those wires; for one
+    that none does, its pins in the region and whether a part outside uses it. (A move of a part
+    on the ground net of a large sheet changes that net's pins, not the other net's wires; a value
+    typed changes neither.)"""
+
+    def __init__(self) -> None:
+        self._held: dict[str, tuple[tuple, tuple[FPoint, ...]]] = {}  # role: (key, points)
+
+    def marks(self, doc: Document, conn: Connectivity, region: Region,
+              port: tuple[str, str]) -> tuple[PortMark, ...]:
+        """The marks of ``region`` for ``port`` on ``doc`` (see :func:`port_marks`)."""
+        if len(region.outline) < 3:
+            return ()
+        edges = list(zip(region.outline, region.outline[1:] + region.outline[:1], strict=True))
+        wires: dict[str, list[Wire]] = {net: [] for net in port}
+        for wire in doc.wires():
+            if (net := conn.net_of_wire.get(wire.id)) in wires:
+                wires[net].append(wire)
+        marks: list[PortMark] = []
+        for role, net in zip(("plus", "minus"), port, strict=True):
+            for pt in dict.fromkeys(self._points(doc, conn, region, role, net,
+                                                 tuple(wires[net]), edges)):
+                marks.append(PortMark(pt, role, net))
+        return tuple(marks)
+
+    def _points(self, doc: Document, conn: Connectivity, region: Region, role: str, net: str,
+                wires: tuple[Wire, ...], edges: list[tuple[FPoint, FPoint]]
+                ) -> tuple[FPoint, ...]:
+        """Where the marks of ``net`` go (rounded to 0.001 grid unit), held for ``role``."""
+        held_key, held = self._held.get(role, ((), ()))
+        wired = (region.outline, wires)
+        if held_key[:2] == wired:  # the same wires: what crossed, or that none did, stands
+            crossing = held if len(held_key) == 2 else ()
+        else:
+            crossing = tuple((round(x, 3), round(y, 3)) for wire in wires
+                             for a, b in pairwise(wire.points)
+                             for x, y in _crossings(a, b, edges))
+        if crossing:
+            self._held[role] = (wired, crossing)
+            return crossing
+        on_net = conn.pins_on(net)
+        inside = tuple(sorted((k, at) for k, at in on_net  # sorted: repeatable
+                              if k[0] in region.members and k[0] in doc))
+        key = (*wired, inside, _used_outside(doc, region, on_net))
+        points = held if held_key == key else _pin_point(inside, key[-1], edges)
+        self._held[role] = (key, points)
+        return points
+
+
+def _pin_point(inside: tuple[tuple[tuple[str, int], FPoint], ...], used_outside: bool,
+               edges: list[tuple[FPoint, FPoint]]) -> tuple[FPoint, ...]:
+    """The mark of a port net that no wire carries across the outline, from its pins
+    ``inside`` the region: where a part outside uses it, the outline point nearest to them
+    (ties: the lower point); else the pin nearest to the outline (ties: the lower pin)."""
+    if not inside:
         return ()
-    edges = list(zip(region.outline, region.outline[1:] + region.outline[:1], strict=True))
-    marks: list[PortMark] = []
-    on_port = [(wire, net) for wire in doc.wires()
-               if (net := conn.net_of_wire.get(wire.id)) in port]
-    for role, net in zip(("plus", "minus"), port, strict=True):
-        points = [pt for wire, on in on_port if on == net
-                  for a, b in pairwise(wire.points) for pt in _crossings(a, b, edges)]
-        if not points:
-            on_net = conn.pins_on(net)
-            inside = sorted((key, at) for key, at in on_net  # sorted: repeatable
-                            if key[0] in region.members and key[0] in doc)
-            if inside:
-                pins = np.array([at for _, at in inside], dtype=float)
-                dist, near = _nearest(edges, pins)
-                if _used_outside(doc, region, on_net):  # the outline point (ties: lower)
-                    points = [tuple(near[np.lexsort((near[:, 1], near[:, 0], dist))[0]])]
-                else:  # the pin itself (ties: the lower pin)
-                    points = [tuple(pins[np.lexsort((pins[:, 1], pins[:, 0], dist))[0]])]
-        for pt in dict.fromkeys((round(x, 3), round(y, 3)) for x, y in points):
-            marks.append(PortMark(pt, role, net))
-    return tuple(marks)
-
-
-def port_marks_read(doc: Document, conn: Connectivity, region: Region,
-                    port: tuple[str, str]) -> tuple:
-    """All that :func:`port_marks` reads of the sheet for these arguments: the region, the
-    port, the wires on the port nets, where the pins on them are and which of their elements
-    outside the region are parts or blocks. Equal for two states of the sheet, the marks are
-    equal too; a tenth of the marks' cost on a large sheet, whose ground net has many wires."""
-    on_port, members = set(port), region.members
-    wires = tuple(w for w in doc.wires() if conn.net_of_wire.get(w.id) in on_port)
-    pins = tuple((key, at, key[0] in members or isinstance(doc[key[0]], PlacedPart | Block))
-                 for net in port for key, at in conn.pins_on(net) if key[0] in doc)
-    return region, port, wires, pins
+    pins = np.array([at for _, at in inside], dtype=float)
+    dist, near = _nearest(edges, pins)
+    best = near if used_outside else pins
+    x, y = best[np.lexsort((best[:, 1], best[:, 0], dist))[0]].tolist()
+    return ((round(x, 3), round(y, 3)),)
 
 
 def _used_outside(doc: Document, region: Region, pins: list[tuple[tuple[str, int], FPoint]]

@@ -22,7 +22,7 @@ from portcut.engine.schematic.reduction import RegionAnalysis
 from portcut.engine.schematic.symbols import MARK_FONT_SIZE, MARK_TEXT, STROKE_WIDTH
 
 from ..analysis import LiveAnalysis
-from ..regions import PortMark, body_bounds, port_marks, port_marks_read
+from ..regions import PortMark, PortMarker, body_bounds
 from ..theme import qcolor
 from .grid import UNIT
 from .items import Z_DOT, Z_REGION, Z_WIRE, Look
@@ -209,10 +209,11 @@ class CutMarks(QObject):
         self.live = live
         self._fault: FaultItem | None = None
         self._ports: PortMarksItem | None = None
-        # the marks depend on the drawing only: kept while what they read of it stays (the
-        # same connectivity, region and port: nothing was redrawn since, so not even read)
+        # the marks depend on the drawing only: kept while the connectivity, region and port
+        # are the same (nothing was redrawn since), else each net's worked out again only
+        # where what it depends on changed
         self._read_from: tuple | None = None
-        self._marks_for: tuple | None = None
+        self._marker = PortMarker()
         self._marks: tuple[PortMark, ...] = ()
         live.analysed.connect(self.show)
 
@@ -241,10 +242,7 @@ class CutMarks(QObject):
             if self._read_from is None or self._read_from[0] is not conn or \
                     self._read_from[1:] != (region, port):
                 self._read_from = (conn, region, port)
-                key = port_marks_read(doc, conn, region, port)
-                if key != self._marks_for:
-                    self._marks_for = key
-                    self._marks = port_marks(doc, conn, region, port)
+                self._marks = self._marker.marks(doc, conn, region, port)
             ports.show_marks(self._marks)
             return
         ports.show_marks(())

@@ -15,9 +15,12 @@ from PySide6.QtGui import QColor, QPolygonF
 from PySide6.QtTest import QTest
 from sheets import SOURCE_SIDE, WITHOUT_SOURCE, divider, lasso, open_sheet, settle
 
+from portcut.app import regions
 from portcut.app.canvas.grid import to_scene
-from portcut.app.regions import port_marks, port_marks_read
-from portcut.engine.schematic import Document, Region, Wire, extract
+from portcut.app.regions import PortMarker, port_marks
+from portcut.assets import example_path
+from portcut.engine.schematic import Document, Region, Wire, extract, load
+from portcut.engine.schematic.reduction import analyse_region
 
 CTRL = Qt.KeyboardModifier.ControlModifier
 SHIFT = Qt.KeyboardModifier.ShiftModifier
@@ -239,20 +242,19 @@ def test_port_marks_do_not_depend_on_set_order():
     assert len(seen) == 1 and "PortMark" in seen.pop()
 
 
-def test_what_the_port_marks_read_changes_whenever_the_marks_do():
-    # the canvas works the marks out again only when port_marks_read changes: every one-step
-    # move of an element of the divider that moves a mark must change it, and a value typed
-    # (which moves nothing) must not
-    doc = divider()
-    members = frozenset(p.id for p in doc.parts() if p.designator != "RL")
-    doc.add(Region("reg", "source side", members, tuple(map(tuple, SOURCE_SIDE[:-1]))))
-    port = ("out", "gnd")
+def _marks_kept_through_every_step(doc: Document, region_id: str, port: tuple[str, str]
+                                   ) -> tuple[PortMarker, tuple, int]:
+    """A PortMarker kept while each element of ``doc`` is moved one step each way: its marks
+    must equal port_marks() of every edited sheet; the marker, the first marks and how many
+    steps moved a mark."""
+    marker = PortMarker()
 
-    def read(d: Document) -> tuple:
-        conn, region = extract(d), d["reg"]
-        return port_marks(d, conn, region, port), port_marks_read(d, conn, region, port)
+    def kept_and_afresh(d: Document) -> tuple:
+        conn, region = extract(d), d[region_id]
+        return marker.marks(d, conn, region, port), port_marks(d, conn, region, port)
 
-    marks, seen = read(doc)
+    kept, afresh = kept_and_afresh(doc)
+    assert kept == afresh and len(kept) >= 2
     moved = 0
     for element in [e for e in doc if not isinstance(e, Region)]:
         for dx, dy in ((1, 0), (0, 1), (-1, 0), (0, -1)):
@@ -262,15 +264,51 @@ def test_what_the_port_marks_read_changes_whenever_the_marks_do():
                 new = replace(element, at=(element.at[0] + dx, element.at[1] + dy))
             edited = doc.snapshot()
             edited.replace(new)
-            marks_after, seen_after = read(edited)
-            if marks_after != marks:
-                moved += 1
-                assert seen_after != seen, f"{element.id} moved by {(dx, dy)}"
+            kept_after, afresh_after = kept_and_afresh(edited)
+            assert kept_after == afresh_after, f"{element.id} moved by {(dx, dy)}"
+            moved += kept_after != afresh
+    assert kept_and_afresh(doc) == (kept, afresh)  # and back
+    return marker, kept, moved
+
+
+def test_port_marks_kept_across_edits_equal_marks_worked_out_afresh(monkeypatch):
+    # the canvas keeps one PortMarker, which works a net's marks out again only where what they
+    # depend on changed (a net's wires across the outline, or the pins of one that none
+    # crosses): kept, they must equal marks worked out afresh after any edit, and a value typed
+    # (which moves nothing) must work nothing out again
+    doc = divider()
+    members = frozenset(p.id for p in doc.parts() if p.designator != "RL")
+    doc.add(Region("reg", "source side", members, tuple(map(tuple, SOURCE_SIDE[:-1]))))
+    port = ("out", "gnd")
+    marker, kept, moved = _marks_kept_through_every_step(doc, "reg", port)
     assert moved >= 4  # the top wire and the ground rail, up and down at least
     edited = doc.snapshot()  # a wire of net out drawn up across the top edge: a third mark
     edited.add(Wire("up", ((8, 2), (8, -3))))
-    marks_after, seen_after = read(edited)
-    assert len(marks_after) == 3 and seen_after != seen
+    conn = extract(edited)
+    assert marker.marks(edited, conn, edited["reg"], port) == \
+        port_marks(edited, conn, edited["reg"], port) and len(marker.marks(
+            edited, conn, edited["reg"], port)) == 3
     edited = doc.snapshot()
     edited.replace(replace(edited.by_designator("R1"), value="2k"))
-    assert read(edited) == (marks, seen)
+    marker.marks(doc, extract(doc), doc["reg"], port)
+    worked = []
+
+    def noted(name: str):
+        work = getattr(regions, name)
+        return lambda *args: worked.append(name) or work(*args)
+
+    for name in ("_crossings", "_pin_point"):
+        monkeypatch.setattr(regions, name, noted(name))
+    conn = extract(edited)
+    assert marker.marks(edited, conn, edited["reg"], port) == kept and not worked
+
+
+def test_port_marks_kept_for_a_net_no_wire_carries_across():
+    # the demo's ground is joined by ground markers, so its mark stands by the region's pins
+    # on it: kept across every one-step move, the marks must still equal marks afresh
+    doc = load(example_path())
+    conn = extract(doc)
+    (region,) = doc.regions()
+    port = analyse_region(doc, region.id, conn=conn).equivalent.port
+    _, _, moved = _marks_kept_through_every_step(doc, region.id, port)
+    assert moved >= 1
