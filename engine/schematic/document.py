@@ -39,6 +39,8 @@ __all__ = ["DESIGNATOR_PREFIX", "Change", "Document"]
 DESIGNATOR_PREFIX: dict[str, str] = {**{k.name: k.prefix for k in KIND_TABLE}, "block": "EQ"}
 T = TypeVar("T")
 _ID_PREFIX = {PlacedPart: "p", Wire: "w", Junction: "j", NetLabel: "n", Region: "r", Block: "b"}
+#: The kinds listed by their own index: few on any sheet, asked for after every edit.
+_LISTED = (Region, Block)
 
 
 @dataclass(frozen=True)
@@ -79,8 +81,9 @@ class Document:
 
     def __init__(self, title: str = "Untitled") -> None:
         self._elements: dict[str, Element] = {}
-        # indexes kept beside the elements so that checks on add stay O(1) on large sheets
-        self._block_ids: dict[str, None] = {}  # ordered set
+        # indexes kept beside the elements so that checks on add stay O(1) on large sheets,
+        # and the few regions and blocks are listed without a pass over every element
+        self._listed: dict[type, dict[str, None]] = {kind: {} for kind in _LISTED}  # ordered
         self._designators: dict[str, str] = {}
         self._analysis = Analysis()
         self._title = _title(title)
@@ -132,7 +135,8 @@ class Document:
         reads one while the document is edited)."""
         copy = Document.__new__(Document)
         copy.__dict__.update(self.__dict__)
-        copy._elements, copy._block_ids = dict(self._elements), dict(self._block_ids)
+        copy._elements = dict(self._elements)
+        copy._listed = {kind: dict(ids) for kind, ids in self._listed.items()}
         copy._designators, copy._listeners, copy._pending = dict(self._designators), [], _Pending()
         return copy
 
@@ -152,10 +156,10 @@ class Document:
         return self.of_type(NetLabel)
 
     def regions(self) -> list[Region]:
-        return self.of_type(Region)
+        return [self._elements[r] for r in self._listed[Region]]
 
     def blocks(self) -> list[Block]:
-        return [self._elements[b] for b in self._block_ids]
+        return [self._elements[b] for b in self._listed[Block]]
 
     def by_designator(self, designator: str) -> PlacedPart | Block | None:
         element_id = self._designators.get(designator)
@@ -174,7 +178,7 @@ class Document:
         """Every element kept inside a collapsed block (at any depth of nesting), the region it
         was collapsed from included; their ids and designators stay reserved so that expanding a
         block can always put them back."""
-        stack = [self._elements[b] for b in self._block_ids]
+        stack = self.blocks()
         while stack:
             block = stack.pop()
             contents = block.contents
@@ -185,7 +189,7 @@ class Document:
             stack.extend(contents.blocks)
 
     def _collapsed_ids(self) -> set[str]:
-        return {e.id for e in self.collapsed()} if self._block_ids else set()
+        return {e.id for e in self.collapsed()} if self._listed[Block] else set()
 
     def next_designator(self, kind: str, reserved: Iterable[str] = ()) -> str:
         """The lowest free designator for ``kind``: R1, R2, ... (DS for dependent sources).
@@ -233,15 +237,12 @@ class Document:
             raise DocumentError(f"an element with id {element.id!r} is already in the document")
         self._check(element)
         self._index(element)
-        if isinstance(element, Block):
-            self._block_ids[element.id] = None
         self._notify(Change(added=frozenset({element.id})))
 
     def remove(self, element_id: str) -> Element:
         """Remove and return an element."""
         element = self[element_id]
         self._unindex(element)
-        self._block_ids.pop(element_id, None)
         self._notify(Change(removed=frozenset({element_id})))
         return element
 
@@ -262,11 +263,15 @@ class Document:
         self._elements[element.id] = element
         if isinstance(element, PlacedPart | Block):
             self._designators[element.designator] = element.id
+        if isinstance(element, _LISTED):
+            self._listed[type(element)][element.id] = None
 
     def _unindex(self, element: Element) -> None:
         del self._elements[element.id]
         if isinstance(element, PlacedPart | Block):
             del self._designators[element.designator]
+        if isinstance(element, _LISTED):
+            del self._listed[type(element)][element.id]
 
     def arrange(self, order: Sequence[str]) -> None:
         """Put the elements in ``order`` (every id once), the order a file lists them in.
@@ -274,6 +279,8 @@ class Document:
         if len(order) != len(self._elements) or set(order) != self._elements.keys():
             raise DocumentError("arrange: the order must name every element exactly once")
         self._elements = {i: self._elements[i] for i in order}
+        self._listed = {kind: {i: None for i in order if i in ids}
+                        for kind, ids in self._listed.items()}
 
     def set_analysis(self, analysis: Analysis) -> Analysis:
         """Set the analysis settings; returns the old ones."""

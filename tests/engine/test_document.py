@@ -55,6 +55,37 @@ def test_elements_by_id_and_by_type(doc: Document) -> None:
     assert doc.by_designator("R9") is None
 
 
+def test_regions_and_blocks_are_listed_in_the_documents_order(doc: Document) -> None:
+    # they are kept in an index of their own: it must list what a pass over every element
+    # would, in the same order, through adding, replacing, removing, re-adding, arranging and
+    # snapshots
+    def listed(d: Document) -> tuple[list[str], list[str]]:
+        return [r.id for r in d.regions()], [b.id for b in d.blocks()]
+
+    def passed_over(d: Document) -> tuple[list[str], list[str]]:
+        return [r.id for r in d.of_type(Region)], [b.id for b in d.of_type(Block)]
+
+    def block(bid: str, designator: str) -> Block:
+        return Block(bid, designator, "thevenin", (10, 0), Region("rx", "A", frozenset()),
+                     Contents(), ((0, 0), (0, 2)))
+
+    for rid in ("ra", "rb", "rc"):
+        doc.add(Region(rid, rid.upper(), frozenset({"p1"})))
+    doc.add(block("b1", "EQ1"))
+    doc.add(block("b2", "EQ2"))
+    assert listed(doc) == passed_over(doc) == (["ra", "rb", "rc"], ["b1", "b2"])
+    doc.replace_fields("rb", name="B2")
+    doc.remove("ra")
+    doc.add(Region("ra", "A", frozenset({"p2"})))  # back, last
+    doc.remove("b1")
+    snapshot = doc.snapshot()
+    doc.remove("rc")
+    assert listed(doc) == passed_over(doc) == (["rb", "ra"], ["b2"])
+    assert listed(snapshot) == passed_over(snapshot) == (["rb", "rc", "ra"], ["b2"])
+    snapshot.arrange(["ra", *(e.id for e in snapshot if e.id != "ra")])
+    assert listed(snapshot) == passed_over(snapshot) == (["ra", "rb", "rc"], ["b2"])
+
+
 def test_unknown_id_is_refused_by_name(doc: Document) -> None:
     with pytest.raises(DocumentError, match=r"^no element with id 'p9' in the document"):
         doc["p9"]
