@@ -108,6 +108,7 @@ class EquivalentDock(QDockWidget):
         self.remove_button = _button("Remove region", "Forget the region (the parts stay)",
                                      self.remove_region)
         self.sweep_button = _button("Sweep…", "Show the region's Z and Voc over frequency")
+        self._listed: set[str] = set()  # the ids of the regions and blocks the lists show
         self._build()
 
         live.analysed.connect(self.show_analysis)
@@ -165,9 +166,11 @@ class EquivalentDock(QDockWidget):
         if change.analysis:
             self.settings.show_settings()
         doc = self.doc
-        ids = change.added | change.removed | change.updated
-        # the lists shown change only with regions and blocks (a value edit touches neither)
-        if any(i not in doc or isinstance(doc[i], Region | Block) for i in ids):
+        # the lists shown change only with regions and blocks (a value edit or a move touches
+        # neither; a link wire folded away by a move is removed, but was never listed)
+        if any(i in self._listed for i in change.removed) or any(
+                i in doc and isinstance(doc[i], Region | Block)
+                for i in change.added | change.updated):
             self._fill_regions()
             self._update_expand()
 
@@ -181,10 +184,12 @@ class EquivalentDock(QDockWidget):
             self.show_analysis(None)
 
     def _fill_regions(self) -> None:
+        regions = self.doc.regions()
+        self._listed = {r.id for r in regions} | {b.id for b in self.doc.blocks()}
         box = self.region_box
         box.blockSignals(True)
         box.clear()
-        for region in self.doc.regions():
+        for region in regions:
             box.addItem(region.name, region.id)
         box.setCurrentIndex(box.findData(self.live.region_id))
         box.blockSignals(False)

@@ -192,6 +192,29 @@ def test_remove_region_is_undoable(window, drive):
     assert len(drive.doc.regions()) == 1 and window.analysis.analysis.ok
 
 
+def test_the_region_list_is_filled_again_only_for_regions_and_blocks(window, drive,
+                                                                     monkeypatch):
+    panel = _drawn(window, drive, divider())
+    fills = []
+    fill = panel._fill_regions
+    monkeypatch.setattr(panel, "_fill_regions", lambda: fills.append(1) or fill())
+    drive.key(Qt.Key.Key_S)
+    at = drive.by("RL").at
+    links = []
+    drive.doc.subscribe(lambda change: links.extend(change.removed))
+    drive.drag(at, (at[0] + 1, at[1]))  # its wires follow: link wires come ...
+    assert drive.by("RL").at == (at[0] + 1, at[1])
+    drive.drag((at[0] + 1, at[1]), at)  # ... and are folded away again
+    settle()
+    assert links and all(i not in drive.doc for i in links)
+    assert drive.by("RL").at == at and not fills  # the lists did not change
+    click_button(panel.remove_button)
+    assert fills and panel.region_box.count() == 0
+    drive.key(Qt.Key.Key_Z, CTRL)
+    settle()
+    assert panel.region_box.count() == 1
+
+
 def test_the_kept_circuit_stays_the_one_a_fresh_build_gives(window, drive):
     # the live analysis patches its circuit after value edits instead of rebuilding: after
     # each kind of edit it must equal a build from scratch
